@@ -1,0 +1,5 @@
+"""Allow ``python -m fieldkit``."""
+
+from fieldkit.cli import main
+
+raise SystemExit(main())

@@ -1,0 +1,1 @@
+"""Diagnosis: the rule expression language, rule loading, findings and fault ranking."""

@@ -1,0 +1,105 @@
+"""The fault and caution catalogues: data files in ``rules/``, validated by these models.
+
+Faults carry a prior (how common, with its source), what to check and what to fix; cautions carry
+their text, severity and source, and say which roles and operating conditions raise them.
+"""
+
+from __future__ import annotations
+
+from enum import StrEnum
+from pathlib import Path
+
+from pydantic import Field, model_validator
+
+from fieldkit.errors import DataFileError
+from fieldkit.model.base import Strict
+from fieldkit.model.condition import FunctionState
+from fieldkit.model.profile import CircuitKind
+from fieldkit.model.roles import Role
+from fieldkit.tomlfile import key_lines, line_for, parse_toml, read_text, validate
+
+ANY_CIRCUIT = "*"
+NO_FAULT = "no_fault"
+
+
+class Fault(Strict):
+    id: str = Field(pattern=r"^[a-z][a-z0-9_]*$")
+    title: str
+    circuits: list[str] = Field(min_length=1)
+    prior: float = Field(gt=0, le=1)
+    prior_source: str = Field(min_length=3)
+    description: str
+    confirm: str
+    fix: str
+    parts: list[str] = Field(default_factory=list)
+    check_minutes: float = Field(default=30, gt=0, le=24 * 60)
+
+    @model_validator(mode="after")
+    def _kinds(self) -> Fault:
+        known = {k.value for k in CircuitKind} | {ANY_CIRCUIT}
+        bad = [c for c in self.circuits if c not in known]
+        if bad:
+            raise ValueError(f"unknown circuit kind(s) {', '.join(bad)}; known: {', '.join(sorted(known))}")
+        return self
+
+    @property
+    def machine_wide(self) -> bool:
+        return ANY_CIRCUIT in self.circuits
+
+    def applies_to(self, kind: CircuitKind) -> bool:
+        return kind.value in self.circuits
+
+    def applies_to_name(self, kind: str) -> bool:
+        return kind in self.circuits
+
+
+class Severity(StrEnum):
+    NOTICE = "notice"
+    WARNING = "warning"
+    DANGER = "danger"
+
+
+class Caution(Strict):
+    id: str = Field(pattern=r"^[a-z][a-z0-9\-]*$")
+    title: str
+    text: str
+    severity: Severity
+    source: str = Field(min_length=3)
+    always: bool = False
+    roles: list[Role] = Field(default_factory=list)
+    functions: list[FunctionState] = Field(default_factory=list)
+
+
+class _FaultFile(Strict):
+    fault: list[Fault] = Field(min_length=1)
+
+
+class _CautionFile(Strict):
+    caution: list[Caution] = Field(min_length=1)
+
+
+def _unique(items: list[Fault] | list[Caution], path: Path, text: str, table: str) -> None:
+    seen: set[str] = set()
+    lines = key_lines(text)
+    for i, item in enumerate(items):
+        if item.id in seen:
+            raise DataFileError(str(path), f"id '{item.id}' appears twice", line_for(lines, (table, i, "id")), f"{table}.{i}.id")
+        seen.add(item.id)
+
+
+def load_faults(path: Path) -> dict[str, Fault]:
+    text = read_text(path)
+    faults = validate(_FaultFile, parse_toml(text, str(path)), str(path), text).fault
+    _unique(faults, path, text, "fault")
+    if NO_FAULT not in {f.id for f in faults}:
+        raise DataFileError(str(path), f"the catalogue must hold the '{NO_FAULT}' entry (a healthy machine)")
+    return {f.id: f for f in faults}
+
+
+def load_cautions(path: Path) -> dict[str, Caution]:
+    text = read_text(path)
+    cautions = validate(_CautionFile, parse_toml(text, str(path)), str(path), text).caution
+    _unique(cautions, path, text, "caution")
+    if not any(c.always for c in cautions):
+        raise DataFileError(str(path), "one caution must be marked always = true (the general caution that defers to the machine's procedures)")
+    return {c.id: c for c in cautions}

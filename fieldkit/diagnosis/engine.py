@@ -1,0 +1,198 @@
+"""From a visit's readings to a ranked, explained diagnosis: the one entry point callers use.
+
+One straight line: readings → measured values with uncertainty (:mod:`measure`) → range checks
+and rule findings (:mod:`findings`) → posterior over faults (:mod:`ranking`) → the next test
+(:mod:`next_test`) → the cautions that apply.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from functools import lru_cache
+from pathlib import Path
+
+from fieldkit.diagnosis.catalogue import Caution, Fault, load_cautions, load_faults
+from fieldkit.diagnosis.findings import Evaluator, outcome_probabilities, verdict_for
+from fieldkit.diagnosis.measure import Measured
+from fieldkit.diagnosis.next_test import suggest
+from fieldkit.diagnosis.ranking import entropy_bits, hypotheses_for, log_posterior, rank
+from fieldkit.diagnosis.results import CautionNote, Diagnosis, Finding, NextTest, ReadingCheck, Verdict
+from fieldkit.diagnosis.rulepack import Rule, load_packs
+from fieldkit.diagnosis.measure import measure_visit
+from fieldkit.model.condition import FunctionState
+from fieldkit.model.profile import MachineProfile, TestPoint
+from fieldkit.model.roles import ROLES
+from fieldkit.model.visit import Visit
+from fieldkit.units import METRIC, DisplaySystem, Kind, format_value, to_canonical
+
+
+@dataclass(frozen=True)
+class Knowledge:
+    """Everything the engine knows that is not about this visit: rules, faults, cautions."""
+
+    rules: list[Rule]
+    faults: dict[str, Fault]
+    cautions: dict[str, Caution]
+    folder: Path
+
+    @classmethod
+    def load(cls, folder: Path) -> Knowledge:
+        from fieldkit.diagnosis.lint import check_references
+
+        k = cls(load_packs(folder), load_faults(folder / "faults.toml"), load_cautions(folder / "cautions.toml"), folder)
+        check_references(k)
+        return k
+
+
+@lru_cache(maxsize=4)
+def _cached(folder: str) -> Knowledge:
+    return Knowledge.load(Path(folder))
+
+
+def default_knowledge(folder: Path | None = None) -> Knowledge:
+    """The bundled rules (or another folder), loaded once per process."""
+    from fieldkit.resources import rules_dir
+
+    return _cached(str((folder or rules_dir()).resolve()))
+
+
+def _range_text(low: float | None, high: float | None, unit: str) -> str:
+    if low is not None and high is not None:
+        return f"{low:.4g}–{high:.4g} {unit}"
+    if low is not None:
+        return f"≥ {low:.4g} {unit}"
+    if high is not None:
+        return f"≤ {high:.4g} {unit}"
+    return "—"
+
+
+def check_reading(m: Measured, system: DisplaySystem) -> ReadingCheck:
+    """A reading against its point's expected range for its condition, gauge error included."""
+    rng = m.point.expected_for(m.reading.condition)
+    unit = system.spelling_for(m.kind)
+    # Display in the user's unit: convert the canonical numbers through one quantity each.
+    from fieldkit.units import Q_, CANONICAL_UNIT, convert
+
+    def shown(x: float | None) -> float | None:
+        if x is None:
+            return None
+        if m.kind is Kind.TEMPERATURE:
+            return float(convert(Q_(x, "degC"), unit).magnitude)
+        return float(convert(Q_(x, CANONICAL_UNIT[m.kind]), unit).magnitude)
+
+    value = shown(m.canonical)
+    scale = (shown(m.canonical + 1.0) or 0.0) - (value or 0.0) if m.kind is not Kind.TEMPERATURE else (
+        1.8 if unit == "°F" else 1.0)
+    u = m.u_canonical * abs(scale)
+    low = high = None
+    verdict = Verdict.NOT_MEASURED
+    if rng is not None:
+        low = to_canonical(rng.low, m.kind) if rng.low is not None else None
+        high = to_canonical(rng.high, m.kind) if rng.high is not None else None
+        verdict = verdict_for(*outcome_probabilities(m.canonical, m.u_canonical, low, high))
+        low, high = shown(low), shown(high)
+    gauge = (f"{m.gauge.id}: 0–{format_value(m.gauge.full_scale, system)} class {m.gauge.accuracy_class:g}"
+             if m.gauge is not None else f"none recorded (assumed class {2.5:g})")
+    advice = gauge_advice(m, system)
+    return ReadingCheck(
+        reading_id=m.reading.id, test_point=m.point.id, test_point_label=m.point.label, circuit=m.circuit.id,
+        condition=m.reading.condition.describe(), value=format_value(m.reading.value, system),
+        expected=_range_text(low, high, unit) if rng is not None else "no range for this condition",
+        uncertainty=f"±{u:.2g} {unit}", verdict=verdict, gauge=gauge, gauge_advice=advice,
+        value_num=value, low_num=low, high_num=high, uncertainty_num=u, unit=unit, discounted=m.invalid,
+    )
+
+
+def gauge_advice(m: Measured, system: DisplaySystem) -> str:
+    """Whether the gauge suited the point (physics.gauges), in words; empty when it did."""
+    if m.gauge is None or m.kind is not Kind.PRESSURE or m.gauge.kind is not Kind.PRESSURE:
+        return ""
+    from fieldkit.physics.gauges import gauge_suitability
+
+    try:
+        check = gauge_suitability(m.gauge.full_scale, m.reading.value, m.point.max_pressure,
+                                  m.gauge.scale_start, m.gauge.accuracy_class)
+    except Exception as exc:  # an odd gauge record must not stop the diagnosis
+        return f"gauge could not be checked: {exc}"
+    return "" if check.ok else check.message
+
+
+def _gauge_findings(measured: list[Measured], hyps: list, rules_cautions: dict[str, Caution]) -> list[Finding]:
+    """Built-in check: a reading at or above its gauge's full scale cannot be trusted."""
+    import math
+
+    out: list[Finding] = []
+    for m in measured:
+        if m.gauge is None or m.gauge.kind is not m.kind:
+            continue
+        top = to_canonical(m.gauge.full_scale, m.kind)
+        if m.canonical >= top:
+            ev = {h.key: math.log(0.6 / 0.02) for h in hyps if h.fault.id == "gauge_error"}
+            out.append(Finding(
+                rule_id="gauge-overranged", title=f"Gauge overranged at {m.point.label}", circuit=m.circuit.id,
+                verdict=Verdict.HIGH, message=(f"{m.point.label} read {format_value(m.reading.value)} on a gauge whose "
+                                               f"scale ends at {format_value(m.gauge.full_scale)}: the reading is not valid."),
+                readings=[m.reading.id], p_high=1.0, action="Repeat with a gauge rated above the point's highest pressure.",
+                cautions=["gauge-rating"], source="EN 837-1 (readings beyond the scale carry no class accuracy)",
+                evidence=ev,
+            ))
+    return out
+
+
+def _cautions(knowledge: Knowledge, profile: MachineProfile, measured: list[Measured], findings: list[Finding],
+              next_tests: list[NextTest]) -> list[CautionNote]:
+    notes: dict[str, CautionNote] = {}
+
+    def add(cid: str, because: str) -> None:
+        c = knowledge.cautions.get(cid)
+        if c is not None and cid not in notes:
+            notes[cid] = CautionNote(c.id, c.title, c.text, c.severity.value, c.source, because)
+
+    for c in knowledge.cautions.values():
+        if c.always:
+            add(c.id, "always")
+    points: list[tuple[TestPoint, str]] = [(m.point, "reading taken") for m in measured]
+    for t in next_tests[:1]:
+        _circuit, tp = profile.test_point(t.test_point)
+        points.append((tp, "next test"))
+    for tp, why in points:
+        for cid in tp.cautions:
+            add(cid, f"{why} at {tp.label}")
+        for c in knowledge.cautions.values():
+            if tp.role in c.roles:
+                add(c.id, f"{why} at {tp.label}")
+    for m in measured:
+        if m.reading.condition.function is FunctionState.STALLED:
+            for c in knowledge.cautions.values():
+                if FunctionState.STALLED in c.functions:
+                    add(c.id, f"{m.point.label} read with the function stalled")
+    for f in findings:
+        for cid in f.cautions:
+            add(cid, f"finding: {f.title}")
+    order = {"danger": 0, "warning": 1, "notice": 2}
+    return sorted(notes.values(), key=lambda n: (n.id != "general", order.get(n.severity, 3)))
+
+
+def diagnose(visit: Visit, profile: MachineProfile, knowledge: Knowledge | None = None,
+             system: DisplaySystem = METRIC) -> Diagnosis:
+    """Findings, ranked faults, next tests and cautions for a visit on a machine."""
+    knowledge = knowledge or default_knowledge()
+    measured, notes = measure_visit(visit, profile)
+    hyps = hypotheses_for(profile, knowledge.faults)
+    evaluator = Evaluator(profile, measured, system)
+    findings, pairs = evaluator.run(knowledge.rules, hyps)
+    findings.extend(_gauge_findings(measured, hyps, knowledge.cautions))
+    ranked, posterior = rank(hyps, findings)
+    logs = log_posterior(hyps, findings)
+    next_tests = suggest(evaluator, pairs, hyps, posterior, logs)
+    checks = [check_reading(m, system) for m in measured]
+    cautions = _cautions(knowledge, profile, measured, findings, next_tests)
+    if not measured:
+        notes.append("no readings yet: the ranking shows the catalogue's priors")
+    return Diagnosis(
+        visit_id=visit.id, machine=profile.id, checks=checks, findings=findings, faults=ranked,
+        next_tests=next_tests, cautions=cautions, entropy_bits=entropy_bits(posterior), notes=notes,
+    )
+
+
+__all__ = ["Diagnosis", "Knowledge", "default_knowledge", "diagnose", "ROLES"]

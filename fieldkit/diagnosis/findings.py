@@ -1,0 +1,366 @@
+"""Rules applied to measured readings: findings with soft outcomes and evidence.
+
+The value a rule computes carries the combined standard uncertainty of its readings (GUM 5.1.2,
+propagated by the expression compiler). Against each limit the engine asks how likely the true
+value lies beyond it (normal model), so a reading inside its gauge's error of a limit gives
+partial evidence and an 'inconclusive' verdict rather than a confident pass or fail. That soft
+outcome enters the ranking as virtual evidence (Pearl): the likelihood of a fault is
+Σ P(outcome observed) · P(outcome | fault).
+"""
+
+from __future__ import annotations
+
+import math
+import re
+from collections.abc import Iterable
+from dataclasses import dataclass, field
+
+from fieldkit.diagnosis.catalogue import Fault
+from fieldkit.diagnosis.expr.dims import kind_dimension, to_quantity
+from fieldkit.diagnosis.measure import Measured
+from fieldkit.diagnosis.results import Finding, Verdict
+from fieldkit.diagnosis.rulepack import Rule
+from fieldkit.diagnosis.symbols import DERIVED, MACHINE_FIGURES, SYMBOLS
+from fieldkit.model.condition import FunctionState
+from fieldkit.model.parameters import PARAMETERS
+from fieldkit.model.profile import Circuit, MachineProfile
+from fieldkit.model.roles import ROLES, Role
+from fieldkit.units import DisplaySystem, Kind, Q_, format_value, to_canonical
+
+#: A verdict is stated when one outcome is at least this likely; otherwise it is 'inconclusive'.
+CONFIDENT = 0.95
+#: Evidence from readings taken outside the test window counts at this weight (tempered likelihood).
+INVALID_WEIGHT = 0.35
+
+_SQRT2 = math.sqrt(2.0)
+_PLACEHOLDER = re.compile(r"\{([a-z_]+)\}")
+
+
+def _phi(z: float) -> float:
+    return 0.5 * math.erfc(-z / _SQRT2)
+
+
+def outcome_probabilities(value: float, u: float, low: float | None, high: float | None) -> tuple[float, float, float]:
+    """P(true value below low), P(within), P(above high), true value ~ N(value, u²)."""
+    if u <= 0.0:
+        p_low = 1.0 if low is not None and value < low else 0.0
+        p_high = 1.0 if high is not None and value > high else 0.0
+    else:
+        p_low = _phi((low - value) / u) if low is not None else 0.0
+        p_high = _phi((value - high) / u) if high is not None else 0.0
+    p_ok = max(0.0, 1.0 - p_low - p_high)
+    return p_low, p_ok, p_high
+
+
+def verdict_for(p_low: float, p_ok: float, p_high: float) -> Verdict:
+    if p_low >= CONFIDENT:
+        return Verdict.LOW
+    if p_high >= CONFIDENT:
+        return Verdict.HIGH
+    if p_ok >= CONFIDENT:
+        return Verdict.IN_RANGE
+    return Verdict.INCONCLUSIVE
+
+
+def fill(template: str, values: dict[str, str]) -> str:
+    """Put values into a message from a rule file. Only ``{name}`` placeholders are replaced; no
+    format-spec or attribute syntax is ever interpreted (rule files are not trusted code)."""
+    return _PLACEHOLDER.sub(lambda m: values.get(m.group(1), m.group(0)), template)
+
+
+@dataclass(slots=True)
+class Hypothesis:
+    key: str
+    fault: Fault
+    circuit: Circuit | None
+    prior: float
+
+
+@dataclass(slots=True)
+class Scope:
+    """Readings a rule sees: one circuit's, or the whole machine's for machine-wide rules."""
+
+    circuit: Circuit | None
+    by_role: dict[Role, list[Measured]] = field(default_factory=dict)
+
+
+class Missing(Exception):
+    """A reading the rule needs has not been taken (yet)."""
+
+    def __init__(self, role: Role, state: FunctionState | None) -> None:
+        self.role, self.state = role, state
+
+
+class NotApplicable(Exception):
+    """The circuit lacks a figure the rule needs: the rule says nothing about this machine."""
+
+
+class Evaluator:
+    """Evaluates rules for one visit; derived values are computed once per scope."""
+
+    def __init__(self, profile: MachineProfile, measured: list[Measured], system: DisplaySystem) -> None:
+        self.profile = profile
+        self.system = system
+        self.measured = measured
+        self.scopes: list[Scope] = []
+        # Rules read a role at its primary point: the first point with that role in a circuit (the
+        # machine's first, for machine-wide rules). Other points of the same role (a pilot signal
+        # beside the pilot supply) get range checks only.
+        whole = Scope(None)
+        machine_primary: dict[Role, str] = {}
+        for c in profile.circuits:
+            scope = Scope(c)
+            primary: dict[Role, str] = {}
+            for tp in c.test_points:
+                primary.setdefault(tp.role, tp.id)
+                machine_primary.setdefault(tp.role, tp.id)
+            for m in measured:
+                if m.circuit.id == c.id and primary.get(m.role) == m.point.id:
+                    scope.by_role.setdefault(m.role, []).append(m)
+            self.scopes.append(scope)
+        for m in measured:
+            if machine_primary.get(m.role) == m.point.id:
+                whole.by_role.setdefault(m.role, []).append(m)
+        self.machine = whole
+        self.missing_roles: dict[str, list[tuple[Role, FunctionState | None]]] = {}
+        from fieldkit.physics.fluid import grade
+
+        self.curve = grade(profile.oil_grade).curve
+
+    # --- names ------------------------------------------------------------------------
+    def latest(self, scope: Scope, role: Role, states: Iterable[FunctionState]) -> Measured:
+        states = tuple(states)
+        found = [m for m in scope.by_role.get(role, []) if not states or m.reading.condition.function in states]
+        if not found:
+            raise Missing(role, states[0] if len(states) == 1 else None)
+        return found[-1]
+
+    def parameter(self, scope: Scope, name: str) -> float:
+        circuits = [scope.circuit] if scope.circuit is not None else self.profile.circuits
+        for c in circuits:
+            if name in c.parameters:
+                return float(c.parameters[name].to_base_units().magnitude)
+        raise NotApplicable(f"no '{name}' figure ({PARAMETERS[name][1]})")
+
+    def machine_figure(self, name: str) -> float:
+        p = self.profile
+        q = {
+            "rated_speed": p.rated_speed,
+            "rated_max_pressure": p.rated_max_pressure,
+            "reference_oil_temperature": p.reference_oil_temperature,
+            "test_oil_min": p.test_window.oil_min,
+            "test_oil_max": p.test_window.oil_max,
+            "speed_tolerance": Q_(p.test_window.speed_tolerance_pct, "percent"),
+        }[name]
+        return float(q.to_base_units().magnitude)
+
+    def derived(self, scope: Scope, name: str, states: tuple[FunctionState, ...], used: list[Measured]) -> tuple[float, float]:
+        if name in ("pump_case_drain_flow_at_ref", "motor_case_drain_flow_at_ref"):
+            role = Role.PUMP_CASE_DRAIN_FLOW if name.startswith("pump") else Role.MOTOR_CASE_DRAIN_FLOW
+            m = self.latest(scope, role, states)
+            used.append(m)
+            if m.oil_temp_c is None:
+                raise Missing(Role.OIL_TEMPERATURE, None)
+            t_ref = to_canonical(self.profile.reference_oil_temperature, Kind.TEMPERATURE)
+            ratio = self.curve.cst_at_kelvin(m.oil_temp_c + 273.15) / self.curve.cst_at_kelvin(t_ref + 273.15)
+            return m.si * ratio, m.u_si * ratio
+        if name == "pump_theoretical_flow":
+            disp = self.parameter(scope, "pump_displacement")
+            try:
+                m = self.latest(scope, Role.PUMP_SPEED, ())
+                used.append(m)
+                return disp * m.si, disp * m.u_si
+            except Missing:
+                return disp * self.machine_figure("rated_speed"), 0.0
+        if name == "relief_deadhead":
+            return self._deadhead(scope, used)
+        if name == "oil_viscosity":
+            m = self.latest(scope, Role.OIL_TEMPERATURE, ())
+            used.append(m)
+            nu = self.curve.cst_at_kelvin(m.canonical + 273.15)
+            slope = (self.curve.cst_at_kelvin(m.canonical + 274.15) - self.curve.cst_at_kelvin(m.canonical + 272.15)) / 2
+            return nu * 1e-6, abs(slope) * m.u_canonical * 1e-6
+        raise NotApplicable(f"derived value '{name}' is not known")
+
+    def _deadhead(self, scope: Scope, used: list[Measured]) -> tuple[float, float]:
+        from fieldkit.physics.reliefs import Parallel, ReliefValve, Series, deadhead
+
+        circuit = scope.circuit
+        if circuit is None or not circuit.reliefs:
+            raise NotApplicable("the circuit lists no relief valves")
+        valves = {r.id: ReliefValve(r.id, r.setting, r.override if r.override is not None else Q_(0.0, "bar"), r.drain)
+                  for r in circuit.reliefs}
+
+        def build(layout):  # noqa: ANN001, ANN202 - a ReliefLayout → physics tree
+            items = [valves[m] if isinstance(m, str) else build(m) for m in layout.members()]
+            return Series(items) if layout.series else Parallel(items)
+
+        tree = build(circuit.relief_layout) if circuit.relief_layout else (
+            valves[circuit.reliefs[0].id] if len(circuit.reliefs) == 1 else Parallel(list(valves.values())))
+        back = None
+        u = 0.0
+        try:
+            m = self.latest(scope, Role.RETURN_PRESSURE, (FunctionState.STALLED,))
+        except Missing:
+            m = None
+        if m is not None:
+            used.append(m)
+            back, u = m.reading.value, m.u_si
+        result = deadhead(tree, back)
+        return float(result.upstream.to_base_units().magnitude), u
+
+    # --- rules ------------------------------------------------------------------------
+    def scopes_for(self, rule: Rule) -> list[Scope]:
+        if rule.spec.machine_wide:
+            return [self.machine]
+        return [s for s in self.scopes if s.circuit is not None and s.circuit.kind.value in rule.spec.circuits]
+
+    def evaluate(self, rule: Rule, scope: Scope, hypotheses: list[Hypothesis]) -> Finding | None:
+        """A finding, or None when the rule does not apply to this circuit."""
+        spec = rule.spec
+        values: dict[str, float] = {}
+        uncert: dict[str, float] = {}
+        used: list[Measured] = []
+        missing: list[str] = []
+        missing_roles: list[tuple[Role, FunctionState | None]] = []
+        expected_from: Measured | None = None
+        for name in sorted(rule.names):
+            try:
+                if name in SYMBOLS.readings:
+                    role, state = SYMBOLS.readings[name]
+                    m = self.latest(scope, role, (state,) if state else tuple(spec.when))
+                    used.append(m)
+                    values[name], uncert[name] = m.si, m.u_si
+                    expected_from = m
+                elif name in PARAMETERS:
+                    values[name], uncert[name] = self.parameter(scope, name), 0.0
+                elif name in MACHINE_FIGURES:
+                    values[name], uncert[name] = self.machine_figure(name), 0.0
+                elif name in DERIVED:
+                    values[name], uncert[name] = self.derived(scope, name, tuple(spec.when), used)
+                    if used:
+                        expected_from = used[0]
+            except Missing as miss:
+                label = ROLES[miss.role].label
+                state = miss.state or (spec.when[0] if len(spec.when) == 1 else None)
+                missing.append(f"{label} ({state.label})" if state else label)
+                missing_roles.append((miss.role, state))
+            except NotApplicable:
+                return None
+        circuit_id = scope.circuit.id if scope.circuit else None
+        if missing:
+            self.missing_roles[f"{spec.id}@{circuit_id}" if circuit_id else spec.id] = missing_roles
+            return Finding(rule_id=spec.id, title=spec.title, circuit=circuit_id, verdict=Verdict.NOT_MEASURED,
+                           message=f"{spec.title}: needs {', '.join(missing)}", missing=missing, source=spec.source,
+                           p_in_range=1.0)
+        try:
+            value, u = rule.value.evaluate_with_uncertainty(values, uncert)
+            low = high = None
+            u_low = u_high = 0.0
+            if spec.limits == "expected":
+                assert expected_from is not None
+                rng = expected_from.point.expected_for(expected_from.reading.condition)
+                if rng is None:
+                    return None
+                low = float(rng.low.to_base_units().magnitude) if rng.low is not None else None
+                high = float(rng.high.to_base_units().magnitude) if rng.high is not None else None
+            else:
+                if rule.low is not None:
+                    low, u_low = rule.low.evaluate_with_uncertainty(values, uncert)
+                if rule.high is not None:
+                    high, u_high = rule.high.evaluate_with_uncertainty(values, uncert)
+        except Exception as exc:  # an expression failing on these numbers (÷0) is reported, not raised
+            return Finding(rule_id=spec.id, title=spec.title, circuit=circuit_id, verdict=Verdict.INCONCLUSIVE,
+                           message=f"{spec.title}: could not be computed ({exc})", source=spec.source, p_in_range=1.0)
+        p_low, _, _ = outcome_probabilities(value, math.hypot(u, u_low), low, None)
+        _, _, p_high = outcome_probabilities(value, math.hypot(u, u_high), None, high)
+        p_ok = max(0.0, 1.0 - p_low - p_high)
+        verdict = verdict_for(p_low, p_ok, p_high)
+        invalid = sorted({m.invalid for m in used if m.invalid}) if spec.discount_when_invalid else []
+        weight = INVALID_WEIGHT if invalid else 1.0
+        texts = self._texts(rule, value, u, low, high)
+        template = {Verdict.LOW: spec.say_low, Verdict.HIGH: spec.say_high, Verdict.IN_RANGE: spec.say_ok}.get(verdict, "")
+        if not template:
+            template = "{title}: {value} ± {uncertainty}; limits {limits}"
+        message = fill(template, texts)
+        if verdict is Verdict.INCONCLUSIVE:
+            message += f" Too close to a limit to call with this gauge (P low {p_low:.0%}, P high {p_high:.0%})."
+        if invalid:
+            message += f" Counted at reduced weight: {'; '.join(invalid)}."
+        finding = Finding(
+            rule_id=spec.id, title=spec.title, circuit=circuit_id, verdict=verdict, message=message,
+            value=texts["value"], uncertainty=texts["uncertainty"], low=texts["low"], high=texts["high"],
+            p_low=p_low, p_in_range=p_ok, p_high=p_high, readings=[m.reading.id for m in used],
+            discount=weight, discount_reason="; ".join(invalid),
+            action=spec.do_low if verdict is Verdict.LOW else spec.do_high if verdict is Verdict.HIGH else "",
+            cautions=list(spec.cautions) if verdict in (Verdict.LOW, Verdict.HIGH, Verdict.INCONCLUSIVE) else [],
+            source=spec.source,
+        )
+        finding.evidence = evidence(rule, scope.circuit, (p_low, p_ok, p_high), weight, hypotheses)
+        return finding
+
+    def _texts(self, rule: Rule, value: float, u: float, low: float | None, high: float | None) -> dict[str, str]:
+        dim = rule.value.result
+        kind = _kind_of_dim(dim)
+
+        def show(x: float | None, difference: bool = False) -> str:
+            if x is None:
+                return "—"
+            if kind is None:
+                return f"{x:.3g}"
+            q = to_quantity(x, dim, temperature_difference=difference)
+            if difference and kind is Kind.TEMPERATURE:
+                return f"{q.to('delta_degC').magnitude:.2g} K"
+            return format_value(q, self.system, kind=kind)
+
+        limits = f"{show(low)} to {show(high)}" if low is not None and high is not None else (
+            f"at least {show(low)}" if low is not None else f"at most {show(high)}")
+        return {"title": rule.spec.title, "value": show(value), "uncertainty": show(u, difference=True) if u else "0",
+                "low": show(low), "high": show(high), "limits": limits}
+
+    def run(self, rules: list[Rule], hypotheses: list[Hypothesis]) -> tuple[list[Finding], list[tuple[Rule, Scope, Finding]]]:
+        self.missing_roles: dict[str, list[tuple[Role, FunctionState | None]]] = {}
+        findings: list[Finding] = []
+        pairs: list[tuple[Rule, Scope, Finding]] = []
+        for rule in rules:
+            for scope in self.scopes_for(rule):
+                f = self.evaluate(rule, scope, hypotheses)
+                if f is not None:
+                    findings.append(f)
+                    pairs.append((rule, scope, f))
+        return findings, pairs
+
+
+def _kind_of_dim(dim: object) -> Kind | None:
+    for kind in (Kind.PRESSURE, Kind.FLOW, Kind.TEMPERATURE, Kind.SPEED, Kind.VELOCITY, Kind.VISCOSITY, Kind.POWER):
+        if dim == kind_dimension(kind):
+            return kind
+    return None
+
+
+def likelihoods(rule: Rule, circuit: Circuit | None, outcome: tuple[float, float, float],
+                hypotheses: list[Hypothesis]) -> list[float]:
+    """P(observation | h) for every hypothesis, the observation being soft (virtual evidence)."""
+    healthy = rule.spec.likelihood("no_fault")
+    out: list[float] = []
+    for h in hypotheses:
+        same_place = circuit is None or h.circuit is None or h.circuit.id == circuit.id
+        lik = rule.spec.likelihood(h.fault.id) if same_place else healthy
+        out.append(sum(o * p for o, p in zip(outcome, lik)))
+    return out
+
+
+def evidence(rule: Rule, circuit: Circuit | None, outcome: tuple[float, float, float], weight: float,
+             hypotheses: list[Hypothesis]) -> dict[str, float]:
+    """Log-likelihood ratios against a healthy machine, kept only where they differ from it."""
+    liks = likelihoods(rule, circuit, outcome, hypotheses)
+    base = sum(o * p for o, p in zip(outcome, rule.spec.likelihood("no_fault")))
+    out: dict[str, float] = {}
+    for h, lik in zip(hypotheses, liks):
+        llr = weight * (math.log(lik) - math.log(base))
+        if abs(llr) > 1e-12:
+            out[h.key] = llr
+    return out
+
+
+__all__ = ["Evaluator", "Hypothesis", "evidence", "fill", "likelihoods", "outcome_probabilities", "verdict_for"]

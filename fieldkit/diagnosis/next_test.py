@@ -1,0 +1,161 @@
+"""Which measurement to take next: the largest expected drop in diagnostic uncertainty per minute.
+
+For every test point whose reading would let a rule speak (and every inconclusive reading that a
+smaller gauge could settle), the engine asks what each possible outcome would do to the ranking,
+weights the outcomes by how likely they are now, and compares the expected entropy after the
+reading with the entropy now (expected information gain, in bits), divided by the minutes the
+reading takes.
+"""
+
+from __future__ import annotations
+
+import itertools
+import math
+from dataclasses import dataclass
+
+from fieldkit.diagnosis.findings import Evaluator, Hypothesis, Scope, likelihoods
+from fieldkit.diagnosis.ranking import entropy_bits
+from fieldkit.diagnosis.results import Finding, NextTest, Verdict
+from fieldkit.diagnosis.rulepack import Rule
+from fieldkit.model.condition import FunctionState
+from fieldkit.model.profile import Circuit, TestPoint
+from fieldkit.model.roles import ROLES, Role
+from fieldkit.units import Kind
+
+MAX_JOINT_RULES = 3
+OUTCOMES = ("low", "in range", "high")
+_UNIT = ((1.0, 0.0, 0.0), (0.0, 1.0, 0.0), (0.0, 0.0, 1.0))
+
+
+@dataclass(slots=True)
+class _Candidate:
+    circuit: Circuit
+    point: TestPoint
+    state: FunctionState | None
+    rules: list[tuple[Rule, Scope]]
+    repeat_of: Finding | None = None
+
+
+def _matrices(rules: list[tuple[Rule, Scope]], hyps: list[Hypothesis]) -> list[list[list[float]]]:
+    """For each rule: P(outcome | h) as [outcome][h]."""
+    return [[likelihoods(rule, scope.circuit, unit, hyps) for unit in _UNIT] for rule, scope in rules]
+
+
+def _expected_entropy(prior: list[float], mats: list[list[list[float]]]) -> tuple[float, list[tuple[float, list[float]]]]:
+    per_outcome: list[tuple[float, list[float]]] = []
+    expected = 0.0
+    for combo in itertools.product(range(3), repeat=len(mats)):
+        joint = list(prior)
+        for mat, o in zip(mats, combo):
+            row = mat[o]
+            joint = [j * r for j, r in zip(joint, row)]
+        p = sum(joint)
+        if p <= 0:
+            continue
+        post = [j / p for j in joint]
+        expected += p * entropy_bits(post)
+        per_outcome.append((p, post))
+    return expected, per_outcome
+
+
+def _point_for(evaluator: Evaluator, scope: Scope, role: Role) -> tuple[Circuit, TestPoint] | None:
+    circuits = [scope.circuit] if scope.circuit is not None else evaluator.profile.circuits
+    for c in circuits:
+        for tp in c.test_points:
+            if tp.role is role:
+                return c, tp
+    return None
+
+
+def _describe(post: list[float], hyps: list[Hypothesis]) -> str:
+    i = max(range(len(post)), key=post.__getitem__)
+    h = hyps[i]
+    where = f" ({h.circuit.id})" if h.circuit else ""
+    return f"{h.fault.title}{where} {post[i]:.0%}"
+
+
+def suggest(evaluator: Evaluator, pairs: list[tuple[Rule, Scope, Finding]], hyps: list[Hypothesis],
+            posterior: list[float], findings_logs: list[float], limit: int = 3) -> list[NextTest]:
+    """The best next measurements, most useful per minute first."""
+    now = entropy_bits(posterior)
+    candidates: dict[tuple[str, str, str | None], _Candidate] = {}
+    for rule, scope, finding in pairs:
+        if finding.verdict is Verdict.NOT_MEASURED:
+            missing = evaluator.missing_roles.get(finding.key, [])
+            if len({r for r, _ in missing}) != 1:
+                continue  # needs two new readings: the first of them is offered by another rule, if any
+            role, state = missing[0]
+            place = _point_for(evaluator, scope, role)
+            if place is None:
+                continue
+            circuit, point = place
+            key = (circuit.id, point.id, state.value if state else None)
+            cand = candidates.setdefault(key, _Candidate(circuit, point, state, []))
+            cand.rules.append((rule, scope))
+        elif finding.verdict is Verdict.INCONCLUSIVE and finding.readings:
+            reading_id = finding.readings[0]
+            m = next((m for m in evaluator.measured if m.reading.id == reading_id), None)
+            if m is None:
+                continue
+            key = (m.circuit.id, m.point.id, "repeat")
+            cand = candidates.setdefault(key, _Candidate(m.circuit, m.point, m.reading.condition.function, [], finding))
+            cand.rules.append((rule, scope))
+    tests: list[NextTest] = []
+    for cand in candidates.values():
+        rules = cand.rules[:MAX_JOINT_RULES]
+        mats = _matrices(rules, hyps)
+        if cand.repeat_of is not None:
+            # Take the soft finding out again, then ask what a hard answer would leave.
+            base = [lg - cand.repeat_of.evidence.get(h.key, 0.0) for lg, h in zip(findings_logs, hyps)]
+            top = max(base)
+            prior = [math.exp(b - top) for b in base]
+            total = sum(prior)
+            prior = [p / total for p in prior]
+        else:
+            prior = posterior
+        expected, per_outcome = _expected_entropy(prior, mats[:1] if cand.repeat_of else mats)
+        gain = max(0.0, now - expected)
+        if gain < 1e-3:
+            continue
+        minutes = cand.point.minutes
+        outcomes: dict[str, str] = {}
+        first = mats[0]
+        for o, name in enumerate(OUTCOMES):
+            joint = [p * first[o][i] for i, p in enumerate(prior)]
+            p_o = sum(joint)
+            if p_o > 0.05:
+                outcomes[name] = _describe([j / p_o for j in joint], hyps)
+        state_text = cand.state.label if cand.state else "any condition"
+        advice = ""
+        if cand.repeat_of is not None and cand.point.kind is Kind.PRESSURE:
+            advice = _smaller_gauge_advice(evaluator, cand)
+        verb = "Measure again" if cand.repeat_of else "Measure"
+        said = "; ".join(f"if {k}, {v}" for k, v in outcomes.items())
+        why = (f"{verb} {cand.point.label} ({state_text}): it is expected to remove {gain:.2f} of the "
+               f"{now:.2f} bits of doubt in about {minutes:g} min. {said.capitalize()}.")
+        if advice:
+            why += f" {advice}"
+        tests.append(NextTest(
+            test_point=cand.point.id, label=cand.point.label, circuit=cand.circuit.id, condition=state_text,
+            minutes=minutes, gain_bits=gain, why=why, repeat=cand.repeat_of is not None, gauge_advice=advice,
+            outcomes=outcomes,
+        ))
+    tests.sort(key=lambda t: -(t.gain_bits / t.minutes))
+    return tests[:limit]
+
+
+def _smaller_gauge_advice(evaluator: Evaluator, cand: _Candidate) -> str:
+    from fieldkit.physics.gauges import smallest_gauge
+    from fieldkit.units import format_value
+
+    m = next(m for m in evaluator.measured if m.reading.id == cand.repeat_of.readings[0])  # type: ignore[union-attr]
+    try:
+        size = smallest_gauge(m.reading.value, cand.point.max_pressure)
+    except Exception:
+        return "Use a gauge of smaller full scale or a better accuracy class."
+    current = f" instead of the {format_value(m.gauge.full_scale)} one" if m.gauge is not None else ""
+    return (f"The reading sits within the gauge's error of a limit: repeat it with a 0–{format_value(size)} "
+            f"gauge{current} (smaller full scale, smaller error).")
+
+
+__all__ = ["suggest", "ROLES"]

@@ -1,0 +1,66 @@
+"""Operating conditions: what the machine was doing when a reading was taken.
+
+A charge pressure means one thing in neutral and another with the drive in full stroke, so every
+reading states its condition and every expected range says which condition it is for.
+"""
+
+from __future__ import annotations
+
+from enum import StrEnum
+
+from pydantic import Field
+
+from fieldkit.model.base import Strict
+from fieldkit.model.quantity import Speed, Temperature
+
+
+class FunctionState(StrEnum):
+    NEUTRAL = "neutral"
+    FULL_STROKE = "full_stroke"
+    STALLED = "stalled"
+    UNDER_LOAD = "under_load"
+
+    @property
+    def label(self) -> str:
+        return {
+            "neutral": "function in neutral",
+            "full_stroke": "function at full stroke",
+            "stalled": "function stalled over relief",
+            "under_load": "function under working load",
+        }[self.value]
+
+
+class Condition(Strict):
+    """The condition a technician set for one reading."""
+
+    function: FunctionState = FunctionState.NEUTRAL
+    speed: Speed | None = Field(default=None, description="engine or pump speed while reading")
+    oil_temperature: Temperature | None = Field(default=None, description="oil temperature while reading")
+
+    def describe(self) -> str:
+        from fieldkit.units import format_value
+
+        parts = [self.function.label]
+        if self.speed is not None:
+            parts.append(format_value(self.speed))
+        if self.oil_temperature is not None:
+            parts.append("oil " + format_value(self.oil_temperature))
+        return ", ".join(parts)
+
+
+class ConditionSpec(Strict):
+    """Which conditions an expected range applies to; empty means any."""
+
+    function: list[FunctionState] = Field(default_factory=list)
+    speed_min: Speed | None = None
+    speed_max: Speed | None = None
+
+    def matches(self, condition: Condition) -> bool:
+        if self.function and condition.function not in self.function:
+            return False
+        if condition.speed is not None:
+            if self.speed_min is not None and condition.speed < self.speed_min:
+                return False
+            if self.speed_max is not None and condition.speed > self.speed_max:
+                return False
+        return True

@@ -1,0 +1,48 @@
+"""Gauges and meters as the technician connects them: range and accuracy class.
+
+The accuracy class decides whether a reading near a limit is a pass, a fail or 'inconclusive',
+so it is part of every reading's record.
+"""
+
+from __future__ import annotations
+
+import pint
+from pydantic import Field, model_validator
+
+from fieldkit.model.base import Strict
+from fieldkit.model.quantity import AnyQuantity
+from fieldkit.units import Kind, kind_of
+
+#: EN 837-1 accuracy classes for Bourdon-tube pressure gauges (limit of error, % of span).
+EN837_CLASSES = (0.1, 0.25, 0.6, 1.0, 1.6, 2.5, 4.0)
+
+
+class Gauge(Strict):
+    id: str = Field(min_length=1, max_length=40, pattern=r"^[A-Za-z0-9_.\-]+$")
+    label: str = ""
+    full_scale: AnyQuantity = Field(description="top of the scale, e.g. '60 bar' or '100 L/min'")
+    scale_start: AnyQuantity | None = Field(default=None, description="bottom of the scale; '-1 bar' for a compound gauge")
+    accuracy_class: float = Field(gt=0, le=10, description="limit of error as % of span (EN 837-1 class for pressure gauges)")
+    standard: str = "EN 837-1"
+
+    @model_validator(mode="after")
+    def _check(self) -> Gauge:
+        kind = kind_of(self.full_scale)
+        if kind is Kind.PRESSURE and self.standard == "EN 837-1" and self.accuracy_class not in EN837_CLASSES:
+            raise ValueError(
+                f"accuracy class {self.accuracy_class} is not an EN 837-1 class ({', '.join(map(str, EN837_CLASSES))})"
+            )
+        if self.scale_start is not None and kind_of(self.scale_start) is not kind:
+            raise ValueError("scale_start and full_scale must be the same kind of quantity")
+        if self.scale_start is not None and self.scale_start >= self.full_scale:
+            raise ValueError("scale_start must be below full_scale")
+        return self
+
+    @property
+    def kind(self) -> Kind:
+        return kind_of(self.full_scale)
+
+    @property
+    def span(self) -> pint.Quantity:
+        start = self.scale_start if self.scale_start is not None else 0 * self.full_scale
+        return self.full_scale - start

@@ -1,0 +1,231 @@
+"""Machine profiles: circuits, their test points and the maker's expected ranges.
+
+A profile is a TOML file a person edits. Circuits may start from a template in ``rules/templates``
+(typical test points and ranges, each with its source) and override it with the maker's figures;
+:mod:`fieldkit.model.loading` does that merge before these models validate the result.
+"""
+
+from __future__ import annotations
+
+from enum import StrEnum
+from typing import Any
+
+import pint
+from pydantic import Field, field_validator, model_validator
+
+from fieldkit.model.base import SCHEMA_VERSION, Strict
+from fieldkit.model.condition import Condition, ConditionSpec
+from fieldkit.model.parameters import PARAMETERS
+from fieldkit.model.quantity import AnyQuantity, Pressure, Speed, Temperature, parse_for_kind
+from fieldkit.model.roles import ROLES, Role
+from fieldkit.units import Kind, kind_of
+
+ID_PATTERN = r"^[a-z0-9][a-z0-9_\-]*$"
+TP_ID_PATTERN = r"^[a-z0-9][a-z0-9_\-]*(\.[a-z0-9][a-z0-9_\-]*)?$"
+
+
+class CircuitKind(StrEnum):
+    CLOSED_LOOP_DRIVE = "closed_loop_drive"  # hydrostatic transmission with charge pump, reliefs, flushing
+    OPEN_FIXED_PUMP = "open_fixed_pump"  # fixed pump, relief valves in series or parallel
+    PRESSURE_COMPENSATED = "pressure_compensated"
+    LOAD_SENSING = "load_sensing"
+    PILOT_SUPPLY = "pilot_supply"
+    BRAKE_RELEASE = "brake_release"
+    ACCUMULATOR = "accumulator"
+    CYLINDER = "cylinder"
+    MOTOR = "motor"  # includes two-speed motors (motor_low_displacement set)
+
+
+class ExpectedRange(Strict):
+    """Where a healthy machine reads at this point under a condition, and who says so."""
+
+    when: ConditionSpec = Field(default_factory=ConditionSpec)
+    low: AnyQuantity | None = None
+    high: AnyQuantity | None = None
+    source: str = Field(min_length=3, description="the maker's manual, a standard, 'common practice' or 'from memory'")
+
+    @model_validator(mode="after")
+    def _check(self) -> ExpectedRange:
+        if self.low is None and self.high is None:
+            raise ValueError("an expected range needs low, high or both")
+        if self.low is not None and self.high is not None:
+            if kind_of(self.low) is not kind_of(self.high):
+                raise ValueError("low and high must be the same kind of quantity")
+            if self.low > self.high:
+                raise ValueError(f"low ({self.low:~P}) is above high ({self.high:~P})")
+        return self
+
+
+class TestPoint(Strict):
+    """A place to tee in a gauge or meter."""
+
+    __test__ = False  # not a pytest test class
+
+    id: str = Field(pattern=TP_ID_PATTERN, max_length=80, description="local id; loaded as 'circuit.local'")
+    role: Role
+    label: str = ""
+    location: str = Field(default="", description="where it is on the machine")
+    access: str = Field(default="", description="how to reach it (panels, guards, ladders)")
+    fitting: str = Field(default="", description="test coupling or port thread")
+    max_pressure: Pressure | None = Field(default=None, description="highest pressure this point can see")
+    expected: list[ExpectedRange] = Field(default_factory=list)
+    minutes: float = Field(default=10.0, gt=0, le=480, description="time to set up and take this reading")
+    cautions: list[str] = Field(default_factory=list)
+    source: str = ""
+
+    @model_validator(mode="after")
+    def _ranges_match_role(self) -> TestPoint:
+        need = ROLES[self.role].kind
+        for i, rng in enumerate(self.expected):
+            for bound in (rng.low, rng.high):
+                if bound is not None and kind_of(bound) is not need:
+                    raise ValueError(
+                        f"expected[{i}]: {self.role.value} needs a {need.value}, but a bound is a {kind_of(bound).value}"
+                    )
+        if not self.label:
+            self.label = ROLES[self.role].label
+        return self
+
+    @property
+    def kind(self) -> Kind:
+        return ROLES[self.role].kind
+
+    def expected_for(self, condition: Condition) -> ExpectedRange | None:
+        """The first expected range whose condition matches: profiles list specific ranges first."""
+        for rng in self.expected:
+            if rng.when.matches(condition):
+                return rng
+        return None
+
+
+class ReliefLayout(Strict):
+    """How a circuit's reliefs are arranged: a tree of series and parallel groups of relief ids."""
+
+    series: list[str | ReliefLayout] = Field(default_factory=list)
+    parallel: list[str | ReliefLayout] = Field(default_factory=list)
+
+    @model_validator(mode="after")
+    def _one_kind(self) -> ReliefLayout:
+        if bool(self.series) == bool(self.parallel):
+            raise ValueError("a relief layout is either 'series' or 'parallel', with at least one member")
+        return self
+
+    def members(self) -> list[str | ReliefLayout]:
+        return self.series or self.parallel
+
+    def relief_ids(self) -> list[str]:
+        out: list[str] = []
+        for m in self.members():
+            out.extend([m] if isinstance(m, str) else m.relief_ids())
+        return out
+
+
+class Relief(Strict):
+    id: str = Field(pattern=ID_PATTERN)
+    label: str = ""
+    setting: Pressure
+    override: Pressure | None = Field(default=None, description="full-flow minus cracking pressure")
+    drain: str = Field(default="internal", pattern="^(internal|external)$")
+
+
+class Circuit(Strict):
+    id: str = Field(pattern=ID_PATTERN, max_length=40)
+    name: str
+    kind: CircuitKind
+    template: str | None = Field(default=None, description="circuit template in rules/templates this starts from")
+    omit_test_points: list[str] = Field(default_factory=list, description="template test points this machine lacks")
+    parameters: dict[str, Any] = Field(default_factory=dict)
+    reliefs: list[Relief] = Field(default_factory=list)
+    relief_layout: ReliefLayout | None = None
+    test_points: list[TestPoint] = Field(default_factory=list)
+
+    @model_validator(mode="after")
+    def _qualify_ids(self) -> Circuit:
+        # Test points are written with local ids ("charge"); the circuit makes them unique ("drive.charge").
+        for tp in self.test_points:
+            if "." not in tp.id:
+                tp.id = f"{self.id}.{tp.id}"
+            elif not tp.id.startswith(self.id + "."):
+                raise ValueError(f"test point '{tp.id}' is qualified with another circuit's id")
+        return self
+
+    @field_validator("parameters")
+    @classmethod
+    def _known_parameters(cls, value: dict[str, Any]) -> dict[str, pint.Quantity]:
+        out: dict[str, pint.Quantity] = {}
+        for name, raw in value.items():
+            if name not in PARAMETERS:
+                raise ValueError(f"unknown parameter '{name}'; known: {', '.join(sorted(PARAMETERS))}")
+            kind = PARAMETERS[name][0]
+            try:
+                out[name] = parse_for_kind(kind, raw)
+            except ValueError as exc:
+                raise ValueError(f"parameter '{name}': {exc}") from None
+        return out
+
+    @model_validator(mode="after")
+    def _check(self) -> Circuit:
+        ids = [tp.id for tp in self.test_points]
+        dupes = {i for i in ids if ids.count(i) > 1}
+        if dupes:
+            raise ValueError(f"test point ids repeat: {', '.join(sorted(dupes))}")
+        relief_ids = {r.id for r in self.reliefs}
+        if self.relief_layout is not None:
+            unknown = [r for r in self.relief_layout.relief_ids() if r not in relief_ids]
+            if unknown:
+                raise ValueError(f"relief_layout names reliefs not listed in reliefs: {', '.join(unknown)}")
+        return self
+
+
+class TestWindow(Strict):
+    """When a test is valid: oil warm enough and engine at the stated speed."""
+
+    __test__ = False
+
+    oil_min: Temperature = Field(default="40 °C", validate_default=True)
+    oil_max: Temperature = Field(default="80 °C", validate_default=True)
+    speed_tolerance_pct: float = Field(default=5.0, gt=0, le=50)
+    source: str = "common practice"
+
+
+class MachineProfile(Strict):
+    schema_version: int = SCHEMA_VERSION
+    id: str = Field(pattern=ID_PATTERN, max_length=60)
+    name: str
+    description: str = ""
+    maker: str = ""
+    model: str = ""
+    serial: str = ""
+    oil_grade: str = Field(default="VG46", pattern=r"^VG ?\d{1,4}$")
+    reference_oil_temperature: Temperature = Field(default="50 °C", validate_default=True)
+    rated_speed: Speed
+    rated_max_pressure: Pressure
+    test_window: TestWindow = Field(default_factory=TestWindow)
+    circuits: list[Circuit] = Field(min_length=1)
+
+    @model_validator(mode="after")
+    def _unique(self) -> MachineProfile:
+        seen: dict[str, str] = {}
+        for c in self.circuits:
+            for tp in c.test_points:
+                if tp.id in seen:
+                    raise ValueError(f"test point id '{tp.id}' is used in circuits '{seen[tp.id]}' and '{c.id}'")
+                seen[tp.id] = c.id
+        cids = [c.id for c in self.circuits]
+        if len(set(cids)) != len(cids):
+            raise ValueError("circuit ids must be unique")
+        return self
+
+    @property
+    def viscosity_grade(self) -> int:
+        return int(self.oil_grade.replace("VG", "").strip())
+
+    def test_point(self, tp_id: str) -> tuple[Circuit, TestPoint]:
+        for c in self.circuits:
+            for tp in c.test_points:
+                if tp.id == tp_id:
+                    return c, tp
+        raise KeyError(tp_id)
+
+    def all_test_points(self) -> list[tuple[Circuit, TestPoint]]:
+        return [(c, tp) for c in self.circuits for tp in c.test_points]

@@ -1,0 +1,68 @@
+"""Test-point roles: what a gauge teed in at a point measures.
+
+A role fixes the kind of value a reading must have (a case drain needs a flow, a charge point a
+pressure), the name rule expressions use for it, and a plain label for screens and reports.
+Adding a role is one line here; rules and templates then refer to it by its id.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from enum import StrEnum
+
+from fieldkit.units import Kind
+
+
+class Role(StrEnum):
+    CHARGE_PRESSURE = "charge_pressure"
+    CASE_PRESSURE = "case_pressure"
+    PUMP_CASE_DRAIN_FLOW = "pump_case_drain_flow"
+    MOTOR_CASE_DRAIN_FLOW = "motor_case_drain_flow"
+    LOOP_A_PRESSURE = "loop_a_pressure"
+    LOOP_B_PRESSURE = "loop_b_pressure"
+    PUMP_OUTLET_PRESSURE = "pump_outlet_pressure"
+    STALL_PRESSURE = "stall_pressure"
+    RETURN_PRESSURE = "return_pressure"
+    FILTER_PRESSURE_DROP = "filter_pressure_drop"
+    SUCTION_PRESSURE = "suction_pressure"
+    LS_SIGNAL_PRESSURE = "ls_signal_pressure"
+    LS_STANDBY_PRESSURE = "ls_standby_pressure"
+    PILOT_PRESSURE = "pilot_pressure"
+    BRAKE_RELEASE_PRESSURE = "brake_release_pressure"
+    ACCUMULATOR_PRECHARGE = "accumulator_precharge"
+    OIL_TEMPERATURE = "oil_temperature"
+    PUMP_SPEED = "pump_speed"
+    PUMP_FLOW = "pump_flow"
+    CYLINDER_DRIFT = "cylinder_drift"
+
+
+@dataclass(frozen=True, slots=True)
+class RoleInfo:
+    kind: Kind
+    label: str
+    #: Readings of these roles can be hazardous to take (high pressure at the fitting).
+    high_pressure: bool = False
+
+
+ROLES: dict[Role, RoleInfo] = {
+    Role.CHARGE_PRESSURE: RoleInfo(Kind.PRESSURE, "charge pressure"),
+    Role.CASE_PRESSURE: RoleInfo(Kind.PRESSURE, "case pressure"),
+    Role.PUMP_CASE_DRAIN_FLOW: RoleInfo(Kind.FLOW, "pump case drain flow"),
+    Role.MOTOR_CASE_DRAIN_FLOW: RoleInfo(Kind.FLOW, "motor case drain flow"),
+    Role.LOOP_A_PRESSURE: RoleInfo(Kind.PRESSURE, "loop A pressure", high_pressure=True),
+    Role.LOOP_B_PRESSURE: RoleInfo(Kind.PRESSURE, "loop B pressure", high_pressure=True),
+    Role.PUMP_OUTLET_PRESSURE: RoleInfo(Kind.PRESSURE, "pump outlet (system) pressure", high_pressure=True),
+    Role.STALL_PRESSURE: RoleInfo(Kind.PRESSURE, "pressure at a stalled function (relief setting)", high_pressure=True),
+    Role.RETURN_PRESSURE: RoleInfo(Kind.PRESSURE, "return line pressure"),
+    Role.FILTER_PRESSURE_DROP: RoleInfo(Kind.PRESSURE, "filter pressure drop"),
+    Role.SUCTION_PRESSURE: RoleInfo(Kind.PRESSURE, "suction (inlet) pressure"),
+    Role.LS_SIGNAL_PRESSURE: RoleInfo(Kind.PRESSURE, "LS signal pressure", high_pressure=True),
+    Role.LS_STANDBY_PRESSURE: RoleInfo(Kind.PRESSURE, "LS standby pressure"),
+    Role.PILOT_PRESSURE: RoleInfo(Kind.PRESSURE, "pilot pressure"),
+    Role.BRAKE_RELEASE_PRESSURE: RoleInfo(Kind.PRESSURE, "brake release pressure"),
+    Role.ACCUMULATOR_PRECHARGE: RoleInfo(Kind.PRESSURE, "accumulator gas precharge", high_pressure=True),
+    Role.OIL_TEMPERATURE: RoleInfo(Kind.TEMPERATURE, "oil temperature"),
+    Role.PUMP_SPEED: RoleInfo(Kind.SPEED, "pump speed"),
+    Role.PUMP_FLOW: RoleInfo(Kind.FLOW, "pump flow", high_pressure=True),
+    Role.CYLINDER_DRIFT: RoleInfo(Kind.VELOCITY, "cylinder drift rate"),
+}

@@ -1,0 +1,130 @@
+"""A service visit: who, which machine, which gauges, and every reading taken.
+
+Readings are never overwritten: a correction is a new reading that replaces the old one, and a
+deletion marks the old one, so the job card can always show what was entered and when.
+"""
+
+from __future__ import annotations
+
+import uuid
+import datetime as dt
+from datetime import UTC, datetime
+from enum import StrEnum
+
+from pydantic import Field, field_validator, model_validator
+
+from fieldkit.model.base import SCHEMA_VERSION, Strict
+from fieldkit.model.condition import Condition, ConditionSpec, FunctionState
+from fieldkit.model.gauge import Gauge
+from fieldkit.model.quantity import AnyQuantity, Pressure
+from fieldkit.units import PressureReference
+
+__all__ = ["Condition", "ConditionSpec", "FunctionState", "Gauge", "Reading", "Scenario", "Visit", "VisitStatus"]
+
+MAX_TEXT = 4000
+
+
+def new_id() -> str:
+    return uuid.uuid4().hex[:12]
+
+
+def utc_now() -> datetime:
+    return datetime.now(UTC).replace(microsecond=0)
+
+
+class VisitStatus(StrEnum):
+    OPEN = "open"
+    CLOSED = "closed"
+
+
+class Reading(Strict):
+    id: str = Field(default_factory=new_id, pattern=r"^[A-Za-z0-9_\-]{1,40}$")
+    test_point: str = Field(min_length=1, max_length=40)
+    value: AnyQuantity
+    reference: PressureReference | None = None
+    entered: str = Field(default="", max_length=64, description="the text as typed")
+    condition: Condition = Field(default_factory=Condition)
+    gauge: str | None = None
+    taken_at: datetime = Field(default_factory=utc_now)
+    note: str = Field(default="", max_length=MAX_TEXT)
+    replaces: str | None = Field(default=None, description="id of the reading this one corrects")
+    deleted_at: datetime | None = None
+
+    @model_validator(mode="before")
+    @classmethod
+    def _reference_from_text(cls, data: object) -> object:
+        # "0.75 bar abs" written in a file carries its reference in the text; keep it.
+        if isinstance(data, dict) and isinstance(data.get("value"), str):
+            from fieldkit.errors import FieldkitError
+            from fieldkit.units import parse_value
+
+            try:
+                parsed = parse_value(data["value"])
+            except FieldkitError as exc:
+                raise ValueError(f"value: {exc}") from None
+            said = data.get("reference")
+            if parsed.reference is not None and parsed.reference is not PressureReference.GAUGE:
+                if said is not None and said != parsed.reference.value:
+                    raise ValueError(f"value says {parsed.reference.value} but reference says {said}")
+                data = {**data, "reference": parsed.reference.value}
+            elif parsed.reference is not None and said is None:
+                data = {**data, "reference": PressureReference.GAUGE.value}
+        return data
+
+    @field_validator("taken_at", "deleted_at")
+    @classmethod
+    def _aware(cls, value: datetime | None) -> datetime | None:
+        if value is not None and value.tzinfo is None:
+            raise ValueError("times must carry a time zone (ISO 8601 with Z or +hh:mm)")
+        return value.astimezone(UTC) if value is not None else None
+
+
+class Scenario(Strict):
+    """Demo and test data only: the fault a sample visit was written to show."""
+
+    fault: str
+    story: str = ""
+
+
+class Visit(Strict):
+    schema_version: int = SCHEMA_VERSION
+    id: str = Field(default_factory=new_id, pattern=r"^[A-Za-z0-9_\-]{1,40}$")
+    job_number: str = Field(min_length=1, max_length=40)
+    customer: str = Field(default="", max_length=200)
+    site: str = Field(default="", max_length=200)
+    machine: str = Field(min_length=1, max_length=60, description="id of the machine profile")
+    machine_serial: str = Field(default="", max_length=60)
+    hour_meter: float | None = Field(default=None, ge=0, le=1_000_000)
+    technician: str = Field(default="", max_length=120)
+    date: dt.date = Field(default_factory=lambda: utc_now().date())
+    oil: str = Field(default="", max_length=60)
+    barometric_pressure: Pressure | None = None
+    gauges: list[Gauge] = Field(default_factory=list)
+    readings: list[Reading] = Field(default_factory=list)
+    notes: str = Field(default="", max_length=MAX_TEXT)
+    status: VisitStatus = VisitStatus.OPEN
+    summary: str = Field(default="", max_length=MAX_TEXT)
+    scenario: Scenario | None = None
+
+    @model_validator(mode="after")
+    def _consistent(self) -> Visit:
+        gauge_ids = [g.id for g in self.gauges]
+        if len(set(gauge_ids)) != len(gauge_ids):
+            raise ValueError("gauge ids must be unique")
+        reading_ids = [r.id for r in self.readings]
+        if len(set(reading_ids)) != len(reading_ids):
+            raise ValueError("reading ids must be unique")
+        for i, r in enumerate(self.readings):
+            if r.gauge is not None and r.gauge not in gauge_ids:
+                raise ValueError(f"readings[{i}] names gauge '{r.gauge}', which is not in this visit's gauges")
+            if r.replaces is not None and r.replaces not in reading_ids:
+                raise ValueError(f"readings[{i}] replaces '{r.replaces}', which is not a reading of this visit")
+        return self
+
+    def current_readings(self) -> list[Reading]:
+        """Readings that stand: not deleted and not replaced by a correction."""
+        replaced = {r.replaces for r in self.readings if r.replaces}
+        return [r for r in self.readings if r.deleted_at is None and r.id not in replaced]
+
+    def gauge(self, gauge_id: str | None) -> Gauge | None:
+        return next((g for g in self.gauges if g.id == gauge_id), None)

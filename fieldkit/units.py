@@ -1,0 +1,516 @@
+"""Text a technician types ⇄ pint quantities, and the display systems they read values in.
+
+pint's own string parser is never given user text: it deletes commas (``2,5 bar`` would become
+25 bar), its case-insensitive mode turns ``mpa`` into millipascal, and ``bar(g)`` parses as
+bar·gram. Here the number and the unit are split by our own code, the unit must be one of a
+whitelist of spellings, the decimal separator is decided explicitly, and only then is a
+quantity built from a float and a known unit (also several times faster than string parsing).
+
+pint has no gauge pressure. Every pressure carries a separate reference (gauge, absolute,
+differential); converting between gauge and absolute uses the standard atmosphere unless a
+visit records the local barometric pressure.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+from collections.abc import Callable
+from dataclasses import dataclass
+from enum import StrEnum
+from functools import lru_cache
+from typing import Any
+
+import pint
+
+from fieldkit.errors import AmbiguousInputError, DimensionError, UnitInputError
+
+# One registry for the whole program: building it costs ~0.3 s cold, ~0.06 s from its cache,
+# and pint's lazy default registry is not thread-safe.
+try:
+    ureg = pint.UnitRegistry(cache_folder=":auto:")
+except Exception:  # an unwritable cache folder must not stop the program; build without it
+    ureg = pint.UnitRegistry()
+ureg.formatter.default_format = "~P"
+Q_ = ureg.Quantity
+Quantity = pint.Quantity
+
+#: Standard atmosphere, 101 325 Pa exactly (SI Brochure, 9th ed., table 8).
+STANDARD_ATMOSPHERE = Q_(101_325.0, "pascal")
+
+MAX_INPUT_CHARS = 64
+
+
+class Kind(StrEnum):
+    """What a quantity measures, as the trade names it (finer than pint's dimensions:
+    a pump displacement and a tank volume share a dimension but are different things)."""
+
+    PRESSURE = "pressure"
+    FLOW = "flow"
+    TEMPERATURE = "temperature"
+    SPEED = "rotational speed"
+    DISPLACEMENT = "displacement"
+    VELOCITY = "velocity"
+    VOLUME = "volume"
+    LENGTH = "length"
+    AREA = "area"
+    FORCE = "force"
+    TORQUE = "torque"
+    POWER = "power"
+    TIME = "time"
+    MASS = "mass"
+    DENSITY = "density"
+    VISCOSITY = "kinematic viscosity"
+    RATIO = "ratio"
+
+
+class PressureReference(StrEnum):
+    """What a pressure is measured against."""
+
+    GAUGE = "gauge"
+    ABSOLUTE = "absolute"
+    DIFFERENTIAL = "differential"
+
+
+#: A pint unit expression per kind that every value of that kind converts to; also its
+#: pint dimensionality, checked when a quantity arrives from code rather than text.
+CANONICAL_UNIT: dict[Kind, str] = {
+    Kind.PRESSURE: "bar",
+    Kind.FLOW: "liter / minute",
+    Kind.TEMPERATURE: "degC",
+    Kind.SPEED: "revolution / minute",
+    Kind.DISPLACEMENT: "centimeter ** 3 / revolution",
+    Kind.VELOCITY: "millimeter / minute",
+    Kind.VOLUME: "liter",
+    Kind.LENGTH: "millimeter",
+    Kind.AREA: "centimeter ** 2",
+    Kind.FORCE: "kilonewton",
+    Kind.TORQUE: "newton * meter",
+    Kind.POWER: "kilowatt",
+    Kind.TIME: "second",
+    Kind.MASS: "kilogram",
+    Kind.DENSITY: "kilogram / meter ** 3",
+    Kind.VISCOSITY: "centistokes",
+    Kind.RATIO: "percent",
+}
+
+#: An example a person would recognise, used in error messages.
+EXAMPLE: dict[Kind, str] = {
+    Kind.PRESSURE: "22 bar",
+    Kind.FLOW: "62 L/min",
+    Kind.TEMPERATURE: "55 °C",
+    Kind.SPEED: "1800 rpm",
+    Kind.DISPLACEMENT: "45 cc/rev",
+    Kind.VELOCITY: "12 mm/min",
+    Kind.VOLUME: "10 L",
+    Kind.LENGTH: "80 mm",
+    Kind.AREA: "50 cm2",
+    Kind.FORCE: "150 kN",
+    Kind.TORQUE: "400 N·m",
+    Kind.POWER: "30 kW",
+    Kind.TIME: "30 s",
+    Kind.MASS: "12 kg",
+    Kind.DENSITY: "870 kg/m3",
+    Kind.VISCOSITY: "32 cSt",
+    Kind.RATIO: "90 %",
+}
+
+# Spelling → (pint unit expression, kind). Case matters except where a spelling is listed in
+# several cases on purpose: "MPa" typed as "mpa" means megapascal in this trade, never millipascal.
+_PRESSURE = {
+    "bar": "bar", "Bar": "bar", "BAR": "bar",
+    "mbar": "millibar",
+    "psi": "psi", "PSI": "psi", "Psi": "psi", "lbf/in2": "psi", "lb/in2": "psi", "lbf/in²": "psi",
+    "MPa": "megapascal", "Mpa": "megapascal", "mpa": "megapascal", "MPA": "megapascal",
+    "kPa": "kilopascal", "kpa": "kilopascal", "KPa": "kilopascal", "KPA": "kilopascal",
+    "Pa": "pascal",
+    "kgf/cm2": "kilogram_force / centimeter ** 2", "kgf/cm²": "kilogram_force / centimeter ** 2",
+    "kgf/cm^2": "kilogram_force / centimeter ** 2", "kg/cm2": "kilogram_force / centimeter ** 2",
+    "kg/cm²": "kilogram_force / centimeter ** 2", "ksc": "kilogram_force / centimeter ** 2",
+    "inHg": "inch_Hg", "in Hg": "inch_Hg", "inhg": "inch_Hg",
+    "atm": "atmosphere",
+}
+_FLOW = {
+    "L/min": "liter / minute", "l/min": "liter / minute", "lpm": "liter / minute", "LPM": "liter / minute",
+    "L/s": "liter / second", "l/s": "liter / second",
+    "gpm": "gallon / minute", "GPM": "gallon / minute", "USgpm": "gallon / minute",
+    "gal/min": "gallon / minute",
+    "cc/min": "centimeter ** 3 / minute", "cm3/min": "centimeter ** 3 / minute",
+    "mL/min": "milliliter / minute", "ml/min": "milliliter / minute",
+    "m3/h": "meter ** 3 / hour", "m³/h": "meter ** 3 / hour",
+}
+_TEMPERATURE = {
+    "°C": "degC", "ºC": "degC", "C": "degC", "degC": "degC", "deg C": "degC", "° C": "degC",
+    "°F": "degF", "ºF": "degF", "F": "degF", "degF": "degF", "deg F": "degF", "° F": "degF",
+    "K": "kelvin",
+}
+_SPEED = {
+    "rpm": "revolution / minute", "RPM": "revolution / minute", "r/min": "revolution / minute",
+    "rev/min": "revolution / minute", "min-1": "revolution / minute", "1/min": "revolution / minute",
+    "rev/s": "revolution / second",
+}
+_DISPLACEMENT = {
+    "cc/rev": "centimeter ** 3 / revolution", "cm3/rev": "centimeter ** 3 / revolution",
+    "cm³/rev": "centimeter ** 3 / revolution", "ml/rev": "centimeter ** 3 / revolution",
+    "mL/rev": "centimeter ** 3 / revolution", "cc/r": "centimeter ** 3 / revolution",
+    "in3/rev": "inch ** 3 / revolution", "in³/rev": "inch ** 3 / revolution",
+    "cir": "inch ** 3 / revolution",
+}
+_VELOCITY = {
+    "mm/min": "millimeter / minute", "mm/s": "millimeter / second", "mm/h": "millimeter / hour",
+    "m/s": "meter / second", "in/min": "inch / minute", "in/s": "inch / second",
+}
+_VOLUME = {
+    "L": "liter", "l": "liter", "mL": "milliliter", "ml": "milliliter", "cc": "centimeter ** 3",
+    "cm3": "centimeter ** 3", "cm³": "centimeter ** 3", "gal": "gallon", "in3": "inch ** 3",
+    "in³": "inch ** 3", "m3": "meter ** 3", "m³": "meter ** 3",
+}
+_LENGTH = {"mm": "millimeter", "cm": "centimeter", "m": "meter", "in": "inch", "µm": "micrometer", "um": "micrometer"}
+_AREA = {"mm2": "millimeter ** 2", "mm²": "millimeter ** 2", "cm2": "centimeter ** 2", "cm²": "centimeter ** 2",
+         "in2": "inch ** 2", "in²": "inch ** 2", "m2": "meter ** 2", "m²": "meter ** 2"}
+_FORCE = {"N": "newton", "kN": "kilonewton", "lbf": "pound_force", "kgf": "kilogram_force"}
+_TORQUE = {"N·m": "newton * meter", "Nm": "newton * meter", "N.m": "newton * meter", "N m": "newton * meter",
+           "lbf·ft": "pound_force * foot", "lbf.ft": "pound_force * foot", "lb-ft": "pound_force * foot",
+           "ft-lb": "pound_force * foot"}
+_POWER = {"kW": "kilowatt", "W": "watt", "hp": "horsepower", "HP": "horsepower"}
+_TIME = {"s": "second", "sec": "second", "min": "minute", "h": "hour", "hr": "hour"}
+_MASS = {"kg": "kilogram", "g": "gram", "lb": "pound", "t": "metric_ton"}
+_DENSITY = {"kg/m3": "kilogram / meter ** 3", "kg/m³": "kilogram / meter ** 3", "g/cm3": "gram / centimeter ** 3"}
+_VISCOSITY = {"cSt": "centistokes", "cst": "centistokes", "mm2/s": "millimeter ** 2 / second",
+              "mm²/s": "millimeter ** 2 / second"}
+_RATIO = {"%": "percent"}
+
+_TABLES: tuple[tuple[Kind, dict[str, str]], ...] = (
+    (Kind.PRESSURE, _PRESSURE), (Kind.FLOW, _FLOW), (Kind.TEMPERATURE, _TEMPERATURE),
+    (Kind.SPEED, _SPEED), (Kind.DISPLACEMENT, _DISPLACEMENT), (Kind.VELOCITY, _VELOCITY),
+    (Kind.VOLUME, _VOLUME), (Kind.LENGTH, _LENGTH), (Kind.AREA, _AREA), (Kind.FORCE, _FORCE),
+    (Kind.TORQUE, _TORQUE), (Kind.POWER, _POWER), (Kind.TIME, _TIME), (Kind.MASS, _MASS),
+    (Kind.DENSITY, _DENSITY), (Kind.VISCOSITY, _VISCOSITY), (Kind.RATIO, _RATIO),
+)
+SPELLINGS: dict[str, tuple[str, Kind]] = {
+    spelling: (unit, kind) for kind, table in _TABLES for spelling, unit in table.items()
+}
+
+# Pressure units that take a reference letter glued on: "bara", "psig", "psid".
+_GLUED_REFERENCE = {"bar", "Bar", "BAR", "psi", "PSI", "kPa", "MPa"}
+_REFERENCE_WORDS = {
+    "a": PressureReference.ABSOLUTE, "abs": PressureReference.ABSOLUTE, "absolute": PressureReference.ABSOLUTE,
+    "(a)": PressureReference.ABSOLUTE, "(abs)": PressureReference.ABSOLUTE, "A": PressureReference.ABSOLUTE,
+    "g": PressureReference.GAUGE, "(g)": PressureReference.GAUGE, "gauge": PressureReference.GAUGE,
+    "gage": PressureReference.GAUGE, "G": PressureReference.GAUGE,
+    "d": PressureReference.DIFFERENTIAL, "(d)": PressureReference.DIFFERENTIAL, "diff": PressureReference.DIFFERENTIAL,
+    "differential": PressureReference.DIFFERENTIAL, "D": PressureReference.DIFFERENTIAL,
+}
+
+_NUMBER = re.compile(r"^\s*(?P<sign>[+\-−–]?)\s*(?P<num>[0-9][0-9.,\u00a0\u202f ]*[0-9]|[0-9]|[.,][0-9]+)")
+_THIN_SPACES = "\u00a0\u202f "
+
+
+@lru_cache(maxsize=None)
+def unit(expr: str) -> pint.Unit:
+    """A cached pint unit for one of our own unit expressions (never user text)."""
+    return ureg.Unit(expr)
+
+
+@lru_cache(maxsize=None)
+def _dimensionality(kind: Kind) -> Any:
+    return unit(CANONICAL_UNIT[kind]).dimensionality
+
+
+@dataclass(frozen=True, slots=True)
+class ParsedValue:
+    """A typed value after parsing: the quantity as entered, its kind and, for pressures, its reference."""
+
+    quantity: pint.Quantity
+    kind: Kind
+    reference: PressureReference | None
+    text: str
+
+
+def _clean(text: str) -> str:
+    if not isinstance(text, str):
+        raise UnitInputError(f"expected text, got {type(text).__name__}")
+    if len(text) > MAX_INPUT_CHARS:
+        raise UnitInputError(f"that is {len(text)} characters; a reading is at most {MAX_INPUT_CHARS}")
+    if any(ord(ch) < 32 or ord(ch) == 127 for ch in text):
+        raise UnitInputError("the text holds control characters; type the value and unit only")
+    return text.strip()
+
+
+def _number_readings(raw: str, decimal_comma: bool) -> tuple[float, float | None]:
+    """Turn the digits a person typed into a float, and a second float when the text also reads
+    another way (a single comma or dot before exactly three digits). The first is the default."""
+    compact = raw
+    for ch in _THIN_SPACES:
+        if ch in compact:
+            groups = compact.split(ch)
+            if any(len(g) != 3 or not g.isdigit() for g in groups[1:-1]) or not re.fullmatch(r"\d{3}([.,]\d*)?", groups[-1]):
+                raise UnitInputError(f"'{raw}' is not a number: spaces may only separate groups of three digits")
+            compact = compact.replace(ch, "")
+    commas, dots = compact.count(","), compact.count(".")
+    if commas and dots:
+        dec = "," if compact.rfind(",") > compact.rfind(".") else "."
+        thou = "." if dec == "," else ","
+        if compact.count(dec) != 1:
+            raise UnitInputError(f"'{raw}' has two decimal separators")
+        whole, frac = compact.split(dec)
+        _check_groups(raw, whole, thou)
+        return float(whole.replace(thou, "") + "." + frac), None
+    sep = "," if commas else "." if dots else ""
+    if not sep:
+        return float(compact), None
+    count = commas or dots
+    parts = compact.split(sep)
+    if count > 1:  # "1,234,567" or "1.234.567": only thousands make sense
+        _check_groups(raw, compact, sep)
+        return float(compact.replace(sep, "")), None
+    whole, frac = parts
+    if whole == "":
+        return float("0." + frac), None
+    as_decimal = float(whole + "." + frac)
+    if len(frac) != 3 or whole.startswith("0") or len(whole) > 3:
+        return as_decimal, None
+    as_thousands = float(whole + frac)
+    user_decimal = "," if decimal_comma else "."
+    if sep == user_decimal:
+        return as_decimal, as_thousands
+    return as_thousands, as_decimal
+
+
+def _check_groups(raw: str, whole: str, thou: str) -> None:
+    groups = whole.split(thou)
+    if not (1 <= len(groups[0]) <= 3) or any(len(g) != 3 for g in groups[1:]):
+        raise UnitInputError(f"'{raw}': thousands separators must separate groups of three digits")
+
+
+def _split_unit(rest: str) -> tuple[str, Kind, PressureReference | None]:
+    rest = rest.strip()
+    if not rest:
+        raise UnitInputError("a unit is missing: type it after the number, e.g. '22 bar' or '62 L/min'")
+    if rest in SPELLINGS:
+        unit_expr, kind = SPELLINGS[rest]
+        return unit_expr, kind, None
+    # "bar abs", "bar (g)", "psi a": a pressure unit, a space, then a reference word.
+    head, _, tail = rest.partition(" ")
+    tail = tail.strip()
+    if head in SPELLINGS and SPELLINGS[head][1] is Kind.PRESSURE and tail in _REFERENCE_WORDS:
+        return SPELLINGS[head][0], Kind.PRESSURE, _REFERENCE_WORDS[tail]
+    # "bara", "psig", "bar(a)": a reference letter glued on.
+    for base in sorted(_GLUED_REFERENCE, key=len, reverse=True):
+        if rest.startswith(base):
+            suffix = rest[len(base):]
+            if suffix in _REFERENCE_WORDS and suffix.lower() in {"a", "g", "d", "(a)", "(g)", "(d)"}:
+                return SPELLINGS[base][0], Kind.PRESSURE, _REFERENCE_WORDS[suffix]
+    raise UnitInputError(f"'{rest}' is not a unit fieldkit knows; try {_suggest(rest)}")
+
+
+def _suggest(rest: str) -> str:
+    low = rest.lower()
+    close = [s for s in SPELLINGS if s.lower() == low or s.lower().startswith(low[:2])][:4]
+    return ", ".join(f"'{c}'" for c in close) if close else "e.g. 'bar', 'psi', 'L/min', 'gpm', '°C', 'rpm'"
+
+
+def parse_value(
+    text: str,
+    expect: Kind | None = None,
+    *,
+    decimal_comma: bool = False,
+    role_name: str | None = None,
+    plausible: Callable[[pint.Quantity], bool] | None = None,
+) -> ParsedValue:
+    """Parse a value as a technician writes it (``3,500 psi``, ``24,5 bar``, ``0.75 bar abs``).
+
+    Args:
+        text: what was typed.
+        expect: the kind the test point needs; a different kind is refused with a message that
+            names what was typed and what is needed.
+        decimal_comma: the user's setting; decides ``2,500`` (2.5) versus the default (2500).
+        role_name: the test point's role, for the message (``charge pressure needs …``).
+        plausible: the test point's plausibility check. When a single separator makes two
+            readings possible and both pass it, :class:`AmbiguousInputError` is raised so the
+            caller can ask; when only one passes, that one is taken.
+    """
+    cleaned = _clean(text)
+    match = _NUMBER.match(cleaned)
+    if not match:
+        raise UnitInputError(f"'{cleaned}' does not start with a number; type e.g. '{EXAMPLE[expect or Kind.PRESSURE]}'")
+    sign = -1.0 if match.group("sign") in {"-", "−", "–"} else 1.0
+    raw = match.group("num").strip(_THIN_SPACES)
+    # The number pattern may swallow a trailing space before the unit; give it back.
+    rest = cleaned[match.end():]
+    first, second = _number_readings(raw, decimal_comma)
+    unit_expr, kind, reference = _split_unit(rest)
+    if expect is not None and kind is not expect:
+        need = f"{role_name} needs" if role_name else "this needs"
+        raise DimensionError(f"'{cleaned}' is a {kind.value}; {need} a {expect.value} such as '{EXAMPLE[expect]}'")
+    if kind is Kind.PRESSURE and reference is None:
+        reference = PressureReference.GAUGE
+    u = unit(unit_expr)
+    value = Q_(sign * first, u)
+    if second is not None and plausible is not None:
+        other = Q_(sign * second, u)
+        ok_first, ok_second = plausible(value), plausible(other)
+        if ok_first and ok_second:
+            raise AmbiguousInputError(
+                f"'{cleaned}' could be {_plain(value)} or {_plain(other)}; which did the gauge show?",
+                (ParsedValue(value, kind, reference, cleaned), ParsedValue(other, kind, reference, cleaned)),
+            )
+        if ok_second and not ok_first:
+            value = other
+    if not math.isfinite(value.magnitude):
+        raise UnitInputError(f"'{cleaned}' is not a finite number")
+    return ParsedValue(value, kind, reference, cleaned)
+
+
+def parse_quantity(text: str, expect: Kind | None = None, **kwargs: Any) -> pint.Quantity:
+    """Shorthand for :func:`parse_value` when only the quantity matters (profiles, rule files)."""
+    return parse_value(text, expect, **kwargs).quantity
+
+
+def kind_of(q: pint.Quantity) -> Kind:
+    """The kind of a quantity that arrived from code. Volume and displacement share a dimension
+    once revolutions cancel; displacement wins only when the unit says 'per revolution'."""
+    dim = q.dimensionality
+    per_rev = any(name in ("revolution", "turn") and power < 0 for name, power in q.unit_items())
+    if per_rev and dim == _dimensionality(Kind.DISPLACEMENT):
+        return Kind.DISPLACEMENT
+    for kind in Kind:
+        if kind is Kind.DISPLACEMENT:
+            continue
+        if dim == _dimensionality(kind):
+            return kind
+    raise DimensionError(f"{q:~P} is not a quantity fieldkit uses")
+
+
+def require(q: Any, kind: Kind, what: str = "value") -> pint.Quantity:
+    """Check that a quantity handed in from code is of the expected kind; a wrong one raises a
+    clear error instead of giving a silently wrong number."""
+    if not isinstance(q, pint.Quantity):
+        raise DimensionError(f"{what} must be a {kind.value} with a unit, such as {EXAMPLE[kind]!r}; got {q!r}")
+    if q.dimensionality != _dimensionality(kind):
+        raise DimensionError(f"{what} must be a {kind.value} such as {EXAMPLE[kind]!r}; got {q:~P}")
+    return q
+
+
+def to_canonical(q: pint.Quantity, kind: Kind) -> float:
+    """Magnitude in the kind's canonical unit (bar, L/min, °C…): what ranges and rules compare."""
+    return float(q.to(unit(CANONICAL_UNIT[kind])).magnitude)
+
+
+# --- gauge and absolute -------------------------------------------------------------------
+
+def to_gauge(q: pint.Quantity, reference: PressureReference | None, barometric: pint.Quantity | None = None) -> pint.Quantity:
+    """Gauge pressure of a reading. Absolute readings subtract the local barometric pressure
+    (the standard atmosphere if none was recorded); gauge and differential pass unchanged."""
+    require(q, Kind.PRESSURE, "pressure")
+    if reference is PressureReference.ABSOLUTE:
+        return (q - (barometric if barometric is not None else STANDARD_ATMOSPHERE)).to(q.units)
+    return q
+
+
+def to_absolute(q: pint.Quantity, reference: PressureReference | None, barometric: pint.Quantity | None = None) -> pint.Quantity:
+    """Absolute pressure of a reading (what suction limits for piston pumps are written in)."""
+    require(q, Kind.PRESSURE, "pressure")
+    if reference is PressureReference.ABSOLUTE:
+        return q
+    return (q + (barometric if barometric is not None else STANDARD_ATMOSPHERE)).to(q.units)
+
+
+# --- display ------------------------------------------------------------------------------
+
+@dataclass(frozen=True, slots=True)
+class DisplaySystem:
+    """The units a user reads values in. Spellings here must parse back with :func:`parse_value`."""
+
+    pressure: str = "bar"
+    flow: str = "L/min"
+    temperature: str = "°C"
+
+    @classmethod
+    def named(cls, name: str) -> DisplaySystem:
+        systems = {
+            "metric": cls("bar", "L/min", "°C"),
+            "si": cls("MPa", "L/min", "°C"),
+            "us": cls("psi", "gpm", "°F"),
+        }
+        if name not in systems:
+            raise UnitInputError(f"unknown display system '{name}'; choose one of {', '.join(systems)}")
+        return systems[name]
+
+    def spelling_for(self, kind: Kind) -> str:
+        return {
+            Kind.PRESSURE: self.pressure,
+            Kind.FLOW: self.flow,
+            Kind.TEMPERATURE: self.temperature,
+            Kind.SPEED: "rpm",
+            Kind.DISPLACEMENT: "cc/rev",
+            Kind.VELOCITY: "mm/min",
+            Kind.VOLUME: "L",
+            Kind.LENGTH: "mm",
+            Kind.AREA: "cm2",
+            Kind.FORCE: "kN",
+            Kind.TORQUE: "N·m",
+            Kind.POWER: "kW",
+            Kind.TIME: "s",
+            Kind.MASS: "kg",
+            Kind.DENSITY: "kg/m3",
+            Kind.VISCOSITY: "cSt",
+            Kind.RATIO: "%",
+        }[kind]
+
+
+METRIC = DisplaySystem()
+
+
+def convert(q: pint.Quantity, spelling: str) -> pint.Quantity:
+    """Convert to a unit named by one of our spellings (``bar``, ``gpm``, ``°F``…)."""
+    if spelling not in SPELLINGS:
+        raise UnitInputError(f"'{spelling}' is not a unit fieldkit knows; try {_suggest(spelling)}")
+    unit_expr, kind = SPELLINGS[spelling]
+    try:
+        return q.to(unit(unit_expr))
+    except pint.DimensionalityError:
+        raise DimensionError(f"{_plain(q)} is a {kind_of(q).value}; it cannot be shown in {spelling} ({kind.value})") from None
+
+
+def _decimals(magnitude: float, significant: int) -> int:
+    if magnitude == 0 or not math.isfinite(magnitude):
+        return 1
+    digits = significant - 1 - math.floor(math.log10(abs(magnitude)))
+    return max(0, min(digits, 6))
+
+
+def format_value(
+    q: pint.Quantity,
+    system: DisplaySystem = METRIC,
+    *,
+    kind: Kind | None = None,
+    spelling: str | None = None,
+    significant: int = 4,
+    exact: bool = False,
+) -> str:
+    """Text for a value in the user's display system, e.g. ``241.3 bar``. With ``exact`` the
+    magnitude is written so that parsing it back gives the same float."""
+    kind = kind or kind_of(q)
+    spelling = spelling or system.spelling_for(kind)
+    shown = convert(q, spelling)
+    mag = float(shown.magnitude)
+    if exact:
+        number = repr(mag)
+        if "e" in number or "inf" in number or "nan" in number:
+            number = f"{mag:.17f}".rstrip("0").rstrip(".")
+    else:
+        number = f"{mag:.{_decimals(mag, significant)}f}"
+        if "." in number:
+            number = number.rstrip("0").rstrip(".")
+        if number in ("-0", ""):
+            number = "0"
+    sep = "" if spelling == "%" else " "
+    return f"{number}{sep}{spelling}"
+
+
+def _plain(q: pint.Quantity) -> str:
+    try:
+        return format_value(q)
+    except Exception:
+        return f"{q.magnitude:g} {q.units:~P}"

@@ -1,0 +1,73 @@
+"""Accumulator precharge and delivered volume (Boyle's law, absolute pressures)."""
+
+import pytest
+
+from fieldkit.physics.accumulators import (
+    ADIABATIC_NITROGEN,
+    check_precharge,
+    delivered_volume,
+    expected_precharge,
+    precharge_ratio,
+)
+from fieldkit.physics.common import Level, OutOfRangeError
+from fieldkit.units import parse_quantity as q
+
+ATM = 1.01325  # bar; standard atmosphere, 101 325 Pa exactly (SI Brochure, field notes)
+
+
+def test_precharge_is_ninety_percent_of_minimum_working_pressure():
+    # Field notes (from memory): gas precharge ≈ 90 % of minimum working pressure for energy storage
+    assert expected_precharge(q("100 bar")).m_as("bar") == pytest.approx(90.0)
+    assert precharge_ratio(q("90 bar"), q("100 bar")).m_as("percent") == pytest.approx(90.0)
+
+
+def test_isothermal_delivery_uses_absolute_pressures():
+    # Boyle p·V = const with absolute pressures [calc]: 10 L at 90 bar(g), between 100 and 200 bar(g):
+    # 10 · 91.01325/101.01325 − 10 · 91.01325/201.01325 = 9.0100 − 4.5277 = 4.4823 L
+    expected = 10 * (90 + ATM) / (100 + ATM) - 10 * (90 + ATM) / (200 + ATM)
+    got = delivered_volume(q("10 L"), q("90 bar"), q("100 bar"), q("200 bar")).m_as("L")
+    assert got == pytest.approx(expected)
+    assert got == pytest.approx(4.482, abs=0.001)
+    # Gauge pressures put straight into Boyle's law would give 10·0.9 − 10·0.45 = 4.5 L: a different answer.
+    assert got != pytest.approx(4.5, abs=0.001)
+
+
+def test_adiabatic_delivery_is_smaller_than_isothermal():
+    # ΔV = V0·(p0/p1)^(1/n) − V0·(p0/p2)^(1/n), n = 1.4 for nitrogen [calc]
+    p0, p1, p2 = 90 + ATM, 100 + ATM, 200 + ATM
+    expected = 10 * (p0 / p1) ** (1 / 1.4) - 10 * (p0 / p2) ** (1 / 1.4)
+    got = delivered_volume(q("10 L"), q("90 bar"), q("100 bar"), q("200 bar"), exponent=ADIABATIC_NITROGEN).m_as("L")
+    assert got == pytest.approx(expected)
+    assert got < delivered_volume(q("10 L"), q("90 bar"), q("100 bar"), q("200 bar")).m_as("L")
+
+
+def test_local_barometric_pressure_is_used_when_given():
+    # At 0.9 bar barometric the absolute pressures shift by 0.9 instead of 1.01325 [calc]
+    b = 0.9
+    expected = 10 * (90 + b) / (100 + b) - 10 * (90 + b) / (200 + b)
+    got = delivered_volume(q("10 L"), q("90 bar"), q("100 bar"), q("200 bar"), barometric=q("0.9 bar")).m_as("L")
+    assert got == pytest.approx(expected)
+
+
+def test_precharge_above_minimum_pressure_cuts_the_delivery_short():
+    # Oil is only held above the precharge: delivery from 200 bar down to 120 bar, not to 100 bar [calc]
+    expected = 10 - 10 * (120 + ATM) / (200 + ATM)
+    got = delivered_volume(q("10 L"), q("120 bar"), q("100 bar"), q("200 bar")).m_as("L")
+    assert got == pytest.approx(expected)
+
+
+def test_precharge_at_or_above_minimum_working_pressure_is_flagged():
+    assert check_precharge(q("90 bar"), q("100 bar")).level is Level.OK
+    high = check_precharge(q("105 bar"), q("100 bar"))
+    assert high.level is Level.WARNING and "empties before" in high.message
+    assert "ruptured bladder" in check_precharge(q("0 bar"), q("100 bar")).message
+
+
+def test_maximum_below_minimum_pressure_is_refused():
+    with pytest.raises(OutOfRangeError, match="maximum pressure 90 bar is below minimum pressure 100 bar"):
+        delivered_volume(q("10 L"), q("80 bar"), q("100 bar"), q("90 bar"))
+
+
+def test_polytropic_exponent_outside_gas_range_is_refused():
+    with pytest.raises(OutOfRangeError, match="polytropic exponent"):
+        delivered_volume(q("10 L"), q("80 bar"), q("100 bar"), q("200 bar"), exponent=0.5)
