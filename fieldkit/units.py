@@ -202,7 +202,10 @@ _REFERENCE_WORDS = {
     "differential": PressureReference.DIFFERENTIAL, "D": PressureReference.DIFFERENTIAL,
 }
 
-_NUMBER = re.compile(r"^\s*(?P<sign>[+\-−–]?)\s*(?P<num>[0-9][0-9.,\u00a0\u202f ]*[0-9]|[0-9]|[.,][0-9]+)")
+_NUMBER = re.compile(
+    r"^\s*(?P<sign>[+\-−–]?)\s*"
+    r"(?P<num>\d{1,3}(?:[\u00a0\u202f ]\d{3})+(?:[.,]\d+)?(?![\d.,])|\d[\d.,]*\d|\d|[.,]\d+)"
+)
 _THIN_SPACES = "\u00a0\u202f "
 
 

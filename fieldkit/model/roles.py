@@ -34,6 +34,7 @@ class Role(StrEnum):
     PUMP_SPEED = "pump_speed"
     PUMP_FLOW = "pump_flow"
     CYLINDER_DRIFT = "cylinder_drift"
+    CYLINDER_SEAL_DRIFT = "cylinder_seal_drift"
 
 
 @dataclass(frozen=True, slots=True)
@@ -65,4 +66,5 @@ ROLES: dict[Role, RoleInfo] = {
     Role.PUMP_SPEED: RoleInfo(Kind.SPEED, "pump speed"),
     Role.PUMP_FLOW: RoleInfo(Kind.FLOW, "pump flow", high_pressure=True),
     Role.CYLINDER_DRIFT: RoleInfo(Kind.VELOCITY, "cylinder drift rate"),
+    Role.CYLINDER_SEAL_DRIFT: RoleInfo(Kind.VELOCITY, "cylinder drift with the rod side vented (piston seal test)"),
 }

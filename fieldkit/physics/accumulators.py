@@ -67,9 +67,9 @@ def check_precharge(precharge: pint.Quantity, min_working_pressure: pint.Quantit
     if p0 == 0.0:
         return Check(Level.WARNING, "no gas precharge: suspect a ruptured bladder or a leaking gas valve")
     if p0 >= p_min:
-        return Check(Level.WARNING, f"precharge {shown(precharge)} is not below the minimum working pressure "
-                                    f"{shown(min_working_pressure)}: the accumulator empties before the pressure "
-                                    f"falls that far and delivers less than designed")
+        return Check(Level.WARNING, f"precharge {shown(precharge)} is not below the minimum working "
+                                    f"pressure {shown(min_working_pressure)}: the accumulator empties before "
+                                    f"the pressure falls that far and delivers less than designed")
     return Check(Level.OK, f"precharge is {100.0 * p0 / p_min:.0f} % of the minimum working pressure")
 
 
@@ -91,7 +91,9 @@ def delivered_volume(size: pint.Quantity, precharge: pint.Quantity, min_pressure
     p_low = _absolute(min_pressure, "minimum pressure", barometric)
     p_high = _absolute(max_pressure, "maximum pressure", barometric)
     if p_high < p_low:
-        raise OutOfRangeError(f"maximum pressure {shown(max_pressure)} is below minimum pressure {shown(min_pressure)}")
+        raise OutOfRangeError(
+            f"maximum pressure {shown(max_pressure)} is below minimum pressure {shown(min_pressure)}"
+        )
     inverse = 1.0 / exponent
 
     def gas_volume(p: float) -> float:

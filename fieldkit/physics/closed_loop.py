@@ -76,10 +76,12 @@ class ChargeBudget:
 
     @property
     def message(self) -> str:
+        supply, demand = shown(self.supply), shown(self.demand)
         if self.keeps_loop_full:
-            return f"charge pump supplies {shown(self.supply)} against {shown(self.demand)} lost: {shown(self.surplus)} spare over the charge relief"
-        return (f"charge pump supplies {shown(self.supply)} but the loop loses {shown(self.demand)}: charge pressure "
-                f"will fall below the relief setting and the pump may cavitate")
+            spare = shown(self.surplus)
+            return f"charge pump supplies {supply} against {demand} lost: {spare} spare over the relief"
+        return (f"charge pump supplies {supply} but the loop loses {demand}: charge pressure will fall "
+                f"below the relief setting and the pump may cavitate")
 
 
 def charge_flow_budget(charge_displacement: pint.Quantity, speed: pint.Quantity,
@@ -101,8 +103,10 @@ def charge_flow_budget(charge_displacement: pint.Quantity, speed: pint.Quantity,
               * fraction(charge_volumetric_efficiency, "charge pump volumetric efficiency"))
     demand = (si(pump_case_drain, Kind.FLOW, "pump case drain", non_negative=True)
               + si(motor_case_drain, Kind.FLOW, "motor case drain", non_negative=True))
-    flushing = 0.0 if flushing_flow is None else si(flushing_flow, Kind.FLOW, "flushing flow", non_negative=True)
+    flushing = 0.0 if flushing_flow is None else si(flushing_flow, Kind.FLOW, "flushing flow",
+                                                    non_negative=True)
     if not flushing_through_motor_case:
         demand += flushing
     surplus = supply - demand
-    return ChargeBudget(out(supply, Kind.FLOW), out(demand, Kind.FLOW), out(surplus, Kind.FLOW), surplus > 0.0)
+    return ChargeBudget(out(supply, Kind.FLOW), out(demand, Kind.FLOW), out(surplus, Kind.FLOW),
+                        keeps_loop_full=surplus > 0.0)

@@ -155,12 +155,13 @@ def celsius(value_kelvin: float) -> pint.Quantity:
     return Q_(value_kelvin - KELVIN_OFFSET, unit("degC"))
 
 
-#: A ratio as callers give it: a plain number from 0 to 1, or a dimensionless quantity such as ``Q_(90, "%")``.
+#: A ratio as callers give it: a plain number from 0 to 1, or a dimensionless quantity (``Q_(90, "%")``).
 Ratio = float | pint.Quantity
 
 
-def fraction(x: Any, what: str, *, allow_zero: bool = False, upper: float | None = 1.0) -> float:
-    """A ratio as a float: a dimensionless quantity (``Q_(90, "%")``) or a plain number from 0 to 1.
+def fraction(x: Any, what: str) -> float:
+    """A ratio as a float above 0 and at most 1, from a dimensionless quantity (``Q_(90, "%")``)
+    or a plain number.
 
     A plain number above 1 is refused rather than read as a percentage: ``90`` for an
     efficiency is far more likely a slip than a 9000 % machine.
@@ -173,16 +174,14 @@ def fraction(x: Any, what: str, *, allow_zero: bool = False, upper: float | None
         value = float(x)
     else:
         raise DimensionError(f"{what} must be a ratio such as 0.9 or '90 %'; got {x!r}")
-    _finite(value, x, what)
-    if value < 0 or (value == 0 and not allow_zero) or (upper is not None and value > upper):
-        top = f" to {upper:g}" if upper is not None else ""
-        raise OutOfRangeError(f"{what} must lie in {'0' if allow_zero else 'just above 0'}{top}; got {x}")
+    if not 0.0 < _finite(value, x, what) <= 1.0:
+        raise OutOfRangeError(f"{what} must be above 0 and at most 1 (100 %); got {shown(x)}")
     return value
 
 
 def percent(value: float) -> pint.Quantity:
     """A ratio result in percent, the canonical ratio unit."""
-    return Q_(value * 100.0, unit("percent"))
+    return out(value, Kind.RATIO)
 
 
 class Level(StrEnum):

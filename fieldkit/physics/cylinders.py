@@ -144,7 +144,8 @@ def leakage_from_drift(drift_rate: pint.Quantity, bore: pint.Quantity, rod: pint
     return out(v * (cap if _side(side) is Side.CAP else ann), Kind.FLOW)
 
 
-def intensified_rod_pressure(cap_pressure: pint.Quantity, bore: pint.Quantity, rod: pint.Quantity) -> pint.Quantity:
+def intensified_rod_pressure(cap_pressure: pint.Quantity, bore: pint.Quantity,
+                             rod: pint.Quantity) -> pint.Quantity:
     """Rod-side pressure when the cap side is pressurised and the rod side is blocked:
     p_rod = p_cap · A_cap / A_annulus.
 

@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+
 import pint
 
 from fieldkit.physics.common import Check, Level, OutOfRangeError, celsius, kelvin, out, shown, si
@@ -108,7 +109,7 @@ def _grade(vg: int, at_100c: float, note: str) -> Grade:
 _FIELD_NOTES = "100 °C value from memory (field notes, VI ≈ 100)"
 _FILLED = "100 °C value from memory, picked so the Walther slope runs smoothly through VG32–VG68"
 
-#: ISO 3448 grades; the 40 °C midpoint is the grade number (±10 %). Typical 100 °C values assume VI ≈ 100.
+#: ISO 3448 grades; the 40 °C midpoint is the grade number (±10 %). 100 °C values assume VI ≈ 100.
 VG_GRADES: dict[str, Grade] = {
     g.name: g
     for g in (
@@ -167,7 +168,9 @@ class ViscosityWindow:
             ("minimum viscosity", self.minimum), ("optimum low", self.optimum_low),
             ("optimum high", self.optimum_high), ("cold-start maximum", self.cold_start_max))]
         if bounds != sorted(bounds):
-            raise OutOfRangeError("viscosity window must run minimum ≤ optimum low ≤ optimum high ≤ cold-start maximum")
+            raise OutOfRangeError(
+                "viscosity window must run minimum ≤ optimum low ≤ optimum high ≤ cold-start maximum"
+            )
 
 
 DEFAULT_WINDOW = ViscosityWindow()
@@ -188,16 +191,19 @@ def check_viscosity(viscosity: pint.Quantity, window: ViscosityWindow = DEFAULT_
                                     f"{shown(window.minimum)}: film too thin, leakage readings run high")
     if nu > si(window.cold_start_max, Kind.VISCOSITY, "cold-start maximum"):
         return Check(Level.WARNING, f"{oil} is thicker than the pump's cold-start limit "
-                                    f"{shown(window.cold_start_max)}: risk of inlet cavitation; warm the oil first")
+                                    f"{shown(window.cold_start_max)}: risk of inlet cavitation; "
+                                    f"warm the oil first")
     low = si(window.optimum_low, Kind.VISCOSITY, "optimum low")
     high = si(window.optimum_high, Kind.VISCOSITY, "optimum high")
     if not low <= nu <= high:
         return Check(Level.NOTE, f"{oil} is outside the optimum {shown(window.optimum_low)}–"
-                                 f"{shown(window.optimum_high)}: compare readings with a baseline at the same temperature")
+                                 f"{shown(window.optimum_high)}: compare readings with a baseline "
+                                 f"at the same temperature")
     return Check(Level.OK, f"{oil} is within the optimum viscosity")
 
 
-def check_test_temperature(temperature: pint.Quantity, minimum: pint.Quantity = MIN_TEST_TEMPERATURE) -> Check:
+def check_test_temperature(temperature: pint.Quantity,
+                           minimum: pint.Quantity = MIN_TEST_TEMPERATURE) -> Check:
     """Whether the oil is warm enough for a leakage or efficiency test to mean anything.
 
     Cold oil is thick and leaks little, so a worn pump can pass a cold test; readings are

@@ -36,7 +36,9 @@ def _span(full_scale: pint.Quantity, scale_start: pint.Quantity | None) -> tuple
     top = si(full_scale, Kind.PRESSURE, "gauge full scale")
     start = 0.0 if scale_start is None else si(scale_start, Kind.PRESSURE, "gauge scale start")
     if top <= start:
-        raise OutOfRangeError(f"gauge full scale {shown(full_scale)} must be above its scale start {shown(scale_start)}")
+        raise OutOfRangeError(
+            f"gauge full scale {shown(full_scale)} must be above its scale start {shown(scale_start)}"
+        )
     return top, top - start
 
 
@@ -46,6 +48,15 @@ def _class(accuracy_class: float) -> float:
             f"accuracy class {accuracy_class!r} is not an EN 837-1 class; use one of "
             + ", ".join(f"{c:g}" for c in ACCURACY_CLASSES)
         )
+    return float(accuracy_class)
+
+
+def _percent_of_span(accuracy_class: float) -> float:
+    """An accuracy figure as % of span from any standard (EN 837-1 class, ASME grade…)."""
+    if isinstance(accuracy_class, bool) or not isinstance(accuracy_class, (int, float)) \
+            or not 0 < accuracy_class <= 10:
+        raise OutOfRangeError(f"accuracy class must be a percentage of span above 0 and at most 10; "
+                              f"got {accuracy_class!r}")
     return float(accuracy_class)
 
 
@@ -98,13 +109,24 @@ def probability_beyond(reading: pint.Quantity, limit: pint.Quantity, standard_un
     return 0.5 * math.erfc(distance / (u * _SQRT2))
 
 
+def _working_and_peak(working_pressure: pint.Quantity,
+                      highest_pressure: pint.Quantity | None) -> tuple[float, float]:
+    """Working and highest gauge pressure in Pa; the highest is never below the working pressure."""
+    work = si(working_pressure, Kind.PRESSURE, "working pressure")
+    if highest_pressure is None:
+        return work, work
+    return work, max(work, si(highest_pressure, Kind.PRESSURE, "highest pressure"))
+
+
 def smallest_gauge(working_pressure: pint.Quantity, highest_pressure: pint.Quantity | None = None,
-                   ranges_bar: tuple[float, ...] = STANDARD_RANGES_BAR, fluctuating: bool = False) -> pint.Quantity:
+                   ranges_bar: tuple[float, ...] = STANDARD_RANGES_BAR,
+                   fluctuating: bool = False) -> pint.Quantity:
     """The smallest standard 0–X bar gauge that reads ``working_pressure`` within 3/4 of its
     scale (2/3 if it fluctuates) and whose full scale exceeds ``highest_pressure``: the
     smallest suitable range gives the smallest absolute error."""
-    work = abs(si(working_pressure, Kind.PRESSURE, "working pressure"))
-    peak = work if highest_pressure is None else max(work, abs(si(highest_pressure, Kind.PRESSURE, "highest pressure")))
+    work, peak = _working_and_peak(working_pressure, highest_pressure)
+    if work < 0:
+        raise OutOfRangeError(f"{shown(working_pressure)} is a vacuum: it needs a vacuum or compound gauge")
     share = FLUCTUATING_FRACTION if fluctuating else STEADY_FRACTION
     for top_bar in sorted(ranges_bar):
         top = top_bar * 1e5
@@ -119,35 +141,46 @@ def gauge_suitability(full_scale: pint.Quantity, working_pressure: pint.Quantity
                       accuracy_class: float | None = None, fluctuating: bool = False) -> Check:
     """Whether a gauge suits a test point.
 
-    * ERROR if the point can reach the full scale: the gauge is overranged, reads nothing
-      useful and may be damaged or burst.
+    * ERROR if the point can reach the full scale (or, on a vacuum or compound gauge, go
+      below the scale start): the gauge is overranged, reads nothing useful and may be
+      damaged or burst.
     * WARNING if the steady working pressure is above 3/4 of full scale (2/3 if it fluctuates;
-      EN 837-2, from memory): the movement wears and the reading drifts.
+      EN 837-2, from memory): the movement wears and the reading drifts. On a vacuum gauge
+      the same share applies to the vacuum side of the scale.
     * WARNING if the reading is below 1/4 of the span (common practice): the class error,
       a share of the span, becomes a large share of the reading.
+
+    ``accuracy_class`` (% of span, from EN 837-1 or the gauge's own standard) only adds the
+    size of that error to the message.
     """
     top, span = _span(full_scale, scale_start)
-    work = abs(si(working_pressure, Kind.PRESSURE, "working pressure"))
-    peak = work if highest_pressure is None else max(work, abs(si(highest_pressure, Kind.PRESSURE, "highest pressure")))
+    start = top - span
+    class_error = None if accuracy_class is None else _percent_of_span(accuracy_class) / 100.0 * span
+    work, peak = _working_and_peak(working_pressure, highest_pressure)
     found: list[Check] = []
     gauge = f"the {shown(full_scale)} gauge"
-    if peak >= top:
+    overranged = peak >= top or work < start
+    if overranged:
+        reach = highest_pressure if highest_pressure is not None and peak > work else working_pressure
         try:
-            advice = f"; use a 0–{shown(smallest_gauge(working_pressure, highest_pressure, fluctuating=fluctuating))} gauge"
+            better = smallest_gauge(working_pressure, highest_pressure, fluctuating=fluctuating)
+            advice = f"; use a 0–{shown(better)} gauge"
         except OutOfRangeError:
             advice = ""
-        found.append(Check(Level.ERROR, f"the point can reach {peak / 1e5:.4g} bar, at or above the full scale of "
+        found.append(Check(Level.ERROR, f"the point can reach {shown(reach)}, beyond the scale of "
                                         f"{gauge}: it would be overranged{advice}"))
     share = FLUCTUATING_FRACTION if fluctuating else STEADY_FRACTION
-    if work > share * top and peak < top:
-        found.append(Check(Level.WARNING, f"working pressure {shown(working_pressure)} is above "
-                                          f"{'2/3' if fluctuating else '3/4'} of {gauge}'s scale: choose a larger range"))
-    if work < LOW_READING_FRACTION * span:
+    working_side = top if top > 0 else -start  # how far the scale reaches on the side being read
+    if not overranged and abs(work) > share * working_side:
+        found.append(Check(Level.WARNING, f"working pressure {shown(working_pressure)} is beyond "
+                                          f"{'2/3' if fluctuating else '3/4'} of {gauge}'s scale: "
+                                          f"choose a larger range"))
+    if abs(work) < LOW_READING_FRACTION * span:
         detail = ""
-        if accuracy_class is not None and work > 0:
-            error = _class(accuracy_class) / 100.0 * span
-            detail = f" (±{error / 1e5:.3g} bar, {100.0 * error / work:.0f} % of the reading)"
-        advice = "" if peak >= top else "; a smaller range reads it better"
+        if class_error is not None and work != 0:
+            share_of_reading = 100.0 * class_error / abs(work)
+            detail = f" (±{class_error / 1e5:.3g} bar, {share_of_reading:.0f} % of the reading)"
+        advice = "" if overranged else "; a smaller range reads it better"
         found.append(Check(Level.WARNING, f"working pressure {shown(working_pressure)} is below a quarter of "
                                           f"{gauge}'s span: the relative error is large{detail}{advice}"))
     return Check.combine(found, f"{gauge} suits a working pressure of {shown(working_pressure)}")

@@ -58,7 +58,11 @@ def orifice_pressure_drop(flow: pint.Quantity, diameter: pint.Quantity,
 def orifice_diameter(flow: pint.Quantity, pressure_drop: pint.Quantity,
                      discharge_coefficient: Ratio = SHARP_EDGED_CD,
                      density: pint.Quantity = OIL_DENSITY) -> pint.Quantity:
-    """Hole diameter that passes a flow at a pressure drop: A = Q / (Cd · √(2 Δp / ρ)), d = √(4A/π)."""
+    """Hole diameter that passes a flow at a pressure drop:
+    A = Q / (Cd · √(2 Δp / ρ)), d = √(4 A / π).
+
+    Useful to tell whether a measured bleed flow fits the orifice the drawing shows or a
+    drilled-out or half-blocked one."""
     q = si(flow, Kind.FLOW, "flow", non_negative=True)
     dp = si(pressure_drop, Kind.PRESSURE, "pressure drop", positive=True)
     rho = si(density, Kind.DENSITY, "oil density", positive=True)
@@ -67,7 +71,8 @@ def orifice_diameter(flow: pint.Quantity, pressure_drop: pint.Quantity,
     return out(math.sqrt(4.0 * area / math.pi), Kind.LENGTH)
 
 
-def restriction_pressure_drop(flow: pint.Quantity, known_flow: pint.Quantity, known_pressure_drop: pint.Quantity,
+def restriction_pressure_drop(flow: pint.Quantity, known_flow: pint.Quantity,
+                              known_pressure_drop: pint.Quantity,
                               exponent: float = TURBULENT_EXPONENT) -> pint.Quantity:
     """Pressure drop across a filter, line or valve at a flow, scaled from one known point:
     Δp = Δp_known · (Q / Q_known)^n.
@@ -79,5 +84,7 @@ def restriction_pressure_drop(flow: pint.Quantity, known_flow: pint.Quantity, kn
     q_known = si(known_flow, Kind.FLOW, "known flow", positive=True)
     dp_known = si(known_pressure_drop, Kind.PRESSURE, "known pressure drop", non_negative=True)
     if isinstance(exponent, bool) or not isinstance(exponent, (int, float)) or not 0.5 <= exponent <= 3.0:
-        raise OutOfRangeError(f"flow exponent must be a number from 0.5 to 3 (1 laminar, 2 turbulent); got {exponent!r}")
+        raise OutOfRangeError(
+            f"flow exponent must be a number from 0.5 to 3 (1 laminar, 2 turbulent); got {exponent!r}"
+        )
     return out(dp_known * (q / q_known) ** exponent, Kind.PRESSURE)

@@ -42,7 +42,8 @@ def pump_volumetric_efficiency(actual_flow: pint.Quantity, displacement: pint.Qu
     """ηv = Q_actual / (V · n): the share of the displaced oil that reaches the outlet; the
     rest leaks back inside the pump. Measured data can give slightly over 100 %; it is returned
     as measured so the caller can judge the meters."""
-    return percent(si(actual_flow, Kind.FLOW, "pump flow", non_negative=True) / (_v(displacement) * _n(speed)))
+    q = si(actual_flow, Kind.FLOW, "pump flow", non_negative=True)
+    return percent(q / (_v(displacement) * _n(speed)))
 
 
 def pump_hydromechanical_efficiency(pressure_difference: pint.Quantity, displacement: pint.Quantity,
@@ -95,7 +96,8 @@ def motor_overall_efficiency(pressure_difference: pint.Quantity, input_flow: pin
 # --- field tests --------------------------------------------------------------------------
 
 def volumetric_efficiency_from_flow_test(no_load_flow: pint.Quantity, no_load_speed: pint.Quantity,
-                                         loaded_flow: pint.Quantity, loaded_speed: pint.Quantity) -> pint.Quantity:
+                                         loaded_flow: pint.Quantity,
+                                         loaded_speed: pint.Quantity) -> pint.Quantity:
     """ηv from a flow meter test: loaded flow per revolution over no-load flow per revolution.
 
     Engines and electric motors slow down under load, so comparing raw flows would blame the
@@ -103,9 +105,9 @@ def volumetric_efficiency_from_flow_test(no_load_flow: pint.Quantity, no_load_sp
     at no load (near zero pressure) is negligible, so no-load flow per revolution stands for
     the true displacement; that makes the result slightly optimistic.
     """
-    per_rev_no_load = si(no_load_flow, Kind.FLOW, "no-load flow", positive=True) / _n(no_load_speed, "no-load speed")
-    per_rev_loaded = si(loaded_flow, Kind.FLOW, "loaded flow", non_negative=True) / _n(loaded_speed, "loaded speed")
-    return percent(per_rev_loaded / per_rev_no_load)
+    no_load = si(no_load_flow, Kind.FLOW, "no-load flow", positive=True) / _n(no_load_speed, "no-load speed")
+    loaded = si(loaded_flow, Kind.FLOW, "loaded flow", non_negative=True) / _n(loaded_speed, "loaded speed")
+    return percent(loaded / no_load)
 
 
 @dataclass(frozen=True, slots=True)
@@ -127,7 +129,9 @@ def case_drain_leakage(case_drain_flow: pint.Quantity, displacement: pint.Quanti
     at the same pressure and oil temperature, since leakage rises with both.
     """
     drain = si(case_drain_flow, Kind.FLOW, "case drain flow", non_negative=True)
-    other = 0.0 if other_case_flow is None else si(other_case_flow, Kind.FLOW, "other case flow", non_negative=True)
+    other = 0.0
+    if other_case_flow is not None:
+        other = si(other_case_flow, Kind.FLOW, "other case flow", non_negative=True)
     leak = max(drain - other, 0.0)
     return Leakage(out(leak, Kind.FLOW), percent(leak / (_v(displacement) * _n(speed))))
 
@@ -184,4 +188,5 @@ def two_speed_motor_output(pressure_difference: pint.Quantity, flow: pint.Quanti
     q = si(flow, Kind.FLOW, "motor inlet flow", non_negative=True)
     eta_v = fraction(volumetric_efficiency, "volumetric efficiency")
     eta_hm = fraction(hydromechanical_efficiency, "hydromechanical efficiency")
-    return MotorOutput(out(dp * reduced / _TWO_PI * eta_hm, Kind.TORQUE), out(q * eta_v / reduced, Kind.SPEED))
+    return MotorOutput(out(dp * reduced / _TWO_PI * eta_hm, Kind.TORQUE),
+                       out(q * eta_v / reduced, Kind.SPEED))

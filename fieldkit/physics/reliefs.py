@@ -56,9 +56,14 @@ class ReliefValve:
         try:
             object.__setattr__(self, "drain", Drain(self.drain))
         except ValueError:
-            raise OutOfRangeError(f"relief {self.name!r}: drain must be 'internal' or 'external'; got {self.drain!r}") from None
-        object.__setattr__(self, "_setting_pa", si(self.setting, Kind.PRESSURE, f"relief {self.name!r} setting", positive=True))
-        object.__setattr__(self, "_override_pa", si(self.override, Kind.PRESSURE, f"relief {self.name!r} override", non_negative=True))
+            raise OutOfRangeError(
+                f"relief {self.name!r}: drain must be 'internal' or 'external'; got {self.drain!r}"
+            ) from None
+        label = f"relief {self.name!r}"
+        object.__setattr__(self, "_setting_pa",
+                           si(self.setting, Kind.PRESSURE, f"{label} setting", positive=True))
+        object.__setattr__(self, "_override_pa",
+                           si(self.override, Kind.PRESSURE, f"{label} override", non_negative=True))
 
     def _opens_at(self, back_pa: float, full_flow: bool) -> float:
         own = self._setting_pa + (self._override_pa if full_flow else 0.0)
@@ -202,7 +207,9 @@ def deadhead(arrangement: Arrangement, return_pressure: pint.Quantity | None = N
     names = _valve_names(arrangement)
     repeated = sorted({n for n in names if names.count(n) > 1})
     if repeated:
-        raise OutOfRangeError(f"relief names must be unique to label gauge points; repeated: {', '.join(repeated)}")
+        raise OutOfRangeError(
+            f"relief names must be unique to label gauge points; repeated: {', '.join(repeated)}"
+        )
     back = _back(return_pressure)
     upstream = _opens_at(arrangement, back, at_full_flow)
     points: dict[str, float | None] = {}

@@ -139,27 +139,28 @@ def parse_readings_csv(
         raise DataFileError(name, "the first line must be a header naming the columns (time, test_point, value…)", line=1)
     delimiter = ";" if ";" in first_line else "\t" if "\t" in first_line else ","
     reader = csv.reader(io.StringIO(text, newline=""), delimiter=delimiter, strict=True)
+    # First pass: split into rows with their starting line (cheap, in C), so the row limit is
+    # enforced before any row is validated.
+    rows: list[tuple[int, list[str]]] = []
     try:
-        header = next(reader)
-        layout = _layout(header, delimiter, decimal_comma or delimiter == ";", name)
-        readings: list[Reading] = []
-        problems = _Problems()
-        rows = 0
+        layout = _layout(next(reader), delimiter, decimal_comma or delimiter == ";", name)
         last_line = reader.line_num
         for row in reader:
             line, last_line = last_line + 1, reader.line_num
-            if not any(cell.strip() for cell in row):
-                continue
-            rows += 1
-            if rows > MAX_ROWS:
-                raise DataFileError(name, f"more than {MAX_ROWS:,} readings; split the file", line=line)
-            reading, wrong = _row(row, layout, test_points, gauges, naive_tz)
-            if wrong:
-                problems.add(line, wrong)
-            elif reading is not None:
-                readings.append(reading)
+            if any(cell.strip() for cell in row):
+                rows.append((line, row))
+                if len(rows) > MAX_ROWS:
+                    raise DataFileError(name, f"more than {MAX_ROWS:,} readings; split the file", line=line)
     except csv.Error as exc:
         raise DataFileError(name, f"the CSV cannot be read here: {exc}", line=reader.line_num or None) from None
+    readings: list[Reading] = []
+    problems = _Problems()
+    for line, row in rows:
+        reading, wrong = _row(row, layout, test_points, gauges, naive_tz)
+        if wrong:
+            problems.add(line, wrong)
+        elif reading is not None:
+            readings.append(reading)
     if problems.count:
         raise _report(name, problems)
     if not readings:
@@ -253,7 +254,8 @@ def _row(
             gauge=gauge, taken_at=taken_at, note=cells.get("note", ""),
         ), []
     except ValidationError as exc:
-        return None, [validation_error(exc, "", None).detail]
+        err = validation_error(exc, "", None)
+        return None, [f"{err.key}: {err.detail}" if err.key else err.detail]
 
 
 def _time(cell: str, naive_tz: dt.tzinfo | None, wrong: list[str]) -> dt.datetime | None:

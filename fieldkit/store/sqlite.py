@@ -52,7 +52,8 @@ def _now() -> str:
 
 def _why(exc: Exception) -> str:
     if isinstance(exc, ValidationError):
-        return validation_error(exc, "", None).detail
+        err = validation_error(exc, "", None)
+        return f"{err.key}: {err.detail}" if err.key else err.detail
     return str(exc)
 
 
@@ -249,11 +250,11 @@ class SqliteVisitStore:
 
     @staticmethod
     def _checked(model: type[BaseModel], obj: Any, what: str) -> Any:
-        """Validate again from the model's own JSON: a model built with ``model_construct`` or
+        """Validate again from the field values: a model built with ``model_construct`` or
         changed after construction is checked before it reaches the disk."""
         try:
-            return model.model_validate_json(obj.model_dump_json())
-        except Exception as exc:  # serialising a broken model can fail in many ways; all mean 'invalid'
+            return model.model_validate(_field_values(obj))
+        except ValidationError as exc:
             raise StoreError(f"{what} is not valid and was not saved: {_why(exc)}") from None
 
     def _write_header(self, conn: sqlite3.Connection, visit: Visit, *, insert: bool) -> None:
@@ -486,6 +487,16 @@ class SqliteVisitStore:
                 readings = [r for r in visit.current_readings() if wanted is None or r.test_point in wanted]
                 out.append((self._summary(conn, visit, updated), readings))
         return out
+
+
+def _field_values(obj: Any) -> Any:
+    """A model's field values as plain dicts and lists, so validation sees every nested value
+    (pydantic would accept a nested model instance as it is, unchecked)."""
+    if isinstance(obj, BaseModel):
+        return {name: _field_values(value) for name, value in obj.__dict__.items()}
+    if isinstance(obj, (list, tuple)):
+        return [_field_values(item) for item in obj]
+    return obj
 
 
 def _with_fresh_ids(visit: Visit) -> Visit:

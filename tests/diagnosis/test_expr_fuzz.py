@@ -32,7 +32,7 @@ SYMBOLS: dict[str, Any] = {
     "loop_closed": BOOLEAN,
 }
 NAMES = sorted(SYMBOLS)
-FUZZ = settings(max_examples=250, deadline=2000, suppress_health_check=[HealthCheck.too_slow])
+FUZZ = settings(max_examples=200, deadline=2000, database=None, suppress_health_check=[HealthCheck.too_slow])
 
 finite = st.floats(allow_nan=False, allow_infinity=False)
 env_values = st.one_of(finite, st.sampled_from([0.0, 1.0, -1.0, 1e300, -1e300, 5e-324]))
@@ -214,7 +214,7 @@ def _checked(value: float, strict: bool) -> float | None:
     return value if not strict or math.isfinite(value) else None
 
 
-@settings(max_examples=300, deadline=2000)
+@settings(max_examples=200, deadline=2000, database=None)
 @given(arithmetic())
 def test_constant_arithmetic_matches_python_floats(built: Built) -> None:
     text, expected, depth = built
@@ -235,7 +235,7 @@ def arithmetic_with_names(draw: st.DrawFn) -> tuple[Built, dict[str, float]]:
     return draw(arithmetic(4, env)), env
 
 
-@settings(max_examples=300, deadline=2000)
+@settings(max_examples=200, deadline=2000, database=None)
 @given(arithmetic_with_names())
 def test_arithmetic_on_readings_matches_python_floats(case: tuple[Built, dict[str, float]]) -> None:
     (text, expected, _depth), env = case

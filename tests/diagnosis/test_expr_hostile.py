@@ -182,6 +182,10 @@ def test_pressure_compared_with_flow_names_both_kinds() -> None:
     ("when x > 1 then 2", "else"),
     ("1 / 0", "division by zero"),
     ("°C", "unexpected character"),
+    ("x < .²", "decimal point"),           # '²' and '٣' pass str.isdigit() but are not digits here
+    ("x < 2²", "unexpected character"),
+    ("x < \u0663", "unexpected character"),
+    ("x <\u00a05", "invisible"),
 ])
 def test_mistakes_get_a_clear_message(source: str, says: str) -> None:
     error = refused(source)

@@ -189,6 +189,16 @@ def test_when_chain_of_cases() -> None:
     assert [rule.evaluate({"oil_temperature": si(t, "degC")}) for t in (10, 30, 50)] == [0.0, 0.5, 1.0]
 
 
+def test_guards_keep_a_division_by_zero_from_running() -> None:
+    # 'when' evaluates only the branch it picks and 'and' stops at the first false.
+    stopped = {"pump_theoretical_flow": 0.0, "pump_case_drain_flow": si(1, "L/min")}
+    ratio = "pump_case_drain_flow / pump_theoretical_flow"
+    assert run(f"when pump_theoretical_flow > 0 L/min then {ratio} else 0", **stopped) == 0.0
+    assert run(f"pump_theoretical_flow > 0 L/min and {ratio} > 5 %", **stopped) is False
+    with pytest.raises(ExprError, match="division by zero"):
+        run(ratio, **stopped)
+
+
 def test_when_inside_a_sum_needs_parentheses() -> None:
     with pytest.raises(ExprError, match="parentheses"):
         compile_expression("1 + when true then 1 else 2", SYMBOLS)

@@ -63,7 +63,7 @@ def test_efficiency_may_be_a_fraction_or_a_percentage():
 
 
 def test_efficiency_of_ninety_is_refused_not_read_as_percent():
-    with pytest.raises(OutOfRangeError, match="efficiency must lie in"):
+    with pytest.raises(OutOfRangeError, match="efficiency must be above 0 and at most 1"):
         fraction(90, "efficiency")
     with pytest.raises(DimensionError, match="ratio"):
         fraction(q("90 bar"), "efficiency")

@@ -1,7 +1,5 @@
 """Gauge accuracy (EN 837-1), uncertainty (GUM), suitability for a test point, verdict probabilities."""
 
-import math
-
 import pytest
 from scipy import stats
 
@@ -101,7 +99,23 @@ def test_no_standard_gauge_for_an_impossible_pressure():
         smallest_gauge(q("1000 bar"))
 
 
-def test_class_error_does_not_depend_on_where_the_needle_points():
-    # EN 837-1: the limit applies anywhere on the scale, so relative error grows as the reading falls [calc]
-    limit = limit_of_error(1.0, q("100 bar")).m_as("bar")
-    assert math.isclose(limit, 1.0)
+
+def test_vacuum_gauge_reads_vacuum_without_being_called_overranged():
+    # −1 to 0 bar vacuum gauge; 0.6 bar vacuum is within 3/4 of its 1 bar vacuum side [calc]
+    assert gauge_suitability(q("0 bar"), q("-0.6 bar"), scale_start=q("-1 bar")).ok
+    # Pressure above zero would push the needle past its full scale
+    check = gauge_suitability(q("0 bar"), q("-0.6 bar"), highest_pressure=q("2 bar"), scale_start=q("-1 bar"))
+    assert check.level is Level.ERROR
+
+
+def test_suitability_takes_an_accuracy_figure_from_another_standard():
+    # A 2 %-of-span gauge (not an EN 837-1 class) on 0–100 bar read at 10 bar: ±2 bar, 20 % [calc]
+    check = gauge_suitability(q("100 bar"), q("10 bar"), accuracy_class=2)
+    assert "±2 bar, 20 % of the reading" in check.message
+    with pytest.raises(OutOfRangeError, match="percentage of span"):
+        gauge_suitability(q("40 bar"), q("22 bar"), accuracy_class=-1)
+
+
+def test_vacuum_needs_a_vacuum_gauge_not_a_standard_range():
+    with pytest.raises(OutOfRangeError, match="vacuum or compound gauge"):
+        smallest_gauge(q("-0.3 bar"))

@@ -31,7 +31,9 @@ In words:
   A unit may follow, with or without spaces: any spelling of ``fieldkit.units.SPELLINGS``
   (``17 bar``, ``2 L/min``, ``55 °C``, ``12 mm/min``, ``90 %``). The longest spelling that
   ends on a word boundary wins, so ``5 min-1`` is 5 rpm; write ``5 min - 1`` for a subtraction.
-  A number without a unit is a plain number; ``90 %`` is the plain number 0.9.
+  A number without a unit is a plain number; ``90 %`` is the plain number 0.9. A minus sign
+  right before a number belongs to it: ``-40 °C`` is 233.15 K, not the negative of 313.15 K
+  (powers still bind first: ``-2 ^ 2`` is -4).
 * A name is a lower-case letter followed by lower-case letters, digits and single ``_``. Names
   come from the caller's symbol table. Keywords (and, or, not, when, then, else, true, false)
   and unit words (bar, psi, min, …) are never names; a function may share a unit word's
@@ -42,9 +44,15 @@ In words:
   difference of 1e-9 (conversion noise); the others compare exactly. Comparing with zero is
   exact: to ask "about zero" write ``abs(x) < 0.01 bar``.
 * ``when C then A else B``: C is true/false; A and B have one type. Inside a larger
-  expression a ``when`` needs parentheses (or it would swallow what follows); after ``else``
-  another ``when`` may follow directly, giving a chain of cases.
+  expression a ``when`` needs parentheses (or it would swallow what follows); it may stand
+  alone as a function argument, and after ``else`` another ``when`` may follow directly,
+  giving a chain of cases.
+* Calls: ``name(a, b)`` with at most 16 arguments, only to functions in the caller's table.
+  Builtins (:data:`BUILTIN_FUNCTIONS`): ``min`` and ``max`` (two or more values of one kind),
+  ``abs``, ``clamp(x, low, high)``, ``sqrt`` (even powers only, e.g. of an area).
 * ``and``/``or`` short-circuit; ``not`` binds looser than comparisons (``not a < b``).
+* Spaces, tabs and line breaks separate tokens. The typeset signs ``−  ≤  ≥  ≠`` are read as
+  ``-  <=  >=  !=``.
 
 Types are checked when compiling, with pint dimensionalities: ``+``, ``-``, comparisons,
 when-branches and SAME function parameters need one dimension; ``*``, ``/`` and ``^`` combine

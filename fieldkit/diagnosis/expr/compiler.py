@@ -199,8 +199,8 @@ class Compiler:
         base = self.compile(node.base)
         self.need_number(node.base, base, "'^'")
         n = node.exponent
-        if n == 0:
-            return Typed(DIMENSIONLESS, _constant(1.0), None, 1.0)
+        if n == 0:  # still evaluate the base, so its own errors (a / 0) are not hidden
+            return self.fold([base], Typed(DIMENSIONLESS, _one_after(base.fn)), node.op_at)
         if n < 0 and base.const == 0.0:
             raise self.error("zero raised to a negative power", node.op_at)
         f, source, at = base.fn, self.source, node.op_at
@@ -371,6 +371,13 @@ class Compiler:
         except (ValueError, FieldkitError) as exc:
             raise self.error(f"{node.name}(): {exc}", node.start) from None
         return result, (TempTag.EITHER if is_temperature(result) else None)
+
+
+def _one_after(f: Fn) -> Fn:
+    def one(env: Env) -> float:
+        f(env)
+        return 1.0
+    return one
 
 
 def _sum(parts: list[Typed], signs: list[bool]) -> Fn:

@@ -62,6 +62,11 @@ _REFUSED_1 = {
 }
 
 
+def _is_digit(ch: str) -> bool:
+    """ASCII digits only: str.isdigit() also accepts '²' and other scripts' digits."""
+    return len(ch) == 1 and "0" <= ch <= "9"
+
+
 class Tok(Enum):
     NUMBER = "number"
     NAME = "name"
@@ -112,7 +117,7 @@ def tokenize(source: object) -> list[Token]:
         if ch in _WHITESPACE:
             i += 1
             continue
-        if ch.isascii() and ch.isdigit() or (ch == "." and source[i + 1 : i + 2].isdigit()):
+        if _is_digit(ch) or (ch == "." and _is_digit(source[i + 1 : i + 2])):
             token, i = _number(source, i)
         elif "a" <= ch <= "z":
             token, i = _name(source, i)
@@ -137,7 +142,7 @@ def _number(source: str, i: int) -> tuple[Token, int]:
     assert match is not None  # the caller saw a digit, or '.' and a digit
     end = match.end()
     if source[end : end + 1] == ".":
-        if source[end + 1 : end + 2].isdigit():
+        if _is_digit(source[end + 1 : end + 2]):
             raise ExprError("a number has two decimal points", source, end)
         raise ExprError("a decimal point must be followed by digits (write 17 or 17.0)", source, end)
     magnitude = float(match.group())

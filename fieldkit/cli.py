@@ -1,0 +1,266 @@
+"""The ``fieldkit`` command. With no sub-command it opens the terminal UI on the user's store.
+
+Each sub-command imports what it needs when it runs, so ``fieldkit convert`` does not pay for
+the PDF library and the UI starts without the simulator.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+from collections.abc import Sequence
+from pathlib import Path
+
+from fieldkit import __version__
+from fieldkit.errors import FieldkitError
+
+
+def _parser() -> argparse.ArgumentParser:
+    p = argparse.ArgumentParser(
+        prog="fieldkit",
+        description="Log hydraulic test-point readings, check them with physics, rank likely faults, print the job card.",
+    )
+    p.add_argument("--version", action="version", version=f"fieldkit {__version__}")
+    p.add_argument("--store", metavar="PATH", help="visit store file (default: $FIELDKIT_STORE or the user data folder)")
+    p.add_argument("--units", choices=["metric", "si", "us"], help="display units: bar, MPa or psi (default: your setting)")
+    p.add_argument("--decimal-comma", action="store_true", help="read '2,500' as two and a half")
+    p.add_argument("--profiles", metavar="DIR", action="append", type=Path, default=[],
+                   help="another folder of machine profiles (may repeat)")
+    p.add_argument("--rules", metavar="DIR", type=Path, help="another rules folder (packs, faults, cautions, templates)")
+    sub = p.add_subparsers(dest="command", metavar="COMMAND")
+
+    sub.add_parser("demo", help="open the terminal UI on the bundled demo visits (a separate demo store)")
+
+    c = sub.add_parser("convert", help="convert a value as a technician writes it, e.g. convert \"3,500 psi\" bar")
+    c.add_argument("value")
+    c.add_argument("unit")
+
+    s = sub.add_parser("schema", help="print the JSON schema of a visit or a machine profile")
+    s.add_argument("what", choices=["visit", "profile"], nargs="?", default="visit")
+
+    v = sub.add_parser("visits", help="list the visits in the store")
+    v.add_argument("--status", choices=["open", "closed"])
+    v.add_argument("--machine")
+
+    e = sub.add_parser("export", help="write a visit (with its machine profile) to a JSON file")
+    e.add_argument("visit", help="visit id in the store")
+    e.add_argument("--out", type=Path, default=Path("."), help="folder to write into (default: here)")
+
+    i = sub.add_parser("import", help="import a visit JSON file, or a CSV of readings into a visit")
+    i.add_argument("file", type=Path)
+    i.add_argument("--visit", help="for a CSV: the visit id the readings belong to")
+    i.add_argument("--as-new", action="store_true", help="import a visit under fresh ids (when it is already in the store)")
+
+    d = sub.add_parser("diagnose", help="findings, ranked faults, next test and cautions for a visit")
+    d.add_argument("visit", help="a visit JSON file, or the id of a visit in the store")
+    d.add_argument("--json", action="store_true", help="machine-readable output (shape documented in the README)")
+
+    r = sub.add_parser("rules", help="rule pack tools")
+    rs = r.add_subparsers(dest="rules_command", metavar="ACTION")
+    rc = rs.add_parser("check", help="lint rule packs: unknown names, dimension mismatches, rules that never fire")
+    rc.add_argument("folder", nargs="?", type=Path)
+
+    rep = sub.add_parser("report", help="write the job card for a visit")
+    rep.add_argument("visit", help="a visit JSON file, or the id of a visit in the store")
+    rep.add_argument("--pdf", type=Path, metavar="FILE")
+    rep.add_argument("--text", type=Path, metavar="FILE")
+    rep.add_argument("--markdown", type=Path, metavar="FILE")
+    rep.add_argument("--letter", action="store_true", help="US Letter paper (default A4)")
+    rep.add_argument("--fixed-date", metavar="ISO", help="creation date to write (for byte-identical output)")
+
+    sim = sub.add_parser("simulate", help="write a visit a gauge would show on a machine, healthy or with one fault")
+    sim.add_argument("profile", help="machine profile id or TOML file")
+    sim.add_argument("--fault")
+    sim.add_argument("--severity", type=float, default=1.0)
+    sim.add_argument("--seed", type=int, default=0)
+    sim.add_argument("--out", type=Path)
+
+    ev = sub.add_parser("evaluate", help="simulate many visits per fault and measure how often the diagnosis is right")
+    ev.add_argument("--cases", type=int, default=20)
+    ev.add_argument("--seed", type=int, default=1)
+    return p
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    args = _parser().parse_args(argv)
+    try:
+        return _dispatch(args)
+    except FieldkitError as exc:
+        print(f"fieldkit: {exc}", file=sys.stderr)
+        return 2
+    except KeyboardInterrupt:
+        return 130
+
+
+def _workbench(args: argparse.Namespace, store: str | None = None):  # noqa: ANN202
+    from fieldkit.session import Workbench
+    from fieldkit.settings import Settings
+
+    settings = Settings.load()
+    if args.units:
+        settings = settings.model_copy(update={"display": args.units})
+    if args.decimal_comma:
+        settings = settings.model_copy(update={"decimal_comma": True})
+    return Workbench.open(store or args.store, profile_dirs=args.profiles, rules_folder=args.rules, settings=settings)
+
+
+def _dispatch(args: argparse.Namespace) -> int:
+    cmd = args.command
+    if cmd is None:
+        return _run_ui(args, demo=False)
+    if cmd == "demo":
+        return _run_ui(args, demo=True)
+    if cmd == "convert":
+        return _convert(args)
+    if cmd == "schema":
+        return _schema(args)
+    if cmd == "rules":
+        return _rules(args)
+    if cmd == "simulate":
+        from fieldkit.simulate.command import run_simulate
+
+        return run_simulate(args)
+    if cmd == "evaluate":
+        from fieldkit.simulate.command import run_evaluate
+
+        return run_evaluate(args)
+    bench = _workbench(args)
+    try:
+        if cmd == "visits":
+            return _visits(bench, args)
+        if cmd == "export":
+            return _export(bench, args)
+        if cmd == "import":
+            return _import(bench, args)
+        if cmd == "diagnose":
+            return _diagnose(bench, args)
+        if cmd == "report":
+            from fieldkit.report.command import run_report
+
+            return run_report(bench, args)
+    finally:
+        bench.close()
+    raise FieldkitError(f"unknown command {cmd}")
+
+
+def _run_ui(args: argparse.Namespace, demo: bool) -> int:
+    from fieldkit.session import demo_store_path, seed_demo
+
+    store = args.store
+    if demo:
+        store = str(demo_store_path())
+    bench = _workbench(args, store)
+    try:
+        if demo:
+            seed_demo(bench.store)
+        from fieldkit.tui.app import make_app
+
+        make_app(bench, demo=demo).run()
+    finally:
+        bench.close()
+    return 0
+
+
+def _convert(args: argparse.Namespace) -> int:
+    from fieldkit.units import convert, format_value, kind_of, parse_value
+
+    parsed = parse_value(args.value)
+    shown = convert(parsed.quantity, args.unit)
+    text = format_value(shown, kind=kind_of(shown), spelling=args.unit)
+    ref = f" ({parsed.reference.value})" if parsed.reference and parsed.reference.value != "gauge" else ""
+    print(f"{text}{ref}")
+    return 0
+
+
+def _schema(args: argparse.Namespace) -> int:
+    from fieldkit.model.profile import MachineProfile
+    from fieldkit.model.visit import Visit
+
+    model = Visit if args.what == "visit" else MachineProfile
+    schema = model.model_json_schema()
+    schema["$comment"] = f"fieldkit {args.what} schema, version {model.model_fields['schema_version'].default}"
+    print(json.dumps(schema, indent=2, ensure_ascii=False))
+    return 0
+
+
+def _rules(args: argparse.Namespace) -> int:
+    if args.rules_command != "check":
+        raise FieldkitError("say 'fieldkit rules check [FOLDER]'")
+    from fieldkit.diagnosis.engine import Knowledge
+    from fieldkit.diagnosis.lint import problems
+    from fieldkit.resources import rules_dir
+
+    folder = args.folder or args.rules or rules_dir()
+    from fieldkit.diagnosis.catalogue import load_cautions, load_faults
+    from fieldkit.diagnosis.rulepack import load_packs
+    from fieldkit.model.loading import load_templates
+
+    knowledge = Knowledge(load_packs(folder), load_faults(folder / "faults.toml"), load_cautions(folder / "cautions.toml"), folder)
+    if (folder / "templates").is_dir():
+        load_templates(folder / "templates")
+    found = problems(knowledge)
+    for p in found:
+        print(p)
+    errors = sum(p.error for p in found)
+    print(f"{len(knowledge.rules)} rules, {len(knowledge.faults)} faults, {len(knowledge.cautions)} cautions: "
+          f"{errors} errors, {len(found) - errors} warnings")
+    return 1 if errors else 0
+
+
+def _visits(bench, args: argparse.Namespace) -> int:  # noqa: ANN001
+    rows = bench.store.list_visits(status=args.status, machine=args.machine)
+    if not rows:
+        print("no visits in the store")
+        return 0
+    print(f"{'id':<14}{'job':<14}{'date':<12}{'status':<8}{'readings':>8}  machine / customer")
+    for s in rows:
+        print(f"{s.id:<14}{s.job_number[:13]:<14}{s.date.isoformat():<12}{s.status.value:<8}{s.reading_count:>8}  "
+              f"{s.machine} / {s.customer}")
+    return 0
+
+
+def _export(bench, args: argparse.Namespace) -> int:  # noqa: ANN001
+    from fieldkit.store.transfer import export_file_name, export_visit_json, write_export
+
+    visit = bench.store.get_visit(args.visit)
+    profile = bench.library.get(visit.machine)
+    path = write_export(export_visit_json(visit, profile), args.out, export_file_name(visit))
+    print(f"wrote {path}")
+    return 0
+
+
+def _import(bench, args: argparse.Namespace) -> int:  # noqa: ANN001
+    path: Path = args.file
+    if path.suffix.lower() == ".csv":
+        if not args.visit:
+            raise FieldkitError("a CSV of readings needs --visit ID (the visit they belong to)")
+        from fieldkit.store.csv_import import kinds_by_test_point, read_readings_csv
+
+        visit = bench.store.get_visit(args.visit)
+        profile = bench.library.get(visit.machine)
+        readings = read_readings_csv(path, test_points=kinds_by_test_point(profile),
+                                     gauges={g.id for g in visit.gauges}, decimal_comma=bench.settings.decimal_comma)
+        bench.store.add_readings(visit.id, readings)
+        print(f"imported {len(readings)} readings into visit {visit.id}")
+        return 0
+    from fieldkit.session import read_visit_file
+
+    visit, profile = read_visit_file(path)
+    if profile is None:
+        bench.library.get(visit.machine)  # an unknown machine is refused before anything is stored
+    stored = bench.store.import_visit(visit, as_new=args.as_new)
+    print(f"imported visit {stored.id} ({stored.job_number}, {len(stored.readings)} readings)")
+    return 0
+
+
+def _diagnose(bench, args: argparse.Namespace) -> int:  # noqa: ANN001
+    visit, profile = bench.resolve(args.visit)
+    result = bench.diagnose(visit, profile)
+    if args.json:
+        print(json.dumps(result.to_json(), indent=2, ensure_ascii=False))
+        return 0
+    from fieldkit.report.console import print_diagnosis
+
+    print_diagnosis(result, visit, profile)
+    return 0

@@ -1,0 +1,69 @@
+"""``fieldkit diagnose`` on a terminal: the diagnosis as rich tables.
+
+Every piece of text that came from a person or a data file is handed to rich as plain ``Text``,
+never as markup, so a note holding ``[bold]`` or ``[link=…]`` prints as typed.
+"""
+
+from __future__ import annotations
+
+import os
+
+from rich.console import Console
+from rich.table import Table
+from rich.text import Text
+
+from fieldkit.diagnosis.results import Diagnosis, Verdict
+from fieldkit.model.profile import MachineProfile
+from fieldkit.model.visit import Visit
+
+VERDICT_STYLE = {
+    Verdict.IN_RANGE: "green",
+    Verdict.LOW: "bold red",
+    Verdict.HIGH: "bold red",
+    Verdict.INCONCLUSIVE: "yellow",
+    Verdict.NOT_MEASURED: "dim",
+}
+
+
+def _t(text: str, style: str = "") -> Text:
+    return Text(text, style=style)
+
+
+def print_diagnosis(result: Diagnosis, visit: Visit, profile: MachineProfile, console: Console | None = None) -> None:
+    console = console or Console(no_color=bool(os.environ.get("NO_COLOR")), highlight=False)
+    console.print(_t(f"{profile.name} — job {visit.job_number} — {visit.customer}", "bold"))
+
+    readings = Table(title="Readings", title_justify="left", expand=False)
+    for col in ("test point", "condition", "reading", "expected", "gauge ±", "verdict"):
+        readings.add_column(col)
+    for c in result.checks:
+        readings.add_row(_t(c.test_point_label), _t(c.condition), _t(c.value), _t(c.expected), _t(c.uncertainty),
+                         _t(c.verdict.label, VERDICT_STYLE[c.verdict]))
+    console.print(readings)
+
+    findings = Table(title="Findings", title_justify="left")
+    findings.add_column("verdict")
+    findings.add_column("finding")
+    for f in result.findings:
+        if f.verdict is Verdict.NOT_MEASURED:
+            continue
+        findings.add_row(_t(f.verdict.label, VERDICT_STYLE[f.verdict]), _t(f.message))
+    console.print(findings)
+
+    faults = Table(title="Likely faults", title_justify="left")
+    faults.add_column("%", justify="right")
+    faults.add_column("fault")
+    faults.add_column("why")
+    for f in result.faults[:5]:
+        why = "; ".join(e.title for e in f.supporting[:3]) or "prior only"
+        faults.add_row(_t(f"{f.probability:.0%}"), _t(f.display_title), _t(why))
+    console.print(faults)
+
+    if result.next_tests:
+        console.print(_t("Next test", "bold"))
+        console.print(_t(result.next_tests[0].why))
+    console.print(_t("Cautions", "bold"))
+    for c in result.cautions:
+        console.print(_t(f"• {c.title}: ", "bold" if c.severity == "danger" else ""), _t(c.text))
+    for note in result.notes:
+        console.print(_t(f"note: {note}", "dim"))

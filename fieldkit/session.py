@@ -1,0 +1,150 @@
+"""The working set a command or the terminal UI needs: store, machine profiles, rules, settings.
+
+It is the one place where typed text becomes a stored reading (parsed for the test point's kind,
+checked for plausibility, saved at once) and where a visit reference (a file or a store id) is
+resolved, so the CLI and the UI behave the same.
+"""
+
+from __future__ import annotations
+
+import json
+import os
+from dataclasses import dataclass
+from pathlib import Path
+
+from fieldkit.diagnosis.engine import Knowledge, default_knowledge, diagnose
+from fieldkit.diagnosis.results import Diagnosis
+from fieldkit.errors import DataFileError, FieldkitError
+from fieldkit.model.condition import Condition
+from fieldkit.model.loading import ProfileLibrary, default_library
+from fieldkit.model.profile import MachineProfile, TestPoint
+from fieldkit.model.visit import Reading, Visit
+from fieldkit.settings import Settings, data_home
+from fieldkit.store import SqliteVisitStore, open_store
+from fieldkit.tomlfile import validation_error
+from fieldkit.units import DisplaySystem, Kind, parse_value, to_canonical
+
+MAX_VISIT_FILE = 20_000_000
+
+
+def read_visit_file(path: Path) -> tuple[Visit, MachineProfile | None]:
+    """A visit from a file: a fieldkit export (with its profile) or a bare visit JSON (the samples)."""
+    from pydantic import ValidationError
+
+    from fieldkit.store.transfer import FORMAT_KEY, read_visit_json
+
+    try:
+        size = path.stat().st_size
+    except OSError as exc:
+        raise DataFileError(str(path), f"cannot read: {exc.strerror or exc}") from None
+    if size > MAX_VISIT_FILE:
+        raise DataFileError(str(path), f"file is {size:,} bytes; a visit file is at most {MAX_VISIT_FILE:,}")
+    try:
+        text = path.read_text(encoding="utf-8")
+    except (OSError, UnicodeDecodeError) as exc:
+        raise DataFileError(str(path), f"cannot read as UTF-8 text: {exc}") from None
+    try:
+        data = json.loads(text)
+    except json.JSONDecodeError as exc:
+        raise DataFileError(str(path), f"not valid JSON: {exc.msg} (column {exc.colno})", line=exc.lineno) from None
+    if isinstance(data, dict) and FORMAT_KEY in data:
+        return read_visit_json(text, name=str(path))
+    try:
+        return Visit.model_validate(data), None
+    except ValidationError as exc:
+        raise validation_error(exc, str(path), None) from None
+
+
+@dataclass
+class Workbench:
+    store: SqliteVisitStore
+    library: ProfileLibrary
+    settings: Settings
+    rules_folder: Path | None = None
+
+    @classmethod
+    def open(cls, store_path: str | os.PathLike[str] | None = None, *, profile_dirs: list[Path] | None = None,
+             rules_folder: Path | None = None, settings: Settings | None = None) -> Workbench:
+        return cls(open_store(store_path), default_library(profile_dirs), settings or Settings.load(), rules_folder)
+
+    @property
+    def knowledge(self) -> Knowledge:
+        return default_knowledge(self.rules_folder)
+
+    @property
+    def system(self) -> DisplaySystem:
+        return DisplaySystem.named(self.settings.display)
+
+    def close(self) -> None:
+        self.store.close()
+
+    # --- visits -------------------------------------------------------------------------
+    def resolve(self, ref: str) -> tuple[Visit, MachineProfile]:
+        """A visit named by a file path or a store id, with its machine profile."""
+        path = Path(ref)
+        if ref.endswith(".json") or (path.exists() and path.is_file()):
+            visit, embedded = read_visit_file(path)
+            profile = embedded if embedded is not None else self.library.get(visit.machine)
+            return visit, profile
+        visit = self.store.get_visit(ref)
+        return visit, self.library.get(visit.machine)
+
+    def profile_for(self, visit: Visit) -> MachineProfile:
+        return self.library.get(visit.machine)
+
+    def diagnose(self, visit: Visit, profile: MachineProfile | None = None) -> Diagnosis:
+        return diagnose(visit, profile or self.profile_for(visit), self.knowledge, self.system)
+
+    # --- readings -----------------------------------------------------------------------
+    def parse_for_point(self, point: TestPoint, text: str):  # noqa: ANN201 - a ParsedValue
+        """Parse text for a test point: its kind is required, and a separator that reads two ways
+        is settled by the point's plausible range (asked about when both are plausible)."""
+        return parse_value(text, point.kind, decimal_comma=self.settings.decimal_comma,
+                           role_name=point.label, plausible=plausibility(point))
+
+    def record(self, visit_id: str, point_id: str, text: str, condition: Condition, *, gauge: str | None = None,
+               note: str = "", replaces: str | None = None) -> Reading:
+        """Parse and save one reading at once (committed before this returns)."""
+        visit = self.store.get_visit(visit_id)
+        profile = self.profile_for(visit)
+        try:
+            _circuit, point = profile.test_point(point_id)
+        except KeyError:
+            raise FieldkitError(f"machine '{profile.id}' has no test point '{point_id}'") from None
+        parsed = self.parse_for_point(point, text)
+        reading = Reading(test_point=point.id, value=parsed.quantity, reference=parsed.reference,
+                          entered=parsed.text, condition=condition, gauge=gauge, note=note)
+        if replaces:
+            return self.store.correct_reading(visit_id, replaces, reading)
+        return self.store.add_reading(visit_id, reading)
+
+
+def plausibility(point: TestPoint):  # noqa: ANN201 - a predicate on quantities
+    """A generous plausibility check for a point: within ten times its expected range or its
+    highest pressure. It only decides between two readings of '2,500'; it never rejects a value."""
+    highs = [r.high for r in point.expected if r.high is not None]
+    if point.max_pressure is not None:
+        highs.append(point.max_pressure)
+    if not highs:
+        return None
+    ceiling = max(to_canonical(h, point.kind) for h in highs) * (1.5 if point.kind is Kind.PRESSURE else 3.0)
+
+    def plausible(q) -> bool:  # noqa: ANN001
+        return abs(to_canonical(q, point.kind)) <= ceiling
+
+    return plausible
+
+
+def demo_store_path() -> Path:
+    return data_home() / "demo.sqlite3"
+
+
+def seed_demo(store: SqliteVisitStore) -> None:
+    """Put the bundled sample visits into a demo store once (an id already there is left alone)."""
+    from fieldkit.resources import samples_dir
+
+    have = {s.id for s in store.list_visits()}
+    for path in sorted((samples_dir() / "visits").glob("*.json")):
+        visit, _ = read_visit_file(path)
+        if visit.id not in have:
+            store.import_visit(visit)
