@@ -111,9 +111,12 @@ def validate(model: type[M], data: Any, path: str, text: str | None = None) -> M
         raise validation_error(exc, path, text) from None
 
 
-def validation_error(exc: ValidationError, path: str, text: str | None) -> DataFileError:
+def validation_error(exc: ValidationError, path: str, text: str | None,
+                     prefix: tuple[Any, ...] = ()) -> DataFileError:
+    """One message from a pydantic error; ``prefix`` places a part validated on its own (a test
+    point) back at its key path in the file."""
     lines = key_lines(text) if text else {}
-    errors = exc.errors(include_url=False)
+    errors = [{**err, "loc": prefix + tuple(err["loc"])} for err in exc.errors(include_url=False)]
     first = errors[0]
     loc = tuple(first["loc"])
     key = ".".join(str(p) for p in loc)

@@ -17,6 +17,7 @@ import math
 import re
 from collections.abc import Callable
 from dataclasses import dataclass
+from decimal import Decimal
 from enum import StrEnum
 from functools import lru_cache
 from typing import Any
@@ -293,8 +294,9 @@ def _split_unit(rest: str) -> tuple[str, Kind, PressureReference | None]:
     if rest in SPELLINGS:
         unit_expr, kind = SPELLINGS[rest]
         return unit_expr, kind, None
-    # "bar abs", "bar (g)", "psi a": a pressure unit, a space, then a reference word.
-    head, _, tail = rest.partition(" ")
+    # "bar abs", "bar (g)", "in Hg abs": a pressure unit, a space, then a reference word (split at
+    # the last space: a unit spelling may hold one itself).
+    head, _, tail = rest.rpartition(" ")
     tail = tail.strip()
     if head in SPELLINGS and SPELLINGS[head][1] is Kind.PRESSURE and tail in _REFERENCE_WORDS:
         return SPELLINGS[head][0], Kind.PRESSURE, _REFERENCE_WORDS[tail]
@@ -304,6 +306,9 @@ def _split_unit(rest: str) -> tuple[str, Kind, PressureReference | None]:
             suffix = rest[len(base):]
             if suffix in _REFERENCE_WORDS and suffix.lower() in {"a", "g", "d", "(a)", "(g)", "(d)"}:
                 return SPELLINGS[base][0], Kind.PRESSURE, _REFERENCE_WORDS[suffix]
+    if rest[0].isdigit():  # "12 34 bar": the number stopped at a space that is not a thousands gap
+        raise UnitInputError(f"digits '{rest}' follow the number; a space inside a number may only "
+                             "separate groups of three digits, as in '1 234 bar'")
     raise UnitInputError(f"'{rest}' is not a unit fieldkit knows; try {_suggest(rest)}")
 
 
@@ -499,9 +504,9 @@ def format_value(
     shown = convert(q, spelling)
     mag = float(shown.magnitude)
     if exact:
-        number = repr(mag)
-        if "e" in number or "inf" in number or "nan" in number:
-            number = f"{mag:.17f}".rstrip("0").rstrip(".")
+        # The shortest repr written out positionally: '{:.17f}' kept too few digits below 1e-4
+        # (1.2345678901234e-05 lost its tail; 1e-20 became '0').
+        number = format(Decimal(repr(mag)), "f") if math.isfinite(mag) else repr(mag)
     else:
         number = f"{mag:.{_decimals(mag, significant)}f}"
         if "." in number:

@@ -541,9 +541,6 @@ def test_omitting_a_point_the_template_lacks_is_reported_at_its_line(
     assert "chrage" in err.detail
 
 
-@pytest.mark.xfail(strict=True, reason="loading.py merges template points before validating, so a profile's own "
-                   "test point is reported at the index it has after the merge and the line lookup finds the "
-                   "wrong header (reported to the lead)")
 def test_bad_range_in_a_point_added_to_a_template_is_reported_at_its_line(
     tmp_path: Path, templates: dict[str, tuple[CircuitTemplate, dict[str, Any]]],
 ) -> None:

@@ -11,12 +11,12 @@ import copy
 from pathlib import Path
 from typing import Any
 
-from pydantic import Field
+from pydantic import Field, ValidationError
 
 from fieldkit.errors import DataFileError
 from fieldkit.model.base import Strict
 from fieldkit.model.profile import CircuitKind, MachineProfile, Relief, TestPoint
-from fieldkit.tomlfile import key_lines, line_for, load_model, parse_toml, read_text, validate
+from fieldkit.tomlfile import key_lines, line_for, load_model, parse_toml, read_text, validate, validation_error
 
 
 class CircuitTemplate(Strict):
@@ -49,7 +49,7 @@ def load_templates(folder: Path) -> dict[str, tuple[CircuitTemplate, dict[str, A
 
 
 def _merge_circuit(circuit: dict[str, Any], templates: dict[str, tuple[CircuitTemplate, dict[str, Any]]],
-                   path: str, lines: dict[tuple[Any, ...], int], index: int) -> dict[str, Any]:
+                   path: str, text: str, lines: dict[tuple[Any, ...], int], index: int) -> dict[str, Any]:
     name = circuit.get("template")
     if name is None:
         return circuit
@@ -71,13 +71,24 @@ def _merge_circuit(circuit: dict[str, Any], templates: dict[str, tuple[CircuitTe
         if bad not in known_ids:
             raise DataFileError(path, f"omit_test_points names '{bad}', which template '{name}' does not have",
                                 line_for(lines, ("circuits", index, "omit_test_points")))
-    for tp in circuit.get("test_points", []):
+    for j, tp in enumerate(circuit.get("test_points", [])):
         if isinstance(tp, dict) and tp.get("id") in by_id:
             by_id[tp["id"]].update(tp)  # the profile's keys replace the template's
+            _check_point(by_id[tp["id"]], path, text, ("circuits", index, "test_points", j))
         else:
+            _check_point(tp, path, text, ("circuits", index, "test_points", j))
             points.append(tp)
     merged["test_points"] = points
     return merged
+
+
+def _check_point(point: Any, path: str, text: str, loc: tuple[Any, ...]) -> None:
+    """Validate one of the profile's own test points before the merge renumbers it, so an error
+    names the line where the person wrote it."""
+    try:
+        TestPoint.model_validate(point)
+    except ValidationError as exc:
+        raise validation_error(exc, path, text, prefix=loc) from None
 
 
 def load_profile(path: Path, templates: dict[str, tuple[CircuitTemplate, dict[str, Any]]]) -> MachineProfile:
@@ -87,7 +98,7 @@ def load_profile(path: Path, templates: dict[str, tuple[CircuitTemplate, dict[st
     circuits = raw.get("circuits")
     if isinstance(circuits, list):
         raw = {**raw, "circuits": [
-            _merge_circuit(c, templates, str(path), lines, i) if isinstance(c, dict) else c
+            _merge_circuit(c, templates, str(path), text, lines, i) if isinstance(c, dict) else c
             for i, c in enumerate(circuits)
         ]}
     return validate(MachineProfile, raw, str(path), text)

@@ -7,16 +7,17 @@ The layout, in plain words
   ``test_point``). Every later line is one reading; empty lines are skipped.
 * Separator: a semicolon if the header line has one (spreadsheets in decimal-comma countries
   write those), else a tab if it has one, else a comma. In a semicolon file a comma inside a
-  number is the decimal separator (``24,5`` is 24.5, ``2,500`` is 2.5); in other files the
-  caller's ``decimal_comma`` setting decides. In a comma file a value with a comma must be
-  quoted (``"24,5 bar"``).
+  number is the decimal separator (``24,5`` is 24.5, ``2,500`` is 2.5, and then a dot before
+  three digits groups thousands: ``1.250`` is 1250); in other files the caller's
+  ``decimal_comma`` setting decides. In a comma file a value with a comma must be quoted
+  (``"24,5 bar"``).
 * Columns:
 
   ``time`` (required)
       When the reading was taken, ISO 8601 with a time zone: ``2024-05-01T09:30:00Z`` or
       ``2024-05-01 11:30:00+02:00``. A time without a zone is refused, because nobody can tell
       whether the logger's clock ran on UTC or local time; a caller that knows may pass
-      ``naive_tz`` to say which zone such times are in.
+      ``naive_tz`` to say which zone such times are in. A date without a time is refused.
   ``test_point`` (required)
       The test point id from the machine profile, e.g. ``drive.charge``.
   ``value`` (required)

@@ -112,24 +112,26 @@ class SqliteVisitStore:
         return conn
 
     def _error(self, exc: sqlite3.Error, doing: str) -> StoreError:
+        """Plain words for a failed SQLite call; ``doing`` names the operation (a noun)."""
         code = (getattr(exc, "sqlite_errorcode", None) or 0) & 0xFF
+        lost = "" if doing in ("open", "read") else f"; nothing was saved by this {doing}"
         if code in (_BUSY, _LOCKED):
             seconds = self._busy_timeout_ms / 1000
             return StoreError(
                 f"the store is busy: another fieldkit is writing to {self.path} and did not finish within "
-                f"{seconds:g} s; nothing was saved by this {doing}, try again"
+                f"{seconds:g} s{lost}; try again in a moment"
             )
         if code == _FULL:
-            return StoreError(f"the disk holding {self.path} is full; nothing was saved by this {doing}")
+            return StoreError(f"the disk holding {self.path} is full{lost}")
         if code == _READONLY:
-            return StoreError(f"the store {self.path} is read-only here; nothing was saved by this {doing}")
+            return StoreError(f"the store {self.path} cannot be written here (read-only){lost}")
         if code in (_CORRUPT, _NOTADB):
             return StoreError(f"the store {self.path} is damaged ({exc}); copy it aside before trying to repair it")
         if code == _CANTOPEN:
             return StoreError(f"cannot open the store {self.path} ({exc})")
         if code == _IOERR:
-            return StoreError(f"the disk reported an error while writing {self.path} ({exc}); nothing was saved by this {doing}")
-        return StoreError(f"the store {self.path} could not {doing} ({exc})")
+            return StoreError(f"the disk reported an error with {self.path} ({exc}){lost}")
+        return StoreError(f"the store {self.path} failed during this {doing} ({exc}){lost}")
 
     @property
     def _db(self) -> sqlite3.Connection:
@@ -184,6 +186,13 @@ class SqliteVisitStore:
 
     def __repr__(self) -> str:
         return f"SqliteVisitStore({str(self.path)!r})"
+
+    def connection_settings(self) -> dict[str, object]:
+        """How this connection keeps the file (for a 'store info' command and the tests)."""
+        with self._lock:
+            conn = self._db
+            return {name: conn.execute(f"PRAGMA {name}").fetchone()[0] for name in (
+                "journal_mode", "synchronous", "foreign_keys", "busy_timeout", "user_version", "application_id")}
 
     def integrity_check(self) -> list[str]:
         """SQLite's own full check; ``["ok"]`` for a healthy file (for a 'check my store' command)."""
@@ -366,7 +375,7 @@ class SqliteVisitStore:
             self._open_header(conn, visit_id)
             current = self._load(conn, visit_id)
             try:
-                changed = Visit.model_validate({**current.model_dump(exclude={"readings"}), **fields,
+                changed = Visit.model_validate({**current.model_dump(exclude={"readings"}), **_field_values(fields),
                                                 "readings": current.readings})
             except ValidationError as exc:
                 raise StoreError(f"visit {current.job_number} was not changed: {_why(exc)}") from None
@@ -494,6 +503,8 @@ def _field_values(obj: Any) -> Any:
     (pydantic would accept a nested model instance as it is, unchecked)."""
     if isinstance(obj, BaseModel):
         return {name: _field_values(value) for name, value in obj.__dict__.items()}
+    if isinstance(obj, dict):
+        return {key: _field_values(value) for key, value in obj.items()}
     if isinstance(obj, (list, tuple)):
         return [_field_values(item) for item in obj]
     return obj

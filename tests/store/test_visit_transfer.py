@@ -12,6 +12,7 @@ from hypothesis import HealthCheck, given, settings
 from fieldkit.errors import DataFileError
 from fieldkit.model.visit import Visit
 from fieldkit.store import transfer
+from fieldkit.store.sqlite import SqliteVisitStore
 from fieldkit.store.filenames import MAX_STEM_BYTES, MAX_STEM_CHARS, safe_file_name
 from fieldkit.store.transfer import (
     MAX_EXPORT_BYTES, export_file_name, export_visit_json, read_visit_json, write_export,
@@ -42,7 +43,7 @@ def test_the_export_is_our_envelope_with_values_as_typed_text() -> None:
     assert data["visit"]["gauges"][0]["full_scale"] == "60.0 bar"
 
 
-@settings(max_examples=100, deadline=None)
+@settings(max_examples=60, deadline=None)
 @given(visits())
 def test_any_logged_visit_survives_export_and_import(original: Visit) -> None:
     got, _ = read_visit_json(export_visit_json(original))
@@ -50,9 +51,9 @@ def test_any_logged_visit_survives_export_and_import(original: Visit) -> None:
     assert [r.value.units for r in got.readings] == [r.value.units for r in original.readings]
 
 
-@settings(max_examples=40, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture])
+@settings(max_examples=25, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture])
 @given(original=visits())
-def test_any_logged_visit_comes_back_from_the_store(store, original: Visit) -> None:  # type: ignore[no-untyped-def]
+def test_any_logged_visit_comes_back_from_the_store(store: SqliteVisitStore, original: Visit) -> None:
     assert store.import_visit(original) == original
     assert store.get_visit(original.id) == original
 
