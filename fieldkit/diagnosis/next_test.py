@@ -152,7 +152,13 @@ def _smaller_gauge_advice(evaluator: Evaluator, cand: _Candidate) -> str:
     try:
         size = smallest_gauge(m.reading.value, cand.point.max_pressure)
     except Exception:
-        return "Use a gauge of smaller full scale or a better accuracy class."
+        return "Repeat it with a gauge of smaller full scale or a better accuracy class."
+    if m.gauge is not None and size >= m.gauge.full_scale:
+        better = [c for c in (0.6, 0.25, 0.1) if c < m.gauge.accuracy_class]
+        if better:
+            return (f"The reading sits within the gauge's error of a limit and no smaller range suits this point: "
+                    f"repeat it with a class {better[0]:g} gauge of the same range (EN 837-1), or a calibrated transducer.")
+        return "The reading sits within the gauge's error of a limit: repeat it with a calibrated transducer."
     current = f" instead of the {format_value(m.gauge.full_scale)} one" if m.gauge is not None else ""
     return (f"The reading sits within the gauge's error of a limit: repeat it with a 0–{format_value(size)} "
             f"gauge{current} (smaller full scale, smaller error).")

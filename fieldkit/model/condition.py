@@ -21,6 +21,11 @@ class FunctionState(StrEnum):
     UNDER_LOAD = "under_load"
 
     @property
+    def short(self) -> str:
+        """For tables: 'full stroke' rather than 'function at full stroke'."""
+        return self.value.replace("_", " ")
+
+    @property
     def label(self) -> str:
         return {
             "neutral": "function in neutral",
@@ -40,11 +45,11 @@ class Condition(Strict):
     def describe(self) -> str:
         from fieldkit.units import format_value
 
-        parts = [self.function.label]
+        parts = [self.function.short]
         if self.speed is not None:
-            parts.append(format_value(self.speed))
+            parts.append(format_value(self.speed, significant=4))
         if self.oil_temperature is not None:
-            parts.append("oil " + format_value(self.oil_temperature))
+            parts.append(format_value(self.oil_temperature, significant=2))
         return ", ".join(parts)
 
 

@@ -42,10 +42,11 @@ SEEDS = range(20)
 class Zygote:
     """The helper process; :meth:`run` asks it for one writer and returns the writer's pid."""
 
-    def __init__(self) -> None:
+    def __init__(self, home: Path) -> None:
+        env = {**os.environ, "FIELDKIT_HOME": str(home), "FIELDKIT_STORE": str(home / "unused.sqlite3")}
         self.proc = subprocess.Popen(
             [sys.executable, str(CHILD), "zygote"], stdin=subprocess.PIPE, stdout=subprocess.PIPE,
-            stderr=subprocess.PIPE, text=True, bufsize=1,
+            stderr=subprocess.PIPE, text=True, bufsize=1, env=env,
         )
         assert self.line() == "warm", self.proc.communicate()[1]
 
@@ -77,8 +78,8 @@ class Zygote:
 
 
 @pytest.fixture(scope="module")
-def zygote() -> Iterator[Zygote]:
-    helper = Zygote()
+def zygote(tmp_path_factory: pytest.TempPathFactory) -> Iterator[Zygote]:
+    helper = Zygote(tmp_path_factory.mktemp("zygote-home"))
     try:
         yield helper
     finally:

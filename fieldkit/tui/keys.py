@@ -1,0 +1,63 @@
+"""Every key binding in one place, each with an id so a user keymap can move it.
+
+The value field on the visit screen keeps the focus while a technician works, so the visit
+screen's own keys are control keys the text field does not use (and never ctrl+b, which tmux
+takes). Plain letters are used only on screens without a text field in focus.
+"""
+
+from __future__ import annotations
+
+from textual.binding import Binding, BindingType
+
+APP: list[BindingType] = [
+    Binding("ctrl+q", "request_quit", "Quit", id="fieldkit.quit", priority=True),
+    Binding("f1", "toggle_keys", "Keys", id="fieldkit.keys", priority=True),
+    Binding("f2", "general_caution", "Procedures", id="fieldkit.general_caution", priority=True,
+            tooltip="The general caution: the machine's own procedures, local codes and licensed practice come first"),
+    Binding("f3", "command_palette", "Find", id="fieldkit.commands", priority=True,
+            tooltip="Search every command by name"),
+]
+
+START: list[BindingType] = [
+    Binding("enter", "open_selected", "Open", id="start.open", show=True),
+    Binding("r", "resume_latest", "Resume", id="start.resume"),
+    Binding("n", "new_visit", "New visit", id="start.new"),
+    Binding("d", "open_demo", "Demo", id="start.demo"),
+    Binding("i", "import_file", "Import", id="start.import"),
+    Binding("h", "machine_history", "History", id="start.history"),
+]
+
+VISIT: list[BindingType] = [
+    Binding("ctrl+n", "go_next_test", "Next test", id="visit.next"),
+    Binding("ctrl+f", "show_faults", "Faults", id="visit.faults"),
+    Binding("ctrl+r", "point_readings", "Readings", id="visit.readings",
+            tooltip="Every reading at this point, with corrections and deletions; correct or delete one"),
+    Binding("ctrl+g", "add_gauge", "Gauge+", id="visit.add_gauge"),
+    Binding("ctrl+s", "skip_point", "Skip", id="visit.skip", tooltip="Mark this test point skipped (written to the notes)"),
+    Binding("ctrl+l", "machine_history", "History", id="visit.history"),
+    Binding("ctrl+t", "edit_notes", "Notes", id="visit.notes"),
+    Binding("ctrl+o", "finish_visit", "Finish", id="visit.finish"),
+    Binding("escape", "leave", "Visits", id="visit.leave"),
+    Binding("up", "move_point(-1)", "Previous point", id="visit.point_up", show=False),
+    Binding("down", "move_point(1)", "Next point", id="visit.point_down", show=False),
+]
+
+DIAGNOSIS: list[BindingType] = [
+    Binding("enter", "open_fault", "Why", id="diagnosis.why"),
+    Binding("escape", "dismiss_screen", "Back", id="diagnosis.back"),
+]
+
+DIALOG: list[BindingType] = [
+    Binding("escape", "cancel", "Cancel", id="dialog.cancel"),
+]
+
+READINGS: list[BindingType] = [
+    Binding("e", "correct", "Correct", id="readings.correct"),
+    Binding("x", "delete", "Delete", id="readings.delete"),
+    Binding("escape", "cancel", "Back", id="readings.back"),
+]
+
+HISTORY: list[BindingType] = [
+    Binding("a", "toggle_scope", "This serial / all", id="history.scope"),
+    Binding("escape", "cancel", "Back", id="history.back"),
+]

@@ -1,0 +1,166 @@
+"""What a technician needs to know before teeing in at one test point.
+
+Where it is, how to reach it, the condition to set, what the machine should read there, whether
+the chosen gauge suits it (checked before connecting, with physics.gauges) and which cautions
+apply. Kept free of Textual so it can be tested and reused by a report.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import pint
+
+from fieldkit.diagnosis.catalogue import Caution, Severity
+from fieldkit.diagnosis.engine import Knowledge
+from fieldkit.diagnosis.results import NextTest
+from fieldkit.errors import FieldkitError
+from fieldkit.model.condition import ConditionSpec, FunctionState
+from fieldkit.model.gauge import Gauge
+from fieldkit.model.profile import ExpectedRange, MachineProfile, TestPoint
+from fieldkit.model.visit import Visit
+from fieldkit.physics.common import Level
+from fieldkit.units import DisplaySystem, Kind, format_value, to_canonical
+
+
+def state_from_label(label: str) -> FunctionState | None:
+    """The function state a next-test sentence names ("function at full stroke")."""
+    return next((s for s in FunctionState if s.label == label), None)
+
+
+def default_function(point: TestPoint, next_test: NextTest | None = None) -> FunctionState:
+    """The condition to offer first: the engine's, when it asked for this point; else the
+    first one the point's expected ranges are written for; else neutral."""
+    if next_test is not None and next_test.test_point == point.id:
+        state = state_from_label(next_test.condition)
+        if state is not None:
+            return state
+    for rng in point.expected:
+        if rng.when.function:
+            return rng.when.function[0]
+    return FunctionState.NEUTRAL
+
+
+def describe_when(spec: ConditionSpec) -> str:
+    parts = [" or ".join(s.label for s in spec.function)] if spec.function else ["any function state"]
+    if spec.speed_min is not None or spec.speed_max is not None:
+        lo = format_value(spec.speed_min) if spec.speed_min is not None else "…"
+        hi = format_value(spec.speed_max) if spec.speed_max is not None else "…"
+        parts.append(f"speed {lo}–{hi}")
+    return ", ".join(parts)
+
+
+def range_text(rng: ExpectedRange, system: DisplaySystem) -> str:
+    low = format_value(rng.low, system) if rng.low is not None else None
+    high = format_value(rng.high, system) if rng.high is not None else None
+    if low and high:
+        return f"{low} to {high}"
+    return f"at least {low}" if low else f"at most {high}"
+
+
+def range_for(point: TestPoint, function: FunctionState) -> ExpectedRange | None:
+    for rng in point.expected:
+        if not rng.when.function or function in rng.when.function:
+            return rng
+    return None
+
+
+def working_value(point: TestPoint, function: FunctionState) -> pint.Quantity | None:
+    """What the point should read in this condition, for judging a gauge before connecting:
+    the top of the expected range (the bottom when only a floor is given)."""
+    rng = range_for(point, function)
+    if rng is None:
+        return None
+    return rng.high if rng.high is not None else rng.low
+
+
+@dataclass(frozen=True, slots=True)
+class GaugeFit:
+    level: Level
+    message: str
+
+    @property
+    def ok(self) -> bool:
+        return self.level in (Level.OK, Level.NOTE)
+
+
+def gauge_fit(point: TestPoint, gauge: Gauge | None, function: FunctionState,
+              system: DisplaySystem) -> GaugeFit:
+    """Whether a gauge suits the point in this condition. For pressure points this is
+    physics.gauges.gauge_suitability against the point's highest pressure (overrange is an
+    error: do not connect)."""
+    if gauge is None:
+        return GaugeFit(Level.WARNING, "no gauge chosen: the reading will be judged with an assumed class 2.5 gauge")
+    if gauge.kind is not point.kind:
+        return GaugeFit(Level.ERROR, f"{gauge.id} measures {gauge.kind.value}; this point needs a {point.kind.value} reading")
+    work = working_value(point, function)
+    if point.kind is Kind.PRESSURE:
+        from fieldkit.physics.gauges import gauge_suitability
+
+        if work is None and point.max_pressure is None:
+            return GaugeFit(Level.NOTE, "no expected range or highest pressure for this point: check the gauge range yourself")
+        try:
+            check = gauge_suitability(gauge.full_scale, work if work is not None else point.max_pressure,
+                                      point.max_pressure, gauge.scale_start,
+                                      gauge.accuracy_class if gauge.standard == "EN 837-1" else None)
+        except FieldkitError as exc:
+            return GaugeFit(Level.WARNING, f"cannot judge {gauge.id}: {exc}")
+        return GaugeFit(check.level, f"{gauge.id}: {check.message}")
+    if work is not None and to_canonical(work, point.kind) >= to_canonical(gauge.full_scale, point.kind):
+        return GaugeFit(Level.ERROR, f"{gauge.id} ends at {format_value(gauge.full_scale, system)}, "
+                                     f"below the expected {format_value(work, system)}")
+    return GaugeFit(Level.OK, f"{gauge.id} (0–{format_value(gauge.full_scale, system)}) covers the expected reading")
+
+
+def suggest_gauge(point: TestPoint, gauges: list[Gauge], function: FunctionState,
+                  system: DisplaySystem) -> Gauge | None:
+    """The visit's gauge that suits best: no overrange, fewest warnings, smallest span."""
+    ranked: list[tuple[int, float, Gauge]] = []
+    order = {Level.OK: 0, Level.NOTE: 0, Level.WARNING: 1, Level.ERROR: 9}
+    for g in gauges:
+        if g.kind is not point.kind:
+            continue
+        fit = gauge_fit(point, g, function, system)
+        ranked.append((order[fit.level], to_canonical(g.span, g.kind) if g.kind is not Kind.TEMPERATURE else 0.0, g))
+    ranked.sort(key=lambda t: (t[0], t[1]))
+    if not ranked or ranked[0][0] >= 9:
+        return None
+    return ranked[0][2]
+
+
+def step_cautions(knowledge: Knowledge, point: TestPoint, function: FunctionState,
+                  *, include_general: bool = False) -> list[Caution]:
+    """The cautions for taking this reading: named by the point, raised by its role, or by the
+    function state (a stall over relief). Worst first."""
+    found: dict[str, Caution] = {}
+    for cid in point.cautions:
+        if cid in knowledge.cautions:
+            found[cid] = knowledge.cautions[cid]
+    for c in knowledge.cautions.values():
+        if point.role in c.roles or function in c.functions or (include_general and c.always):
+            found.setdefault(c.id, c)
+    rank = {Severity.DANGER: 0, Severity.WARNING: 1, Severity.NOTICE: 2}
+    return sorted(found.values(), key=lambda c: (rank[c.severity], c.title))
+
+
+def general_caution(knowledge: Knowledge) -> Caution:
+    return next(c for c in knowledge.cautions.values() if c.always)
+
+
+def last_condition_values(visit: Visit, profile: MachineProfile) -> tuple[pint.Quantity | None, pint.Quantity | None]:
+    """Speed and oil temperature to offer for the next reading: what the last reading stated
+    (or the last oil temperature reading), else the rated speed and nothing."""
+    from fieldkit.model.roles import Role
+
+    speed: pint.Quantity | None = profile.rated_speed
+    oil: pint.Quantity | None = None
+    points = {tp.id: tp for _c, tp in profile.all_test_points()}
+    for r in visit.current_readings():
+        if r.condition.speed is not None:
+            speed = r.condition.speed
+        if r.condition.oil_temperature is not None:
+            oil = r.condition.oil_temperature
+        tp = points.get(r.test_point)
+        if tp is not None and tp.role is Role.OIL_TEMPERATURE:
+            oil = r.value
+    return speed, oil
