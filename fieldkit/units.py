@@ -205,7 +205,8 @@ _REFERENCE_WORDS = {
 
 _NUMBER = re.compile(
     r"^\s*(?P<sign>[+\-−–]?)\s*"
-    r"(?P<num>\d{1,3}(?:[\u00a0\u202f ]\d{3})+(?:[.,]\d+)?(?![\d.,])|\d[\d.,]*\d|\d|[.,]\d+)"
+    r"(?P<num>\d+(?:\.\d+)?[eE][+\-]?\d{1,3}(?![\d.,])"
+    r"|\d{1,3}(?:[\u00a0\u202f ]\d{3})+(?:[.,]\d+)?(?![\d.,])|\d[\d.,]*\d|\d|[.,]\d+)"
 )
 _THIN_SPACES = "\u00a0\u202f "
 
@@ -244,6 +245,8 @@ def _clean(text: str) -> str:
 def _number_readings(raw: str, decimal_comma: bool) -> tuple[float, float | None]:
     """Turn the digits a person typed into a float, and a second float when the text also reads
     another way (a single comma or dot before exactly three digits). The first is the default."""
+    if "e" in raw or "E" in raw:  # scientific notation, as exact exports write extreme values
+        return float(raw), None
     compact = raw
     for ch in _THIN_SPACES:
         if ch in compact:

@@ -11,12 +11,12 @@ from enum import StrEnum
 from typing import Any
 
 import pint
-from pydantic import Field, field_validator, model_validator
+from pydantic import Field, field_serializer, field_validator, model_validator
 
 from fieldkit.model.base import SCHEMA_VERSION, Strict
 from fieldkit.model.condition import Condition, ConditionSpec
 from fieldkit.model.parameters import PARAMETERS
-from fieldkit.model.quantity import AnyQuantity, Pressure, Speed, Temperature, parse_for_kind
+from fieldkit.model.quantity import AnyQuantity, Pressure, Speed, Temperature, parse_for_kind, quantity_text
 from fieldkit.model.roles import ROLES, Role
 from fieldkit.units import Kind, kind_of
 
@@ -148,6 +148,10 @@ class Circuit(Strict):
             elif not tp.id.startswith(self.id + "."):
                 raise ValueError(f"test point '{tp.id}' is qualified with another circuit's id")
         return self
+
+    @field_serializer("parameters")
+    def _write_parameters(self, value: dict[str, pint.Quantity]) -> dict[str, str]:
+        return {name: quantity_text(q) for name, q in value.items()}
 
     @field_validator("parameters")
     @classmethod

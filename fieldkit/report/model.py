@@ -396,7 +396,7 @@ def build_report(visit: Visit, profile: MachineProfile, diagnosis: Diagnosis,
         next_test=next_test,
         next_test_note=next_note,
         cautions=_cautions(diagnosis.cautions),
-        notes=_notes(visit, diagnosis, readings),
+        notes=_notes(visit, diagnosis),
         sign_off=[SignOff("Technician", one_line(visit.technician)), SignOff("Customer", "")],
     )
 
@@ -423,8 +423,7 @@ def _header(visit: Visit, profile: MachineProfile, system: DisplaySystem) -> Hea
         machine=one_line(profile.name),
         machine_detail=one_line(detail),
         serial=one_line(visit.machine_serial or profile.serial) or "not recorded",
-        hour_meter=f"{visit.hour_meter:,.1f}".rstrip("0").rstrip(".") + " h" if visit.hour_meter is not None
-        else "not recorded",
+        hour_meter=_hours(visit.hour_meter),
         date=visit.date.isoformat(),
         technician=one_line(visit.technician) or "not recorded",
         oil=one_line(visit.oil) or "not recorded",
@@ -432,6 +431,12 @@ def _header(visit: Visit, profile: MachineProfile, system: DisplaySystem) -> Hea
         oil_temperature=_oil_temperature(visit, system),
         status=visit.status.value,
     )
+
+
+def _hours(value: float | None) -> str:
+    if value is None:
+        return "not recorded"
+    return f"{value:.1f}".rstrip("0").rstrip(".") + " h"
 
 
 def _oil_temperature(visit: Visit, system: DisplaySystem) -> str:
@@ -563,7 +568,7 @@ def _actions(leading: list[RankedFault], findings: list[Finding]) -> list[Action
             add("If confirmed: " + f.fix if f.fix else "", reason)
     for f in findings:
         if f.verdict in (Verdict.LOW, Verdict.HIGH) and f.action:
-            add(f.action, f"finding: {one_line(f.title)}")
+            add(f.action, f"{one_line(f.title)} (finding)")
     return actions
 
 
@@ -582,7 +587,7 @@ def _parts(leading: list[RankedFault]) -> list[Part]:
 def _next_step(diagnosis: Diagnosis, settled: bool) -> tuple[NextStep | None, str]:
     if settled:
         return None, (f"Settled: the leading fault has {percent(diagnosis.top.probability)} "
-                      f"(at least {SETTLED:.0%}); go to its confirm check.").replace("%", " %")
+                      f"(at least {percent(SETTLED)}); go to its confirm check.")
     if not diagnosis.next_tests:
         return None, ("Not settled, and no further reading in the rule packs separates the leading faults: "
                       "use the confirm checks under Recommended actions.")
@@ -592,8 +597,7 @@ def _next_step(diagnosis: Diagnosis, settled: bool) -> tuple[NextStep | None, st
         test_point=one_line(t.label), condition=one_line(t.condition), minutes=minutes, repeat=t.repeat,
         why=plain(t.why), outcomes=[(one_line(k), one_line(v)) for k, v in t.outcomes.items()],
     )
-    return step, f"Not settled: the leading fault has {percent(diagnosis.top.probability)}, below {SETTLED:.0%}.".replace(
-        "%.", " %.")
+    return step, f"Not settled: the leading fault has {percent(diagnosis.top.probability)}, below {percent(SETTLED)}."
 
 
 def _conclusion(diagnosis: Diagnosis, settled: bool, has_next: bool) -> str:
@@ -635,7 +639,7 @@ def _cautions(notes: list[CautionNote]) -> list[Caution]:
     ]
 
 
-def _notes(visit: Visit, diagnosis: Diagnosis, readings: list[ReadingRow]) -> list[Note]:
+def _notes(visit: Visit, diagnosis: Diagnosis) -> list[Note]:
     notes = []
     if visit.notes.strip():
         notes.append(Note("Visit notes", plain(visit.notes).strip()))

@@ -19,7 +19,6 @@ WORKSHOP = Theme(
     panel="#2E353A",
     dark=True,
     variables={
-        "band-colour": "#5FA8A0",
         "block-cursor-foreground": "#1B1F22",
         "footer-key-foreground": "#E0A526",
     },
@@ -39,7 +38,6 @@ DAYLIGHT = Theme(
     panel="#DDD7C8",
     dark=False,
     variables={
-        "band-colour": "#1F6F68",
         "footer-key-foreground": "#8A5A00",
     },
 )

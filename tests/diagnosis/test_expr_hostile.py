@@ -218,6 +218,8 @@ def test_overflow_at_evaluation_is_reported_not_returned() -> None:
         compile_expression("x * x - x * x", SYMBOLS).evaluate({"x": 1e200})
     with pytest.raises(ExprError, match="negative power"):
         compile_expression("x ^ -2", SYMBOLS).evaluate({"x": 0.0})
+    with pytest.raises(ExprError, match="division by zero"):  # '^ 0' still evaluates its base
+        compile_expression("(x / x) ^ 0", SYMBOLS).evaluate({"x": 0.0})
 
 
 def test_a_failing_registered_function_becomes_an_expr_error() -> None:

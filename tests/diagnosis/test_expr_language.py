@@ -7,7 +7,6 @@ Readings in these tests are invented; conversions are checked against scipy.cons
 from __future__ import annotations
 
 import math
-import time
 
 import pytest
 import scipy.constants as sc
@@ -162,7 +161,8 @@ def test_precedence_of_logic(source: str, expected: bool) -> None:
 
 
 @pytest.mark.parametrize(("source", "expected"), [
-    ("1 < 2", True), ("2 <= 2", True), ("3 > 2", True), ("2 >= 3", False),
+    ("1 < 2", True), ("2 < 2", False), ("2 <= 2", True), ("3 > 2", True), ("2 > 2", False),
+    ("2 >= 2", True), ("2 >= 3", False),
     ("0.1 + 0.2 = 0.3", True),   # equality allows relative float noise (1e-9)
     ("1 = 1.000001", False),
     ("1 != 1.000001", True),
@@ -382,30 +382,3 @@ def test_names_without_uncertainty_are_exact_and_booleans_have_none() -> None:
         compile_expression("charge_pressure > 1 bar", SYMBOLS).evaluate_with_uncertainty({"charge_pressure": 2.0}, {})
     with pytest.raises(ExprError, match="standard uncertainty"):
         expr.evaluate_with_uncertainty({"charge_pressure": 3.0, "case_pressure": 1.0}, {"case_pressure": -1.0})
-
-
-# --- speed ------------------------------------------------------------------------------------
-
-def test_fifty_rules_over_forty_readings_take_milliseconds() -> None:
-    # The engine's budget (a few ms per visit); measured best of five to ride out a busy machine.
-    env: dict[str, float | bool] = {f"spare_{i}": float(i) for i in range(28)}
-    env.update(charge_pressure=si(24, "bar"), case_pressure=si(1.5, "bar"), stall_pressure=si(210, "bar"),
-               return_pressure=si(4, "bar"), pump_case_drain_flow=si(4, "L/min"),
-               pump_theoretical_flow=si(100, "L/min"), oil_temperature=si(55, "degC"),
-               tank_temperature=si(50, "degC"), oil_viscosity=si(30, "cSt"), pump_speed=si(1800, "rpm"),
-               pump_displacement=si(45, "cm**3/revolution"), loop_closed=True)
-    sources = [
-        "charge_pressure - case_pressure < 17 bar",
-        "max(stall_pressure - return_pressure, 0 bar) > 200 bar",
-        "pump_case_drain_flow / pump_theoretical_flow > 5 %",
-        "when oil_temperature < 40 °C then 0.5 else 1",
-        "loop_closed and clamp(oil_temperature - tank_temperature, 0 K, 30 K) > 10 K",
-    ] * 10
-    rules = [compile_expression(s, SYMBOLS) for s in sources]
-    best = math.inf
-    for _ in range(5):
-        start = time.perf_counter()
-        for rule in rules:
-            rule.evaluate(env)
-        best = min(best, time.perf_counter() - start)
-    assert best < 0.005

@@ -1,0 +1,375 @@
+"""The job card as a PDF (fpdf2), A4 or US Letter.
+
+Fonts are the bundled DejaVu Sans regular and bold, so Δ, ±, ≥, ° and µ print as themselves. A
+character the font lacks (a CJK name, say) is printed as ``[U+4E2D]``: visibly a placeholder,
+never a different character. Text is never read as markup. With ``fixed_date`` the file is the
+same for the same job card, because the creation date is the only varying input.
+"""
+
+from __future__ import annotations
+
+from datetime import UTC, datetime
+from pathlib import Path
+
+from fpdf import FPDF
+
+from fieldkit.diagnosis.results import Verdict
+from fieldkit.report.model import Caution, JobCard
+from fieldkit.report.pdf_draw import (
+    ACCENT,
+    INK,
+    MUTED,
+    OK,
+    OUT,
+    OUT_FILL,
+    RULE,
+    UNSURE,
+    UNSURE_FILL,
+    band_legend,
+    band_picture,
+    probability_bar,
+)
+from fieldkit.report.pdf_tables import FAMILY, Cell, line_height, measured_table, text_height
+
+FONTS = Path(__file__).parent / "fonts"
+MARGIN = 13.0
+BODY = 8.0
+SMALL = 7.0
+TINY = 6.2
+
+SEVERITY = {"danger": (OUT, OUT_FILL), "warning": (UNSURE, UNSURE_FILL), "notice": (ACCENT, (226, 238, 243))}
+VERDICT_STYLE = {
+    Verdict.LOW: (OUT, OUT_FILL, True),
+    Verdict.HIGH: (OUT, OUT_FILL, True),
+    Verdict.INCONCLUSIVE: (UNSURE, UNSURE_FILL, True),
+    Verdict.IN_RANGE: (OK, None, False),
+    Verdict.NOT_MEASURED: (MUTED, None, False),
+}
+
+
+class JobCardPDF(FPDF):
+    """An FPDF with our fonts, a running head and foot, and glyph-safe text."""
+
+    def __init__(self, card: JobCard, letter: bool) -> None:
+        super().__init__(orientation="portrait", unit="mm", format="letter" if letter else "A4")
+        self.card = card
+        self.add_font(FAMILY, "", FONTS / "DejaVuSans.ttf")
+        self.add_font(FAMILY, "B", FONTS / "DejaVuSans-Bold.ttf")
+        regular, bold = self.fonts[FAMILY], self.fonts[FAMILY + "B"]
+        self._glyphs = set(regular.cmap) & set(bold.cmap)
+        self.set_margins(MARGIN, MARGIN, MARGIN)
+        self.set_auto_page_break(True, margin=MARGIN + 4)
+        self.set_text_color(*INK)
+
+    def normalize_text(self, text: str) -> str:
+        """Characters the font cannot draw become ``[U+XXXX]`` rather than a blank or a wrong glyph."""
+        if all(ord(ch) in self._glyphs or ch in "\n " for ch in text):
+            return super().normalize_text(text)
+        fixed = "".join(ch if ord(ch) in self._glyphs or ch in "\n " else f"[U+{ord(ch):04X}]" for ch in text)
+        return super().normalize_text(fixed)
+
+    def header(self) -> None:
+        if self.page_no() == 1:
+            return
+        self.set_font(FAMILY, "", TINY)
+        self.set_text_color(*MUTED)
+        self.cell(self.epw / 2, 4, f"{self.card.title}, job {self.card.header.job_number} (continued)")
+        self.cell(self.epw / 2, 4, self.card.header.machine, align="R")
+        self.set_draw_color(*RULE)
+        self.set_line_width(0.2)
+        self.line(self.l_margin, self.t_margin + 4.5, self.w - self.r_margin, self.t_margin + 4.5)
+        self.set_xy(self.l_margin, self.t_margin + 7)
+        self.set_text_color(*INK)
+
+    def footer(self) -> None:
+        self.set_y(-(MARGIN + 1))
+        self.set_font(FAMILY, "", TINY)
+        self.set_text_color(*MUTED)
+        self.cell(self.epw * 0.75, 4, f"Job {self.card.header.job_number} · {self.card.header.date} · "
+                                      f"page {self.page_no()} of {{nb}}")
+        self.cell(self.epw * 0.25, 4, self.card.generator, align="R")
+        self.set_text_color(*INK)
+
+
+def render_pdf(card: JobCard, *, letter: bool = False, fixed_date: datetime | None = None) -> bytes:
+    pdf = JobCardPDF(card, letter)
+    pdf.set_title(f"{card.title}, job {card.header.job_number}")
+    pdf.set_subject(card.header.machine)
+    pdf.set_author(card.header.technician)
+    pdf.set_creator(card.generator)
+    if fixed_date is not None:
+        pdf.set_creation_date(fixed_date if fixed_date.tzinfo else fixed_date.replace(tzinfo=UTC))
+    pdf.add_page()
+    _header(pdf, card)
+    _summary(pdf, card)
+    _readings(pdf, card)
+    _findings(pdf, card)
+    _faults(pdf, card)
+    _actions(pdf, card)
+    _next_test(pdf, card)
+    _cautions(pdf, card)
+    _notes(pdf, card)
+    _sign_off(pdf, card)
+    return bytes(pdf.output())
+
+
+# --- building blocks -------------------------------------------------------------------------
+
+def _section(pdf: FPDF, title: str, keep: float = 20.0) -> None:
+    """A section heading, moved to the next page if it would sit alone at the foot of this one."""
+    if pdf.y + 8 + keep > pdf.page_break_trigger:
+        pdf.add_page()
+    pdf.ln(2.5)
+    pdf.set_font(FAMILY, "B", 10)
+    pdf.set_text_color(*ACCENT)
+    pdf.cell(0, 5.5, title, new_x="LMARGIN", new_y="NEXT")
+    pdf.set_draw_color(*ACCENT)
+    pdf.set_line_width(0.35)
+    pdf.line(pdf.l_margin, pdf.y, pdf.w - pdf.r_margin, pdf.y)
+    pdf.ln(1.5)
+    pdf.set_text_color(*INK)
+
+
+def _text(pdf: FPDF, text: str, size: float = BODY, bold: bool = False, color: tuple[int, int, int] = INK,
+          indent: float = 0.0) -> None:
+    pdf.set_font(FAMILY, "B" if bold else "", size)
+    pdf.set_text_color(*color)
+    pdf.set_x(pdf.l_margin + indent)
+    pdf.multi_cell(pdf.epw - indent, line_height(size), text, align="L", new_x="LMARGIN", new_y="NEXT")
+    pdf.set_text_color(*INK)
+
+
+def _header(pdf: FPDF, card: JobCard) -> None:
+    h = card.header
+    pdf.set_fill_color(*ACCENT)
+    pdf.rect(pdf.l_margin, pdf.t_margin, pdf.epw, 12, style="F")
+    pdf.set_text_color(255, 255, 255)
+    pdf.set_xy(pdf.l_margin + 3, pdf.t_margin)
+    pdf.set_font(FAMILY, "B", 15)
+    pdf.cell(pdf.epw * 0.5, 12, card.title.upper())
+    pdf.set_font(FAMILY, "B", 12)
+    pdf.set_xy(pdf.l_margin + pdf.epw * 0.4, pdf.t_margin)
+    pdf.cell(pdf.epw * 0.6 - 3, 12, f"Job {h.job_number}", align="R")
+    pdf.set_text_color(*INK)
+    pdf.set_xy(pdf.l_margin, pdf.t_margin + 14)
+    fields = h.fields()
+    rows = []
+    for i in range(0, len(fields), 2):
+        pair = fields[i:i + 2]
+        row: list[Cell | str] = []
+        for f in pair:
+            row += [Cell(f.label, color=MUTED), Cell(f.value, bold=f.label in ("Machine", "Customer"))]
+        while len(row) < 4:
+            row.append("")
+        rows.append(row)
+    measured_table(pdf, ["Visit", "", "Machine and oil", ""], rows, [16, 40, 18, 40], size=SMALL + 0.5)
+
+
+def _summary(pdf: FPDF, card: JobCard) -> None:
+    pdf.ln(3)
+    x, y, w = pdf.l_margin, pdf.y, pdf.epw
+    lines = [(card.conclusion, BODY + 1, True, INK), (card.counts, BODY, False, INK), (card.units, SMALL, False, MUTED)]
+    height = sum(text_height(pdf, t, w - 6, s, b) - 1.8 for t, s, b, _c in lines) + 3
+    stripe = OUT if not card.settled else ACCENT
+    pdf.set_fill_color(240, 245, 247)
+    pdf.rect(x, y, w, height, style="F")
+    pdf.set_fill_color(*stripe)
+    pdf.rect(x, y, 1.6, height, style="F")
+    pdf.set_y(y + 1.5)
+    for text, size, bold, colour in lines:
+        _text(pdf, text, size, bold, colour, indent=4)
+    pdf.set_y(y + height)
+
+
+def _readings(pdf: FPDF, card: JobCard) -> None:
+    _section(pdf, "Readings", keep=30)
+    rows = []
+    for r in card.readings:
+        colour, fill, bold = VERDICT_STYLE[r.verdict]
+        rows.append([
+            str(r.number), f"{r.test_point}\n{r.condition}", Cell(r.reading, bold=True), r.expected,
+            f"{r.uncertainty}\n{r.gauge}", "", Cell(r.verdict_text, bold=bold, color=colour, fill=fill),
+        ])
+
+    def draw_band(pdf: FPDF, i: int, x: float, y: float, w: float, h: float) -> None:
+        r = card.readings[i]
+        if r.band is not None:
+            band_picture(pdf, r.band, r.verdict, x, y, w, h)
+
+    measured_table(pdf, ["#", "Test point and condition", "Reading", "Expected", "Gauge error and gauge",
+                         "Position in range", "Verdict"], rows, [5, 40, 16, 21, 32, 44, 18],
+                   aligns="RLLLLLL", size=SMALL, min_row=7.0, draw={5: draw_band})
+    pdf.ln(0.8)
+    band_legend(pdf, pdf.l_margin, pdf.y, TINY)
+    pdf.ln(4.5)
+    if card.remarks:
+        rows = [[f"{r.number}. {r.test_point}",
+                 " ".join(t for t in (r.remark, f"Note: {r.note}" if r.note else "") if t)] for r in card.remarks]
+        measured_table(pdf, ["Reading", "Remarks: what to do about it"], rows, [38, 144], size=TINY + 0.4)
+
+
+def _findings(pdf: FPDF, card: JobCard) -> None:
+    _section(pdf, "Findings")
+    if card.findings.flagged:
+        rows = []
+        for f in card.findings.flagged:
+            colour, fill, bold = VERDICT_STYLE[f.verdict]
+            title = f.title + (f" ({f.circuit})" if f.circuit else "")
+            rows.append([Cell(f.verdict_text, bold=bold, color=colour, fill=fill), Cell(title, bold=True),
+                         f.message, f.action])
+        measured_table(pdf, ["Verdict", "Finding", "What it shows", "What to do"], rows, [17, 38, 70, 57], size=SMALL)
+    else:
+        _text(pdf, "No finding out of range or inconclusive.")
+    for summary in (card.findings.in_range_summary, card.findings.not_checked_summary):
+        if summary:
+            pdf.ln(1)
+            _text(pdf, summary, SMALL, color=MUTED)
+
+
+def _faults(pdf: FPDF, card: JobCard) -> None:
+    _section(pdf, "Likely faults")
+    rows = [[str(f.rank), Cell(f.title, bold=True), Cell(f.probability_text, bold=True), "", f.evidence_text]
+            for f in card.faults.top]
+
+    def draw_bar(pdf: FPDF, i: int, x: float, y: float, w: float, h: float) -> None:
+        probability_bar(pdf, card.faults.top[i].probability, x, y, w, h)
+
+    measured_table(pdf, ["#", "Fault", "Probability", "", "Evidence"], rows, [5, 45, 15, 22, 95],
+                   aligns="RLRLL", size=SMALL, draw={3: draw_bar})
+    pdf.ln(1)
+    key = ("×N: a finding is N times as likely with this fault as on a healthy machine; ÷N: N times less likely.")
+    _text(pdf, " ".join(t for t in (card.faults.others_text, key) if t), TINY + 0.4, color=MUTED)
+
+
+def _actions(pdf: FPDF, card: JobCard) -> None:
+    _section(pdf, "Recommended actions and parts")
+    if card.actions:
+        rows = [[str(i), a.text, Cell(a.reason, color=MUTED)] for i, a in enumerate(card.actions, start=1)]
+        measured_table(pdf, ["#", "Action", "Because of"], rows, [5, 120, 57], aligns="RLL", size=SMALL)
+    else:
+        _text(pdf, "No action recommended.")
+    if card.parts:
+        pdf.ln(1.5)
+        rows = [[p.name, Cell(p.for_fault, color=MUTED)] for p in card.parts]
+        measured_table(pdf, ["Parts to have at hand (if the fault is confirmed)", "For"], rows, [100, 82], size=SMALL)
+
+
+def _next_test(pdf: FPDF, card: JobCard) -> None:
+    _section(pdf, "Next test", keep=15)
+    _text(pdf, card.next_test_note, SMALL + 0.5, bold=card.next_test is None)
+    t = card.next_test
+    if t is None:
+        return
+    pdf.ln(1)
+    x, y, w = pdf.l_margin, pdf.y, pdf.epw
+    parts = [(t.title, BODY, True), (t.why, SMALL, False)]
+    parts += [(f"If {k}: {v}", SMALL, False) for k, v in t.outcomes]
+    height = sum(text_height(pdf, s, w - 7, size, bold) - 1.8 for s, size, bold in parts) + 3
+    if y + height > pdf.page_break_trigger:
+        pdf.add_page()
+        y = pdf.y
+    pdf.set_draw_color(*ACCENT)
+    pdf.set_line_width(0.35)
+    pdf.set_fill_color(240, 245, 247)
+    pdf.rect(x, y, w, height, style="DF")
+    pdf.set_y(y + 1.5)
+    for s, size, bold in parts:
+        _text(pdf, s, size, bold, indent=3.5)
+    pdf.set_y(y + height)
+
+
+def _caution_height(pdf: FPDF, c: Caution, w: float) -> float:
+    return (text_height(pdf, c.title, w - 6, SMALL + 0.5, True) + text_height(pdf, c.text, w - 6, SMALL)
+            + text_height(pdf, f"Raised: {c.raised_by}. Source: {c.source}.", w - 6, TINY) - 2.2)
+
+
+def _caution_box(pdf: FPDF, c: Caution, x: float, y: float, w: float, h: float) -> None:
+    edge, fill = SEVERITY.get(c.severity, SEVERITY["notice"])
+    pdf.set_fill_color(*fill)
+    pdf.set_draw_color(*edge)
+    pdf.set_line_width(0.3)
+    pdf.rect(x, y, w, h, style="DF")
+    pdf.set_fill_color(*edge)
+    pdf.rect(x, y, 1.8, h, style="F")
+    pdf.set_xy(x + 3, y + 0.6)
+    lh = line_height(SMALL + 0.5)
+    pdf.set_font(FAMILY, "B", SMALL + 0.5)
+    pdf.set_text_color(*edge)
+    pdf.multi_cell(w - 4, lh, f"{c.title}", padding=0.3, new_x="LEFT", new_y="NEXT")
+    pdf.set_text_color(*INK)
+    pdf.set_font(FAMILY, "", SMALL)
+    pdf.multi_cell(w - 4, line_height(SMALL), c.text, padding=0.3, new_x="LEFT", new_y="NEXT")
+    pdf.set_font(FAMILY, "", TINY)
+    pdf.set_text_color(*MUTED)
+    pdf.multi_cell(w - 4, line_height(TINY), f"Raised: {c.raised_by}. Source: {c.source}.", padding=0.3,
+                   new_x="LEFT", new_y="NEXT")
+    pdf.set_text_color(*INK)
+
+
+def _cautions(pdf: FPDF, card: JobCard) -> None:
+    """Safety cautions as boxes: the general one across the page, the rest two to a row."""
+    _section(pdf, "Safety cautions", keep=30)
+    gap = 2.5
+    general = [c for c in card.cautions if c.general]
+    rest = [c for c in card.cautions if not c.general]
+    rows: list[list[Caution]] = [[c] for c in general] + [rest[i:i + 2] for i in range(0, len(rest), 2)]
+    for row in rows:
+        w = pdf.epw if len(row) == 1 and row[0].general else (pdf.epw - gap) / 2
+        h = max(_caution_height(pdf, c, w) for c in row) + 1.5
+        if pdf.y + h > pdf.page_break_trigger:
+            pdf.add_page()
+        y = pdf.y
+        for k, c in enumerate(row):
+            _caution_box(pdf, c, pdf.l_margin + k * (w + gap), y, w, h)
+        pdf.set_xy(pdf.l_margin, y + h + gap)
+
+
+def _notes(pdf: FPDF, card: JobCard) -> None:
+    if not card.notes:
+        return
+    _section(pdf, "Notes", keep=12)
+    for n in card.notes:
+        _text(pdf, n.label, SMALL, bold=True)
+        _text(pdf, n.text, SMALL + 0.5)
+        pdf.ln(1)
+
+
+def _sign_off(pdf: FPDF, card: JobCard) -> None:
+    height = 34
+    if pdf.y + height + 12 > pdf.page_break_trigger:
+        pdf.add_page()
+    _section(pdf, "Sign-off", keep=height)
+    gap = 8
+    w = (pdf.epw - gap) / len(card.sign_off)
+    y = pdf.y + 1
+    statements = {
+        "Technician": "Readings taken and recorded as above.",
+        "Customer": "Findings and recommended actions explained to me.",
+    }
+    for k, s in enumerate(card.sign_off):
+        x = pdf.l_margin + k * (w + gap)
+        pdf.set_draw_color(*RULE)
+        pdf.set_line_width(0.3)
+        pdf.rect(x, y, w, height - 4, style="D")
+        pdf.set_xy(x + 2.5, y + 1.5)
+        pdf.set_font(FAMILY, "B", BODY)
+        pdf.cell(w - 5, 4.5, s.role)
+        pdf.set_xy(x + 2.5, y + 6)
+        pdf.set_font(FAMILY, "", TINY)
+        pdf.set_text_color(*MUTED)
+        pdf.cell(w - 5, 3.5, statements.get(s.role, ""))
+        pdf.set_text_color(*INK)
+        for j, label in enumerate(("Name", "Signature", "Date")):
+            line_y = y + 16 + j * 6
+            pdf.set_xy(x + 2.5, line_y - 4)
+            pdf.set_font(FAMILY, "", SMALL)
+            pdf.set_text_color(*MUTED)
+            pdf.cell(18, 4, label)
+            pdf.set_text_color(*INK)
+            if label == "Name" and s.name:
+                pdf.set_font(FAMILY, "", BODY)
+                pdf.cell(w - 23, 4, s.name)
+            pdf.set_draw_color(*MUTED)
+            pdf.set_line_width(0.2)
+            pdf.line(x + 20.5, line_y, x + w - 3, line_y)
+    pdf.set_y(y + height)

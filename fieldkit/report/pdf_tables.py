@@ -1,0 +1,125 @@
+"""Tables for the PDF job card: fpdf2's ``table()`` with row heights we know in advance.
+
+The band pictures and probability bars are drawn into table cells after the table is laid
+out, so we must know where each row lands. We measure every cell with the same call fpdf2 uses
+(``multi_cell`` with the table's line height and padding), give each row exactly that height,
+split the rows into page-sized chunks ourselves (headings repeated on each page) and then check
+that the table ended where the sums say. If a future fpdf2 lays rows out differently the check
+fails loudly instead of drawing a picture beside the wrong reading.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable, Sequence
+from dataclasses import dataclass
+
+from fpdf import FPDF
+from fpdf.fonts import FontFace
+
+FAMILY = "fieldkit-sans"
+PT = 25.4 / 72  # mm per point
+PADDING = 0.9  # mm around the text of every cell
+
+
+@dataclass(frozen=True, slots=True)
+class Cell:
+    text: str = ""
+    bold: bool = False
+    color: tuple[int, int, int] | None = None
+    fill: tuple[int, int, int] | None = None
+
+
+#: Draws into one cell: (pdf, row index, x, y, width, height), all in mm.
+Draw = Callable[[FPDF, int, float, float, float, float], None]
+
+
+def line_height(size: float) -> float:
+    return size * PT * 1.22
+
+
+def text_height(pdf: FPDF, text: str, width: float, size: float, bold: bool = False) -> float:
+    """Height of a table cell holding ``text``, measured as fpdf2's table measures it."""
+    if not text:
+        return 0.0
+    pdf.set_font(FAMILY, "B" if bold else "", size)
+    lh = line_height(size)
+    return float(pdf.multi_cell(w=width, h=lh, text=text, max_line_height=lh, padding=PADDING,
+                                dry_run=True, output="HEIGHT", wrapmode="WORD"))
+
+
+def _as_cell(c: Cell | str) -> Cell:
+    return c if isinstance(c, Cell) else Cell(c)
+
+
+def measured_table(
+    pdf: FPDF,
+    headings: Sequence[str],
+    rows: Sequence[Sequence[Cell | str]],
+    widths: Sequence[float],
+    *,
+    aligns: str = "",
+    size: float = 7.0,
+    min_row: float = 0.0,
+    draw: dict[int, Draw] | None = None,
+    heading_fill: tuple[int, int, int] = (22, 86, 110),
+    zebra: tuple[int, int, int] = (244, 246, 248),
+) -> None:
+    """A table across the page width; ``widths`` are relative and scaled to the printable width."""
+    draw = draw or {}
+    total = sum(widths)
+    cols = [pdf.epw * w / total for w in widths]
+    xs = [pdf.l_margin + sum(cols[:j]) for j in range(len(cols))]
+    aligns = aligns or "L" * len(cols)
+    cells = [[_as_cell(c) for c in row] for row in rows]
+
+    head_h = max(text_height(pdf, h, cols[j], size, bold=True) for j, h in enumerate(headings))
+    heights = [max([min_row] + [text_height(pdf, c.text, cols[j], size, c.bold) for j, c in enumerate(row)])
+               for row in cells]
+
+    start = 0
+    while start < len(cells):
+        room = pdf.page_break_trigger - pdf.y - 0.05
+        if head_h + heights[start] > room:
+            pdf.add_page()
+            room = pdf.page_break_trigger - pdf.y - 0.05
+        end, used = start, head_h
+        while end < len(cells) and used + heights[end] <= room:
+            used += heights[end]
+            end += 1
+        end = max(end, start + 1)
+        _chunk(pdf, headings, cells, heights, start, end, head_h, cols, xs, aligns, size, draw, heading_fill, zebra)
+        start = end
+
+
+def _chunk(pdf: FPDF, headings: Sequence[str], cells: list[list[Cell]], heights: list[float], start: int, end: int,
+           head_h: float, cols: list[float], xs: list[float], aligns: str, size: float, draw: dict[int, Draw],
+           heading_fill: tuple[int, int, int], zebra: tuple[int, int, int]) -> None:
+    pdf.set_x(pdf.l_margin)
+    pdf.set_font(FAMILY, "", size)
+    y0 = pdf.y
+    lh = line_height(size)
+    with pdf.table(
+        width=pdf.epw, col_widths=cols, align="LEFT", text_align=tuple(aligns), v_align="MIDDLE",
+        line_height=lh, padding=PADDING, borders_layout="HORIZONTAL_LINES", first_row_as_headings=True,
+        headings_style=FontFace(emphasis="BOLD", color=(255, 255, 255), fill_color=heading_fill),
+        cell_fill_color=zebra, cell_fill_mode="ROWS", repeat_headings=0, markdown=False,
+    ) as table:
+        head = table.row(min_height=head_h)
+        for h in headings:
+            head.cell(h)
+        for i in range(start, end):
+            row = table.row(min_height=heights[i])
+            for c in cells[i]:
+                style = None
+                if c.bold or c.color or c.fill:
+                    style = FontFace(emphasis="BOLD" if c.bold else None, color=c.color, fill_color=c.fill)
+                row.cell(c.text, style=style)
+    expected = y0 + head_h + sum(heights[start:end])
+    if abs(pdf.y - expected) > 0.05:
+        raise RuntimeError(f"PDF table layout drifted ({pdf.y:.2f} mm, expected {expected:.2f} mm): "
+                           "fpdf2 sizes table rows differently from fieldkit's measurement")
+    y = y0 + head_h
+    for i in range(start, end):
+        for j, fn in draw.items():
+            fn(pdf, i, xs[j], y, cols[j], heights[i])
+        y += heights[i]

@@ -1,0 +1,1 @@
+"""Widgets of the fieldkit screens: each draws one thing from the diagnosis or the profile."""

@@ -1,0 +1,127 @@
+"""The gauge-band picture: where a reading sits against its expected band, with the gauge's
+uncertainty drawn around it.
+
+Drawn with characters so it reads without colour:
+
+    ┈┈┈┈‹●›┈┈┈┈┈┈┈[══════════]┈┈┈┈   low
+    band ``[═══]`` (``◂═══]`` or ``[═══▸`` when open at one end), reading ``●``,
+    gauge uncertainty ``‹ ›`` (± one standard uncertainty), track ``┈``.
+
+The scale is linear and chosen per reading so the band and the reading both fit with a margin.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from rich.style import Style
+from rich.text import Text
+from textual.widget import Widget
+
+from fieldkit.diagnosis.results import ReadingCheck, Verdict
+from fieldkit.tui.safe_text import literal
+
+TRACK, BAND, LOW_EDGE, HIGH_EDGE, OPEN_LOW, OPEN_HIGH = "┈", "═", "[", "]", "◂", "▸"
+MARK, U_LOW, U_HIGH = "●", "‹", "›"
+
+VERDICT_WORD = {
+    Verdict.IN_RANGE: "in range",
+    Verdict.LOW: "LOW",
+    Verdict.HIGH: "HIGH",
+    Verdict.INCONCLUSIVE: "can't call",
+    Verdict.NOT_MEASURED: "no range",
+}
+
+
+@dataclass(frozen=True, slots=True)
+class Cell:
+    char: str
+    role: str  # track, band, edge, unc, mark
+
+
+def _position(x: float, lo: float, hi: float, width: int) -> int:
+    return max(0, min(width - 1, round((x - lo) / (hi - lo) * (width - 1))))
+
+
+def draw_band(value: float, uncertainty: float, low: float | None, high: float | None, width: int) -> list[Cell]:
+    """The picture as cells, one per character column."""
+    width = max(width, 8)
+    u = abs(uncertainty)
+    points = [value - u, value + u] + [b for b in (low, high) if b is not None]
+    lo, hi = min(points), max(points)
+    span = hi - lo
+    if span <= 0:
+        span = max(abs(value) * 0.1, 1.0)
+    margin = span * 0.12
+    lo, hi = lo - margin, hi + margin
+    if low is None:
+        lo = min(lo, value - u - margin)
+    cells = [Cell(TRACK, "track") for _ in range(width)]
+    if low is not None or high is not None:
+        a = _position(low, lo, hi, width) if low is not None else 0
+        b = _position(high, lo, hi, width) if high is not None else width - 1
+        for i in range(a, b + 1):
+            cells[i] = Cell(BAND, "band")
+        cells[a] = Cell(LOW_EDGE if low is not None else OPEN_LOW, "edge")
+        cells[b] = Cell(HIGH_EDGE if high is not None else OPEN_HIGH, "edge")
+    m = _position(value, lo, hi, width)
+    if u > 0:
+        ul, uh = _position(value - u, lo, hi, width), _position(value + u, lo, hi, width)
+        if ul < m:
+            cells[ul] = Cell(U_LOW, "unc")
+        if uh > m:
+            cells[uh] = Cell(U_HIGH, "unc")
+    cells[m] = Cell(MARK, "mark")
+    return cells
+
+
+def band_plain(check: ReadingCheck, width: int) -> str:
+    if check.value_num is None:
+        return ""
+    return "".join(c.char for c in draw_band(check.value_num, check.uncertainty_num, check.low_num, check.high_num, width))
+
+
+class ReadingBands(Widget):
+    """The band pictures of the readings taken at one test point, newest last."""
+
+    COMPONENT_CLASSES = {"band--track", "band--band", "band--edge", "band--unc",
+                         "band--ok", "band--bad", "band--unsure", "band--label"}
+    DEFAULT_CSS = """
+    ReadingBands { height: auto; }
+    """
+
+    def __init__(self, *, id: str | None = None) -> None:  # noqa: A002 - Textual's name
+        super().__init__(id=id)
+        self._checks: list[ReadingCheck] = []
+
+    def show(self, checks: list[ReadingCheck]) -> None:
+        self._checks = list(checks)
+        self.refresh(layout=True)
+
+    def get_content_height(self, container, viewport, width: int) -> int:  # noqa: ANN001
+        return max(1, 3 * len(self._checks))
+
+    def _style(self, name: str) -> Style:
+        return self.get_component_rich_style(f"band--{name}", partial=True)
+
+    def render(self) -> Text:
+        if not self._checks:
+            return Text("no reading here yet", style=self._style("label"), end="")
+        width = max(12, self.content_size.width - 12)
+        out = Text(end="", no_wrap=True, overflow="ellipsis")
+        for i, c in enumerate(self._checks):
+            if i:
+                out.append("\n")
+            mood = "ok" if c.verdict is Verdict.IN_RANGE else "bad" if c.verdict in (Verdict.LOW, Verdict.HIGH) else "unsure"
+            out.append_text(literal(c.condition, self._style("label")))
+            out.append("\n")
+            if c.value_num is not None:
+                for cell in draw_band(c.value_num, c.uncertainty_num, c.low_num, c.high_num, width):
+                    role = mood if cell.role == "mark" else cell.role
+                    out.append(cell.char, self._style(role))
+            out.append(f" {VERDICT_WORD[c.verdict]}", self._style(mood) + Style(bold=True))
+            out.append("\n")
+            out.append_text(literal(f"  {c.value} {c.uncertainty} · expected {c.expected}", self._style("label")))
+            if c.discounted:
+                out.append_text(literal(f" · not counted: {c.discounted}", self._style("unsure")))
+        return out

@@ -1,0 +1,80 @@
+"""One-line strips of the visit screen: the title bar, the next test, the top fault, cautions."""
+
+from __future__ import annotations
+
+from rich.text import Text
+
+from fieldkit.diagnosis.catalogue import Caution
+from fieldkit.diagnosis.results import Diagnosis, NextTest, RankedFault
+from fieldkit.model.profile import MachineProfile
+from fieldkit.model.visit import Visit, VisitStatus
+from fieldkit.tui.safe_text import literal
+from fieldkit.tui.widgets.faults import percent, prob_bar
+
+SEVERITY_SHORT = {"danger": "‼", "warning": "!", "notice": "i"}
+
+
+def visit_title(visit: Visit, profile: MachineProfile, *, demo: bool = False) -> Text:
+    out = Text(end="", no_wrap=True, overflow="ellipsis")
+    if demo:
+        out.append(" DEMO ", "reverse bold")
+        out.append(" ")
+    out.append_text(literal(visit.job_number, "bold"))
+    out.append(" · ")
+    out.append_text(literal(profile.name))
+    if visit.machine_serial:
+        out.append(" · ")
+        out.append_text(literal(visit.machine_serial))
+    out.append(" · ")
+    out.append("CLOSED" if visit.status is VisitStatus.CLOSED else "open", "bold")
+    out.append(f" · {len(visit.current_readings())} readings")
+    if visit.customer:
+        out.append(" · ")
+        out.append_text(literal(visit.customer))
+    return out
+
+
+def next_line(next_test: NextTest | None, closed: bool) -> Text:
+    out = Text(end="", no_wrap=True, overflow="ellipsis")
+    out.append("NEXT ▸ ", "bold")
+    if closed:
+        out.append("visit closed")
+        return out
+    if next_test is None:
+        out.append("no reading the rules could learn more from; ^o finishes the visit")
+        return out
+    verb = "repeat " if next_test.repeat else ""
+    out.append_text(literal(f"{verb}{next_test.label}", "bold"))
+    out.append_text(literal(f" · {next_test.condition} · about {next_test.minutes:g} min · "
+                            f"{next_test.gain_bits:.2f} bits"))
+    out.append("  (^n)", "dim")
+    return out
+
+
+def top_fault_line(diagnosis: Diagnosis | None, was: RankedFault | None) -> Text:
+    out = Text(end="", no_wrap=True, overflow="ellipsis")
+    out.append("LIKELY ▸ ", "bold")
+    if diagnosis is None or not diagnosis.faults:
+        out.append("no ranking yet")
+        return out
+    top = diagnosis.faults[0]
+    out.append(prob_bar(top.probability, 8), "bold")
+    out.append(f" {percent(top.probability)} ")
+    out.append_text(literal(top.display_title, "bold"))
+    if was is not None and was.key != top.key:
+        out.append_text(literal(f"  (was {was.display_title})", "italic"))
+    out.append("  (^f)", "dim")
+    return out
+
+
+def caution_strip(cautions: list[Caution]) -> Text:
+    out = Text(end="")
+    if not cautions:
+        out.append("No step cautions listed for this point.")
+    for i, c in enumerate(cautions):
+        if i:
+            out.append(" · ")
+        out.append(f"{SEVERITY_SHORT.get(c.severity.value, '!')} ", "bold")
+        out.append_text(literal(c.title))
+    out.append("  · F2 procedures first", "bold")
+    return out

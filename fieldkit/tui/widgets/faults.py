@@ -1,0 +1,85 @@
+"""Ranked faults as bars with numbers, and findings with their verdicts.
+
+The bar is drawn with block characters (eighths) so its length carries the probability without
+colour; the number beside it says the same in words.
+"""
+
+from __future__ import annotations
+
+from rich.text import Text
+from textual.widgets import OptionList, Static
+from textual.widgets.option_list import Option
+
+from fieldkit.diagnosis.results import Diagnosis, Finding, RankedFault, Verdict
+from fieldkit.tui.safe_text import literal
+
+EIGHTHS = " ▏▎▍▌▋▊▉█"
+FINDING_GLYPH = {
+    Verdict.IN_RANGE: "✓",
+    Verdict.LOW: "▼",
+    Verdict.HIGH: "▲",
+    Verdict.INCONCLUSIVE: "?",
+    Verdict.NOT_MEASURED: "·",
+}
+
+
+def prob_bar(p: float, width: int = 10) -> str:
+    """A bar ``width`` cells long filled to ``p`` (0–1) in eighths, padded with a dotted track."""
+    p = min(max(p, 0.0), 1.0)
+    eighths = round(p * width * 8)
+    full, part = divmod(eighths, 8)
+    bar = "█" * full + (EIGHTHS[part] if part and full < width else "")
+    return bar + "·" * (width - len(bar))
+
+
+def percent(p: float) -> str:
+    """Whole per cent, but never '0%' or '100%' for a probability that is neither."""
+    if 0 < p < 0.005:
+        return "<1%"
+    if 0.995 <= p < 1:
+        return ">99%"
+    return f"{p:.0%}"
+
+
+def fault_text(f: RankedFault, bar_width: int = 10) -> Text:
+    out = Text(end="", no_wrap=True, overflow="ellipsis")
+    out.append(prob_bar(f.probability, bar_width), "bold")
+    out.append(f" {percent(f.probability):>4} ")
+    out.append_text(literal(f.display_title))
+    return out
+
+
+def finding_text(f: Finding) -> Text:
+    out = Text(end="")
+    out.append(f"{FINDING_GLYPH[f.verdict]} {f.verdict.label:<12} ", "bold")
+    out.append_text(literal(f.message))
+    return out
+
+
+class FaultList(OptionList):
+    """Ranked faults; choosing one opens its explanation."""
+
+    def show(self, diagnosis: Diagnosis | None, limit: int = 12) -> None:
+        keep = self.highlighted
+        self.clear_options()
+        if diagnosis is None:
+            return
+        self.add_options([Option(fault_text(f), id=f.key) for f in diagnosis.faults[:limit]])
+        if self.option_count:
+            self.highlighted = min(keep or 0, self.option_count - 1)
+
+
+class FindingsView(Static):
+    """Findings, out-of-range ones first (the order the engine gives)."""
+
+    def show(self, diagnosis: Diagnosis | None) -> None:
+        if diagnosis is None or not diagnosis.findings:
+            self.update(Text("no findings yet: take a reading", end=""))
+            return
+        out = Text(end="")
+        measured = [f for f in diagnosis.findings if f.verdict is not Verdict.NOT_MEASURED]
+        for i, f in enumerate(measured):
+            if i:
+                out.append("\n")
+            out.append_text(finding_text(f))
+        self.update(out if measured else Text("no findings yet: take a reading", end=""))
