@@ -116,7 +116,7 @@ def validation_error(exc: ValidationError, path: str, text: str | None,
     """One message from a pydantic error; ``prefix`` places a part validated on its own (a test
     point) back at its key path in the file."""
     lines = key_lines(text) if text else {}
-    errors = [{**err, "loc": prefix + tuple(err["loc"])} for err in exc.errors(include_url=False)]
+    errors = [{**err, "loc": prefix + _named_key(err)} for err in exc.errors(include_url=False)]
     first = errors[0]
     loc = tuple(first["loc"])
     key = ".".join(str(p) for p in loc)
@@ -128,6 +128,19 @@ def validation_error(exc: ValidationError, path: str, text: str | None,
         parts.append(f"{at}{where}: {_plain_message(err)}")
     more = f" (and {len(errors) - 4} more)" if len(errors) > 4 else ""
     return DataFileError(path, "; ".join(parts) + more, line=line_for(lines, loc), key=key or None)
+
+
+_NAMED = re.compile(r"^(?:Value error, )?(?:unknown )?parameter '([a-z0-9_]+)'")
+
+
+def _named_key(err: Any) -> tuple[Any, ...]:
+    """A table validated as a whole (circuit parameters) names the bad key in its message; put
+    that key on the path so the error points at its own line, not the table's header."""
+    loc = tuple(err["loc"])
+    match = _NAMED.match(str(err["msg"]))
+    if match and loc and loc[-1] == "parameters":
+        return loc + (match.group(1),)
+    return loc
 
 
 def _plain_message(err: Any) -> str:

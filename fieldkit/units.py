@@ -507,9 +507,13 @@ def format_value(
     shown = convert(q, spelling)
     mag = float(shown.magnitude)
     if exact:
-        # The shortest repr written out positionally: '{:.17f}' kept too few digits below 1e-4
-        # (1.2345678901234e-05 lost its tail; 1e-20 became '0').
-        number = format(Decimal(repr(mag)), "f") if math.isfinite(mag) else repr(mag)
+        # The shortest repr, written out positionally while that stays short enough to read in a
+        # hand-edited file; extreme values keep the e-notation (the parser reads both, and a
+        # positional 1e-300 would not fit in MAX_INPUT_CHARS).
+        number = repr(mag)
+        if "e" in number and math.isfinite(mag):
+            positional = format(Decimal(number), "f")
+            number = positional if len(positional) <= 24 else number
     else:
         number = f"{mag:.{_decimals(mag, significant)}f}"
         if "." in number:

@@ -20,13 +20,13 @@ from fieldkit.cli import main
 from fieldkit.errors import AmbiguousInputError, DimensionError, FieldkitError, UnitInputError
 from fieldkit.model.roles import ROLES, Role
 from fieldkit.units import (
+    Q_,
     SPELLINGS,
     STANDARD_ATMOSPHERE,
     DisplaySystem,
     Kind,
     ParsedValue,
     PressureReference,
-    Q_,
     convert,
     format_value,
     kind_of,
@@ -370,8 +370,10 @@ def test_display_spellings_parse_back() -> None:
 
 
 def test_exact_text_of_tiny_and_long_magnitudes_reads_back_the_same_float() -> None:
-    # Regression: '{:.17f}' wrote 1.2345678901234e-05 with its last digits cut and 1e-20 as '0'.
-    for magnitude in (1.2345678901234e-05, 1e-20, -3.3e-07, 1.2345678901234568e17, 0.1 + 0.2):
+    # Regression: '{:.17f}' wrote 1.2345678901234e-05 with its last digits cut and 1e-20 as '0';
+    # the extremes of IEEE 754 doubles must still fit in one typed value.
+    for magnitude in (1.2345678901234e-05, 1e-20, -3.3e-07, 1.2345678901234568e17, 0.1 + 0.2,
+                      1e-300, 5e-324, -1.7976931348623157e308):
         text = format_value(Q_(magnitude, unit("bar")), exact=True)
         assert parse_value(text).quantity.magnitude == magnitude, text
 

@@ -16,6 +16,7 @@ from scipy import constants as sc
 
 from fieldkit.errors import FieldkitError
 from fieldkit.units import (
+    Q_,
     SPELLINGS,
     DisplaySystem,
     Kind,
@@ -25,6 +26,7 @@ from fieldkit.units import (
     kind_of,
     parse_value,
     to_canonical,
+    unit,
 )
 
 PROPERTY_SETTINGS = settings(max_examples=200, deadline=None, suppress_health_check=[HealthCheck.too_slow])
@@ -79,6 +81,15 @@ def test_exact_text_reads_back_as_the_same_quantity_in_every_spelling(
     assert again.quantity.magnitude == parsed.quantity.magnitude
     assert again.quantity.units == parsed.quantity.units
     assert again.kind is parsed.kind
+
+
+@PROPERTY_SETTINGS
+@given(st.floats(allow_nan=False, allow_infinity=False), st.sampled_from(sorted(SPELLINGS)))
+def test_exact_text_of_any_finite_float_reads_back_bit_for_bit(magnitude: float, spelling: str) -> None:
+    quantity = Q_(magnitude, unit(SPELLINGS[spelling][0]))
+    written = format_value(quantity, kind=SPELLINGS[spelling][1], spelling=spelling, exact=True)
+    again = parse_value(written).quantity
+    assert again.magnitude == magnitude and again.units == quantity.units, written
 
 
 @PROPERTY_SETTINGS

@@ -71,6 +71,15 @@ class Reading(Strict):
                 data = {**data, "reference": PressureReference.GAUGE.value}
         return data
 
+    @model_validator(mode="after")
+    def _pressures_are_gauge_unless_said(self) -> Reading:
+        # Text without a reference reads as gauge; a quantity built in code must mean the same.
+        from fieldkit.units import Kind, kind_of
+
+        if self.reference is None and kind_of(self.value) is Kind.PRESSURE:
+            self.reference = PressureReference.GAUGE
+        return self
+
     @field_validator("taken_at", "deleted_at")
     @classmethod
     def _aware(cls, value: datetime | None) -> datetime | None:

@@ -115,22 +115,29 @@ class Header:
     oil_temperature: str
     status: str
 
-    def fields(self) -> list[HeaderField]:
-        """Label and value pairs in reading order (writers place them in a grid or a list)."""
-        machine = self.machine + (f" ({self.machine_detail})" if self.machine_detail else "")
-        oil = self.oil if self.oil_grade in self.oil else f"{self.oil}; machine's grade {self.oil_grade}"
+    def visit_fields(self) -> list[HeaderField]:
         return [
             HeaderField("Customer", self.customer),
             HeaderField("Site", self.site),
-            HeaderField("Machine", machine),
-            HeaderField("Serial", self.serial),
-            HeaderField("Hour meter", self.hour_meter),
             HeaderField("Date", self.date),
             HeaderField("Technician", self.technician),
             HeaderField("Visit status", self.status),
+        ]
+
+    def machine_fields(self) -> list[HeaderField]:
+        machine = self.machine + (f" ({self.machine_detail})" if self.machine_detail else "")
+        oil = self.oil if self.oil_grade in self.oil else f"{self.oil}; machine's grade {self.oil_grade}"
+        return [
+            HeaderField("Machine", machine),
+            HeaderField("Serial", self.serial),
+            HeaderField("Hour meter", self.hour_meter),
             HeaderField("Oil", oil),
             HeaderField("Oil temperature", self.oil_temperature),
         ]
+
+    def fields(self) -> list[HeaderField]:
+        """Label and value pairs in reading order (writers place them in a grid or a list)."""
+        return self.visit_fields() + self.machine_fields()
 
 
 @dataclass(frozen=True, slots=True)

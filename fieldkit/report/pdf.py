@@ -25,6 +25,7 @@ from fieldkit.report.pdf_draw import (
     RULE,
     UNSURE,
     UNSURE_FILL,
+    ZEBRA,
     band_legend,
     band_picture,
     probability_bar,
@@ -152,24 +153,17 @@ def _header(pdf: FPDF, card: JobCard) -> None:
     pdf.cell(pdf.epw * 0.6 - 3, 12, f"Job {h.job_number}", align="R")
     pdf.set_text_color(*INK)
     pdf.set_xy(pdf.l_margin, pdf.t_margin + 14)
-    fields = h.fields()
-    rows = []
-    for i in range(0, len(fields), 2):
-        pair = fields[i:i + 2]
-        row: list[Cell | str] = []
-        for f in pair:
-            row += [Cell(f.label, color=MUTED), Cell(f.value, bold=f.label in ("Machine", "Customer"))]
-        while len(row) < 4:
-            row.append("")
-        rows.append(row)
-    measured_table(pdf, ["Visit", "", "Machine and oil", ""], rows, [16, 40, 18, 40], size=SMALL + 0.5)
+    rows = [[Cell(a.label, color=MUTED), Cell(a.value, bold=a.label == "Customer"),
+             Cell(b.label, color=MUTED), Cell(b.value, bold=b.label == "Machine")]
+            for a, b in zip(h.visit_fields(), h.machine_fields(), strict=True)]
+    measured_table(pdf, None, rows, [17, 46, 21, 46], size=SMALL + 0.5)
 
 
 def _summary(pdf: FPDF, card: JobCard) -> None:
     pdf.ln(3)
     x, y, w = pdf.l_margin, pdf.y, pdf.epw
     lines = [(card.conclusion, BODY + 1, True, INK), (card.counts, BODY, False, INK), (card.units, SMALL, False, MUTED)]
-    height = sum(text_height(pdf, t, w - 6, s, b) - 1.8 for t, s, b, _c in lines) + 3
+    height = sum(text_height(pdf, t, w - 4, s, b, padding=0) for t, s, b, _c in lines) + 3
     stripe = OUT if not card.settled else ACCENT
     pdf.set_fill_color(240, 245, 247)
     pdf.rect(x, y, w, height, style="F")
@@ -182,30 +176,38 @@ def _summary(pdf: FPDF, card: JobCard) -> None:
 
 
 def _readings(pdf: FPDF, card: JobCard) -> None:
+    """The readings table; a remark or a note sits in a row of its own under its reading."""
     _section(pdf, "Readings", keep=30)
-    rows = []
-    for r in card.readings:
+    rows: list[list[Cell | str]] = []
+    fills: list[tuple[int, int, int] | None] = []
+    owner: list[int | None] = []  # the reading a table row draws a band for
+    for k, r in enumerate(card.readings):
         colour, fill, bold = VERDICT_STYLE[r.verdict]
+        stripe = ZEBRA if k % 2 else None
         rows.append([
             str(r.number), f"{r.test_point}\n{r.condition}", Cell(r.reading, bold=True), r.expected,
             f"{r.uncertainty}\n{r.gauge}", "", Cell(r.verdict_text, bold=bold, color=colour, fill=fill),
         ])
+        fills.append(stripe)
+        owner.append(k)
+        remark = " ".join(t for t in (r.remark, f"Note: {r.note}" if r.note else "") if t)
+        if remark:
+            tint = UNSURE if r.verdict is Verdict.INCONCLUSIVE else MUTED
+            rows.append(["", Cell(remark, span=6, color=tint, size=TINY + 0.3)])
+            fills.append(stripe)
+            owner.append(None)
 
     def draw_band(pdf: FPDF, i: int, x: float, y: float, w: float, h: float) -> None:
-        r = card.readings[i]
-        if r.band is not None:
-            band_picture(pdf, r.band, r.verdict, x, y, w, h)
+        k = owner[i]
+        if k is not None and card.readings[k].band is not None:
+            band_picture(pdf, card.readings[k].band, card.readings[k].verdict, x, y, w, h)
 
     measured_table(pdf, ["#", "Test point and condition", "Reading", "Expected", "Gauge error and gauge",
-                         "Position in range", "Verdict"], rows, [5, 40, 16, 21, 32, 44, 18],
-                   aligns="RLLLLLL", size=SMALL, min_row=7.0, draw={5: draw_band})
+                         "Position in range", "Verdict"], rows, [5, 40, 16, 21, 31, 41, 21],
+                   aligns="RLLLLLL", size=SMALL, min_row=7.0, draw={5: draw_band}, row_fills=fills)
     pdf.ln(0.8)
     band_legend(pdf, pdf.l_margin, pdf.y, TINY)
     pdf.ln(4.5)
-    if card.remarks:
-        rows = [[f"{r.number}. {r.test_point}",
-                 " ".join(t for t in (r.remark, f"Note: {r.note}" if r.note else "") if t)] for r in card.remarks]
-        measured_table(pdf, ["Reading", "Remarks: what to do about it"], rows, [38, 144], size=TINY + 0.4)
 
 
 def _findings(pdf: FPDF, card: JobCard) -> None:
@@ -234,7 +236,7 @@ def _faults(pdf: FPDF, card: JobCard) -> None:
     def draw_bar(pdf: FPDF, i: int, x: float, y: float, w: float, h: float) -> None:
         probability_bar(pdf, card.faults.top[i].probability, x, y, w, h)
 
-    measured_table(pdf, ["#", "Fault", "Probability", "", "Evidence"], rows, [5, 45, 15, 22, 95],
+    measured_table(pdf, ["#", "Fault", "%", "Probability", "Evidence"], rows, [5, 45, 12, 22, 98],
                    aligns="RLRLL", size=SMALL, draw={3: draw_bar})
     pdf.ln(1)
     key = ("×N: a finding is N times as likely with this fault as on a healthy machine; ÷N: N times less likely.")
@@ -250,8 +252,12 @@ def _actions(pdf: FPDF, card: JobCard) -> None:
         _text(pdf, "No action recommended.")
     if card.parts:
         pdf.ln(1.5)
-        rows = [[p.name, Cell(p.for_fault, color=MUTED)] for p in card.parts]
-        measured_table(pdf, ["Parts to have at hand (if the fault is confirmed)", "For"], rows, [100, 82], size=SMALL)
+        grouped: dict[str, list[str]] = {}
+        for p in card.parts:
+            grouped.setdefault(p.for_fault, []).append(p.name)
+        rows = [["; ".join(names), Cell(fault, color=MUTED)] for fault, names in grouped.items()]
+        measured_table(pdf, ["Parts to have at hand (if the fault is confirmed)", "For"], rows, [125, 57],
+                       size=SMALL)
 
 
 def _next_test(pdf: FPDF, card: JobCard) -> None:
@@ -264,7 +270,7 @@ def _next_test(pdf: FPDF, card: JobCard) -> None:
     x, y, w = pdf.l_margin, pdf.y, pdf.epw
     parts = [(t.title, BODY, True), (t.why, SMALL, False)]
     parts += [(f"If {k}: {v}", SMALL, False) for k, v in t.outcomes]
-    height = sum(text_height(pdf, s, w - 7, size, bold) - 1.8 for s, size, bold in parts) + 3
+    height = sum(text_height(pdf, s, w - 3.5, size, bold, padding=0) for s, size, bold in parts) + 3
     if y + height > pdf.page_break_trigger:
         pdf.add_page()
         y = pdf.y
@@ -278,13 +284,21 @@ def _next_test(pdf: FPDF, card: JobCard) -> None:
     pdf.set_y(y + height)
 
 
-def _caution_height(pdf: FPDF, c: Caution, w: float) -> float:
-    return (text_height(pdf, c.title, w - 6, SMALL + 0.5, True) + text_height(pdf, c.text, w - 6, SMALL)
-            + text_height(pdf, f"Raised: {c.raised_by}. Source: {c.source}.", w - 6, TINY) - 2.2)
+def _caution_lines(c: Caution, edge: tuple[int, int, int]) -> list[tuple[str, float, bool, tuple[int, int, int]]]:
+    return [(c.title, 7.0, True, edge), (c.text, 6.6, False, INK),
+            (f"Raised: {c.raised_by}. Source: {c.source}.", 5.8, False, MUTED)]
 
 
-def _caution_box(pdf: FPDF, c: Caution, x: float, y: float, w: float, h: float) -> None:
+def _caution_box(pdf: FPDF, c: Caution, x: float, y: float, w: float, h: float | None = None) -> float:
+    """One caution in a box with a stripe in its severity's colour; returns the height it needs.
+
+    Called with ``h=None`` it only measures, so boxes in one row can share the tallest height.
+    """
     edge, fill = SEVERITY.get(c.severity, SEVERITY["notice"])
+    lines = _caution_lines(c, edge)
+    need = sum(text_height(pdf, t, w - 4, size, bold, padding=0.3) for t, size, bold, _c in lines) + 1.2
+    if h is None:
+        return need
     pdf.set_fill_color(*fill)
     pdf.set_draw_color(*edge)
     pdf.set_line_width(0.3)
@@ -292,30 +306,24 @@ def _caution_box(pdf: FPDF, c: Caution, x: float, y: float, w: float, h: float) 
     pdf.set_fill_color(*edge)
     pdf.rect(x, y, 1.8, h, style="F")
     pdf.set_xy(x + 3, y + 0.6)
-    lh = line_height(SMALL + 0.5)
-    pdf.set_font(FAMILY, "B", SMALL + 0.5)
-    pdf.set_text_color(*edge)
-    pdf.multi_cell(w - 4, lh, f"{c.title}", padding=0.3, new_x="LEFT", new_y="NEXT")
+    for text, size, bold, colour in lines:
+        pdf.set_font(FAMILY, "B" if bold else "", size)
+        pdf.set_text_color(*colour)
+        pdf.multi_cell(w - 4, line_height(size), text, padding=0.3, align="L", new_x="LEFT", new_y="NEXT")
     pdf.set_text_color(*INK)
-    pdf.set_font(FAMILY, "", SMALL)
-    pdf.multi_cell(w - 4, line_height(SMALL), c.text, padding=0.3, new_x="LEFT", new_y="NEXT")
-    pdf.set_font(FAMILY, "", TINY)
-    pdf.set_text_color(*MUTED)
-    pdf.multi_cell(w - 4, line_height(TINY), f"Raised: {c.raised_by}. Source: {c.source}.", padding=0.3,
-                   new_x="LEFT", new_y="NEXT")
-    pdf.set_text_color(*INK)
+    return h
 
 
 def _cautions(pdf: FPDF, card: JobCard) -> None:
     """Safety cautions as boxes: the general one across the page, the rest two to a row."""
     _section(pdf, "Safety cautions", keep=30)
-    gap = 2.5
+    gap = 1.8
     general = [c for c in card.cautions if c.general]
     rest = [c for c in card.cautions if not c.general]
     rows: list[list[Caution]] = [[c] for c in general] + [rest[i:i + 2] for i in range(0, len(rest), 2)]
     for row in rows:
         w = pdf.epw if len(row) == 1 and row[0].general else (pdf.epw - gap) / 2
-        h = max(_caution_height(pdf, c, w) for c in row) + 1.5
+        h = max(_caution_box(pdf, c, 0, 0, w) for c in row)
         if pdf.y + h > pdf.page_break_trigger:
             pdf.add_page()
         y = pdf.y

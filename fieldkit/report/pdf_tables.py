@@ -27,6 +27,8 @@ class Cell:
     bold: bool = False
     color: tuple[int, int, int] | None = None
     fill: tuple[int, int, int] | None = None
+    span: int = 1
+    size: float | None = None
 
 
 #: Draws into one cell: (pdf, row index, x, y, width, height), all in mm.
@@ -37,13 +39,17 @@ def line_height(size: float) -> float:
     return size * PT * 1.22
 
 
-def text_height(pdf: FPDF, text: str, width: float, size: float, bold: bool = False) -> float:
-    """Height of a table cell holding ``text``, measured as fpdf2's table measures it."""
+def text_height(pdf: FPDF, text: str, width: float, size: float, bold: bool = False,
+                padding: float = PADDING, lh: float | None = None) -> float:
+    """Height of ``multi_cell`` text (by default a table cell), measured as fpdf2's table measures it.
+
+    ``lh`` is the line height; a table uses its own for every cell, whatever the cell's font size.
+    """
     if not text:
         return 0.0
     pdf.set_font(FAMILY, "B" if bold else "", size)
-    lh = line_height(size)
-    return float(pdf.multi_cell(w=width, h=lh, text=text, max_line_height=lh, padding=PADDING,
+    lh = lh or line_height(size)
+    return float(pdf.multi_cell(w=width, h=lh, text=text, max_line_height=lh, padding=padding,
                                 dry_run=True, output="HEIGHT", wrapmode="WORD"))
 
 
@@ -51,9 +57,18 @@ def _as_cell(c: Cell | str) -> Cell:
     return c if isinstance(c, Cell) else Cell(c)
 
 
+def _row_height(pdf: FPDF, row: list[Cell], cols: list[float], size: float, min_row: float) -> float:
+    heights, j = [min_row], 0
+    for c in row:
+        heights.append(text_height(pdf, c.text, sum(cols[j:j + c.span]), c.size or size, c.bold,
+                                   lh=line_height(size)))
+        j += c.span
+    return max(heights)
+
+
 def measured_table(
     pdf: FPDF,
-    headings: Sequence[str],
+    headings: Sequence[str] | None,
     rows: Sequence[Sequence[Cell | str]],
     widths: Sequence[float],
     *,
@@ -63,8 +78,14 @@ def measured_table(
     draw: dict[int, Draw] | None = None,
     heading_fill: tuple[int, int, int] = (22, 86, 110),
     zebra: tuple[int, int, int] = (244, 246, 248),
+    row_fills: Sequence[tuple[int, int, int] | None] | None = None,
 ) -> None:
-    """A table across the page width; ``widths`` are relative and scaled to the printable width."""
+    """A table across the page width; ``widths`` are relative and scaled to the printable width.
+
+    ``headings=None`` makes a table without a heading row (the visit header's grid). With
+    ``row_fills`` each row gets its own background instead of alternate stripes, so a reading and
+    the remark row under it can share one.
+    """
     draw = draw or {}
     total = sum(widths)
     cols = [pdf.epw * w / total for w in widths]
@@ -72,9 +93,9 @@ def measured_table(
     aligns = aligns or "L" * len(cols)
     cells = [[_as_cell(c) for c in row] for row in rows]
 
-    head_h = max(text_height(pdf, h, cols[j], size, bold=True) for j, h in enumerate(headings))
-    heights = [max([min_row] + [text_height(pdf, c.text, cols[j], size, c.bold) for j, c in enumerate(row)])
-               for row in cells]
+    head_h = max(text_height(pdf, h, cols[j], size, bold=True) for j, h in enumerate(headings)) if headings else 0.0
+    heights = [_row_height(pdf, row, cols, size, min_row) for row in cells]
+    fills = list(row_fills) if row_fills is not None else None
 
     start = 0
     while start < len(cells):
@@ -87,33 +108,41 @@ def measured_table(
             used += heights[end]
             end += 1
         end = max(end, start + 1)
-        _chunk(pdf, headings, cells, heights, start, end, head_h, cols, xs, aligns, size, draw, heading_fill, zebra)
+        _chunk(pdf, headings, cells, heights, start, end, head_h, cols, xs, aligns, size, draw, heading_fill,
+               zebra, fills)
         start = end
 
 
-def _chunk(pdf: FPDF, headings: Sequence[str], cells: list[list[Cell]], heights: list[float], start: int, end: int,
+def _chunk(pdf: FPDF, headings: Sequence[str] | None, cells: list[list[Cell]], heights: list[float], start: int, end: int,
            head_h: float, cols: list[float], xs: list[float], aligns: str, size: float, draw: dict[int, Draw],
-           heading_fill: tuple[int, int, int], zebra: tuple[int, int, int]) -> None:
+           heading_fill: tuple[int, int, int], zebra: tuple[int, int, int],
+           fills: list[tuple[int, int, int] | None] | None) -> None:
     pdf.set_x(pdf.l_margin)
     pdf.set_font(FAMILY, "", size)
+    # fpdf2 fills the cells it does not stripe with the current fill colour: make that white.
+    pdf.set_fill_color(255, 255, 255)
     y0 = pdf.y
     lh = line_height(size)
     with pdf.table(
         width=pdf.epw, col_widths=cols, align="LEFT", text_align=tuple(aligns), v_align="MIDDLE",
-        line_height=lh, padding=PADDING, borders_layout="HORIZONTAL_LINES", first_row_as_headings=True,
+        line_height=lh, padding=PADDING, borders_layout="HORIZONTAL_LINES", first_row_as_headings=bool(headings),
         headings_style=FontFace(emphasis="BOLD", color=(255, 255, 255), fill_color=heading_fill),
-        cell_fill_color=zebra, cell_fill_mode="ROWS", repeat_headings=0, markdown=False,
+        cell_fill_color=zebra, cell_fill_mode="NONE" if fills is not None else "ROWS", repeat_headings=0,
+        markdown=False,
     ) as table:
-        head = table.row(min_height=head_h)
-        for h in headings:
-            head.cell(h)
+        if headings:
+            head = table.row(min_height=head_h)
+            for h in headings:
+                head.cell(h)
         for i in range(start, end):
-            row = table.row(min_height=heights[i])
+            fill = fills[i] if fills is not None else None
+            row = table.row(min_height=heights[i], style=FontFace(fill_color=fill) if fill else None)
             for c in cells[i]:
                 style = None
-                if c.bold or c.color or c.fill:
-                    style = FontFace(emphasis="BOLD" if c.bold else None, color=c.color, fill_color=c.fill)
-                row.cell(c.text, style=style)
+                if c.bold or c.color or c.fill or c.size:
+                    style = FontFace(emphasis="BOLD" if c.bold else None, color=c.color, fill_color=c.fill,
+                                     size_pt=c.size)
+                row.cell(c.text, style=style, colspan=c.span)
     expected = y0 + head_h + sum(heights[start:end])
     if abs(pdf.y - expected) > 0.05:
         raise RuntimeError(f"PDF table layout drifted ({pdf.y:.2f} mm, expected {expected:.2f} mm): "

@@ -12,7 +12,6 @@ that limit (a fifth of it), as a person reads between the marks.
 from __future__ import annotations
 
 import math
-from random import Random
 
 from fieldkit.model.gauge import Gauge
 from fieldkit.model.roles import Role
@@ -131,17 +130,17 @@ def top_of_scale(gauge: Gauge) -> float:
     return to_canonical(gauge.full_scale, gauge.kind)
 
 
-def read(true: float, gauge: Gauge | None, rng: Random) -> float:
-    """What the technician writes down for a true value: plus an error drawn uniformly within
-    ± the limit of error, rounded to a fifth of that limit, and never past either end of the
-    scale (a needle stops at its pin)."""
+def read(true: float, gauge: Gauge | None, u: float) -> float:
+    """What the technician writes down for a true value: plus an error uniform within ± the
+    limit of error (``u`` a uniform draw in [0, 1) places it), rounded to a fifth of that
+    limit, and never past either end of the scale (a needle stops at its pin)."""
     if gauge is None:
         limit = DRIFT_ERROR_FIXED + DRIFT_ERROR_SHARE * abs(true)
-        value = max(0.0, true + rng.uniform(-limit, limit))
+        value = max(0.0, true + limit * (2.0 * u - 1.0))
         return round(round(value / DRIFT_STEP) * DRIFT_STEP, 6)
     limit = limit_of_error(gauge)
     step = _nice_step(limit / 5.0)
-    value = true + rng.uniform(-limit, limit)
+    value = true + limit * (2.0 * u - 1.0)
     top = top_of_scale(gauge)
     bottom = to_canonical(gauge.scale_start, gauge.kind) if gauge.scale_start is not None else 0.0
     if gauge.kind is not Kind.TEMPERATURE:

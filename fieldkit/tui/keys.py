@@ -12,9 +12,9 @@ from textual.binding import Binding, BindingType
 APP: list[BindingType] = [
     Binding("ctrl+q", "request_quit", "Quit", id="fieldkit.quit", priority=True),
     Binding("f1", "toggle_keys", "Keys", id="fieldkit.keys", priority=True),
-    Binding("f2", "general_caution", "Procedures", id="fieldkit.general_caution", priority=True,
+    Binding("f2", "general_caution", "Safety", id="fieldkit.general_caution", priority=True,
             tooltip="The general caution: the machine's own procedures, local codes and licensed practice come first"),
-    Binding("f3", "command_palette", "Find", id="fieldkit.commands", priority=True,
+    Binding("f3", "command_palette", "Find", id="fieldkit.commands", priority=True, show=False,
             tooltip="Search every command by name"),
 ]
 

@@ -168,9 +168,6 @@ def test_unknown_parameter_names_the_file_and_the_known_names(tmp_path: Path, te
     assert "charge_relief_setting" in error.detail
 
 
-@pytest.mark.xfail(strict=True, reason="the error points at the [circuits.parameters] header, not the misspelt "
-                                       "key's own line (Circuit._known_parameters reports loc circuits.N.parameters; "
-                                       "fix belongs in fieldkit/model/profile.py or loading.py)")
 def test_unknown_parameter_points_at_its_own_line(tmp_path: Path, templates: Any) -> None:
     text = GOOD_PROFILE.replace("charge_relief_setting =", "charge_releif_setting =")
     path = write(tmp_path, text)

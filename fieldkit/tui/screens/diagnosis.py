@@ -9,9 +9,10 @@ from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import VerticalScroll
 from textual.screen import Screen
-from textual.widgets import DataTable, Footer, OptionList, Static, TabbedContent, TabPane
+from textual.widgets import DataTable, OptionList, Static, TabbedContent, TabPane
 
 from fieldkit.diagnosis.results import Diagnosis, RankedFault
+from fieldkit.tui.widgets.keybar import KeyBar
 from fieldkit.tui import keys
 from fieldkit.tui.safe_text import literal
 from fieldkit.tui.widgets.band import VERDICT_WORD
@@ -51,7 +52,7 @@ class DiagnosisScreen(Screen):
         title = Text(end="", no_wrap=True, overflow="ellipsis")
         title.append("Diagnosis · ", "bold")
         title.append_text(literal(self.job_number, "bold"))
-        title.append(f" · {self.diagnosis.entropy_bits:.2f} bits of doubt left")
+        title.append(f" · {self.diagnosis.entropy_bits:.2f} bits of doubt left · Enter on a fault: why")
         yield Static(title, id="topbar")
         with TabbedContent(id="diag-tabs"):
             with TabPane("Faults", id="tab-faults"):
@@ -64,7 +65,7 @@ class DiagnosisScreen(Screen):
                     yield Static(next_tests_text(self.diagnosis), id="next-tests")
             with TabPane("Readings", id="tab-readings"):
                 yield DataTable(id="checks", cursor_type="row", zebra_stripes=True)
-        yield Footer()
+        yield KeyBar()
 
     def on_mount(self) -> None:
         self.query_one("#faults", FaultList).show(self.diagnosis, limit=50)
@@ -157,7 +158,7 @@ class FaultScreen(Screen):
         yield Static(Text("Why this fault", style="bold", end=""), id="topbar")
         with VerticalScroll(id="fault-body"):
             yield Static(fault_explanation(self.fault), id="fault-text")
-        yield Footer()
+        yield KeyBar()
 
     def on_mount(self) -> None:
         self.query_one("#fault-body").focus()

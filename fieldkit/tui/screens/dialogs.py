@@ -10,10 +10,11 @@ from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.screen import ModalScreen
-from textual.widgets import Button, Footer, Input, Label, OptionList, Static, TextArea
+from textual.widgets import Button, Input, Label, OptionList, Static, TextArea
 from textual.widgets.option_list import Option
 
 from fieldkit.diagnosis.catalogue import Caution
+from fieldkit.tui.widgets.keybar import KeyBar
 from fieldkit.tui import keys
 from fieldkit.tui.safe_text import literal
 from fieldkit.tui.widgets.step_panel import SEVERITY_MARK
@@ -45,7 +46,7 @@ class ConfirmDialog(Dialog):
             with Horizontal(classes="dialog-buttons"):
                 yield Button(Text(f"{self._yes} (y)"), id="yes", variant="primary")
                 yield Button(Text(f"{self._no} (n)"), id="no")
-        yield Footer()
+        yield KeyBar()
 
     def action_answer(self, value: bool) -> None:
         self.dismiss(value)
@@ -67,7 +68,7 @@ class ChoiceDialog(Dialog):
             yield Label(Text(self._title, style="bold"), classes="dialog-title")
             yield Static(self._question, classes="dialog-body")
             yield OptionList(*[Option(c, id=str(i)) for i, c in enumerate(self._choices)], id="choices")
-        yield Footer()
+        yield KeyBar()
 
     def on_mount(self) -> None:
         self.query_one("#choices", OptionList).focus()
@@ -92,7 +93,7 @@ class LinePrompt(Dialog):
             yield Static(self._question if isinstance(self._question, Text) else Text(self._question), classes="dialog-body")
             yield Input(value=self._value, placeholder=self._placeholder, id="line")
             yield Static("", id="line-error", classes="inline-error")
-        yield Footer()
+        yield KeyBar()
 
     def on_mount(self) -> None:
         self.query_one("#line", Input).focus()
@@ -129,7 +130,7 @@ class QuitDialog(Dialog):
                 yield Button("Save it and quit (s)", id="save", variant="primary")
                 yield Button("Quit without it (q)", id="discard", variant="error")
                 yield Button("Back (Esc)", id="back")
-        yield Footer()
+        yield KeyBar()
 
     def action_answer(self, value: str) -> None:
         self.dismiss(value)
@@ -155,7 +156,7 @@ class NotesDialog(Dialog):
         with Vertical(classes="dialog dialog-tall"):
             yield Label(Text("Visit notes (ctrl+s saves, Esc cancels)", style="bold"), classes="dialog-title")
             yield TextArea(self._notes, id="notes", soft_wrap=True)
-        yield Footer()
+        yield KeyBar()
 
     def on_mount(self) -> None:
         self.query_one("#notes", TextArea).focus()
@@ -192,7 +193,7 @@ class CautionScreen(Dialog):
             yield Label(Text("Safety first", style="bold"), classes="dialog-title")
             with VerticalScroll():
                 yield Static(out, id="caution-text")
-        yield Footer()
+        yield KeyBar()
 
 
 def existing_file(suffixes: tuple[str, ...]):  # noqa: ANN201 - a check for LinePrompt

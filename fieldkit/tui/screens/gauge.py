@@ -8,10 +8,11 @@ from textual import on
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Grid, Vertical
-from textual.widgets import Button, Footer, Input, Label, Select, Static
+from textual.widgets import Button, Input, Label, Select, Static
 
 from fieldkit.errors import FieldkitError
 from fieldkit.model.gauge import EN837_CLASSES, Gauge
+from fieldkit.tui.widgets.keybar import KeyBar
 from fieldkit.tui.messages import explain
 from fieldkit.tui.safe_text import literal
 from fieldkit.tui.screens.dialogs import Dialog
@@ -70,7 +71,7 @@ class AddGaugeDialog(Dialog):
                 yield Input(placeholder="optional, e.g. 0-250 bar glycerine", id="g-label")
             yield Static("", id="g-error", classes="inline-error")
             yield Button("Add (ctrl+s)", id="g-add", variant="primary")
-        yield Footer()
+        yield KeyBar()
 
     def on_mount(self) -> None:
         self.query_one("#g-id", Input).focus()

@@ -16,7 +16,7 @@ from textual import on
 from textual.app import ComposeResult
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.screen import Screen
-from textual.widgets import Footer, Input, Label, OptionList, Select, Static
+from textual.widgets import Input, Label, OptionList, Select, Static
 
 from fieldkit.diagnosis.catalogue import Caution
 from fieldkit.diagnosis.results import Diagnosis, NextTest, RankedFault
@@ -26,6 +26,7 @@ from fieldkit.model.gauge import Gauge
 from fieldkit.model.profile import Circuit, MachineProfile, TestPoint
 from fieldkit.model.visit import Reading, Visit, VisitStatus
 from fieldkit.session import Workbench
+from fieldkit.tui.widgets.keybar import KeyBar
 from fieldkit.tui import keys
 from fieldkit.tui.messages import explain
 from fieldkit.tui.plan import PlanCircuit, PlanPoint, PointState, build_plan, notes_with_skip, notes_without_skip, skipped_points
@@ -34,7 +35,7 @@ from fieldkit.tui.step import default_function, gauge_fit, general_caution, last
 from fieldkit.tui.widgets.bars import caution_strip, next_line, top_fault_line, visit_title
 from fieldkit.tui.widgets.faults import FaultList, FindingsView
 from fieldkit.tui.widgets.plan_list import PlanList
-from fieldkit.tui.widgets.step_panel import StepPanel, StepView
+from fieldkit.tui.widgets.step_panel import SHORT_STATE, StepPanel, StepView
 from fieldkit.units import Kind, format_value, parse_value
 
 _BARE_NUMBER = re.compile(r"^\s*[+\-]?\d[\d.,]*\s*$")
@@ -59,6 +60,7 @@ class VisitScreen(Screen):
         self.point_id: str | None = None
         self._previous_top: RankedFault | None = None
         self._shown_top: RankedFault | None = None
+        self._keep_message = False  # a 'saved' line stays until the next keystroke
 
     # --- layout -------------------------------------------------------------------------------
     def compose(self) -> ComposeResult:
@@ -74,7 +76,7 @@ class VisitScreen(Screen):
                         yield Input(placeholder="value, e.g. 24,5 bar", id="value", compact=True, max_length=64)
                         yield Select([], prompt="no gauge", id="gauge", compact=True)
                     with Horizontal(classes="entry-row"):
-                        yield Select([(Text(s.label), s) for s in FunctionState], allow_blank=False,
+                        yield Select([(Text(SHORT_STATE[s]), s) for s in FunctionState], allow_blank=False,
                                      value=FunctionState.NEUTRAL, id="function", compact=True)
                         yield Input(placeholder="speed rpm", id="speed", compact=True, max_length=32)
                         yield Input(placeholder="oil °C", id="oil", compact=True, max_length=32)
@@ -86,7 +88,7 @@ class VisitScreen(Screen):
                 with VerticalScroll(id="side-findings-scroll"):
                     yield FindingsView(id="side-findings")
         yield Static(id="cautions")
-        yield Footer()
+        yield KeyBar()
 
     def on_mount(self) -> None:
         self.reload(first=True)
@@ -181,7 +183,7 @@ class VisitScreen(Screen):
         )
         self.query_one("#step", StepPanel).show(view)
         self.query_one("#cautions", Static).update(caution_strip(cautions))
-        self.query_one("#value", Input).placeholder = f"{point.label}, e.g. {_example(point)}"
+        self.query_one("#value", Input).placeholder = f"e.g. {_example(point)}"
         self._update_parse_message()
 
     def step_cautions(self) -> tuple[list[Caution], str]:
@@ -274,6 +276,9 @@ class VisitScreen(Screen):
             return
         _c, point, _p = self.current()
         text = self.query_one("#value", Input).value
+        if self._keep_message and not text:
+            return
+        self._keep_message = False
         value_input = self.query_one("#value", Input)
         try:
             self._condition()
@@ -376,6 +381,7 @@ class VisitScreen(Screen):
         shown = format_value(reading.value, self.bench.system)
         self._message(literal(f"✓ saved {reading.entered or shown} at {point.label} ({reading.condition.function.label})"
                               f"{unskipped}; reading {reading.id}"), "ok")
+        self._keep_message = True
 
     # --- actions ------------------------------------------------------------------------------
     def action_move_point(self, delta: int) -> None:

@@ -47,7 +47,6 @@ def next_line(next_test: NextTest | None, closed: bool) -> Text:
     out.append_text(literal(f"{verb}{next_test.label}", "bold"))
     out.append_text(literal(f" · {next_test.condition} · about {next_test.minutes:g} min · "
                             f"{next_test.gain_bits:.2f} bits"))
-    out.append("  (^n)", "dim")
     return out
 
 
@@ -58,12 +57,11 @@ def top_fault_line(diagnosis: Diagnosis | None, was: RankedFault | None) -> Text
         out.append("no ranking yet")
         return out
     top = diagnosis.faults[0]
-    out.append(prob_bar(top.probability, 8), "bold")
+    out.append(prob_bar(top.probability, 6), "bold")
     out.append(f" {percent(top.probability)} ")
     out.append_text(literal(top.display_title, "bold"))
     if was is not None and was.key != top.key:
         out.append_text(literal(f"  (was {was.display_title})", "italic"))
-    out.append("  (^f)", "dim")
     return out
 
 

@@ -20,6 +20,12 @@ from fieldkit.tui.step import GaugeFit, describe_when, range_text
 from fieldkit.tui.widgets.band import ReadingBands
 from fieldkit.units import DisplaySystem, format_value
 
+SHORT_STATE = {
+    FunctionState.NEUTRAL: "neutral",
+    FunctionState.FULL_STROKE: "full stroke",
+    FunctionState.STALLED: "stalled over relief",
+    FunctionState.UNDER_LOAD: "under load",
+}
 SEVERITY_MARK = {"danger": "‼ DANGER", "warning": "! WARNING", "notice": "i NOTICE"}
 FIT_MARK = {Level.OK: "✓ suits", Level.NOTE: "i note", Level.WARNING: "! check", Level.ERROR: "✗ DO NOT CONNECT"}
 
@@ -52,18 +58,17 @@ class StepPanel(VerticalScroll):
 
     def compose(self) -> ComposeResult:
         yield Static(id="step-head")
-        yield Static(id="step-next", classes="-hidden")
-        yield Static(id="step-info")
-        yield Static(id="step-gauge")
         yield ReadingBands(id="step-bands")
+        yield Static(id="step-gauge")
+        yield Static(id="step-info")
+        yield Static(id="step-next", classes="-hidden")
         yield Static(id="step-cautions")
 
     def show(self, view: StepView) -> None:
         tp = view.point
         head = Text(end="")
         head.append_text(literal(tp.label, "bold"))
-        head.append("  ")
-        head.append_text(literal(f"{view.circuit.name} · {tp.id}", "dim"))
+        head.append_text(literal(f"  {tp.id}", "dim"))
         if view.plan_point is not None:
             head.append(f"\n{view.plan_point.state.glyph} {view.plan_point.state.value}", "bold")
             if view.plan_point.why:
@@ -85,8 +90,8 @@ class StepPanel(VerticalScroll):
         if tp.max_pressure is not None:
             _row(info, "Max", f"{format_value(tp.max_pressure, view.system)} can reach this point")
         window = view.profile.test_window
-        _row(info, "Set", f"{view.function.label}, {format_value(view.profile.rated_speed)}, oil "
-                          f"{format_value(window.oil_min, view.system)}–{format_value(window.oil_max, view.system)}")
+        _row(info, "Set", f"{SHORT_STATE[view.function]} · {format_value(view.profile.rated_speed)} · oil "
+                          f"{format_value(window.oil_min, view.system)} to {format_value(window.oil_max, view.system)}")
         for rng in tp.expected:
             _row(info, "Expect", f"{range_text(rng, view.system)} ({describe_when(rng.when)})")
         if not tp.expected:
@@ -102,7 +107,9 @@ class StepPanel(VerticalScroll):
         widget.set_class(view.fit.level is Level.ERROR, "-error")
         widget.set_class(view.fit.level is Level.WARNING, "-warning")
 
-        self.query_one("#step-bands", ReadingBands).show(view.checks)
+        bands = self.query_one("#step-bands", ReadingBands)
+        bands.show(view.checks)
+        bands.display = bool(view.checks)
 
         cautions = Text(end="")
         for c in view.cautions:

@@ -1,0 +1,278 @@
+"""Closed-loop drives, open-circuit motors and spring-applied brakes released by pressure.
+
+Closed loop (``CircuitModel.p``, canonical units):
+
+* ``charge_disp`` charge pump displacement, ``charge_fill`` its fill, ``charge_c`` its own
+  internal leakage (L/min per bar at the reference temperature): the charge pump delivers
+  V · n · fill − c · p, so a worn (loose) charge pump sags as pressure rises;
+* ``charge_relief`` and ``flushing_relief`` settings (net of case, as data sheets give them);
+* ``hp_a`` / ``hp_b`` cross-port relief settings, read as the gauge shows them at stall;
+* ``pump_drain`` / ``motor_drain`` case drain at the stall pressure ``p_ref`` and the reference
+  temperature, ``pump_wear`` / ``motor_wear`` their multipliers; loop leakage is laminar, so it
+  scales with loop pressure and 1/viscosity;
+* ``drain_static``, ``drain_r``, ``case_extra`` what the pump case reads for its drain flow;
+* ``inlet_turb`` / ``inlet_lam`` / ``inlet_restrict`` charge pump inlet vacuum;
+  ``cfilter`` charge filter drop at the design charge flow.
+
+Charge pressure follows :func:`fieldkit.physics.closed_loop.expected_charge_pressure` (charge
+relief in neutral, the lower flushing relief in stroke, case pressure added) as long as
+:func:`fieldkit.physics.closed_loop.charge_flow_budget` says the charge pump covers what the loop
+loses; when it does not, the reliefs close and charge settles where the charge pump's sagging
+delivery meets the loop's leakage.
+
+Motor: ``drain`` (L/min at ``dp_ref``), ``wear``, ``load_dp`` (bar across the motor under the
+working load), ``line_loss``, case drain line as above. Brake: ``valve_drop``, ``loss`` (share of
+the supply lost to a leaking release circuit), ``leak`` (L/min that leak costs the supply),
+``vent``, and ``supply`` when the brake has its own supply point.
+"""
+
+from __future__ import annotations
+
+from fieldkit.model.condition import FunctionState
+from fieldkit.model.profile import Circuit, CircuitKind, TestPoint
+from fieldkit.model.roles import Role
+from fieldkit.physics.closed_loop import charge_flow_budget, expected_charge_pressure
+from fieldkit.physics.reliefs import ReliefValve, deadhead
+from fieldkit.simulate.machine import (
+    LEAKAGE_SCATTER, LOAD_SCATTER, RESTRICTION_SCATTER, SETTING_SCATTER, CircuitModel, Draw, Env, Machine,
+    any_bounds, bounds, middle, param, point,
+)
+from fieldkit.simulate.open_circuits import cavitation_fill, return_back
+from fieldkit.units import Q_
+
+#: Charge pump volumetric efficiency at its relief setting on a sound machine (simulator's
+#: estimate for a small gear or gerotor pump, from memory).
+CHARGE_EFFICIENCY = 0.92
+#: Charge pump size when the profile gives none: 10–15 % of the main pump (field notes,
+#: Machinery Lubrication 2016); the middle is used.
+CHARGE_SHARE = 0.125
+#: Loop pressure travelling at full stroke and working under load, as a share of the cross-port
+#: relief (simulator's choice of test conditions).
+STROKE_SHARE = 0.35
+LOAD_SHARE = 0.6
+#: Charge relief override: bar per L/min passing over it (a small direct-acting valve; own estimate).
+CHARGE_OVERRIDE_SLOPE = 0.02
+DEEPEST_VACUUM_BAR = 0.9
+
+
+# --- closed loop ---------------------------------------------------------------------------
+
+def loop_pressure(model: CircuitModel, state: FunctionState) -> float:
+    p = model.p
+    return {FunctionState.NEUTRAL: p["charge_relief"], FunctionState.FULL_STROKE: STROKE_SHARE * p["p_ref"],
+            FunctionState.UNDER_LOAD: LOAD_SHARE * p["p_ref"],
+            FunctionState.STALLED: 0.5 * (p["hp_a"] + p["hp_b"])}[state]
+
+
+def pump_drain(model: CircuitModel, state: FunctionState, env: Env) -> float:
+    p = model.p
+    return p["pump_drain"] * p["pump_wear"] * loop_pressure(model, state) / p["p_ref"] * env.leak
+
+
+def motor_drain(model: CircuitModel, state: FunctionState, env: Env) -> float:
+    p = model.p
+    return p["motor_drain"] * p["motor_wear"] * loop_pressure(model, state) / p["p_ref"] * env.leak
+
+
+def loop_case(model: CircuitModel, state: FunctionState, env: Env) -> float:
+    p = model.p
+    return p["drain_static"] + p["drain_r"] * pump_drain(model, state, env) + p["case_extra"]
+
+
+def charge_intake(model: CircuitModel, env: Env) -> float:
+    return model.p["charge_disp"] * env.speed_rpm / 1000.0
+
+
+def charge_vacuum(model: CircuitModel, env: Env) -> float:
+    p = model.p
+    x = charge_intake(model, env) / p["charge_q0"]
+    return (p["inlet_turb"] * x * x + p["inlet_lam"] * x * env.visc_ratio) * p["inlet_restrict"]
+
+
+def charge_pressure(machine: Machine, model: CircuitModel, state: FunctionState, env: Env) -> float:
+    """Charge gauge reading in a state (bar): the governing relief while the charge pump keeps
+    up, below it when the loop loses more than the charge pump gives."""
+    p = model.p
+    case = loop_case(model, state, env)
+    flushing = Q_(p["flushing_relief"], "bar") if p.get("flushing_relief") else None
+    expected = expected_charge_pressure(Q_(p["charge_relief"], "bar"), flushing, Q_(case, "bar"))
+    governing = (expected.neutral if state is FunctionState.NEUTRAL else expected.in_stroke).m_as("bar") - case
+    drawn = charge_intake(model, env) * p["charge_fill"] * cavitation_fill(charge_vacuum(model, env))
+    slip = p["charge_c"] * env.leak
+    at_setting = drawn - slip * max(governing, 0.0)
+    brake_leak = 0.0 if state is FunctionState.NEUTRAL else brake_demand(machine)
+    budget = charge_flow_budget(
+        Q_(p["charge_disp"], "cc/rev"), Q_(env.speed_rpm, "rpm"),
+        min(1.0, max(at_setting / charge_intake(model, env), 1e-4)),
+        Q_(pump_drain(model, state, env), "L/min"), Q_(motor_drain(model, state, env) + brake_leak, "L/min"),
+    )
+    if budget.keeps_loop_full:
+        net = governing + CHARGE_OVERRIDE_SLOPE * budget.surplus.m_as("L/min")
+    else:
+        net = max(0.0, (drawn - budget.demand.m_as("L/min")) / slip)
+    return net + case
+
+
+def brake_demand(machine: Machine) -> float:
+    """Oil leaking away in brake release circuits fed from charge pressure (L/min)."""
+    return sum(m.p.get("leak", 0.0) for m in machine.circuits.values() if m.kind is CircuitKind.BRAKE_RELEASE)
+
+
+def closed_loop(machine: Machine, model: CircuitModel, tp: TestPoint, state: FunctionState, env: Env) -> float | None:
+    role = tp.role
+    p = model.p
+    if role is Role.CHARGE_PRESSURE:
+        return charge_pressure(machine, model, state, env)
+    if role is Role.CASE_PRESSURE:
+        return loop_case(model, state, env)
+    if role is Role.PUMP_CASE_DRAIN_FLOW:
+        return pump_drain(model, state, env)
+    if role is Role.MOTOR_CASE_DRAIN_FLOW:
+        return motor_drain(model, state, env)
+    if role in (Role.LOOP_A_PRESSURE, Role.LOOP_B_PRESSURE) and state is FunctionState.STALLED:
+        setting = p["hp_a"] if role is Role.LOOP_A_PRESSURE else p["hp_b"]
+        return deadhead(ReliefValve("cross-port", Q_(setting, "bar"))).upstream.m_as("bar")
+    if role is Role.SUCTION_PRESSURE:
+        return -min(charge_vacuum(model, env), DEEPEST_VACUUM_BAR)
+    if role is Role.FILTER_PRESSURE_DROP:
+        delivered = charge_intake(model, env) * p["charge_fill"] * cavitation_fill(charge_vacuum(model, env))
+        return p["cfilter"] * delivered / p["charge_q0"] * env.visc_ratio
+    return None
+
+
+def build_closed_loop(machine: Machine, circuit: Circuit, draw: Draw) -> CircuitModel:
+    rated = machine.rated_rpm
+    disp = param(circuit, "pump_displacement") or 50.0
+    charge_disp = param(circuit, "charge_pump_displacement") or CHARGE_SHARE * disp
+    charge_pt = point(circuit, Role.CHARGE_PRESSURE)
+    charge = param(circuit, "charge_relief_setting") or middle(*bounds(charge_pt, FunctionState.NEUTRAL)) or 22.0
+    flushing = param(circuit, "flushing_relief_setting")
+    hp = (param(circuit, "high_pressure_relief_setting")
+          or middle(*bounds(point(circuit, Role.LOOP_A_PRESSURE), FunctionState.STALLED)) or 350.0)
+    q0 = charge_disp * rated / 1000.0
+    model = CircuitModel(circuit, {})
+    p = model.p
+    p.update(charge_disp=charge_disp, charge_q0=q0, charge_fill=1.0,
+             charge_c=draw((1 - CHARGE_EFFICIENCY) * q0 / charge, LEAKAGE_SCATTER),
+             charge_relief=draw(charge, SETTING_SCATTER), hp_a=draw(hp, SETTING_SCATTER),
+             hp_b=draw(hp, SETTING_SCATTER), p_ref=hp, pump_wear=1.0, motor_wear=1.0, case_extra=0.0,
+             inlet_restrict=1.0)
+    if flushing:
+        p["flushing_relief"] = draw(flushing, SETTING_SCATTER)
+    qth = disp * rated / 1000.0
+    pump = param(circuit, "case_drain_baseline")
+    if pump is None:
+        high = bounds(point(circuit, Role.PUMP_CASE_DRAIN_FLOW), FunctionState.STALLED)[1]
+        pump = 0.45 * high if high is not None else 0.02 * qth
+    high = bounds(point(circuit, Role.MOTOR_CASE_DRAIN_FLOW), FunctionState.STALLED)[1]
+    motor = 0.45 * high if high is not None else pump
+    p["pump_drain"] = draw(pump, LEAKAGE_SCATTER)
+    p["motor_drain"] = draw(motor, LEAKAGE_SCATTER)
+    max_case = param(circuit, "max_case_pressure") or any_bounds(point(circuit, Role.CASE_PRESSURE))[1] or 2.0
+    p["drain_static"] = 0.3
+    p["drain_r"] = draw(max(0.01, (0.35 * max_case - 0.3) / max(p["pump_drain"], 0.1)), RESTRICTION_SCATTER)
+    floor = any_bounds(point(circuit, Role.SUCTION_PRESSURE))[0]
+    vacuum = 0.4 * abs(floor) if floor is not None else 0.06
+    p["inlet_turb"] = draw(vacuum / 2, RESTRICTION_SCATTER)
+    p["inlet_lam"] = draw(vacuum / 2, RESTRICTION_SCATTER)
+    filt = middle(*any_bounds(point(circuit, Role.FILTER_PRESSURE_DROP)))
+    p["cfilter"] = draw(filt if filt is not None else 0.3, RESTRICTION_SCATTER)
+    return model
+
+
+# --- motor in an open circuit --------------------------------------------------------------
+
+def _supply_back(machine: Machine, env: Env) -> float:
+    feed = machine.first(CircuitKind.OPEN_FIXED_PUMP, CircuitKind.LOAD_SENSING, CircuitKind.PRESSURE_COMPENSATED)
+    return 0.0 if feed is None else return_back(feed, env)
+
+
+def motor(machine: Machine, model: CircuitModel, tp: TestPoint, state: FunctionState, env: Env) -> float | None:
+    role = tp.role
+    p = model.p
+    moving = state in (FunctionState.FULL_STROKE, FunctionState.UNDER_LOAD)
+    outlet = p["line_loss"] + _supply_back(machine, env)
+    load = p["load_dp"] if state is FunctionState.UNDER_LOAD else 0.5 * p["load_dp"]
+    drain = p["drain"] * p["wear"] * load / p["dp_ref"] * env.leak
+    if role is Role.LOOP_B_PRESSURE and moving:
+        return outlet
+    if role is Role.LOOP_A_PRESSURE and moving:
+        return outlet + load
+    if role is Role.MOTOR_CASE_DRAIN_FLOW and moving:
+        return drain
+    if role is Role.CASE_PRESSURE:
+        return p["drain_static"] + p["drain_r"] * (drain if moving else 0.0) + p["case_extra"]
+    return None
+
+
+def build_motor(machine: Machine, circuit: Circuit, draw: Draw) -> CircuitModel:
+    model = CircuitModel(circuit, {})
+    p = model.p
+    nominal_env = machine.env(machine.reference_c)
+    back = _supply_back(machine, nominal_env)
+    outlet_mid = middle(*bounds(point(circuit, Role.LOOP_B_PRESSURE), FunctionState.UNDER_LOAD))
+    line = max(0.5, (outlet_mid if outlet_mid is not None else back + 1.0) - back)
+    p["line_loss"] = draw(min(line, 1.0), RESTRICTION_SCATTER)
+    inlet_mid = middle(*bounds(point(circuit, Role.LOOP_A_PRESSURE), FunctionState.UNDER_LOAD))
+    load = (inlet_mid - back - p["line_loss"]) if inlet_mid is not None else 100.0
+    p["dp_ref"] = max(load, 10.0)
+    p["load_dp"] = draw(p["dp_ref"], LOAD_SCATTER)
+    drain = param(circuit, "case_drain_baseline")
+    if drain is None:
+        high = bounds(point(circuit, Role.MOTOR_CASE_DRAIN_FLOW), FunctionState.UNDER_LOAD)[1]
+        drain = 0.45 * high if high is not None else 0.5
+    p["drain"] = draw(drain, LEAKAGE_SCATTER)
+    p["wear"] = 1.0
+    max_case = param(circuit, "max_case_pressure") or any_bounds(point(circuit, Role.CASE_PRESSURE))[1] or 2.0
+    p["drain_static"] = 0.3
+    p["drain_r"] = draw(max(0.01, (0.35 * max_case - 0.3) / max(p["drain"], 0.1)), RESTRICTION_SCATTER)
+    p["case_extra"] = 0.0
+    return model
+
+
+# --- brake release --------------------------------------------------------------------------
+
+def brake_supply(machine: Machine, model: CircuitModel, state: FunctionState, env: Env) -> float | None:
+    """Pressure feeding the brake valve: its own supply figure, else the charge gallery of a
+    closed loop on the same machine, else a pilot supply."""
+    if "supply" in model.p:
+        return model.p["supply"]
+    loop = machine.first(CircuitKind.CLOSED_LOOP_DRIVE)
+    if loop is not None:
+        return charge_pressure(machine, loop, state, env)
+    pilot = machine.first(CircuitKind.PILOT_SUPPLY)
+    if pilot is not None:
+        return pilot.p["pilot"] - (1.0 if state is not FunctionState.NEUTRAL else 0.0)
+    return None
+
+
+def brake_release(machine: Machine, model: CircuitModel, tp: TestPoint, state: FunctionState, env: Env) -> float | None:
+    p = model.p
+    supply = brake_supply(machine, model, state, env)
+    if tp.role is Role.PILOT_PRESSURE:
+        return supply
+    if tp.role is Role.BRAKE_RELEASE_PRESSURE:
+        if state is FunctionState.NEUTRAL:
+            return p["vent"]
+        if supply is None:
+            return None
+        after_valve = max(0.0, supply - p["valve_drop"])
+        return after_valve * (1.0 - p["loss"])
+    return None
+
+
+def build_brake(machine: Machine, circuit: Circuit, draw: Draw) -> CircuitModel:
+    model = CircuitModel(circuit, {})
+    p = model.p
+    p.update(valve_drop=draw(0.5, RESTRICTION_SCATTER), loss=0.0, leak=0.0, vent=draw(0.2, LOAD_SCATTER))
+    supply_pt = point(circuit, Role.PILOT_PRESSURE)
+    if supply_pt is not None:
+        mid = middle(*any_bounds(supply_pt))
+        if mid is not None:
+            p["supply"] = draw(mid, SETTING_SCATTER)
+    return model
+
+
+__all__ = [
+    "brake_release", "build_brake", "build_closed_loop", "build_motor", "charge_pressure", "closed_loop", "motor",
+]

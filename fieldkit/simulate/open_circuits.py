@@ -1,0 +1,387 @@
+"""Open circuits: fixed pump with reliefs, load-sensing pump, pressure-compensated pump.
+
+Parameters a circuit model carries (``CircuitModel.p``), canonical units:
+
+* ``disp`` pump displacement (cc/rev); ``qr`` flow at rated speed and no load (L/min);
+  ``fill`` share of the displacement a fixed pump delivers at no load;
+* ``leak`` internal leakage (L/min) at ``p_test`` and the reference oil temperature, ``wear``
+  its multiplier (1 on a sound pump). Leakage through clearances is laminar, so it scales with
+  pressure and with 1/viscosity (slot flow, Hagen–Poiseuille);
+* ``ret_turb`` / ``ret_lam`` return line drop at ``qr`` (bar): the turbulent part (cooler,
+  hoses: ∝ Q², orifice law) and the laminar part (filter element: ∝ Q · ν); ``ret_restrict``
+  multiplies the turbulent part (a blocked or undersized line);
+* ``suc_turb`` / ``suc_lam`` / ``suc_restrict`` the same for the pump inlet (bar of vacuum);
+* ``centre_dp`` open-centre passage drop at ``qr`` (fixed pump, in neutral);
+* ``drain`` case drain flow (L/min) at ``p_test``, the reference temperature; ``drain_static``
+  and ``drain_r`` what the case reads for it (bar, bar per L/min), ``case_extra`` back pressure
+  added downstream of the case drain;
+* load sensing: ``standby``, ``margin``, ``cutoff``, ``ls_vent`` (signal in neutral),
+  ``load_p`` (work port pressure with a function moving), ``ls_ratio`` (signal over work port
+  pressure: 1 when the signal line holds); pressure compensated: ``cutoff``.
+
+Reliefs are arranged by the profile's ``relief_layout`` and solved with
+:func:`fieldkit.physics.reliefs.deadhead`, return back pressure included.
+"""
+
+from __future__ import annotations
+
+from fieldkit.model.condition import FunctionState
+from fieldkit.model.profile import Circuit, CircuitKind, ReliefLayout, TestPoint
+from fieldkit.model.roles import Role
+from fieldkit.physics.reliefs import Arrangement, Parallel, ReliefValve, Series, deadhead, opening_pressure
+from fieldkit.simulate.machine import (
+    LEAKAGE_SCATTER, LOAD_SCATTER, RESTRICTION_SCATTER, SETTING_SCATTER, CircuitModel, Draw, Env, Machine,
+    ReliefState, any_bounds, bounds, middle, param, point,
+)
+from fieldkit.units import Q_, Kind, to_canonical
+
+#: A pump starts to lose fill when its inlet vacuum passes about a quarter of a bar (air and
+#: vapour come out of the oil) and loses about a tenth of its fill per further 0.1 bar:
+#: the simulator's own simple model, not a published curve.
+CAVITATION_ONSET_BAR = 0.25
+#: A compound gauge cannot read below a near-perfect vacuum.
+DEEPEST_VACUUM_BAR = 0.9
+#: Pressure under load as a share of the cut-off or relief (simulator's choice of test load).
+LOAD_SHARE = 0.6
+#: The loading valve pressure of a flow test, as a share of the main relief (common practice:
+#: load the pump well up, below the relief so no oil bypasses).
+FLOW_TEST_SHARE = 0.8
+
+
+def cavitation_fill(vacuum_bar: float) -> float:
+    """Share of the displacement a pump still fills at this inlet vacuum."""
+    return max(0.3, 1.0 - max(0.0, vacuum_bar - CAVITATION_ONSET_BAR))
+
+
+# --- reliefs -------------------------------------------------------------------------------
+
+def main_relief_id(model: CircuitModel) -> str | None:
+    """The main relief: one named 'main', else the one set at the main_relief_setting figure,
+    else the first one in the layout."""
+    if not model.reliefs:
+        return None
+    if "main" in model.reliefs:
+        return "main"
+    figure = param(model.circuit, "main_relief_setting")
+    if figure is not None:
+        for rid, r in model.reliefs.items():
+            if abs(r.setting - figure) < 0.5:
+                return rid
+    layout = model.circuit.relief_layout
+    return layout.relief_ids()[0] if layout is not None else next(iter(model.reliefs))
+
+
+def _valve(rid: str, r: ReliefState) -> ReliefValve:
+    return ReliefValve(rid, Q_(r.setting, "bar"), Q_(r.override, "bar"), r.drain)
+
+
+def relief_tree(model: CircuitModel) -> Arrangement | None:
+    """The reliefs in circuit as a physics tree: the profile's layout (or all reliefs in
+    parallel, as the rule engine reads a profile without one), plus any relief wrongly joined
+    in parallel with the main one."""
+    if not model.reliefs:
+        return None
+    valves = {rid: _valve(rid, r) for rid, r in model.reliefs.items()}
+    main = main_relief_id(model)
+    extra = [valves[rid] for rid in model.parallel_extra if rid in valves]
+
+    def build(node: str | ReliefLayout, parent_parallel: bool) -> Arrangement:
+        if isinstance(node, str):
+            if node == main and extra and not parent_parallel:
+                return Parallel((valves[node], *extra))
+            return valves[node]
+        is_parallel = bool(node.parallel)
+        items = [build(m, is_parallel) for m in node.members()]
+        if is_parallel and main in node.members() and extra:
+            items.extend(extra)
+        return Parallel(tuple(items)) if is_parallel else Series(tuple(items))
+
+    layout = model.circuit.relief_layout
+    if layout is not None:
+        return build(layout, False)
+    in_circuit = [rid for rid in valves if rid not in model.parallel_extra]
+    if len(in_circuit) == 1:
+        return build(in_circuit[0], False)
+    return Parallel(tuple(valves[rid] for rid in valves))
+
+
+def downstream(model: CircuitModel, return_bar: float) -> float:
+    """Pressure all return flow must pass before tank: valves after the first item of a series
+    layout (a return check, a back-pressure valve) on top of the return line's own drop."""
+    layout = model.circuit.relief_layout
+    if layout is None or not layout.series or len(layout.series) < 2 or not model.reliefs:
+        return return_bar
+    tree = relief_tree(model)
+    if not isinstance(tree, Series):
+        return return_bar
+    return opening_pressure(Series(tree.items[1:]), Q_(return_bar, "bar")).m_as("bar")
+
+
+def relief_pressure(model: CircuitModel, return_bar: float) -> float | None:
+    """Pump-side pressure with the whole flow over the reliefs (physics.reliefs.deadhead)."""
+    tree = relief_tree(model)
+    if tree is None:
+        return None
+    return deadhead(tree, Q_(return_bar, "bar")).upstream.m_as("bar")
+
+
+# --- flows and line losses -------------------------------------------------------------------
+
+def intake(model: CircuitModel, env: Env) -> float:
+    """Oil the pump draws at full displacement (L/min)."""
+    return model.p["qth"] * env.speed_ratio
+
+
+def inlet_vacuum(model: CircuitModel, flow: float, env: Env) -> float:
+    x = flow / model.p["qr"]
+    p = model.p
+    return (p["suc_turb"] * x * x + p["suc_lam"] * x * env.visc_ratio) * p["suc_restrict"]
+
+
+def leakage(model: CircuitModel, pressure: float, env: Env) -> float:
+    p = model.p
+    return p["leak"] * p["wear"] * max(pressure, 0.0) / p["p_test"] * env.leak
+
+
+def max_delivery(model: CircuitModel, pressure: float, env: Env) -> float:
+    """What the pump delivers at full displacement against a pressure: what it fills less what
+    leaks back inside it."""
+    drawn = intake(model, env)
+    fill = model.p["fill"] * cavitation_fill(inlet_vacuum(model, drawn, env))
+    return max(0.0, drawn * fill - leakage(model, pressure, env))
+
+
+def return_drop(model: CircuitModel, flow: float, env: Env) -> float:
+    x = flow / model.p["qr"]
+    p = model.p
+    return p["ret_turb"] * p["ret_restrict"] * x * x + p["ret_lam"] * x * env.visc_ratio
+
+
+def filter_drop(model: CircuitModel, flow: float, env: Env) -> float:
+    return model.p["ret_lam"] * flow / model.p["qr"] * env.visc_ratio
+
+
+def drain_flow(model: CircuitModel, pressure: float, env: Env) -> float:
+    p = model.p
+    return p["drain"] * p["wear"] * max(pressure, 0.0) / p["p_test"] * env.leak
+
+
+def case_pressure(model: CircuitModel, drain: float) -> float:
+    p = model.p
+    return p["drain_static"] + p["drain_r"] * drain + p["case_extra"]
+
+
+# --- operating points ------------------------------------------------------------------------
+
+def _fixed_stall(model: CircuitModel, env: Env) -> tuple[float, float] | None:
+    """Stall pressure and the flow going over the reliefs."""
+    main = main_relief_id(model)
+    guess = model.reliefs[main].setting if main else 0.0
+    flow = max_delivery(model, guess, env)
+    pressure = relief_pressure(model, return_drop(model, flow, env))
+    return None if pressure is None else (pressure, flow)
+
+
+def _variable_limit(model: CircuitModel, env: Env) -> tuple[float, bool]:
+    """Highest pressure a variable pump reaches with a function stalled, and whether a relief
+    (not the pump's own cut-off or signal) sets it. A relief below the cut-off passes the
+    pump's whole flow; a leaking LS signal lets the pump settle where signal + margin meets
+    the work port pressure: p = margin / (1 − ratio)."""
+    p = model.p
+    limit = p["cutoff"]
+    ratio = p.get("ls_ratio", 1.0)
+    if ratio < 1.0:
+        limit = min(limit, p["margin"] / (1.0 - ratio))
+    full = max_delivery(model, limit, env)
+    relief = relief_pressure(model, return_drop(model, full, env))
+    if relief is not None and relief < limit:
+        return relief, True
+    return limit, False
+
+
+def _variable_pressure(model: CircuitModel, state: FunctionState, env: Env) -> float:
+    """Pump outlet pressure of a variable pump in a state."""
+    p = model.p
+    if state is FunctionState.STALLED:
+        return _variable_limit(model, env)[0]
+    if state is FunctionState.NEUTRAL:
+        return p.get("standby", p["cutoff"])
+    if model.kind is CircuitKind.LOAD_SENSING:
+        return min(p["load_p"] * p["ls_ratio"] + p["margin"], _variable_limit(model, env)[0])
+    return p["load_p"]
+
+
+def _variable_flow(model: CircuitModel, state: FunctionState, env: Env) -> float:
+    """Flow through the valve and back to tank: a small trickle in neutral and at a stall the
+    pump's own cut-off holds, the pump's full delivery with a function moving or a relief open."""
+    pressure = _variable_pressure(model, state, env)
+    if state is FunctionState.NEUTRAL:
+        return 0.02 * model.p["qr"]
+    if state is FunctionState.STALLED and not _variable_limit(model, env)[1]:
+        return 0.02 * model.p["qr"]
+    return min(max_delivery(model, pressure, env), model.p["qr"] * env.speed_ratio)
+
+
+def _shared(model: CircuitModel, role: Role, flow: float, env: Env) -> float | None:
+    if role is Role.RETURN_PRESSURE:
+        return return_drop(model, flow, env)
+    if role is Role.FILTER_PRESSURE_DROP:
+        return filter_drop(model, flow, env)
+    if role is Role.SUCTION_PRESSURE:
+        return -min(inlet_vacuum(model, intake(model, env) if model.kind is CircuitKind.OPEN_FIXED_PUMP else flow, env),
+                    DEEPEST_VACUUM_BAR)
+    return None
+
+
+def fixed_pump(machine: Machine, model: CircuitModel, tp: TestPoint, state: FunctionState, env: Env) -> float | None:
+    role = tp.role
+    p = model.p
+    if state is FunctionState.STALLED:
+        stall = _fixed_stall(model, env)
+        if stall is None:
+            return None
+        pressure, flow = stall
+        if role in (Role.STALL_PRESSURE, Role.PUMP_OUTLET_PRESSURE):
+            return pressure
+        return _shared(model, role, flow, env)
+    if state is FunctionState.UNDER_LOAD and role is Role.PUMP_FLOW:
+        return max_delivery(model, p["p_test"], env)
+    load = {FunctionState.NEUTRAL: 0.0, FunctionState.FULL_STROKE: LOAD_SHARE * p["p_test"],
+            FunctionState.UNDER_LOAD: p["p_test"]}[state]
+    flow = max_delivery(model, load, env)
+    if role is Role.PUMP_FLOW:
+        return flow
+    if role is Role.PUMP_OUTLET_PRESSURE and state is FunctionState.NEUTRAL:
+        x = flow / p["qr"]
+        return p["centre_dp"] * x * x + downstream(model, return_drop(model, flow, env))
+    return _shared(model, role, flow, env)
+
+
+def variable_pump(machine: Machine, model: CircuitModel, tp: TestPoint, state: FunctionState, env: Env) -> float | None:
+    role = tp.role
+    p = model.p
+    pressure = _variable_pressure(model, state, env)
+    if role is Role.LS_STANDBY_PRESSURE:
+        return p["standby"] if state is FunctionState.NEUTRAL else None
+    if role is Role.LS_SIGNAL_PRESSURE:
+        if state is FunctionState.NEUTRAL:
+            return p["ls_vent"]
+        if state is FunctionState.STALLED:
+            return pressure * p["ls_ratio"]
+        return p["load_p"] * p["ls_ratio"]
+    if role is Role.PUMP_OUTLET_PRESSURE:
+        return pressure
+    if role is Role.STALL_PRESSURE:
+        return pressure if state is FunctionState.STALLED else None
+    if role is Role.PUMP_CASE_DRAIN_FLOW:
+        return drain_flow(model, pressure, env)
+    if role is Role.CASE_PRESSURE:
+        return case_pressure(model, drain_flow(model, pressure, env))
+    if role is Role.PUMP_FLOW:
+        return max_delivery(model, pressure, env) if state is not FunctionState.NEUTRAL else 0.02 * p["qr"]
+    return _shared(model, role, _variable_flow(model, state, env), env)
+
+
+def stall_pressure(model: CircuitModel, env: Env) -> float | None:
+    """Pressure a stalled function in this circuit reads (for actuators fed from it)."""
+    if model.kind is CircuitKind.OPEN_FIXED_PUMP:
+        stall = _fixed_stall(model, env)
+        return None if stall is None else stall[0]
+    return _variable_limit(model, env)[0]
+
+
+def return_back(model: CircuitModel, env: Env) -> float:
+    """Back pressure a motor or actuator outlet sees in this circuit's return with a function
+    working: the downstream valves plus the return line at working flow."""
+    if model.kind is CircuitKind.OPEN_FIXED_PUMP:
+        flow = max_delivery(model, LOAD_SHARE * model.p["p_test"], env)
+    else:
+        flow = _variable_flow(model, FunctionState.FULL_STROKE, env)
+    return downstream(model, return_drop(model, flow, env))
+
+
+# --- healthy parameters ------------------------------------------------------------------------
+
+def _reliefs(circuit: Circuit, draw: Draw) -> dict[str, ReliefState]:
+    return {r.id: ReliefState(draw(to_canonical(r.setting, Kind.PRESSURE), SETTING_SCATTER),
+                              to_canonical(r.override, Kind.PRESSURE) if r.override is not None else 0.0,
+                              r.drain)
+            for r in circuit.reliefs}
+
+
+def build_open(machine: Machine, circuit: Circuit, draw: Draw) -> CircuitModel:
+    """Healthy parameters of an open circuit from its profile figures and expected ranges."""
+    kind = circuit.kind
+    fixed = kind is CircuitKind.OPEN_FIXED_PUMP
+    rated = machine.rated_rpm
+    disp = param(circuit, "pump_displacement")
+    rated_flow = param(circuit, "rated_flow")
+    if disp is None:
+        disp = (rated_flow if rated_flow is not None else 100.0) / rated * 1000.0 / 0.95
+    qth = disp * rated / 1000.0
+    qr = rated_flow if rated_flow is not None else (0.95 if fixed else 1.0) * qth
+    model = CircuitModel(circuit, {}, _reliefs(circuit, draw))
+    p = model.p
+    p.update(disp=disp, qth=qth, qr=qr, fill=min(1.0, qr / qth) if fixed else 1.0, wear=1.0,
+             ret_restrict=1.0, suc_restrict=1.0, case_extra=0.0, ls_ratio=1.0)
+    main = main_relief_id(model)
+    main_setting = model.reliefs[main].setting if main else param(circuit, "main_relief_setting")
+
+    # Settings of a variable pump; the flow test pressure of a fixed one.
+    cutoff = param(circuit, "compensator_setting") or middle(*bounds(point(circuit, Role.STALL_PRESSURE), FunctionState.STALLED))
+    if not fixed:
+        p["cutoff"] = draw(cutoff if cutoff else (main_setting or 200.0), SETTING_SCATTER)
+    if kind is CircuitKind.LOAD_SENSING:
+        standby = param(circuit, "ls_standby_setting") or middle(*bounds(point(circuit, Role.LS_STANDBY_PRESSURE), FunctionState.NEUTRAL)) or 25.0
+        margin = param(circuit, "ls_margin_setting") or max(10.0, standby - 4.0)
+        shift = draw(1.0, SETTING_SCATTER * 2) - 1.0  # one spring sets both
+        p.update(standby=standby * (1 + shift), margin=margin * (1 + shift), ls_vent=draw(0.3, LOAD_SCATTER))
+    if fixed:
+        p["p_test"] = round(FLOW_TEST_SHARE * (main_setting or 150.0) / 10.0) * 10.0
+        low, high = bounds(point(circuit, Role.PUMP_FLOW), FunctionState.UNDER_LOAD)
+        mid = middle(low, high)
+        leak = qr - mid if mid is not None and qr - mid > 0.01 * qr else 0.03 * qr
+        p["leak"] = draw(leak, LEAKAGE_SCATTER)
+        p["drain"] = 0.0
+    else:
+        p["p_test"] = p["cutoff"]
+        drain = param(circuit, "case_drain_baseline")
+        if drain is None:
+            high = bounds(point(circuit, Role.PUMP_CASE_DRAIN_FLOW), FunctionState.STALLED)[1]
+            drain = 0.4 * high if high is not None else 0.02 * qr
+        p["drain"] = draw(drain, LEAKAGE_SCATTER)
+        p["leak"] = p["drain"]  # what leaks inside a piston pump leaves by its case drain
+    p["load_p"] = draw(LOAD_SHARE * (p.get("cutoff") or main_setting or 150.0), LOAD_SCATTER)
+
+    # Case drain line: a static part plus a share proportional to drain flow, so a sound pump
+    # reads about a third of the allowed case pressure at its stall leakage (simulator's choice).
+    max_case = param(circuit, "max_case_pressure") or any_bounds(point(circuit, Role.CASE_PRESSURE))[1] or 2.0
+    p["drain_static"] = 0.3
+    p["drain_r"] = draw(max(0.01, (0.35 * max_case - 0.3) / max(p["drain"], 0.1)), RESTRICTION_SCATTER)
+
+    # Return line and filter, inlet: half of what the profile allows on a sound machine.
+    total = middle(*any_bounds(point(circuit, Role.RETURN_PRESSURE)))
+    if total is None:
+        figure = param(circuit, "return_back_pressure_max")
+        total = 0.5 * figure if figure is not None else 1.5
+    filt = middle(*any_bounds(point(circuit, Role.FILTER_PRESSURE_DROP)))
+    lam = min(filt if filt is not None else 0.4 * total, 0.8 * total)
+    p["ret_lam"] = draw(lam, RESTRICTION_SCATTER)
+    p["ret_turb"] = draw(total - lam, RESTRICTION_SCATTER)
+    floor = any_bounds(point(circuit, Role.SUCTION_PRESSURE))[0]
+    if floor is None:
+        floor = param(circuit, "min_suction_pressure")
+    vacuum = 0.35 * abs(floor) if floor is not None else 0.05
+    p["suc_turb"] = draw(vacuum / 2, RESTRICTION_SCATTER)
+    p["suc_lam"] = draw(vacuum / 2, RESTRICTION_SCATTER)
+    if fixed:
+        neutral = middle(*bounds(point(circuit, Role.PUMP_OUTLET_PRESSURE), FunctionState.NEUTRAL))
+        back = downstream(model, p["ret_turb"] + p["ret_lam"])
+        p["centre_dp"] = draw(max(0.5, (neutral if neutral is not None else back + 3.0) - back), RESTRICTION_SCATTER)
+    return model
+
+
+__all__ = [
+    "build_open", "cavitation_fill", "fixed_pump", "main_relief_id", "relief_pressure", "relief_tree",
+    "return_back", "stall_pressure", "variable_pump",
+]

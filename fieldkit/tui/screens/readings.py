@@ -1,0 +1,143 @@
+"""Every reading entered at one test point, including the ones corrected or deleted.
+
+Nothing is overwritten: a correction is a new reading that replaces the old one
+(store.correct_reading) and a deletion only marks the reading (store.delete_reading); this
+screen shows the whole trail so the job card and the technician agree on what happened.
+"""
+
+from __future__ import annotations
+
+from rich.text import Text
+from textual.app import ComposeResult
+from textual.screen import Screen
+from textual.widgets import DataTable, Static
+
+from fieldkit.errors import AmbiguousInputError, FieldkitError
+from fieldkit.model.profile import TestPoint
+from fieldkit.model.visit import Reading
+from fieldkit.session import Workbench
+from fieldkit.tui.widgets.keybar import KeyBar
+from fieldkit.tui import keys
+from fieldkit.tui.safe_text import literal
+from fieldkit.units import format_value
+
+
+def reading_status(r: Reading, readings: list[Reading]) -> str:
+    newer = next((x for x in readings if x.replaces == r.id), None)
+    if r.deleted_at is not None:
+        return f"deleted {r.deleted_at:%Y-%m-%d %H:%M}"
+    if newer is not None:
+        return f"corrected by {newer.id}"
+    return "stands" + (f" (corrects {r.replaces})" if r.replaces else "")
+
+
+class ReadingsScreen(Screen):
+    BINDINGS = keys.READINGS
+
+    def __init__(self, bench: Workbench, visit_id: str, point: TestPoint) -> None:
+        super().__init__()
+        self.bench, self.visit_id, self.point = bench, visit_id, point
+        self.readings: list[Reading] = []
+
+    def compose(self) -> ComposeResult:
+        title = Text(end="", no_wrap=True, overflow="ellipsis")
+        title.append("Readings at ", "bold")
+        title.append_text(literal(self.point.label, "bold"))
+        title.append(" · e corrects · x deletes · the trail is kept")
+        yield Static(title, id="topbar")
+        yield DataTable(id="trail", cursor_type="row", zebra_stripes=True)
+        yield Static("", id="trail-msg")
+        yield KeyBar()
+
+    def on_mount(self) -> None:
+        self.refresh_table()
+        self.query_one("#trail", DataTable).focus()
+
+    def refresh_table(self) -> None:
+        self.readings = self.bench.store.reading_history(self.visit_id, self.point.id)
+        table = self.query_one("#trail", DataTable)
+        table.clear(columns=True)
+        table.add_columns("id", "taken (UTC)", "entered", "value", "condition", "gauge", "status")
+        for r in self.readings:
+            table.add_row(literal(r.id), Text(f"{r.taken_at:%m-%d %H:%M}"), literal(r.entered),
+                          literal(format_value(r.value, self.bench.system)), literal(r.condition.describe()),
+                          literal(r.gauge or "—"), literal(reading_status(r, self.readings)), key=r.id)
+        if not self.readings:
+            self._say("No readings at this point yet.")
+
+    def _say(self, message: str) -> None:
+        self.query_one("#trail-msg", Static).update(literal(message))
+
+    def _selected(self) -> Reading | None:
+        table = self.query_one("#trail", DataTable)
+        if not self.readings or table.cursor_row is None or table.cursor_row >= len(self.readings):
+            return None
+        return self.readings[table.cursor_row]
+
+    def _standing(self) -> Reading | None:
+        r = self._selected()
+        if r is None:
+            self._say("Choose a reading first.")
+            return None
+        status = reading_status(r, self.readings)
+        if not status.startswith("stands"):
+            self._say(f"Reading {r.id} is {status}; only a standing reading can be changed.")
+            return None
+        return r
+
+    def action_correct(self) -> None:
+        from fieldkit.tui.screens.dialogs import LinePrompt
+
+        old = self._standing()
+        if old is None:
+            return
+
+        def check(text: str) -> str:
+            try:
+                self.bench.parse_for_point(self.point, text)
+            except AmbiguousInputError as exc:
+                return f"{exc} Type it without the separator (e.g. 2500 or 2.5)."
+            except FieldkitError as exc:
+                return str(exc)
+            return ""
+
+        def corrected(text: str | None) -> None:
+            if text is None:
+                return
+            try:
+                new = self.bench.record(self.visit_id, self.point.id, text, old.condition, gauge=old.gauge,
+                                        note=old.note, replaces=old.id)
+            except FieldkitError as exc:
+                self._say(f"✗ {exc} (nothing saved)")
+                return
+            self.refresh_table()
+            self._say(f"✓ {old.entered} corrected to {new.entered}; the old value stays in the trail")
+
+        self.app.push_screen(LinePrompt("Correct a reading", literal(
+            f"Reading {old.id} was entered as {old.entered!r} ({old.condition.describe()}). The corrected value:"),
+            value=old.entered, check=check), corrected)
+
+    def action_delete(self) -> None:
+        from fieldkit.tui.screens.dialogs import ConfirmDialog
+
+        r = self._standing()
+        if r is None:
+            return
+
+        def confirmed(yes: bool | None) -> None:
+            if not yes:
+                return
+            try:
+                self.bench.store.delete_reading(self.visit_id, r.id)
+            except FieldkitError as exc:
+                self._say(f"✗ {exc}")
+                return
+            self.refresh_table()
+            self._say(f"Reading {r.id} marked deleted; it stays in the trail.")
+
+        self.app.push_screen(ConfirmDialog("Delete this reading?", literal(
+            f"{r.entered} ({r.condition.describe()}) will no longer count. It stays in the record as deleted."),
+            yes="Delete", no="Keep"), confirmed)
+
+    def action_cancel(self) -> None:
+        self.dismiss(None)

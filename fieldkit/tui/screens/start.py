@@ -1,0 +1,273 @@
+"""The start screen: open visits first (one key resumes the latest), past visits, machines."""
+
+from __future__ import annotations
+
+from collections.abc import Callable, Iterable
+from pathlib import Path
+
+from rich.text import Text
+from textual import on
+from textual.app import ComposeResult
+from textual.containers import Vertical
+from textual.screen import Screen
+from textual.widgets import DataTable, Label, Static
+
+from fieldkit.errors import FieldkitError
+from fieldkit.model.visit import VisitStatus
+from fieldkit.session import Workbench, read_visit_file
+from fieldkit.store.base import VisitSummary
+from fieldkit.tui.widgets.keybar import KeyBar
+from fieldkit.tui import keys
+from fieldkit.tui.messages import explain
+from fieldkit.tui.safe_text import literal
+
+DEMO_OPEN_VISIT = "demo-open-visit.json"
+
+
+def visit_row(s: VisitSummary) -> list[Text]:
+    return [literal(s.job_number), Text(s.date.isoformat()), literal(s.machine), Text(str(s.reading_count)),
+            literal(s.customer)]
+
+
+class StartScreen(Screen):
+    """Where a technician picks up work: resume, start, import, or look back."""
+
+    BINDINGS = keys.START
+
+    def __init__(self, bench: Workbench, *, demo: bool = False) -> None:
+        super().__init__()
+        self.bench = bench
+        self.demo = demo
+        self.summaries: list[VisitSummary] = []
+
+    def compose(self) -> ComposeResult:
+        yield Static(id="topbar")
+        with Vertical(id="start-body"):
+            yield Label("Open visits  (r resumes the latest · Enter opens)", classes="section-title")
+            yield DataTable(id="open-visits", cursor_type="row")
+            yield Label("Past visits", classes="section-title")
+            yield DataTable(id="past-visits", cursor_type="row", zebra_stripes=True)
+            yield Label("Machines  (Enter starts a visit · h history)", classes="section-title")
+            yield DataTable(id="machines", cursor_type="row")
+        yield Static("", id="start-msg")
+        yield KeyBar()
+
+    def on_mount(self) -> None:
+        for table_id in ("#open-visits", "#past-visits"):
+            self.query_one(table_id, DataTable).add_columns("job", "date", "machine", "readings", "customer")
+        self.query_one("#machines", DataTable).add_columns("machine", "id", "circuits", "visits")
+        self.refresh_lists()
+        self.query_one("#open-visits" if self._open() else "#past-visits", DataTable).focus()
+
+    def on_screen_resume(self) -> None:
+        self.refresh_lists()
+
+    # --- lists ------------------------------------------------------------------------------
+    def _open(self) -> list[VisitSummary]:
+        return [s for s in self.summaries if s.status is VisitStatus.OPEN]
+
+    def refresh_lists(self) -> None:
+        self.summaries = self.bench.store.list_visits()
+        title = Text(end="", no_wrap=True, overflow="ellipsis")
+        if self.demo:
+            title.append(" DEMO ", "reverse bold")
+            title.append(" ")
+        title.append("fieldkit", "bold")
+        title.append(" · hydraulic test visits · store ")
+        title.append_text(literal(str(self.bench.store.path)))
+        self.query_one("#topbar", Static).update(title)
+        open_table = self.query_one("#open-visits", DataTable)
+        past_table = self.query_one("#past-visits", DataTable)
+        for table in (open_table, past_table):
+            table.clear()
+        opened = sorted(self._open(), key=lambda s: s.updated_at, reverse=True)
+        for s in opened:
+            open_table.add_row(*visit_row(s), key=s.id)
+        for s in self.summaries:
+            if s.status is VisitStatus.CLOSED:
+                past_table.add_row(*visit_row(s), key=s.id)
+        if not opened:
+            open_table.add_row(Text("no open visit: n starts one"), Text(""), Text(""), Text(""), Text(""), key="-none-")
+        machines = self.query_one("#machines", DataTable)
+        machines.clear()
+        counts: dict[str, int] = {}
+        for s in self.summaries:
+            counts[s.machine] = counts.get(s.machine, 0) + 1
+        for pid in self.bench.library.ids():
+            p = self.bench.library.get(pid)
+            machines.add_row(literal(p.name), literal(p.id), Text(str(len(p.circuits))), Text(str(counts.get(pid, 0))),
+                             key=f"machine:{pid}")
+
+    def _say(self, message: str | Text) -> None:
+        self.query_one("#start-msg", Static).update(message if isinstance(message, Text) else literal(message))
+
+    # --- opening ----------------------------------------------------------------------------
+    def open_visit(self, visit_id: str) -> None:
+        from fieldkit.tui.screens.visit import VisitScreen
+
+        try:
+            visit = self.bench.store.get_visit(visit_id)
+            self.bench.profile_for(visit)
+        except FieldkitError as exc:
+            self._say(explain(exc, "✗ cannot open that visit"))
+            return
+        self.app.push_screen(VisitScreen(self.bench, visit_id, demo=self.demo))
+
+    @on(DataTable.RowSelected)
+    def _row_chosen(self, event: DataTable.RowSelected) -> None:
+        key = event.row_key.value
+        if key is None or key == "-none-":
+            if key == "-none-":
+                self.action_new_visit()
+            return
+        if key.startswith("machine:"):
+            self.action_new_visit(key.removeprefix("machine:"))
+        else:
+            self.open_visit(key)
+
+    def action_open_selected(self) -> None:
+        focused = self.focused
+        if isinstance(focused, DataTable) and focused.row_count:
+            focused.action_select_cursor()
+
+    def action_resume_latest(self) -> None:
+        opened = sorted(self._open(), key=lambda s: s.updated_at, reverse=True)
+        if not opened:
+            self._say("No open visit to resume: n starts a new one, d opens the demo.")
+            return
+        self.open_visit(opened[0].id)
+
+    def action_new_visit(self, machine: str | None = None) -> None:
+        from fieldkit.tui.screens.new_visit import NewVisitScreen
+
+        def created(visit_id: str | None) -> None:
+            if visit_id:
+                self.refresh_lists()
+                self.open_visit(visit_id)
+
+        self.app.push_screen(NewVisitScreen(self.bench, machine), created)
+
+    def action_open_demo(self) -> None:
+        opener: Callable[[], None] | None = getattr(self.app, "open_demo", None)
+        if self.demo:
+            self.open_demo_visit()
+        elif opener is not None:
+            opener()
+
+    def open_demo_visit(self) -> None:
+        """The demo's open visit; when it was closed, a fresh copy of it."""
+        from fieldkit.resources import samples_dir
+
+        path = samples_dir() / "visits" / DEMO_OPEN_VISIT
+        try:
+            sample, _ = read_visit_file(path)
+        except FieldkitError as exc:
+            self._say(explain(exc, "✗ the demo visit cannot be read"))
+            return
+        open_ids = {s.id for s in self._open()}
+        if sample.id in open_ids:
+            self.open_visit(sample.id)
+            return
+        copy = self.bench.store.import_visit(sample, as_new=True)
+        self._say(f"The demo visit was closed; a fresh copy ({copy.id}) is opened.")
+        self.refresh_lists()
+        self.open_visit(copy.id)
+
+    # --- import -----------------------------------------------------------------------------
+    def _selected_open_visit(self) -> VisitSummary | None:
+        table = self.query_one("#open-visits", DataTable)
+        opened = sorted(self._open(), key=lambda s: s.updated_at, reverse=True)
+        if not opened:
+            return None
+        row = table.cursor_row if table.cursor_row is not None and table.cursor_row < len(opened) else 0
+        return opened[row]
+
+    def action_import_file(self) -> None:
+        from fieldkit.tui.screens.dialogs import LinePrompt, existing_file
+
+        target = self._selected_open_visit()
+        where = (f"; a CSV of readings goes into the highlighted open visit ({target.job_number})" if target
+                 else "; a CSV of readings needs an open visit")
+
+        def chosen(text: str | None) -> None:
+            if text:
+                self.import_path(Path(text.strip()).expanduser())
+
+        self.app.push_screen(LinePrompt("Import", literal(f"Path of a visit JSON file or a CSV of readings{where}:"),
+                                        check=existing_file((".json", ".csv"))), chosen)
+
+    def import_path(self, path: Path) -> None:
+        from fieldkit.tui.screens.dialogs import ConfirmDialog
+        from fieldkit.tui.screens.visit import import_readings_csv
+
+        if path.suffix.lower() == ".csv":
+            target = self._selected_open_visit()
+            if target is None:
+                self._say("✗ nothing imported: a CSV of readings needs an open visit to go into")
+                return
+            message = import_readings_csv(self.bench, target.id, path)
+            self._say(message)
+            self.refresh_lists()
+            return
+        try:
+            visit, embedded = read_visit_file(path)
+            if embedded is None:
+                self.bench.library.get(visit.machine)
+            else:
+                self.bench.library.get(embedded.id)
+        except FieldkitError as exc:
+            self._say(explain(exc, "✗ nothing imported"))
+            return
+        if any(s.id == visit.id for s in self.summaries):
+            def as_copy(yes: bool | None) -> None:
+                if yes:
+                    self._import_visit(visit, as_new=True)
+            self.app.push_screen(ConfirmDialog("Already in the store", literal(
+                f"Visit {visit.job_number} ({visit.id}) is already in the store. Import it again as a copy with new ids?"),
+                yes="Import a copy", no="Cancel"), as_copy)
+            return
+        self._import_visit(visit, as_new=False)
+
+    def _import_visit(self, visit, *, as_new: bool) -> None:  # noqa: ANN001
+        try:
+            stored = self.bench.store.import_visit(visit, as_new=as_new)
+        except FieldkitError as exc:
+            self._say(explain(exc, "✗ nothing imported"))
+            return
+        self._say(f"✓ imported visit {stored.job_number} ({len(stored.current_readings())} readings)")
+        self.refresh_lists()
+
+    # --- history ----------------------------------------------------------------------------
+    def action_machine_history(self) -> None:
+        from fieldkit.tui.screens.history import HistoryScreen
+
+        focused = self.focused
+        if not isinstance(focused, DataTable) or not focused.row_count or focused.cursor_row is None:
+            self._say("Highlight a visit or a machine first.")
+            return
+        key = focused.coordinate_to_cell_key(focused.cursor_coordinate).row_key.value or ""
+        try:
+            if key.startswith("machine:"):
+                profile = self.bench.library.get(key.removeprefix("machine:"))
+                visit = None
+            elif key != "-none-":
+                visit = self.bench.store.get_visit(key)
+                profile = self.bench.profile_for(visit)
+            else:
+                return
+        except FieldkitError as exc:
+            self._say(explain(exc, "✗ no history"))
+            return
+        self.app.push_screen(HistoryScreen(self.bench, profile, visit))
+
+    def palette_commands(self) -> Iterable[tuple[str, str, Callable[[], object]]]:
+        yield "Resume the latest open visit", "pick up where you left off", self.action_resume_latest
+        yield "New visit", "machine, job number, customer, hour meter", self.action_new_visit
+        yield "Open the demo", "the bundled sample visits", self.action_open_demo
+        yield "Import a visit (JSON) or readings (CSV)", "from another laptop or a logger", self.action_import_file
+        for s in self.summaries:
+            state = "open" if s.status is VisitStatus.OPEN else "closed"
+            yield (f"Open visit {s.job_number} · {s.machine} · {s.date.isoformat()}", f"{state} visit",
+                   lambda vid=s.id: self.open_visit(vid))
+        for pid in self.bench.library.ids():
+            yield f"New visit on {pid}", "start a visit on this machine", lambda p=pid: self.action_new_visit(p)
