@@ -21,7 +21,7 @@ from fieldkit.model.profile import MachineProfile, TestPoint
 from fieldkit.model.visit import Reading, Visit
 from fieldkit.settings import Settings, data_home
 from fieldkit.store import SqliteVisitStore, open_store
-from fieldkit.tomlfile import validation_error
+from fieldkit.tomlfile import read_text, validation_error
 from fieldkit.units import DisplaySystem, Kind, parse_value, to_canonical
 
 MAX_VISIT_FILE = 20_000_000
@@ -33,16 +33,7 @@ def read_visit_file(path: Path) -> tuple[Visit, MachineProfile | None]:
 
     from fieldkit.store.transfer import FORMAT_KEY, read_visit_json
 
-    try:
-        size = path.stat().st_size
-    except OSError as exc:
-        raise DataFileError(str(path), f"cannot read: {exc.strerror or exc}") from None
-    if size > MAX_VISIT_FILE:
-        raise DataFileError(str(path), f"file is {size:,} bytes; a visit file is at most {MAX_VISIT_FILE:,}")
-    try:
-        text = path.read_text(encoding="utf-8")
-    except (OSError, UnicodeDecodeError) as exc:
-        raise DataFileError(str(path), f"cannot read as UTF-8 text: {exc}") from None
+    text = read_text(path, MAX_VISIT_FILE)
     try:
         data = json.loads(text)
     except json.JSONDecodeError as exc:

@@ -9,7 +9,9 @@ from __future__ import annotations
 from enum import StrEnum
 from pathlib import Path
 
-from pydantic import Field, model_validator
+from typing import Annotated
+
+from pydantic import AfterValidator, Field
 
 from fieldkit.errors import DataFileError
 from fieldkit.model.base import Strict
@@ -22,10 +24,22 @@ ANY_CIRCUIT = "*"
 NO_FAULT = "no_fault"
 
 
+def _known_kinds(kinds: list[str]) -> list[str]:
+    known = {k.value for k in CircuitKind} | {ANY_CIRCUIT}
+    bad = [c for c in kinds if c not in known]
+    if bad:
+        raise ValueError(f"unknown circuit kind(s) {', '.join(bad)}; known: {', '.join(sorted(known))}")
+    return kinds
+
+
+#: Circuit kinds a fault or rule applies to ("*" for any machine), checked against CircuitKind.
+CircuitKinds = Annotated[list[str], Field(min_length=1), AfterValidator(_known_kinds)]
+
+
 class Fault(Strict):
     id: str = Field(pattern=r"^[a-z][a-z0-9_]*$")
     title: str
-    circuits: list[str] = Field(min_length=1)
+    circuits: CircuitKinds
     prior: float = Field(gt=0, le=1)
     prior_source: str = Field(min_length=3)
     description: str
@@ -33,14 +47,6 @@ class Fault(Strict):
     fix: str
     parts: list[str] = Field(default_factory=list)
     check_minutes: float = Field(default=30, gt=0, le=24 * 60)
-
-    @model_validator(mode="after")
-    def _kinds(self) -> Fault:
-        known = {k.value for k in CircuitKind} | {ANY_CIRCUIT}
-        bad = [c for c in self.circuits if c not in known]
-        if bad:
-            raise ValueError(f"unknown circuit kind(s) {', '.join(bad)}; known: {', '.join(sorted(known))}")
-        return self
 
     @property
     def machine_wide(self) -> bool:

@@ -15,13 +15,12 @@ from typing import Any
 
 from pydantic import Field, model_validator
 
-from fieldkit.diagnosis.catalogue import ANY_CIRCUIT
+from fieldkit.diagnosis.catalogue import ANY_CIRCUIT, CircuitKinds
 from fieldkit.diagnosis.expr import ExprError, compile_expression
 from fieldkit.diagnosis.symbols import DERIVED, FUNCTIONS, SYMBOLS, names_to_roles
 from fieldkit.errors import DataFileError
 from fieldkit.model.base import Strict
 from fieldkit.model.condition import FunctionState
-from fieldkit.model.profile import CircuitKind
 from fieldkit.tomlfile import key_lines, line_for, parse_toml, read_text, validate
 
 #: Probability that a healthy machine (or a fault the rule does not name) reads low or high here
@@ -49,7 +48,7 @@ class RuleSpec(Strict):
 
     id: str = Field(pattern=r"^[a-z][a-z0-9\-]*$", max_length=60)
     title: str = Field(min_length=3, max_length=120)
-    circuits: list[str] = Field(min_length=1, description="circuit kinds, or '*' for machine-wide")
+    circuits: CircuitKinds = Field(description="circuit kinds, or '*' for machine-wide")
     when: list[FunctionState] = Field(default_factory=list, description="function states the readings are taken in")
     value: str = Field(min_length=1)
     limits: str | None = Field(default=None, pattern="^expected$")
@@ -82,10 +81,6 @@ class RuleSpec(Strict):
             p_high = self.if_high.get(fault, self.healthy.high)
             if p_low + p_high > 1 - MIN_LIKELIHOOD:
                 raise ValueError(f"for {fault}, P(low) + P(high) = {p_low + p_high:.2f} leaves no room for 'in range'")
-        known = {k.value for k in CircuitKind} | {ANY_CIRCUIT}
-        bad = [c for c in self.circuits if c not in known]
-        if bad:
-            raise ValueError(f"unknown circuit kind(s) {', '.join(bad)}; known: {', '.join(sorted(known))}")
         return self
 
     @property
