@@ -381,6 +381,15 @@ def parse_quantity(text: str, expect: Kind | None = None, **kwargs: Any) -> pint
 def kind_of(q: pint.Quantity) -> Kind:
     """The kind of a quantity that arrived from code. Volume and displacement share a dimension
     once revolutions cancel; displacement wins only when the unit says 'per revolution'."""
+    kind = _kind_of_units(q.units)
+    if kind is None:
+        raise DimensionError(f"{q:~P} is not a quantity fieldkit uses")
+    return kind
+
+
+@lru_cache(maxsize=512)
+def _kind_of_units(units: pint.Unit) -> Kind | None:
+    q = Q_(1.0, units)
     dim = q.dimensionality
     per_rev = any(name in ("revolution", "turn") and power < 0 for name, power in q.unit_items())
     if per_rev and dim == _dimensionality(Kind.DISPLACEMENT):
@@ -390,7 +399,7 @@ def kind_of(q: pint.Quantity) -> Kind:
             continue
         if dim == _dimensionality(kind):
             return kind
-    raise DimensionError(f"{q:~P} is not a quantity fieldkit uses")
+    return None
 
 
 def require(q: Any, kind: Kind, what: str = "value") -> pint.Quantity:
@@ -403,9 +412,25 @@ def require(q: Any, kind: Kind, what: str = "value") -> pint.Quantity:
     return q
 
 
+@lru_cache(maxsize=512)
+def _affine(source: pint.Unit, target: pint.Unit) -> tuple[float, float]:
+    """y = offset + scale·x between two units, worked out once by pint (temperatures are affine,
+    everything else linear). pint's own .to() costs tens of µs a call; the diagnosis converts
+    every reading several times per keystroke."""
+    offset = float(Q_(0.0, source).to(target).magnitude)
+    scale = float(Q_(1.0, source).to(target).magnitude) - offset
+    return scale, offset
+
+
+def magnitude_in(q: pint.Quantity, target: pint.Unit) -> float:
+    """The magnitude of ``q`` in ``target`` (raises pint.DimensionalityError on a wrong kind)."""
+    scale, offset = _affine(q.units, target)
+    return offset + scale * float(q.magnitude)
+
+
 def to_canonical(q: pint.Quantity, kind: Kind) -> float:
     """Magnitude in the kind's canonical unit (bar, L/min, °C…): what ranges and rules compare."""
-    return float(q.to(unit(CANONICAL_UNIT[kind])).magnitude)
+    return magnitude_in(q, unit(CANONICAL_UNIT[kind]))
 
 
 # --- gauge and absolute -------------------------------------------------------------------
@@ -479,7 +504,8 @@ def convert(q: pint.Quantity, spelling: str) -> pint.Quantity:
         raise UnitInputError(f"'{spelling}' is not a unit fieldkit knows; try {_suggest(spelling)}")
     unit_expr, kind = SPELLINGS[spelling]
     try:
-        return q.to(unit(unit_expr))
+        target = unit(unit_expr)
+        return Q_(magnitude_in(q, target), target)
     except pint.DimensionalityError:
         raise DimensionError(f"{_plain(q)} is a {kind_of(q).value}; it cannot be shown in {spelling} ({kind.value})") from None
 

@@ -132,7 +132,8 @@ class Evaluator:
         states = tuple(states)
         found = [m for m in scope.by_role.get(role, []) if not states or m.reading.condition.function in states]
         if not found:
-            raise Missing(role, states[0] if len(states) == 1 else None)
+            # The first state the rule names is the one to ask the technician to set.
+            raise Missing(role, states[0] if states else None)
         return found[-1]
 
     def parameter(self, scope: Scope, name: str) -> float:
@@ -242,7 +243,7 @@ class Evaluator:
                         expected_from = used[0]
             except Missing as miss:
                 label = ROLES[miss.role].label
-                state = miss.state or (spec.when[0] if len(spec.when) == 1 else None)
+                state = miss.state or (spec.when[0] if spec.when else None)
                 missing.append(f"{label} ({state.label})" if state else label)
                 missing_roles.append((miss.role, state))
             except NotApplicable:

@@ -41,9 +41,15 @@ def _matrices(rules: list[tuple[Rule, Scope]], hyps: list[Hypothesis]) -> list[l
     return [[likelihoods(rule, scope.circuit, unit, hyps) for unit in _UNIT] for rule, scope in rules]
 
 
-def _expected_entropy(prior: list[float], mats: list[list[list[float]]]) -> tuple[float, list[tuple[float, list[float]]]]:
-    per_outcome: list[tuple[float, list[float]]] = []
-    expected = 0.0
+def _expected_entropy(prior: list[float], mats: list[list[list[float]]], soft: tuple[float, float, float] | None = None
+                      ) -> tuple[float, list[tuple[tuple[int, ...], float, list[float]]]]:
+    """Expected entropy after observing the rules' outcomes, and (outcomes, P, posterior) per combination.
+
+    ``soft`` is the virtual evidence already held about a single rule's outcome (an inconclusive
+    reading): then P(outcome) ∝ Σ_h prior(h)·P(outcome | h)·soft(outcome), with ``prior`` the
+    ranking without that reading, and the posterior after a precise repeat is prior·P(outcome | h).
+    """
+    per_outcome: list[tuple[tuple[int, ...], float, list[float]]] = []
     for combo in itertools.product(range(3), repeat=len(mats)):
         joint = list(prior)
         for mat, o in zip(mats, combo):
@@ -52,9 +58,11 @@ def _expected_entropy(prior: list[float], mats: list[list[list[float]]]) -> tupl
         p = sum(joint)
         if p <= 0:
             continue
-        post = [j / p for j in joint]
-        expected += p * entropy_bits(post)
-        per_outcome.append((p, post))
+        weight = p * (soft[combo[0]] if soft is not None else 1.0)
+        per_outcome.append((combo, weight, [j / p for j in joint]))
+    total = sum(w for _, w, _ in per_outcome)
+    per_outcome = [(c, w / total, post) for c, w, post in per_outcome if w > 0]
+    expected = sum(w * entropy_bits(post) for _, w, post in per_outcome)
     return expected, per_outcome
 
 
@@ -104,27 +112,27 @@ def suggest(evaluator: Evaluator, pairs: list[tuple[Rule, Scope, Finding]], hyps
     for cand in candidates.values():
         rules = cand.rules[:MAX_JOINT_RULES]
         mats = _matrices(rules, hyps)
+        soft: tuple[float, float, float] | None = None
         if cand.repeat_of is not None:
-            # Take the soft finding out again, then ask what a hard answer would leave.
+            # Take the soft finding out again: a precise repeat replaces it with a hard outcome.
             base = [lg - cand.repeat_of.evidence.get(h.key, 0.0) for lg, h in zip(findings_logs, hyps)]
             top = max(base)
             prior = [math.exp(b - top) for b in base]
             total = sum(prior)
             prior = [p / total for p in prior]
+            mats = mats[:1]
+            f = cand.repeat_of
+            soft = (f.p_low, f.p_in_range, f.p_high)
         else:
             prior = posterior
-        expected, per_outcome = _expected_entropy(prior, mats[:1] if cand.repeat_of else mats)
+        expected, _ = _expected_entropy(prior, mats, soft)
         gain = max(0.0, now - expected)
         if gain < 1e-3:
             continue
         minutes = cand.point.minutes
-        outcomes: dict[str, str] = {}
-        first = mats[0]
-        for o, name in enumerate(OUTCOMES):
-            joint = [p * first[o][i] for i, p in enumerate(prior)]
-            p_o = sum(joint)
-            if p_o > 0.05:
-                outcomes[name] = _describe([j / p_o for j in joint], hyps)
+        # What each outcome of the first rule alone would say, for the sentence.
+        _, first = _expected_entropy(prior, mats[:1], soft)
+        outcomes = {OUTCOMES[combo[0]]: _describe(post, hyps) for combo, p_o, post in first if p_o > 0.05}
         state_text = cand.state.label if cand.state else "any condition"
         advice = ""
         if cand.repeat_of is not None and cand.point.kind is Kind.PRESSURE:

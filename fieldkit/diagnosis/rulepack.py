@@ -17,6 +17,7 @@ from pydantic import Field, model_validator
 
 from fieldkit.diagnosis.catalogue import ANY_CIRCUIT, CircuitKinds
 from fieldkit.diagnosis.expr import ExprError, compile_expression
+from fieldkit.diagnosis.expr.dims import describe
 from fieldkit.diagnosis.symbols import DERIVED, FUNCTIONS, SYMBOLS, names_to_roles
 from fieldkit.errors import DataFileError
 from fieldkit.model.base import Strict
@@ -135,7 +136,7 @@ def _compile(source: str, path: str, line: int | None, key: str) -> Any:
     try:
         return compile_expression(source, SYMBOLS, FUNCTIONS)
     except ExprError as exc:
-        raise DataFileError(path, f"{key}: {exc}", line=line, key=key) from None
+        raise DataFileError(path, str(exc), line=line, key=key) from None
 
 
 def load_pack(path: Path) -> list[Rule]:
@@ -176,7 +177,7 @@ def _single_reading(names: frozenset[str]) -> bool:
 
 
 def _dim(result: Any) -> str:
-    return str(result)
+    return describe(result)
 
 
 def load_packs(folder: Path) -> list[Rule]:

@@ -33,9 +33,9 @@ from fieldkit.model.gauge import Gauge
 from fieldkit.model.loading import ProfileLibrary, load_profile, load_templates
 from fieldkit.model.parameters import PARAMETERS
 from fieldkit.model.profile import Circuit, MachineProfile, ReliefLayout, TestPoint
-from fieldkit.model.roles import ROLES, Role
+from fieldkit.model.roles import Role
 from fieldkit.model.visit import Reading, Visit
-from fieldkit.units import CANONICAL_UNIT, Kind, Q_, to_canonical, unit
+from fieldkit.units import CANONICAL_UNIT, Q_, Kind, to_canonical, unit
 
 ROOT = Path(__file__).resolve().parents[2]
 RULES = ROOT / "rules"
@@ -309,7 +309,8 @@ class Scene:
     def value_at(self, free_si: float) -> float:
         env = dict(self.figures)
         for need in self.needs:
-            env[need.name] = free_si if need.name == self.free else si_of(need.point.kind, self.nominal[need.name])
+            nominal = si_of(need.point.kind, self.nominal[need.name])
+            env[need.name] = free_si if need.name == self.free else nominal
         # A leakage normalised to the reference temperature (pump_case_drain_flow_at_ref) is
         # read at that temperature here, so the viscosity ratio is exactly 1: the reading itself.
         return float(self.rule.value.evaluate(env))
@@ -419,8 +420,8 @@ def _figure(name: str, profile: MachineProfile, circuits: list[Circuit]) -> floa
 
 def _try_scene(rule: Rule, profile: MachineProfile, circuit: Circuit | None) -> Scene:
     spec = rule.spec
-    points = [tp for c in profile.circuits for tp in c.test_points] if circuit is None else circuit.test_points
     circuits = list(profile.circuits) if circuit is None else [circuit]
+    points = [tp for c in circuits for tp in c.test_points]
     needs: list[ReadingNeed] = []
     figures: dict[str, float] = {}
     for name in sorted(rule.names):
@@ -442,7 +443,7 @@ def _try_scene(rule: Rule, profile: MachineProfile, circuit: Circuit | None) -> 
     if not needs:
         raise NoScene("the rule reads no test point")
     nominal = {n.name: _nominal(n.point, n.state) for n in needs}
-    free = sorted(n.name for n in needs if n.name in rule.value.names)[0]
+    free = min(n.name for n in needs if n.name in rule.value.names)
     low = high = None
     if spec.limits == "expected":
         (need,) = needs
@@ -485,8 +486,27 @@ def scene_for(rule: Rule) -> Scene:
 
 
 __all__ = [
-    "BENCH_PROFILE_TOML", "DEMO_OPEN_VISIT", "NoScene", "PROFILES", "RULES", "ROLES", "Scene", "VISITS",
-    "VisitBuilder", "bench_profile", "chilled", "deadhead_bar", "diagnose_sample", "finding", "hypothesis_keys",
-    "knowledge", "library", "likelihood_for", "load_visit", "precise_gauge", "sample_visit_paths", "scene_for",
-    "table_likelihood", "with_readings",
+    "BENCH_PROFILE_TOML",
+    "DEMO_OPEN_VISIT",
+    "PROFILES",
+    "RULES",
+    "VISITS",
+    "NoScene",
+    "Scene",
+    "VisitBuilder",
+    "bench_profile",
+    "chilled",
+    "deadhead_bar",
+    "diagnose_sample",
+    "finding",
+    "hypothesis_keys",
+    "knowledge",
+    "library",
+    "likelihood_for",
+    "load_visit",
+    "precise_gauge",
+    "sample_visit_paths",
+    "scene_for",
+    "table_likelihood",
+    "with_readings",
 ]

@@ -21,11 +21,18 @@ import math
 from pathlib import Path
 
 import pytest
+from diagnosis_helpers import (
+    chilled,
+    diagnose_sample,
+    hypothesis_keys,
+    knowledge,
+    library,
+    likelihood_for,
+    load_visit,
+    sample_visit_paths,
+)
 from scipy.stats import norm
 
-from diagnosis_helpers import (
-    chilled, diagnose_sample, hypothesis_keys, knowledge, library, likelihood_for, load_visit, sample_visit_paths,
-)
 from fieldkit.diagnosis.engine import diagnose
 from fieldkit.diagnosis.results import Diagnosis, Finding, Verdict
 from fieldkit.model.profile import MachineProfile
@@ -81,7 +88,8 @@ def enumerate_posterior(visit: Visit, profile: MachineProfile, d: Diagnosis) -> 
     for f in _evaluated(d):
         rule = rules[f.rule_id]
         observed = (f.p_low, f.p_in_range, f.p_high)
-        power = TEMPER if rule.spec.discount_when_invalid and _outside_test_window(visit, profile, f.readings) else 1.0
+        tempered = rule.spec.discount_when_invalid and _outside_test_window(visit, profile, f.readings)
+        power = TEMPER if tempered else 1.0
         for key in joint:
             lik = likelihood_for(rule, f.circuit, key)
             joint[key] *= sum(o * p for o, p in zip(observed, lik)) ** power
@@ -115,6 +123,7 @@ def test_posterior_matches_exact_enumeration_with_tempered_cold_oil_findings() -
         assert engine_posterior(d)[key] == pytest.approx(p, abs=1e-6), key
 
 
+@pytest.mark.filterwarnings("ignore::FutureWarning")  # pgmpy 1.1 warns about its own estimators module
 @pytest.mark.parametrize("name", PGMPY_VISITS)
 def test_posterior_matches_pgmpy_variable_elimination_with_virtual_evidence(name: str) -> None:
     from pgmpy.factors.discrete import TabularCPD
@@ -122,7 +131,7 @@ def test_posterior_matches_pgmpy_variable_elimination_with_virtual_evidence(name
     from pgmpy.models import DiscreteBayesianNetwork
 
     path = next(p for p in sample_visit_paths() if p.stem == name)
-    visit, profile, d = diagnose_sample(path)
+    _visit, profile, d = diagnose_sample(path)
     findings = _evaluated(d)
     assert all(f.discount == 1.0 for f in findings), "premise: no tempered findings in this visit"
     rules = {r.id: r for r in knowledge().rules}

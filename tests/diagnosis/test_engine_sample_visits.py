@@ -8,8 +8,8 @@ import json
 from pathlib import Path
 
 import pytest
-
 from diagnosis_helpers import diagnose_sample, load_visit, sample_visit_paths
+
 from fieldkit.cli import main
 from fieldkit.diagnosis.catalogue import NO_FAULT
 
@@ -45,18 +45,18 @@ def test_worn_charge_pump_visit_ranks_charge_pump_first_in_the_travel_loop() -> 
     path = next(p for p in SCENARIOS if p.stem == "td9-charge-pump-worn")
     _visit, _profile, d = diagnose_sample(path)
     assert (d.top.id, d.top.circuit) == ("charge_pump_worn", "travel")
-    # The charge relief is the close rival (low charge in neutral points at both); the case drains were normal.
+    # The charge relief is the close rival (low charge in neutral points at both).
     assert d.faults[1].id == "charge_relief_low"
     assert {e.finding for e in d.top.supporting} >= {"charge-in-neutral@travel", "charge-in-stroke@travel"}
 
 
 #: Top-level keys of `fieldkit diagnose --json`, as the README documents them (format version 1).
-JSON_KEYS = {"format", "version", "visit", "machine", "readings", "findings", "faults", "next_tests", "cautions",
-             "uncertainty_bits", "notes"}
+JSON_KEYS = {"format", "version", "visit", "machine", "readings", "findings", "faults", "next_tests",
+             "cautions", "uncertainty_bits", "notes"}
 FAULT_KEYS = {"id", "circuit", "title", "probability", "prior", "for", "against", "confirm", "fix", "parts"}
-FINDING_KEYS = {"id", "rule_id", "circuit", "title", "verdict", "message", "value", "uncertainty", "low", "high",
-                "p_low", "p_in_range", "p_high", "readings", "missing", "discount", "discount_reason", "action",
-                "cautions", "source"}
+FINDING_KEYS = {"id", "rule_id", "circuit", "title", "verdict", "message", "value", "uncertainty", "low",
+                "high", "p_low", "p_in_range", "p_high", "readings", "missing", "discount", "discount_reason",
+                "action", "cautions", "source"}
 NEXT_TEST_KEYS = {"test_point", "label", "circuit", "condition", "minutes", "gain_bits", "why", "repeat",
                   "gauge_advice", "outcomes"}
 CAUTION_KEYS = {"id", "title", "text", "severity", "source", "because"}
@@ -83,7 +83,8 @@ def test_diagnose_json_has_the_documented_shape(name: str, capsys: pytest.Captur
             assert set(e) == {"finding", "title", "message", "ratio"}
 
     assert all(FINDING_KEYS <= set(f) for f in out["findings"])
-    assert {f["verdict"] for f in out["findings"]} <= {"in_range", "low", "high", "inconclusive", "not_measured"}
+    verdicts = {"in_range", "low", "high", "inconclusive", "not_measured"}
+    assert {f["verdict"] for f in out["findings"]} <= verdicts
     assert all(NEXT_TEST_KEYS <= set(t) for t in out["next_tests"])
     assert all(CAUTION_KEYS <= set(c) for c in out["cautions"])
     assert out["cautions"][0]["id"] == "general"

@@ -17,8 +17,18 @@ from __future__ import annotations
 import math
 
 import pytest
+from diagnosis_helpers import (
+    NoScene,
+    Scene,
+    diagnose_sample,
+    finding,
+    knowledge,
+    likelihood_for,
+    sample_visit_paths,
+    scene_for,
+    table_likelihood,
+)
 
-from diagnosis_helpers import NoScene, Scene, finding, knowledge, likelihood_for, scene_for, table_likelihood
 from fieldkit.diagnosis.engine import diagnose
 from fieldkit.diagnosis.results import Verdict
 from fieldkit.diagnosis.rulepack import Rule
@@ -115,8 +125,6 @@ def test_a_firing_rule_raises_the_faults_it_lists_for_that_side(scene: Scene, si
 
 def test_a_rule_that_cannot_apply_to_a_circuit_says_nothing_about_it() -> None:
     """The pilot-supply rule reads a circuit kind the drill rig does not have: no finding at all."""
-    from diagnosis_helpers import diagnose_sample, sample_visit_paths
-
     path = next(p for p in sample_visit_paths() if p.name.startswith("td9-no-fault"))
     _visit, profile, d = diagnose_sample(path)
     assert all(c.kind.value != "pilot_supply" for c in profile.circuits)

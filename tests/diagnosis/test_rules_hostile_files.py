@@ -13,8 +13,8 @@ from collections.abc import Callable
 from pathlib import Path
 
 import pytest
-
 from diagnosis_helpers import RULES, VisitBuilder, finding, library
+
 from fieldkit.cli import main
 from fieldkit.diagnosis.engine import Knowledge, diagnose
 from fieldkit.diagnosis.findings import fill
@@ -109,7 +109,7 @@ def test_hostile_expression_makes_rules_check_fail_with_the_file_and_line(
     assert f"{folder / 'packs' / 'probe.toml'}:{line_of(pack, 'value =')}" in err
 
 
-def test_limit_in_a_flow_unit_for_a_pressure_value_is_refused_at_the_limit_line(rules_folder: RulesFolder) -> None:
+def test_limit_in_a_flow_unit_for_a_pressure_value_is_refused_at_its_line(rules_folder: RulesFolder) -> None:
     pack = PROBE.replace('low = "20 bar"', 'low = "5 L/min"')
     folder = rules_folder(pack)
     err = refused(folder)
@@ -117,10 +117,6 @@ def test_limit_in_a_flow_unit_for_a_pressure_value_is_refused_at_the_limit_line(
     assert "low" in err.detail
 
 
-@pytest.mark.xfail(strict=True, reason=(
-    "rulepack.load_pack (fieldkit/diagnosis/rulepack.py:165, _dim at :183) prints pint dimensions "
-    "('[length] ** 3 / [time] but value is [mass] / [length] / [time] ** 2') instead of naming the "
-    "kinds a rule author knows (a flow, a pressure); expr.dims.describe already does that"))
 def test_limit_in_the_wrong_unit_names_both_kinds_in_trade_words(rules_folder: RulesFolder) -> None:
     folder = rules_folder(PROBE.replace('low = "20 bar"', 'low = "5 L/min"'))
     err = refused(folder)
@@ -166,7 +162,8 @@ def test_unknown_caution_is_refused_naming_the_rule_and_its_line(rules_folder: R
     pytest.param('source = "test pack"', 'source = "test pack"\ncautions = ["wear-a-hat"]',
                  "unknown caution 'wear-a-hat'", id="unknown-caution"),
 ])
-def test_rules_check_exits_1_on_unknown_references(rules_folder: RulesFolder, capsys: pytest.CaptureFixture[str],
+def test_rules_check_exits_1_on_unknown_references(rules_folder: RulesFolder,
+                                                   capsys: pytest.CaptureFixture[str],
                                                    old: str, new: str, says: str) -> None:
     pack = PROBE.replace(old, new)
     folder = rules_folder(pack)
@@ -201,4 +198,5 @@ def test_message_placeholders_fill_only_plain_names(rules_folder: RulesFolder) -
 
 
 def test_fill_replaces_only_known_plain_names() -> None:
-    assert fill("{value} {nope} {0} {value.real} {{value}}", {"value": "7 bar"}) == "7 bar {nope} {0} {value.real} {7 bar}"
+    filled = fill("{value} {nope} {0} {value.real} {{value}}", {"value": "7 bar"})
+    assert filled == "7 bar {nope} {0} {value.real} {7 bar}"

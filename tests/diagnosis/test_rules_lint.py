@@ -8,8 +8,8 @@ import shutil
 from pathlib import Path
 
 import pytest
-
 from diagnosis_helpers import RULES
+
 from fieldkit.cli import main
 from fieldkit.diagnosis.catalogue import load_cautions, load_faults
 from fieldkit.diagnosis.engine import Knowledge
@@ -44,8 +44,9 @@ def _knowledge(folder: Path) -> Knowledge:
                      load_cautions(folder / "cautions.toml"), folder)
 
 
-def test_bundled_rules_pass_the_check(capsys: pytest.CaptureFixture[str]) -> None:
-    assert main(["rules", "check", str(RULES)]) == 0
+@pytest.mark.parametrize("args", [["rules", "check"], ["rules", "check", str(RULES)]], ids=["bundled", "by-path"])
+def test_bundled_rules_pass_the_check(args: list[str], capsys: pytest.CaptureFixture[str]) -> None:
+    assert main(args) == 0
     out = capsys.readouterr().out
     assert " 0 errors" in out
     assert f"{len(load_packs(RULES))} rules" in out
@@ -62,10 +63,10 @@ MISTAKES = [
                  id="rule-naming-no-fault"),
     pytest.param('source = "test pack"\n', 'source = "test pack"\ncautions = ["wear-a-hat"]\n',
                  "raises unknown caution 'wear-a-hat'", id="unknown-caution"),
-    pytest.param("charge_relief_low = 0.9", "charge_releif_low = 0.9", "names unknown fault 'charge_releif_low'",
-                 id="unknown-fault"),
-    pytest.param("charge_relief_low = 0.9", "pilot_supply_low = 0.9", "which cannot occur in closed_loop_drive",
-                 id="fault-of-another-circuit-kind"),
+    pytest.param("charge_relief_low = 0.9", "charge_releif_low = 0.9",
+                 "names unknown fault 'charge_releif_low'", id="unknown-fault"),
+    pytest.param("charge_relief_low = 0.9", "pilot_supply_low = 0.9",
+                 "which cannot occur in closed_loop_drive", id="fault-of-another-circuit-kind"),
     pytest.param('high = "30 bar"', 'high = "15 bar"', "low limit is not below high limit", id="empty-band"),
 ]
 
