@@ -474,25 +474,32 @@ class DisplaySystem:
         return systems[name]
 
     def spelling_for(self, kind: Kind) -> str:
-        return {
-            Kind.PRESSURE: self.pressure,
-            Kind.FLOW: self.flow,
-            Kind.TEMPERATURE: self.temperature,
-            Kind.SPEED: "rpm",
-            Kind.DISPLACEMENT: "cc/rev",
-            Kind.VELOCITY: "mm/min",
-            Kind.VOLUME: "L",
-            Kind.LENGTH: "mm",
-            Kind.AREA: "cm2",
-            Kind.FORCE: "kN",
-            Kind.TORQUE: "N·m",
-            Kind.POWER: "kW",
-            Kind.TIME: "s",
-            Kind.MASS: "kg",
-            Kind.DENSITY: "kg/m3",
-            Kind.VISCOSITY: "cSt",
-            Kind.RATIO: "%",
-        }[kind]
+        if kind is Kind.PRESSURE:
+            return self.pressure
+        if kind is Kind.FLOW:
+            return self.flow
+        if kind is Kind.TEMPERATURE:
+            return self.temperature
+        return _FIXED_SPELLING[kind]
+
+
+#: Display units that do not change with the user's system.
+_FIXED_SPELLING: dict[Kind, str] = {
+    Kind.SPEED: "rpm",
+    Kind.DISPLACEMENT: "cc/rev",
+    Kind.VELOCITY: "mm/min",
+    Kind.VOLUME: "L",
+    Kind.LENGTH: "mm",
+    Kind.AREA: "cm2",
+    Kind.FORCE: "kN",
+    Kind.TORQUE: "N·m",
+    Kind.POWER: "kW",
+    Kind.TIME: "s",
+    Kind.MASS: "kg",
+    Kind.DENSITY: "kg/m3",
+    Kind.VISCOSITY: "cSt",
+    Kind.RATIO: "%",
+}
 
 
 METRIC = DisplaySystem()
@@ -530,8 +537,39 @@ def format_value(
     magnitude is written so that parsing it back gives the same float."""
     kind = kind or kind_of(q)
     spelling = spelling or system.spelling_for(kind)
-    shown = convert(q, spelling)
-    mag = float(shown.magnitude)
+    try:
+        mag = magnitude_in(q, unit(SPELLINGS[spelling][0]))
+    except (KeyError, pint.DimensionalityError):
+        convert(q, spelling)  # raises the plain-words error (unknown spelling, wrong kind)
+        raise
+    return _with_unit(mag, spelling, significant, exact)
+
+
+@lru_cache(maxsize=None)
+def _si_unit(kind: Kind) -> pint.Unit:
+    return Q_(1.0, unit(CANONICAL_UNIT[kind])).to_base_units().units
+
+
+def display_scale(source: pint.Unit, kind: Kind, system: DisplaySystem = METRIC) -> tuple[float, float, str]:
+    """(scale, offset, spelling) taking a magnitude in ``source`` to the user's display unit."""
+    spelling = system.spelling_for(kind)
+    scale, offset = _affine(source, unit(SPELLINGS[spelling][0]))
+    return scale, offset, spelling
+
+
+def format_si(value: float, kind: Kind, system: DisplaySystem = METRIC, *, significant: int = 4) -> str:
+    """Text for a float in SI base units (what rule expressions compute in), without building a
+    quantity: the diagnosis writes a few hundred of these per reading entered."""
+    scale, offset, spelling = display_scale(_si_unit(kind), kind, system)
+    return format_number(offset + scale * value, spelling, significant)
+
+
+def format_number(mag: float, spelling: str, significant: int = 4) -> str:
+    """A magnitude already in the unit ``spelling`` names, rounded for reading."""
+    return _with_unit(mag, spelling, significant, exact=False)
+
+
+def _with_unit(mag: float, spelling: str, significant: int, exact: bool) -> str:
     if exact:
         # The shortest repr, written out positionally while that stays short enough to read in a
         # hand-edited file; extreme values keep the e-notation (the parser reads both, and a

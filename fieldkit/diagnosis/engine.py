@@ -13,17 +13,17 @@ from pathlib import Path
 
 from fieldkit.diagnosis.catalogue import Caution, Fault, load_cautions, load_faults
 from fieldkit.diagnosis.findings import Evaluator, outcome_probabilities, verdict_for
-from fieldkit.diagnosis.measure import Measured
+from fieldkit.diagnosis.measure import ASSUMED_CLASS, Measured, measure_visit
 from fieldkit.diagnosis.next_test import suggest
 from fieldkit.diagnosis.ranking import entropy_bits, hypotheses_for, log_posterior, rank
 from fieldkit.diagnosis.results import CautionNote, Diagnosis, Finding, NextTest, ReadingCheck, Verdict
 from fieldkit.diagnosis.rulepack import Rule, load_packs
-from fieldkit.diagnosis.measure import measure_visit
 from fieldkit.model.condition import FunctionState
 from fieldkit.model.profile import MachineProfile, TestPoint
 from fieldkit.model.roles import ROLES
 from fieldkit.model.visit import Visit
-from fieldkit.units import METRIC, DisplaySystem, Kind, format_value, to_canonical
+from fieldkit.errors import FieldkitError
+from fieldkit.units import CANONICAL_UNIT, METRIC, DisplaySystem, Kind, Q_, display_scale, format_value, to_canonical, unit
 
 
 @dataclass(frozen=True)
@@ -69,21 +69,11 @@ def _range_text(low: float | None, high: float | None, unit: str) -> str:
 def check_reading(m: Measured, system: DisplaySystem) -> ReadingCheck:
     """A reading against its point's expected range for its condition, gauge error included."""
     rng = m.point.expected_for(m.reading.condition)
-    unit = system.spelling_for(m.kind)
-    # Display in the user's unit: convert the canonical numbers through one quantity each.
-    from fieldkit.units import Q_, CANONICAL_UNIT, convert
+    scale, offset, unit_text = display_scale(unit(CANONICAL_UNIT[m.kind]), m.kind, system)
 
     def shown(x: float | None) -> float | None:
-        if x is None:
-            return None
-        if m.kind is Kind.TEMPERATURE:
-            return float(convert(Q_(x, "degC"), unit).magnitude)
-        return float(convert(Q_(x, CANONICAL_UNIT[m.kind]), unit).magnitude)
+        return None if x is None else offset + scale * x
 
-    value = shown(m.canonical)
-    scale = (shown(m.canonical + 1.0) or 0.0) - (value or 0.0) if m.kind is not Kind.TEMPERATURE else (
-        1.8 if unit == "°F" else 1.0)
-    u = m.u_canonical * abs(scale)
     low = high = None
     verdict = Verdict.NOT_MEASURED
     if rng is not None:
@@ -91,28 +81,41 @@ def check_reading(m: Measured, system: DisplaySystem) -> ReadingCheck:
         high = to_canonical(rng.high, m.kind) if rng.high is not None else None
         verdict = verdict_for(*outcome_probabilities(m.canonical, m.u_canonical, low, high))
         low, high = shown(low), shown(high)
+    u = m.u_canonical * abs(scale)
     gauge = (f"{m.gauge.id}: 0–{format_value(m.gauge.full_scale, system)} class {m.gauge.accuracy_class:g}"
-             if m.gauge is not None else f"none recorded (assumed class {2.5:g})")
-    advice = gauge_advice(m, system)
+             if m.gauge is not None else f"none recorded (assumed class {ASSUMED_CLASS:g})")
     return ReadingCheck(
         reading_id=m.reading.id, test_point=m.point.id, test_point_label=m.point.label, circuit=m.circuit.id,
         condition=m.reading.condition.describe(), value=format_value(m.reading.value, system),
-        expected=_range_text(low, high, unit) if rng is not None else "no range for this condition",
-        uncertainty=f"±{u:.2g} {unit}", verdict=verdict, gauge=gauge, gauge_advice=advice,
-        value_num=value, low_num=low, high_num=high, uncertainty_num=u, unit=unit, discounted=m.invalid,
+        expected=_range_text(low, high, unit_text) if rng is not None else "no range for this condition",
+        uncertainty=f"±{u:.2g} {unit_text}", verdict=verdict, gauge=gauge, gauge_advice=gauge_advice(m),
+        value_num=shown(m.canonical), low_num=low, high_num=high, uncertainty_num=u, unit=unit_text,
+        discounted=m.invalid,
     )
 
 
-def gauge_advice(m: Measured, system: DisplaySystem) -> str:
+def gauge_advice(m: Measured) -> str:
     """Whether the gauge suited the point (physics.gauges), in words; empty when it did."""
     if m.gauge is None or m.kind is not Kind.PRESSURE or m.gauge.kind is not Kind.PRESSURE:
         return ""
+    g = m.gauge
+    start = to_canonical(g.scale_start, Kind.PRESSURE) if g.scale_start is not None else None
+    top = to_canonical(m.point.max_pressure, Kind.PRESSURE) if m.point.max_pressure is not None else None
+    return _gauge_advice(to_canonical(g.full_scale, Kind.PRESSURE), start, g.accuracy_class, m.canonical, top)
+
+
+@lru_cache(maxsize=4096)
+def _gauge_advice(full_bar: float, start_bar: float | None, accuracy: float, reading_bar: float,
+                  highest_bar: float | None) -> str:
+    # Cached on plain numbers: the same readings are judged again after every new one.
     from fieldkit.physics.gauges import gauge_suitability
 
+    bar = unit("bar")
     try:
-        check = gauge_suitability(m.gauge.full_scale, m.reading.value, m.point.max_pressure,
-                                  m.gauge.scale_start, m.gauge.accuracy_class)
-    except Exception as exc:  # an odd gauge record must not stop the diagnosis
+        check = gauge_suitability(Q_(full_bar, bar), Q_(reading_bar, bar),
+                                  Q_(highest_bar, bar) if highest_bar is not None else None,
+                                  Q_(start_bar, bar) if start_bar is not None else None, accuracy)
+    except FieldkitError as exc:  # an odd gauge record must not stop the diagnosis
         return f"gauge could not be checked: {exc}"
     return "" if check.ok else check.message
 

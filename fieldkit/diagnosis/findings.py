@@ -16,7 +16,7 @@ from collections.abc import Iterable
 from dataclasses import dataclass, field
 
 from fieldkit.diagnosis.catalogue import Fault
-from fieldkit.diagnosis.expr.dims import kind_dimension, to_quantity
+from fieldkit.diagnosis.expr.dims import kind_dimension
 from fieldkit.diagnosis.measure import Measured
 from fieldkit.diagnosis.results import Finding, Verdict
 from fieldkit.diagnosis.rulepack import Rule
@@ -25,7 +25,7 @@ from fieldkit.model.condition import FunctionState
 from fieldkit.model.parameters import PARAMETERS
 from fieldkit.model.profile import Circuit, MachineProfile
 from fieldkit.model.roles import ROLES, Role
-from fieldkit.units import DisplaySystem, Kind, Q_, format_value, to_canonical
+from fieldkit.units import DisplaySystem, Kind, Q_, format_si, to_canonical
 
 #: A verdict is stated when one outcome is at least this likely; otherwise it is 'inconclusive'.
 CONFIDENT = 0.95
@@ -301,22 +301,21 @@ class Evaluator:
         return finding
 
     def _texts(self, rule: Rule, value: float, u: float, low: float | None, high: float | None) -> dict[str, str]:
-        dim = rule.value.result
-        kind = _kind_of_dim(dim)
+        kind = _kind_of_dim(rule.value.result)
 
-        def show(x: float | None, difference: bool = False) -> str:
+        def show(x: float | None) -> str:
             if x is None:
                 return "—"
-            if kind is None:
-                return f"{x:.3g}"
-            q = to_quantity(x, dim, temperature_difference=difference)
-            if difference and kind is Kind.TEMPERATURE:
-                return f"{q.to('delta_degC').magnitude:.2g} K"
-            return format_value(q, self.system, kind=kind)
+            return format_si(x, kind, self.system) if kind is not None else f"{x:.3g}"
+
+        def show_spread(x: float) -> str:
+            if kind is Kind.TEMPERATURE:  # a temperature difference, in kelvin whatever the display
+                return f"{x:.2g} K"
+            return show(x)
 
         limits = f"{show(low)} to {show(high)}" if low is not None and high is not None else (
             f"at least {show(low)}" if low is not None else f"at most {show(high)}")
-        return {"title": rule.spec.title, "value": show(value), "uncertainty": show(u, difference=True) if u else "0",
+        return {"title": rule.spec.title, "value": show(value), "uncertainty": show_spread(u) if u else "0",
                 "low": show(low), "high": show(high), "limits": limits}
 
     def run(self, rules: list[Rule], hypotheses: list[Hypothesis]) -> tuple[list[Finding], list[tuple[Rule, Scope, Finding]]]:
@@ -333,7 +332,8 @@ class Evaluator:
 
 
 def _kind_of_dim(dim: object) -> Kind | None:
-    for kind in (Kind.PRESSURE, Kind.FLOW, Kind.TEMPERATURE, Kind.SPEED, Kind.VELOCITY, Kind.VISCOSITY, Kind.POWER):
+    for kind in (Kind.PRESSURE, Kind.FLOW, Kind.TEMPERATURE, Kind.SPEED, Kind.VELOCITY, Kind.VISCOSITY, Kind.POWER,
+                 Kind.RATIO):
         if dim == kind_dimension(kind):
             return kind
     return None
