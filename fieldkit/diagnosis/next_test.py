@@ -66,6 +66,15 @@ def _expected_entropy(prior: list[float], mats: list[list[list[float]]], soft: t
     return expected, per_outcome
 
 
+def _state_for(point: TestPoint) -> FunctionState:
+    """The condition to ask for when a rule takes any: the one the point's expected range names
+    first (a suction reading wants full flow), else neutral."""
+    for rng in point.expected:
+        if rng.when.function:
+            return rng.when.function[0]
+    return FunctionState.NEUTRAL
+
+
 def _point_for(evaluator: Evaluator, scope: Scope, role: Role) -> tuple[Circuit, TestPoint] | None:
     circuits = [scope.circuit] if scope.circuit is not None else evaluator.profile.circuits
     for c in circuits:
@@ -97,7 +106,8 @@ def suggest(evaluator: Evaluator, pairs: list[tuple[Rule, Scope, Finding]], hyps
             if place is None:
                 continue
             circuit, point = place
-            key = (circuit.id, point.id, state.value if state else None)
+            state = state or _state_for(point)
+            key = (circuit.id, point.id, state.value)
             cand = candidates.setdefault(key, _Candidate(circuit, point, state, []))
             cand.rules.append((rule, scope))
         elif finding.verdict is Verdict.INCONCLUSIVE and finding.readings:

@@ -11,8 +11,11 @@ import unicodedata
 
 
 def char_width(ch: str) -> int:
-    if unicodedata.combining(ch) or unicodedata.category(ch) in ("Mn", "Me", "Cf"):
-        return 0
+    """Two for East Asian wide and full-width characters (UAX #11), else one.
+
+    A combining accent takes no column on a terminal, but some work-order systems count code
+    points, so it is counted as one: a line that fits by this count fits by either.
+    """
     return 2 if unicodedata.east_asian_width(ch) in ("W", "F") else 1
 
 
@@ -34,14 +37,15 @@ def wrap(text: str, columns: int, indent: str = "", hanging: str | None = None) 
     """Lines of at most ``columns`` columns; ``\\n`` in the text starts a new line.
 
     ``indent`` starts the first line and ``hanging`` the others (default: the same as ``indent``).
-    Runs of spaces collapse to one, as they would in a paragraph; a word longer than a line is cut.
+    Runs of spaces collapse to one, as they would in a paragraph; a word longer than a line is cut;
+    a no-break space (U+00A0) holds its neighbours on one line.
     """
     hanging = indent if hanging is None else hanging
     out: list[str] = []
     for paragraph in text.split("\n"):
         line = indent if not out else hanging
         used, empty = width(line), True
-        for word in paragraph.split():
+        for word in (w for w in paragraph.split(" ") if w):  # not split(): it would break at a no-break space
             w = width(word)
             if not empty and used + 1 + w <= columns:
                 line, used = f"{line} {word}", used + 1 + w

@@ -15,8 +15,9 @@ from fieldkit.report.model import JobCard
 # Characters with an inline meaning in CommonMark or GitHub's extensions (tables, strikethrough,
 # maths, entities, raw HTML). Escaping any ASCII punctuation is always allowed, so erring wide is safe.
 _INLINE = re.compile(r"([\\`*_\[\]<>|~&$])")
-# A colon that could open an emoji short code (:name:).
-_EMOJI_COLON = re.compile(r":(?=[A-Za-z0-9_+\-])")
+# A colon that opens an emoji short code (:name:), which GitHub would turn into a picture.
+# Applied after the other escapes, so an underscore in the name is already written "\_".
+_EMOJI_COLON = re.compile(r":(?=(?:[A-Za-z0-9+\-]|\\_)+:)")
 # What turns the start of a line into a heading, quote, list, rule, fence or setext underline.
 _LINE_START = re.compile(r"^([#>+\-=*]|\d{1,9}(?=[.)]))")
 
@@ -84,8 +85,8 @@ def render_markdown(card: JobCard) -> str:
 
     out += ["", "## Findings", ""]
     if card.findings.flagged:
-        out += table(["Verdict", "Finding", "What it shows", "What to do"],
-                     [[f.verdict_text, f.title + (f" ({f.circuit})" if f.circuit else ""), f.message, f.action]
+        out += table(["Verdict", "Finding", "What it shows"],
+                     [[f.verdict_text, f.title + (f" ({f.circuit})" if f.circuit else ""), f.message]
                       for f in card.findings.flagged])
     else:
         out.append("No finding out of range or inconclusive.")
@@ -115,8 +116,6 @@ def render_markdown(card: JobCard) -> str:
     if card.next_test is not None:
         t = card.next_test
         out += ["", f"**{inline(t.title)}**", "", inline(t.why)]
-        if t.outcomes:
-            out += [""] + [f"- if {inline(k)}: {inline(v)}" for k, v in t.outcomes]
 
     out += ["", "## Safety cautions"]
     for c in card.cautions:

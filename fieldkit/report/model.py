@@ -83,12 +83,16 @@ def one_line(text: str) -> str:
     return " / ".join(part.strip() for part in plain(text).split("\n") if part.strip())
 
 
+#: Between a number and its unit sign, so a line never breaks between them.
+NBSP = "\u00a0"
+
+
 def percent(p: float) -> str:
     if p < 0.005:
-        return "<1 %"
+        return f"<1{NBSP}%"
     if p > 0.995:
-        return ">99 %"
-    return f"{p * 100:.0f} %"
+        return f">99{NBSP}%"
+    return f"{p * 100:.0f}{NBSP}%"
 
 
 # --- the report's parts ----------------------------------------------------------------------
@@ -509,7 +513,7 @@ def _findings(findings: list[Finding]) -> Findings:
         action = plain(f.action)
         if f.verdict is Verdict.INCONCLUSIVE and not action:
             action = ("Too close to a limit to call: repeat the readings it uses with a gauge of smaller "
-                      "span or better class.")
+                      "span or better accuracy class.")
         items.append(FindingItem(
             title=one_line(f.title), circuit=f.circuit or "", verdict=f.verdict,
             verdict_text=_VERDICT_TEXT[f.verdict], message=plain(f.message), action=action,
@@ -576,6 +580,15 @@ def _actions(leading: list[RankedFault], findings: list[Finding]) -> list[Action
     for f in findings:
         if f.verdict in (Verdict.LOW, Verdict.HIGH) and f.action:
             add(f.action, f"{one_line(f.title)} (finding)")
+    unsure = [f for f in findings if f.verdict is Verdict.INCONCLUSIVE]
+    for f in unsure:
+        if f.action:
+            add(f.action, f"{one_line(f.title)} (inconclusive finding)")
+    generic = [one_line(f.title) for f in unsure if not f.action]
+    if generic:
+        add("Repeat the readings behind these inconclusive findings with a gauge of smaller span or better "
+            "accuracy class, so the gauge's error no longer straddles the limit: " + "; ".join(generic) + ".",
+            "inconclusive findings")
     return actions
 
 

@@ -8,13 +8,15 @@ same for the same job card, because the creation date is the only varying input.
 
 from __future__ import annotations
 
+from collections.abc import Iterator
+from contextlib import contextmanager
 from datetime import UTC, datetime
 from pathlib import Path
 
 from fpdf import FPDF
 
 from fieldkit.diagnosis.results import Verdict
-from fieldkit.report.model import Caution, JobCard
+from fieldkit.report.model import Caution, JobCard, Note
 from fieldkit.report.pdf_draw import (
     ACCENT,
     INK,
@@ -30,13 +32,19 @@ from fieldkit.report.pdf_draw import (
     band_picture,
     probability_bar,
 )
-from fieldkit.report.pdf_tables import FAMILY, Cell, line_height, measured_table, text_height
+from fieldkit.report.pdf_tables import Cell, measured_table
+from fieldkit.report.pdf_text import FAMILY, block_height, draw_block, line_height
 
 FONTS = Path(__file__).parent / "fonts"
-MARGIN = 13.0
+MARGIN = 10.0
+FOOT = 14.0  # bottom margin: the footer line sits in it
 BODY = 8.0
-SMALL = 7.0
-TINY = 6.2
+SMALL = 6.8
+TINY = 6.0
+REMARK_SIZE = 6.2
+#: Relative widths: number, test point and condition, reading, expected, gauge, band, verdict.
+READING_COLUMNS = [5, 43, 16, 21, 34, 35, 19]
+REMARK_PAD = 0.6
 
 SEVERITY = {"danger": (OUT, OUT_FILL), "warning": (UNSURE, UNSURE_FILL), "notice": (ACCENT, (226, 238, 243))}
 VERDICT_STYLE = {
@@ -54,12 +62,14 @@ class JobCardPDF(FPDF):
     def __init__(self, card: JobCard, letter: bool) -> None:
         super().__init__(orientation="portrait", unit="mm", format="letter" if letter else "A4")
         self.card = card
+        #: Reading notes too long for a table row; printed in full under Notes.
+        self.spill: list[Note] = []
         self.add_font(FAMILY, "", FONTS / "DejaVuSans.ttf")
         self.add_font(FAMILY, "B", FONTS / "DejaVuSans-Bold.ttf")
         regular, bold = self.fonts[FAMILY], self.fonts[FAMILY + "B"]
         self._glyphs = set(regular.cmap) & set(bold.cmap)
         self.set_margins(MARGIN, MARGIN, MARGIN)
-        self.set_auto_page_break(True, margin=MARGIN + 4)
+        self.set_auto_page_break(True, margin=FOOT)
         self.set_text_color(*INK)
 
     def normalize_text(self, text: str) -> str:
@@ -72,10 +82,12 @@ class JobCardPDF(FPDF):
     def header(self) -> None:
         if self.page_no() == 1:
             return
-        self.set_font(FAMILY, "", TINY)
         self.set_text_color(*MUTED)
-        self.cell(self.epw / 2, 4, f"{self.card.title}, job {self.card.header.job_number} (continued)")
-        self.cell(self.epw / 2, 4, self.card.header.machine, align="R")
+        y = self.t_margin
+        _fit(self, self.l_margin, y, self.epw * 0.6, 4, f"{self.card.title}, job {self.card.header.job_number} "
+             "(continued)", TINY, floor=4.5)
+        _fit(self, self.l_margin + self.epw * 0.6, y, self.epw * 0.4, 4, self.card.header.machine, TINY,
+             align="R", floor=4.5)
         self.set_draw_color(*RULE)
         self.set_line_width(0.2)
         self.line(self.l_margin, self.t_margin + 4.5, self.w - self.r_margin, self.t_margin + 4.5)
@@ -83,7 +95,7 @@ class JobCardPDF(FPDF):
         self.set_text_color(*INK)
 
     def footer(self) -> None:
-        self.set_y(-(MARGIN + 1))
+        self.set_y(-(FOOT - 3))
         self.set_font(FAMILY, "", TINY)
         self.set_text_color(*MUTED)
         self.cell(self.epw * 0.75, 4, f"Job {self.card.header.job_number} · {self.card.header.date} · "
@@ -116,19 +128,53 @@ def render_pdf(card: JobCard, *, letter: bool = False, fixed_date: datetime | No
 
 # --- building blocks -------------------------------------------------------------------------
 
+@contextmanager
+def _placed(pdf: FPDF, height: float) -> Iterator[float]:
+    """Room for a block drawn at fixed positions: a new page if it does not fit, and no automatic
+    page break while it is drawn (a break half way would scatter it over pages). Yields its top."""
+    if pdf.y + height > pdf.page_break_trigger:
+        pdf.add_page()
+    pdf.set_auto_page_break(False)
+    try:
+        yield pdf.y
+    finally:
+        pdf.set_auto_page_break(True, margin=FOOT)
+
+
 def _section(pdf: FPDF, title: str, keep: float = 20.0) -> None:
     """A section heading, moved to the next page if it would sit alone at the foot of this one."""
     if pdf.y + 8 + keep > pdf.page_break_trigger:
         pdf.add_page()
-    pdf.ln(2.5)
-    pdf.set_font(FAMILY, "B", 10)
+    pdf.ln(2.0)
+    pdf.set_font(FAMILY, "B", 9.5)
     pdf.set_text_color(*ACCENT)
-    pdf.cell(0, 5.5, title, new_x="LMARGIN", new_y="NEXT")
+    pdf.cell(0, 4.8, title, new_x="LMARGIN", new_y="NEXT")
     pdf.set_draw_color(*ACCENT)
     pdf.set_line_width(0.35)
     pdf.line(pdf.l_margin, pdf.y, pdf.w - pdf.r_margin, pdf.y)
-    pdf.ln(1.5)
+    pdf.ln(1.2)
     pdf.set_text_color(*INK)
+
+
+def _fit(pdf: FPDF, x: float, y: float, w: float, h: float, text: str, size: float, bold: bool = False,
+         align: str = "L", floor: float = 5.5) -> None:
+    """One line of text in a fixed box, in a smaller font when it is too long; text that does not
+    fit even at ``floor`` wraps (in the same box's width) rather than being cut."""
+    style = "B" if bold else ""
+    while size > floor:
+        pdf.set_font(FAMILY, style, size)
+        if pdf.get_string_width(text) <= w - 1:
+            break
+        size -= 0.5
+    pdf.set_font(FAMILY, style, size)
+    pdf.set_xy(x, y)
+    if pdf.get_string_width(text) <= w - 1:
+        pdf.cell(w, h, text, align=align)
+    else:
+        lh = line_height(size)
+        lines = len(pdf.multi_cell(w, lh, text, dry_run=True, output="LINES"))
+        pdf.set_xy(x, y + max(0.0, (h - lines * lh) / 2))
+        pdf.multi_cell(w, lh, text, align=align)
 
 
 def _text(pdf: FPDF, text: str, size: float = BODY, bold: bool = False, color: tuple[int, int, int] = INK,
@@ -143,16 +189,13 @@ def _text(pdf: FPDF, text: str, size: float = BODY, bold: bool = False, color: t
 def _header(pdf: FPDF, card: JobCard) -> None:
     h = card.header
     pdf.set_fill_color(*ACCENT)
-    pdf.rect(pdf.l_margin, pdf.t_margin, pdf.epw, 12, style="F")
+    pdf.rect(pdf.l_margin, pdf.t_margin, pdf.epw, 10, style="F")
     pdf.set_text_color(255, 255, 255)
-    pdf.set_xy(pdf.l_margin + 3, pdf.t_margin)
-    pdf.set_font(FAMILY, "B", 15)
-    pdf.cell(pdf.epw * 0.5, 12, card.title.upper())
-    pdf.set_font(FAMILY, "B", 12)
-    pdf.set_xy(pdf.l_margin + pdf.epw * 0.4, pdf.t_margin)
-    pdf.cell(pdf.epw * 0.6 - 3, 12, f"Job {h.job_number}", align="R")
+    _fit(pdf, pdf.l_margin + 3, pdf.t_margin, pdf.epw * 0.42, 10, card.title.upper(), 15, bold=True)
+    _fit(pdf, pdf.l_margin + pdf.epw * 0.45, pdf.t_margin, pdf.epw * 0.55 - 3, 10, f"Job {h.job_number}", 12,
+         bold=True, align="R")
     pdf.set_text_color(*INK)
-    pdf.set_xy(pdf.l_margin, pdf.t_margin + 14)
+    pdf.set_xy(pdf.l_margin, pdf.t_margin + 11.5)
     rows = [[Cell(a.label, color=MUTED), Cell(a.value, bold=a.label == "Customer"),
              Cell(b.label, color=MUTED), Cell(b.value, bold=b.label == "Machine")]
             for a, b in zip(h.visit_fields(), h.machine_fields(), strict=True)]
@@ -161,26 +204,30 @@ def _header(pdf: FPDF, card: JobCard) -> None:
 
 def _summary(pdf: FPDF, card: JobCard) -> None:
     pdf.ln(3)
-    x, y, w = pdf.l_margin, pdf.y, pdf.epw
-    lines = [(card.conclusion, BODY + 1, True, INK), (card.counts, BODY, False, INK), (card.units, SMALL, False, MUTED)]
-    height = sum(text_height(pdf, t, w - 4, s, b, padding=0) for t, s, b, _c in lines) + 3
+    x, w = pdf.l_margin, pdf.epw
+    lines = [(card.conclusion, BODY + 0.5, True, INK), (f"{card.counts} {card.units}", BODY, False, INK)]
+    height = sum(block_height(pdf, t, w - 4, s, b) for t, s, b, _c in lines) + 3
     stripe = OUT if not card.settled else ACCENT
-    pdf.set_fill_color(240, 245, 247)
-    pdf.rect(x, y, w, height, style="F")
-    pdf.set_fill_color(*stripe)
-    pdf.rect(x, y, 1.6, height, style="F")
-    pdf.set_y(y + 1.5)
-    for text, size, bold, colour in lines:
-        _text(pdf, text, size, bold, colour, indent=4)
-    pdf.set_y(y + height)
+    with _placed(pdf, height) as y:
+        pdf.set_fill_color(240, 245, 247)
+        pdf.rect(x, y, w, height, style="F")
+        pdf.set_fill_color(*stripe)
+        pdf.rect(x, y, 1.6, height, style="F")
+        top = y + 1.5
+        for text, size, bold, colour in lines:
+            top += draw_block(pdf, x + 4, top, w - 4, text, size, bold, colour)
+    pdf.set_xy(pdf.l_margin, y + height)
 
 
-def _readings(pdf: FPDF, card: JobCard) -> None:
+def _readings(pdf: JobCardPDF, card: JobCard) -> None:
     """The readings table; a remark or a note sits in a row of its own under its reading."""
     _section(pdf, "Readings", keep=30)
     rows: list[list[Cell | str]] = []
     fills: list[tuple[int, int, int] | None] = []
+    least: list[float] = []
     owner: list[int | None] = []  # the reading a table row draws a band for
+    remarks: dict[int, tuple[str, tuple[int, int, int]]] = {}  # table row -> remark drawn into it
+    remark_width = pdf.epw * (1 - READING_COLUMNS[0] / sum(READING_COLUMNS)) - REMARK_PAD
     for k, r in enumerate(card.readings):
         colour, fill, bold = VERDICT_STYLE[r.verdict]
         stripe = ZEBRA if k % 2 else None
@@ -189,12 +236,19 @@ def _readings(pdf: FPDF, card: JobCard) -> None:
             f"{r.uncertainty}\n{r.gauge}", "", Cell(r.verdict_text, bold=bold, color=colour, fill=fill),
         ])
         fills.append(stripe)
+        least.append(7.0)
         owner.append(k)
         remark = " ".join(t for t in (r.remark, f"Note: {r.note}" if r.note else "") if t)
+        if remark and _too_tall(pdf, remark, remark_width):
+            pdf.spill.append(Note(f"Note on reading {r.number} ({r.test_point})", r.note))
+            moved = "The note on this reading is long: it is printed in full under Notes."
+            remark = " ".join(t for t in (r.remark, moved) if t)
         if remark:
-            tint = UNSURE if r.verdict is Verdict.INCONCLUSIVE else MUTED
-            rows.append(["", Cell(remark, span=6, color=tint, size=TINY + 0.3)])
+            # Drawn by hand with a tighter line height than the table's: remarks are secondary.
+            remarks[len(rows)] = (remark, UNSURE if r.verdict is Verdict.INCONCLUSIVE else MUTED)
+            rows.append(["", Cell("", span=6)])
             fills.append(stripe)
+            least.append(block_height(pdf, remark, remark_width, REMARK_SIZE) + 2 * REMARK_PAD)
             owner.append(None)
 
     def draw_band(pdf: FPDF, i: int, x: float, y: float, w: float, h: float) -> None:
@@ -202,12 +256,25 @@ def _readings(pdf: FPDF, card: JobCard) -> None:
         if k is not None and card.readings[k].band is not None:
             band_picture(pdf, card.readings[k].band, card.readings[k].verdict, x, y, w, h)
 
+    def draw_remark(pdf: FPDF, i: int, x: float, y: float, w: float, h: float) -> None:
+        if i in remarks:
+            text, colour = remarks[i]
+            draw_block(pdf, x, y + REMARK_PAD, remark_width, text, REMARK_SIZE, colour=colour)
+
     measured_table(pdf, ["#", "Test point and condition", "Reading", "Expected", "Gauge error and gauge",
-                         "Position in range", "Verdict"], rows, [5, 40, 16, 21, 31, 41, 21],
-                   aligns="RLLLLLL", size=SMALL, min_row=7.0, draw={5: draw_band}, row_fills=fills)
+                         "Position in range", "Verdict"], rows, READING_COLUMNS,
+                   aligns="RLLLLLL", size=SMALL, draw={1: draw_remark, 5: draw_band}, row_fills=fills,
+                   row_heights=least)
     pdf.ln(0.8)
-    band_legend(pdf, pdf.l_margin, pdf.y, TINY)
-    pdf.ln(4.5)
+    with _placed(pdf, 4.5) as top:
+        band_legend(pdf, pdf.l_margin, top, TINY)
+    pdf.set_xy(pdf.l_margin, top + 4.5)
+
+
+def _too_tall(pdf: FPDF, text: str, width: float) -> bool:
+    """A remark taller than a third of a page would make a table row that may not fit any page."""
+    page = pdf.page_break_trigger - pdf.t_margin
+    return block_height(pdf, text, width, REMARK_SIZE) > page / 3
 
 
 def _findings(pdf: FPDF, card: JobCard) -> None:
@@ -217,15 +284,14 @@ def _findings(pdf: FPDF, card: JobCard) -> None:
         for f in card.findings.flagged:
             colour, fill, bold = VERDICT_STYLE[f.verdict]
             title = f.title + (f" ({f.circuit})" if f.circuit else "")
-            rows.append([Cell(f.verdict_text, bold=bold, color=colour, fill=fill), Cell(title, bold=True),
-                         f.message, f.action])
-        measured_table(pdf, ["Verdict", "Finding", "What it shows", "What to do"], rows, [17, 38, 70, 57], size=SMALL)
+            rows.append([Cell(f.verdict_text, bold=bold, color=colour, fill=fill), Cell(title, bold=True), f.message])
+        measured_table(pdf, ["Verdict", "Finding", "What it shows"], rows, [19, 50, 113], size=SMALL)
     else:
         _text(pdf, "No finding out of range or inconclusive.")
     for summary in (card.findings.in_range_summary, card.findings.not_checked_summary):
         if summary:
             pdf.ln(1)
-            _text(pdf, summary, SMALL, color=MUTED)
+            _text(pdf, summary, TINY + 0.3, color=MUTED)
 
 
 def _faults(pdf: FPDF, card: JobCard) -> None:
@@ -236,7 +302,7 @@ def _faults(pdf: FPDF, card: JobCard) -> None:
     def draw_bar(pdf: FPDF, i: int, x: float, y: float, w: float, h: float) -> None:
         probability_bar(pdf, card.faults.top[i].probability, x, y, w, h)
 
-    measured_table(pdf, ["#", "Fault", "%", "Probability", "Evidence"], rows, [5, 45, 12, 22, 98],
+    measured_table(pdf, ["#", "Fault", "%", "Probability", "Evidence"], rows, [5, 52, 11, 20, 94],
                    aligns="RLRLL", size=SMALL, draw={3: draw_bar})
     pdf.ln(1)
     key = ("×N: a finding is N times as likely with this fault as on a healthy machine; ÷N: N times less likely.")
@@ -267,26 +333,23 @@ def _next_test(pdf: FPDF, card: JobCard) -> None:
     if t is None:
         return
     pdf.ln(1)
-    x, y, w = pdf.l_margin, pdf.y, pdf.epw
+    x, w = pdf.l_margin, pdf.epw
     parts = [(t.title, BODY, True), (t.why, SMALL, False)]
-    parts += [(f"If {k}: {v}", SMALL, False) for k, v in t.outcomes]
-    height = sum(text_height(pdf, s, w - 3.5, size, bold, padding=0) for s, size, bold in parts) + 3
-    if y + height > pdf.page_break_trigger:
-        pdf.add_page()
-        y = pdf.y
-    pdf.set_draw_color(*ACCENT)
-    pdf.set_line_width(0.35)
-    pdf.set_fill_color(240, 245, 247)
-    pdf.rect(x, y, w, height, style="DF")
-    pdf.set_y(y + 1.5)
-    for s, size, bold in parts:
-        _text(pdf, s, size, bold, indent=3.5)
-    pdf.set_y(y + height)
+    height = sum(block_height(pdf, s, w - 3.5, size, bold) for s, size, bold in parts) + 3
+    with _placed(pdf, height) as y:
+        pdf.set_draw_color(*ACCENT)
+        pdf.set_line_width(0.35)
+        pdf.set_fill_color(240, 245, 247)
+        pdf.rect(x, y, w, height, style="DF")
+        top = y + 1.5
+        for s, size, bold in parts:
+            top += draw_block(pdf, x + 3.5, top, w - 3.5, s, size, bold)
+    pdf.set_xy(pdf.l_margin, y + height)
 
 
 def _caution_lines(c: Caution, edge: tuple[int, int, int]) -> list[tuple[str, float, bool, tuple[int, int, int]]]:
-    return [(c.title, 7.0, True, edge), (c.text, 6.6, False, INK),
-            (f"Raised: {c.raised_by}. Source: {c.source}.", 5.8, False, MUTED)]
+    return [(c.title, 6.8, True, edge), (c.text, 6.1, False, INK),
+            (f"Raised: {c.raised_by}. Source: {c.source}.", 5.5, False, MUTED)]
 
 
 def _caution_box(pdf: FPDF, c: Caution, x: float, y: float, w: float, h: float | None = None) -> float:
@@ -296,60 +359,63 @@ def _caution_box(pdf: FPDF, c: Caution, x: float, y: float, w: float, h: float |
     """
     edge, fill = SEVERITY.get(c.severity, SEVERITY["notice"])
     lines = _caution_lines(c, edge)
-    need = sum(text_height(pdf, t, w - 4, size, bold, padding=0.3) for t, size, bold, _c in lines) + 1.2
     if h is None:
-        return need
+        return sum(block_height(pdf, t, w - 3, size, bold) for t, size, bold, _c in lines) + 1.6
     pdf.set_fill_color(*fill)
     pdf.set_draw_color(*edge)
     pdf.set_line_width(0.3)
     pdf.rect(x, y, w, h, style="DF")
     pdf.set_fill_color(*edge)
     pdf.rect(x, y, 1.8, h, style="F")
-    pdf.set_xy(x + 3, y + 0.6)
+    top = y + 0.8
     for text, size, bold, colour in lines:
-        pdf.set_font(FAMILY, "B" if bold else "", size)
-        pdf.set_text_color(*colour)
-        pdf.multi_cell(w - 4, line_height(size), text, padding=0.3, align="L", new_x="LEFT", new_y="NEXT")
-    pdf.set_text_color(*INK)
+        top += draw_block(pdf, x + 2.5, top, w - 3, text, size, bold, colour)
     return h
 
 
 def _cautions(pdf: FPDF, card: JobCard) -> None:
     """Safety cautions as boxes: the general one across the page, the rest two to a row."""
     _section(pdf, "Safety cautions", keep=30)
-    gap = 1.8
+    gap = 1.5
     general = [c for c in card.cautions if c.general]
     rest = [c for c in card.cautions if not c.general]
     rows: list[list[Caution]] = [[c] for c in general] + [rest[i:i + 2] for i in range(0, len(rest), 2)]
     for row in rows:
         w = pdf.epw if len(row) == 1 and row[0].general else (pdf.epw - gap) / 2
         h = max(_caution_box(pdf, c, 0, 0, w) for c in row)
-        if pdf.y + h > pdf.page_break_trigger:
-            pdf.add_page()
-        y = pdf.y
-        for k, c in enumerate(row):
-            _caution_box(pdf, c, pdf.l_margin + k * (w + gap), y, w, h)
+        with _placed(pdf, h) as y:
+            for k, c in enumerate(row):
+                _caution_box(pdf, c, pdf.l_margin + k * (w + gap), y, w, h)
         pdf.set_xy(pdf.l_margin, y + h + gap)
 
 
-def _notes(pdf: FPDF, card: JobCard) -> None:
-    if not card.notes:
+def _notes(pdf: JobCardPDF, card: JobCard) -> None:
+    notes = card.notes + pdf.spill
+    if not notes:
         return
     _section(pdf, "Notes", keep=12)
-    for n in card.notes:
-        _text(pdf, n.label, SMALL, bold=True)
-        _text(pdf, n.text, SMALL + 0.5)
-        pdf.ln(1)
+    lh = line_height(SMALL + 0.5)
+    for n in notes:
+        # Flowing text (write), so a note of any length breaks across pages like a paragraph.
+        pdf.set_x(pdf.l_margin)
+        pdf.set_font(FAMILY, "B", SMALL + 0.5)
+        pdf.write(lh, f"{n.label}: ")
+        pdf.set_font(FAMILY, "", SMALL + 0.5)
+        pdf.write(lh, n.text)
+        pdf.ln(lh + 1)
 
 
 def _sign_off(pdf: FPDF, card: JobCard) -> None:
-    height = 34
-    if pdf.y + height + 12 > pdf.page_break_trigger:
-        pdf.add_page()
+    height = 26
     _section(pdf, "Sign-off", keep=height)
+    with _placed(pdf, height) as top:
+        _sign_off_boxes(pdf, card, top + 1, height)
+    pdf.set_y(top + height)
+
+
+def _sign_off_boxes(pdf: FPDF, card: JobCard, y: float, height: float) -> None:
     gap = 8
     w = (pdf.epw - gap) / len(card.sign_off)
-    y = pdf.y + 1
     statements = {
         "Technician": "Readings taken and recorded as above.",
         "Customer": "Findings and recommended actions explained to me.",
@@ -359,25 +425,22 @@ def _sign_off(pdf: FPDF, card: JobCard) -> None:
         pdf.set_draw_color(*RULE)
         pdf.set_line_width(0.3)
         pdf.rect(x, y, w, height - 4, style="D")
-        pdf.set_xy(x + 2.5, y + 1.5)
+        pdf.set_xy(x + 2.5, y + 1)
         pdf.set_font(FAMILY, "B", BODY)
-        pdf.cell(w - 5, 4.5, s.role)
-        pdf.set_xy(x + 2.5, y + 6)
+        pdf.cell(pdf.get_string_width(s.role) + 2, 4.5, s.role)
         pdf.set_font(FAMILY, "", TINY)
         pdf.set_text_color(*MUTED)
-        pdf.cell(w - 5, 3.5, statements.get(s.role, ""))
+        pdf.cell(w - 5 - pdf.get_string_width(s.role) - 2, 4.5, statements.get(s.role, ""))
         pdf.set_text_color(*INK)
         for j, label in enumerate(("Name", "Signature", "Date")):
-            line_y = y + 16 + j * 6
+            line_y = y + 11.5 + j * 4.8
             pdf.set_xy(x + 2.5, line_y - 4)
             pdf.set_font(FAMILY, "", SMALL)
             pdf.set_text_color(*MUTED)
             pdf.cell(18, 4, label)
             pdf.set_text_color(*INK)
             if label == "Name" and s.name:
-                pdf.set_font(FAMILY, "", BODY)
-                pdf.cell(w - 23, 4, s.name)
+                _fit(pdf, x + 21, line_y - 4.5, w - 24, 4.5, s.name, BODY)
             pdf.set_draw_color(*MUTED)
             pdf.set_line_width(0.2)
             pdf.line(x + 20.5, line_y, x + w - 3, line_y)
-    pdf.set_y(y + height)

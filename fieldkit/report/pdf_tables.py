@@ -1,11 +1,11 @@
 """Tables for the PDF job card: fpdf2's ``table()`` with row heights we know in advance.
 
 The band pictures and probability bars are drawn into table cells after the table is laid
-out, so we must know where each row lands. We measure every cell with the same call fpdf2 uses
-(``multi_cell`` with the table's line height and padding), give each row exactly that height,
-split the rows into page-sized chunks ourselves (headings repeated on each page) and then check
-that the table ended where the sums say. If a future fpdf2 lays rows out differently the check
-fails loudly instead of drawing a picture beside the wrong reading.
+out, so we must know where each row lands. We measure every cell (never fewer lines than fpdf2
+will use, see :func:`fieldkit.report.pdf_text.text_height`), give each row that height as its
+least height, split the rows into page-sized chunks ourselves (headings repeated on each page)
+and then check that the table ended where the sums say. If a future fpdf2 lays rows out
+differently the check fails loudly instead of drawing a picture beside the wrong reading.
 """
 
 from __future__ import annotations
@@ -16,9 +16,9 @@ from dataclasses import dataclass
 from fpdf import FPDF
 from fpdf.fonts import FontFace
 
-FAMILY = "fieldkit-sans"
-PT = 25.4 / 72  # mm per point
-PADDING = 0.9  # mm around the text of every cell
+from fieldkit.report.pdf_text import FAMILY, PADDING, line_height, text_height
+
+__all__ = ["FAMILY", "Cell", "Draw", "line_height", "measured_table", "text_height"]
 
 
 @dataclass(frozen=True, slots=True)
@@ -33,24 +33,6 @@ class Cell:
 
 #: Draws into one cell: (pdf, row index, x, y, width, height), all in mm.
 Draw = Callable[[FPDF, int, float, float, float, float], None]
-
-
-def line_height(size: float) -> float:
-    return size * PT * 1.22
-
-
-def text_height(pdf: FPDF, text: str, width: float, size: float, bold: bool = False,
-                padding: float = PADDING, lh: float | None = None) -> float:
-    """Height of ``multi_cell`` text (by default a table cell), measured as fpdf2's table measures it.
-
-    ``lh`` is the line height; a table uses its own for every cell, whatever the cell's font size.
-    """
-    if not text:
-        return 0.0
-    pdf.set_font(FAMILY, "B" if bold else "", size)
-    lh = lh or line_height(size)
-    return float(pdf.multi_cell(w=width, h=lh, text=text, max_line_height=lh, padding=padding,
-                                dry_run=True, output="HEIGHT", wrapmode="WORD"))
 
 
 def _as_cell(c: Cell | str) -> Cell:
@@ -79,12 +61,14 @@ def measured_table(
     heading_fill: tuple[int, int, int] = (22, 86, 110),
     zebra: tuple[int, int, int] = (244, 246, 248),
     row_fills: Sequence[tuple[int, int, int] | None] | None = None,
+    row_heights: Sequence[float] | None = None,
 ) -> None:
     """A table across the page width; ``widths`` are relative and scaled to the printable width.
 
     ``headings=None`` makes a table without a heading row (the visit header's grid). With
     ``row_fills`` each row gets its own background instead of alternate stripes, so a reading and
-    the remark row under it can share one.
+    the remark row under it can share one. ``row_heights`` sets a least height per row, for rows
+    whose content a ``draw`` callback puts in.
     """
     draw = draw or {}
     total = sum(widths)
@@ -94,7 +78,8 @@ def measured_table(
     cells = [[_as_cell(c) for c in row] for row in rows]
 
     head_h = max(text_height(pdf, h, cols[j], size, bold=True) for j, h in enumerate(headings)) if headings else 0.0
-    heights = [_row_height(pdf, row, cols, size, min_row) for row in cells]
+    least = list(row_heights) if row_heights is not None else [min_row] * len(cells)
+    heights = [_row_height(pdf, row, cols, size, max(min_row, least[i])) for i, row in enumerate(cells)]
     fills = list(row_fills) if row_fills is not None else None
 
     start = 0
@@ -152,3 +137,4 @@ def _chunk(pdf: FPDF, headings: Sequence[str] | None, cells: list[list[Cell]], h
         for j, fn in draw.items():
             fn(pdf, i, xs[j], y, cols[j], heights[i])
         y += heights[i]
+    pdf.set_xy(pdf.l_margin, expected)  # a callback that wrote text moved the cursor

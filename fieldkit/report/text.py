@@ -72,8 +72,6 @@ def _findings(out: list[str], card: JobCard) -> None:
         circuit = f" ({f.circuit})" if f.circuit else ""
         _para(out, f"{f.title}{circuit}", f"    {f.verdict_text:<{VERDICT_COLUMN - 4}}", hang)
         _para(out, f.message, hang)
-        if f.action:
-            _para(out, f"What to do: {f.action}", hang)
     for summary in (card.findings.in_range_summary, card.findings.not_checked_summary):
         if summary:
             out.append("")
@@ -114,8 +112,6 @@ def _next_test(out: list[str], card: JobCard) -> None:
     if t is not None:
         _para(out, t.title, "  ", "    ")
         _para(out, t.why, "    ")
-        for outcome, meaning in t.outcomes:
-            _para(out, f"- if {outcome}: {meaning}", "    ", "      ")
 
 
 def _cautions(out: list[str], card: JobCard) -> None:

@@ -23,11 +23,23 @@ from fieldkit.model.roles import Role
 from fieldkit.physics.accumulators import expected_precharge
 from fieldkit.physics.cylinders import bore_area, leakage_from_drift
 from fieldkit.simulate.machine import (
-    KELVIN, LEAKAGE_SCATTER, LOAD_SCATTER, SETTING_SCATTER, CircuitModel, Draw, Env, Machine, any_bounds, bounds,
-    middle, param, point,
+    KELVIN,
+    LEAKAGE_SCATTER,
+    LOAD_SCATTER,
+    SETTING_SCATTER,
+    CircuitModel,
+    Draw,
+    Env,
+    Machine,
+    any_bounds,
+    bounds,
+    middle,
+    param,
+    point,
+    qty,
 )
 from fieldkit.simulate.open_circuits import stall_pressure
-from fieldkit.units import Q_, STANDARD_ATMOSPHERE
+from fieldkit.units import STANDARD_ATMOSPHERE
 
 #: Precharge figures are stated for gas at about 20 °C unless the maker says otherwise (from memory).
 PRECHARGE_REFERENCE_C = 20.0
@@ -39,7 +51,9 @@ _ATM_BAR = STANDARD_ATMOSPHERE.m_as("bar")
 
 
 def _supply_stall(machine: Machine, env: Env) -> float | None:
-    feed = machine.first(CircuitKind.LOAD_SENSING, CircuitKind.PRESSURE_COMPENSATED, CircuitKind.OPEN_FIXED_PUMP)
+    feed = machine.first(
+        CircuitKind.LOAD_SENSING, CircuitKind.PRESSURE_COMPENSATED, CircuitKind.OPEN_FIXED_PUMP
+    )
     return None if feed is None else stall_pressure(feed, env)
 
 
@@ -56,7 +70,9 @@ def precharge_reading(model: CircuitModel, gas_c: float) -> float:
     return max(0.0, absolute - _ATM_BAR)
 
 
-def actuator(machine: Machine, model: CircuitModel, tp: TestPoint, state: FunctionState, env: Env) -> float | None:
+def actuator(
+    machine: Machine, model: CircuitModel, tp: TestPoint, state: FunctionState, env: Env
+) -> float | None:
     role = tp.role
     p = model.p
     if role is Role.ACCUMULATOR_PRECHARGE and "precharge" in p:
@@ -91,7 +107,7 @@ def accumulator_params(circuit: Circuit, draw: Draw, p: dict[str, float]) -> Non
         low_work = param(circuit, "accumulator_min_working_pressure")
         if low_work is None:
             return
-        mid = expected_precharge(Q_(low_work, "bar")).m_as("bar")
+        mid = expected_precharge(qty(low_work, "bar")).m_as("bar")
     p["precharge"] = draw(mid, SETTING_SCATTER * 1.5)
     p["precharge_c"] = PRECHARGE_REFERENCE_C
 
@@ -103,14 +119,25 @@ def build_actuator(machine: Machine, circuit: Circuit, draw: Draw) -> CircuitMod
     if circuit.kind is CircuitKind.CYLINDER:
         bore = param(circuit, "cylinder_bore") or 100.0
         rod = param(circuit, "cylinder_rod") or 0.6 * bore
-        limit = (param(circuit, "max_drift_rate")
-                 or bounds(point(circuit, Role.CYLINDER_DRIFT), FunctionState.NEUTRAL)[1] or 10.0)
-        bore_q, rod_q = Q_(bore, "mm"), Q_(rod, "mm")
-        p.update(bore=bore, rod=rod, cap_area=bore_area(bore_q).m_as("mm ** 2"))
-        p["q_valve"] = draw(leakage_from_drift(Q_(VALVE_SHARE * limit, "mm/min"), bore_q, rod_q).m_as("L/min"),
-                            LEAKAGE_SCATTER)
-        p["q_seal"] = draw(leakage_from_drift(Q_(SEAL_SHARE * limit, "mm/min"), bore_q, rod_q).m_as("L/min"),
-                           LEAKAGE_SCATTER)
+        limit = (
+            param(circuit, "max_drift_rate")
+            or bounds(point(circuit, Role.CYLINDER_DRIFT), FunctionState.NEUTRAL)[1]
+            or 10.0
+        )
+        bore_q, rod_q = qty(bore, "millimeter"), qty(rod, "millimeter")
+        p.update(bore=bore, rod=rod, cap_area=bore_area(bore_q).m_as("millimeter ** 2"))
+        p["q_valve"] = draw(
+            leakage_from_drift(qty(VALVE_SHARE * limit, "millimeter / minute"), bore_q, rod_q).m_as(
+                "liter / minute"
+            ),
+            LEAKAGE_SCATTER,
+        )
+        p["q_seal"] = draw(
+            leakage_from_drift(qty(SEAL_SHARE * limit, "millimeter / minute"), bore_q, rod_q).m_as(
+                "liter / minute"
+            ),
+            LEAKAGE_SCATTER,
+        )
     elif circuit.kind is CircuitKind.ACCUMULATOR:
         cutout = param(circuit, "accumulator_max_working_pressure")
         if cutout is None:
@@ -118,8 +145,11 @@ def build_actuator(machine: Machine, circuit: Circuit, draw: Draw) -> CircuitMod
         if cutout is not None:
             p["cutout"] = draw(cutout, SETTING_SCATTER)
     elif circuit.kind is CircuitKind.PILOT_SUPPLY:
-        pilot = (param(circuit, "pilot_relief_setting")
-                 or middle(*bounds(point(circuit, Role.PILOT_PRESSURE), FunctionState.NEUTRAL)) or 30.0)
+        pilot = (
+            param(circuit, "pilot_relief_setting")
+            or middle(*bounds(point(circuit, Role.PILOT_PRESSURE), FunctionState.NEUTRAL))
+            or 30.0
+        )
         p["pilot"] = draw(pilot, SETTING_SCATTER)
         p["signal_drop"] = draw(1.0, LOAD_SCATTER)
     return model

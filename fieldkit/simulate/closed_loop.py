@@ -10,7 +10,8 @@ Closed loop (``CircuitModel.p``, canonical units):
 * ``pump_drain`` / ``motor_drain`` case drain at the stall pressure ``p_ref`` and the reference
   temperature, ``pump_wear`` / ``motor_wear`` their multipliers; loop leakage is laminar, so it
   scales with loop pressure and 1/viscosity;
-* ``drain_static``, ``drain_r``, ``case_extra`` what the pump case reads for its drain flow;
+* ``drain_static``, ``drain_r``, ``case_extra`` what the pump case reads for the oil through it:
+  its own leakage, and in neutral the charge flow the charge relief discharges into it;
 * ``inlet_turb`` / ``inlet_lam`` / ``inlet_restrict`` charge pump inlet vacuum;
   ``cfilter`` charge filter drop at the design charge flow.
 
@@ -34,11 +35,23 @@ from fieldkit.model.roles import Role
 from fieldkit.physics.closed_loop import charge_flow_budget, expected_charge_pressure
 from fieldkit.physics.reliefs import ReliefValve, deadhead
 from fieldkit.simulate.machine import (
-    LEAKAGE_SCATTER, LOAD_SCATTER, RESTRICTION_SCATTER, SETTING_SCATTER, CircuitModel, Draw, Env, Machine,
-    any_bounds, bounds, middle, param, point,
+    LEAKAGE_SCATTER,
+    LOAD_SCATTER,
+    RESTRICTION_SCATTER,
+    SETTING_SCATTER,
+    CircuitModel,
+    Draw,
+    Env,
+    Machine,
+    any_bounds,
+    bounds,
+    drain_line,
+    middle,
+    param,
+    point,
+    qty,
 )
 from fieldkit.simulate.open_circuits import cavitation_fill, return_back
-from fieldkit.units import Q_
 
 #: Charge pump volumetric efficiency at its relief setting on a sound machine (simulator's
 #: estimate for a small gear or gerotor pump, from memory).
@@ -57,11 +70,15 @@ DEEPEST_VACUUM_BAR = 0.9
 
 # --- closed loop ---------------------------------------------------------------------------
 
+
 def loop_pressure(model: CircuitModel, state: FunctionState) -> float:
     p = model.p
-    return {FunctionState.NEUTRAL: p["charge_relief"], FunctionState.FULL_STROKE: STROKE_SHARE * p["p_ref"],
-            FunctionState.UNDER_LOAD: LOAD_SHARE * p["p_ref"],
-            FunctionState.STALLED: 0.5 * (p["hp_a"] + p["hp_b"])}[state]
+    return {
+        FunctionState.NEUTRAL: p["charge_relief"],
+        FunctionState.FULL_STROKE: STROKE_SHARE * p["p_ref"],
+        FunctionState.UNDER_LOAD: LOAD_SHARE * p["p_ref"],
+        FunctionState.STALLED: 0.5 * (p["hp_a"] + p["hp_b"]),
+    }[state]
 
 
 def pump_drain(model: CircuitModel, state: FunctionState, env: Env) -> float:
@@ -74,11 +91,6 @@ def motor_drain(model: CircuitModel, state: FunctionState, env: Env) -> float:
     return p["motor_drain"] * p["motor_wear"] * loop_pressure(model, state) / p["p_ref"] * env.leak
 
 
-def loop_case(model: CircuitModel, state: FunctionState, env: Env) -> float:
-    p = model.p
-    return p["drain_static"] + p["drain_r"] * pump_drain(model, state, env) + p["case_extra"]
-
-
 def charge_intake(model: CircuitModel, env: Env) -> float:
     return model.p["charge_disp"] * env.speed_rpm / 1000.0
 
@@ -89,28 +101,51 @@ def charge_vacuum(model: CircuitModel, env: Env) -> float:
     return (p["inlet_turb"] * x * x + p["inlet_lam"] * x * env.visc_ratio) * p["inlet_restrict"]
 
 
-def charge_pressure(machine: Machine, model: CircuitModel, state: FunctionState, env: Env) -> float:
-    """Charge gauge reading in a state (bar): the governing relief while the charge pump keeps
-    up, below it when the loop loses more than the charge pump gives."""
+def charge_delivered(model: CircuitModel, env: Env) -> float:
+    """What the charge pump fills at this speed and inlet vacuum, before its own slip."""
+    return charge_intake(model, env) * model.p["charge_fill"] * cavitation_fill(charge_vacuum(model, env))
+
+
+def net_charge(machine: Machine, model: CircuitModel, state: FunctionState, env: Env) -> tuple[float, float]:
+    """Charge pressure above case (bar) and the flow over the charge relief into the pump case
+    (L/min) in a state: the governing relief while the charge pump keeps up, below it when the
+    loop loses more than the charge pump gives."""
     p = model.p
-    case = loop_case(model, state, env)
-    flushing = Q_(p["flushing_relief"], "bar") if p.get("flushing_relief") else None
-    expected = expected_charge_pressure(Q_(p["charge_relief"], "bar"), flushing, Q_(case, "bar"))
-    governing = (expected.neutral if state is FunctionState.NEUTRAL else expected.in_stroke).m_as("bar") - case
-    drawn = charge_intake(model, env) * p["charge_fill"] * cavitation_fill(charge_vacuum(model, env))
+    flushing = qty(p["flushing_relief"], "bar") if p.get("flushing_relief") else None
+    settings = expected_charge_pressure(qty(p["charge_relief"], "bar"), flushing)
+    neutral = state is FunctionState.NEUTRAL
+    governing = (settings.neutral if neutral else settings.in_stroke).m_as("bar")
+    by_charge_relief = neutral or settings.in_stroke_governed_by == "charge relief"
+    drawn = charge_delivered(model, env)
     slip = p["charge_c"] * env.leak
-    at_setting = drawn - slip * max(governing, 0.0)
-    brake_leak = 0.0 if state is FunctionState.NEUTRAL else brake_demand(machine)
+    at_setting = drawn - slip * governing
+    brake_leak = 0.0 if neutral else brake_demand(machine)
     budget = charge_flow_budget(
-        Q_(p["charge_disp"], "cc/rev"), Q_(env.speed_rpm, "rpm"),
+        qty(p["charge_disp"], "centimeter ** 3 / revolution"),
+        qty(env.speed_rpm, "revolution / minute"),
         min(1.0, max(at_setting / charge_intake(model, env), 1e-4)),
-        Q_(pump_drain(model, state, env), "L/min"), Q_(motor_drain(model, state, env) + brake_leak, "L/min"),
+        qty(pump_drain(model, state, env), "liter / minute"),
+        qty(motor_drain(model, state, env) + brake_leak, "liter / minute"),
     )
+    surplus = budget.surplus.m_as("liter / minute")
     if budget.keeps_loop_full:
-        net = governing + CHARGE_OVERRIDE_SLOPE * budget.surplus.m_as("L/min")
-    else:
-        net = max(0.0, (drawn - budget.demand.m_as("L/min")) / slip)
-    return net + case
+        return governing + CHARGE_OVERRIDE_SLOPE * surplus, surplus if by_charge_relief else 0.0
+    return max(0.0, (drawn - budget.demand.m_as("liter / minute")) / slip), 0.0
+
+
+def loop_case(machine: Machine, model: CircuitModel, state: FunctionState, env: Env) -> float:
+    """Pump case pressure: the drain line passing the pump's leakage plus whatever the charge
+    relief discharges into the case (physics.closed_loop: the charge relief commonly vents
+    into it), so the case carries the most oil in neutral."""
+    p = model.p
+    flow = pump_drain(model, state, env) + net_charge(machine, model, state, env)[1]
+    return p["drain_static"] + p["drain_r"] * flow + p["case_extra"]
+
+
+def charge_pressure(machine: Machine, model: CircuitModel, state: FunctionState, env: Env) -> float:
+    """Charge gauge reading: net charge plus case pressure, since the charge and flushing
+    reliefs work against the case (physics.closed_loop.expected_charge_pressure)."""
+    return net_charge(machine, model, state, env)[0] + loop_case(machine, model, state, env)
 
 
 def brake_demand(machine: Machine) -> float:
@@ -118,25 +153,26 @@ def brake_demand(machine: Machine) -> float:
     return sum(m.p.get("leak", 0.0) for m in machine.circuits.values() if m.kind is CircuitKind.BRAKE_RELEASE)
 
 
-def closed_loop(machine: Machine, model: CircuitModel, tp: TestPoint, state: FunctionState, env: Env) -> float | None:
+def closed_loop(
+    machine: Machine, model: CircuitModel, tp: TestPoint, state: FunctionState, env: Env
+) -> float | None:
     role = tp.role
     p = model.p
     if role is Role.CHARGE_PRESSURE:
         return charge_pressure(machine, model, state, env)
     if role is Role.CASE_PRESSURE:
-        return loop_case(model, state, env)
+        return loop_case(machine, model, state, env)
     if role is Role.PUMP_CASE_DRAIN_FLOW:
         return pump_drain(model, state, env)
     if role is Role.MOTOR_CASE_DRAIN_FLOW:
         return motor_drain(model, state, env)
     if role in (Role.LOOP_A_PRESSURE, Role.LOOP_B_PRESSURE) and state is FunctionState.STALLED:
         setting = p["hp_a"] if role is Role.LOOP_A_PRESSURE else p["hp_b"]
-        return deadhead(ReliefValve("cross-port", Q_(setting, "bar"))).upstream.m_as("bar")
+        return deadhead(ReliefValve("cross-port", qty(setting, "bar"))).upstream.m_as("bar")
     if role is Role.SUCTION_PRESSURE:
         return -min(charge_vacuum(model, env), DEEPEST_VACUUM_BAR)
     if role is Role.FILTER_PRESSURE_DROP:
-        delivered = charge_intake(model, env) * p["charge_fill"] * cavitation_fill(charge_vacuum(model, env))
-        return p["cfilter"] * delivered / p["charge_q0"] * env.visc_ratio
+        return p["cfilter"] * charge_delivered(model, env) / p["charge_q0"] * env.visc_ratio
     return None
 
 
@@ -145,21 +181,36 @@ def build_closed_loop(machine: Machine, circuit: Circuit, draw: Draw) -> Circuit
     disp = param(circuit, "pump_displacement") or 50.0
     charge_disp = param(circuit, "charge_pump_displacement") or CHARGE_SHARE * disp
     charge_pt = point(circuit, Role.CHARGE_PRESSURE)
-    charge = param(circuit, "charge_relief_setting") or middle(*bounds(charge_pt, FunctionState.NEUTRAL)) or 22.0
+    charge = (
+        param(circuit, "charge_relief_setting") or middle(*bounds(charge_pt, FunctionState.NEUTRAL)) or 22.0
+    )
     flushing = param(circuit, "flushing_relief_setting")
-    hp = (param(circuit, "high_pressure_relief_setting")
-          or middle(*bounds(point(circuit, Role.LOOP_A_PRESSURE), FunctionState.STALLED)) or 350.0)
+    hp = (
+        param(circuit, "high_pressure_relief_setting")
+        or middle(*bounds(point(circuit, Role.LOOP_A_PRESSURE), FunctionState.STALLED))
+        or 350.0
+    )
     q0 = charge_disp * rated / 1000.0
     model = CircuitModel(circuit, {})
     p = model.p
-    p.update(charge_disp=charge_disp, charge_q0=q0, charge_fill=1.0,
-             charge_c=draw((1 - CHARGE_EFFICIENCY) * q0 / charge, LEAKAGE_SCATTER),
-             charge_relief=draw(charge, SETTING_SCATTER), hp_a=draw(hp, SETTING_SCATTER),
-             hp_b=draw(hp, SETTING_SCATTER), p_ref=hp, pump_wear=1.0, motor_wear=1.0, case_extra=0.0,
-             inlet_restrict=1.0)
+    p.update(
+        charge_disp=charge_disp,
+        charge_q0=q0,
+        charge_fill=1.0,
+        charge_c=draw((1 - CHARGE_EFFICIENCY) * q0 / charge, LEAKAGE_SCATTER),
+        charge_relief=draw(charge, SETTING_SCATTER),
+        hp_a=draw(hp, SETTING_SCATTER),
+        hp_b=draw(hp, SETTING_SCATTER),
+        p_ref=hp,
+        pump_wear=1.0,
+        motor_wear=1.0,
+        case_extra=0.0,
+        inlet_restrict=1.0,
+    )
     if flushing:
         p["flushing_relief"] = draw(flushing, SETTING_SCATTER)
     qth = disp * rated / 1000.0
+    p["qth"] = qth
     pump = param(circuit, "case_drain_baseline")
     if pump is None:
         high = bounds(point(circuit, Role.PUMP_CASE_DRAIN_FLOW), FunctionState.STALLED)[1]
@@ -169,8 +220,8 @@ def build_closed_loop(machine: Machine, circuit: Circuit, draw: Draw) -> Circuit
     p["pump_drain"] = draw(pump, LEAKAGE_SCATTER)
     p["motor_drain"] = draw(motor, LEAKAGE_SCATTER)
     max_case = param(circuit, "max_case_pressure") or any_bounds(point(circuit, Role.CASE_PRESSURE))[1] or 2.0
-    p["drain_static"] = 0.3
-    p["drain_r"] = draw(max(0.01, (0.35 * max_case - 0.3) / max(p["pump_drain"], 0.1)), RESTRICTION_SCATTER)
+    # The most oil passes the pump case in neutral, where the charge relief sends the charge flow through it.
+    p["drain_static"], p["drain_r"] = drain_line(max_case, CHARGE_EFFICIENCY * q0, draw)
     floor = any_bounds(point(circuit, Role.SUCTION_PRESSURE))[0]
     vacuum = 0.4 * abs(floor) if floor is not None else 0.06
     p["inlet_turb"] = draw(vacuum / 2, RESTRICTION_SCATTER)
@@ -182,12 +233,17 @@ def build_closed_loop(machine: Machine, circuit: Circuit, draw: Draw) -> Circuit
 
 # --- motor in an open circuit --------------------------------------------------------------
 
+
 def _supply_back(machine: Machine, env: Env) -> float:
-    feed = machine.first(CircuitKind.OPEN_FIXED_PUMP, CircuitKind.LOAD_SENSING, CircuitKind.PRESSURE_COMPENSATED)
+    feed = machine.first(
+        CircuitKind.OPEN_FIXED_PUMP, CircuitKind.LOAD_SENSING, CircuitKind.PRESSURE_COMPENSATED
+    )
     return 0.0 if feed is None else return_back(feed, env)
 
 
-def motor(machine: Machine, model: CircuitModel, tp: TestPoint, state: FunctionState, env: Env) -> float | None:
+def motor(
+    machine: Machine, model: CircuitModel, tp: TestPoint, state: FunctionState, env: Env
+) -> float | None:
     role = tp.role
     p = model.p
     moving = state in (FunctionState.FULL_STROKE, FunctionState.UNDER_LOAD)
@@ -224,13 +280,13 @@ def build_motor(machine: Machine, circuit: Circuit, draw: Draw) -> CircuitModel:
     p["drain"] = draw(drain, LEAKAGE_SCATTER)
     p["wear"] = 1.0
     max_case = param(circuit, "max_case_pressure") or any_bounds(point(circuit, Role.CASE_PRESSURE))[1] or 2.0
-    p["drain_static"] = 0.3
-    p["drain_r"] = draw(max(0.01, (0.35 * max_case - 0.3) / max(p["drain"], 0.1)), RESTRICTION_SCATTER)
+    p["drain_static"], p["drain_r"] = drain_line(max_case, p["drain"], draw)
     p["case_extra"] = 0.0
     return model
 
 
 # --- brake release --------------------------------------------------------------------------
+
 
 def brake_supply(machine: Machine, model: CircuitModel, state: FunctionState, env: Env) -> float | None:
     """Pressure feeding the brake valve: its own supply figure, else the charge gallery of a
@@ -246,7 +302,9 @@ def brake_supply(machine: Machine, model: CircuitModel, state: FunctionState, en
     return None
 
 
-def brake_release(machine: Machine, model: CircuitModel, tp: TestPoint, state: FunctionState, env: Env) -> float | None:
+def brake_release(
+    machine: Machine, model: CircuitModel, tp: TestPoint, state: FunctionState, env: Env
+) -> float | None:
     p = model.p
     supply = brake_supply(machine, model, state, env)
     if tp.role is Role.PILOT_PRESSURE:
@@ -274,5 +332,11 @@ def build_brake(machine: Machine, circuit: Circuit, draw: Draw) -> CircuitModel:
 
 
 __all__ = [
-    "brake_release", "build_brake", "build_closed_loop", "build_motor", "charge_pressure", "closed_loop", "motor",
+    "brake_release",
+    "build_brake",
+    "build_closed_loop",
+    "build_motor",
+    "charge_pressure",
+    "closed_loop",
+    "motor",
 ]

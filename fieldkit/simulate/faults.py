@@ -63,6 +63,7 @@ def _bar(x: float) -> str:
 
 # --- closed loop ------------------------------------------------------------------------------
 
+
 @fault("charge_pump_worn", *LOOP)
 def charge_pump_worn(m: Machine, c: CircuitModel | None, s: float, rng: Random) -> str:
     """Worn gerotor or gear set: its tip and side clearances have opened, so oil slips back
@@ -116,14 +117,21 @@ def hp_relief_low(m: Machine, c: CircuitModel | None, s: float, rng: Random) -> 
 
 # --- pumps and motors -------------------------------------------------------------------------
 
+
 @fault("pump_worn", *OPEN, *LOOP)
 def pump_worn(m: Machine, c: CircuitModel | None, s: float, rng: Random) -> str:
-    """Scored valve plate, worn pistons or gear side plates: internal leakage × (1 + 5·s) at every
-    pressure. A piston pump's case drain rises with it; a gear pump delivers less under load."""
+    """Scored valve plate, worn pistons or gear side plates: extra internal leakage of 10 %·s of
+    the pump's theoretical flow at its test pressure (field notes: a worn piston pump leaks
+    above about 5 % of its maximum flow, from memory; severity 1 is twice that), laminar, so it
+    grows with pressure. A piston pump's case drain carries it; a gear pump delivers less."""
     assert c is not None
-    key = "pump_wear" if c.kind is CircuitKind.CLOSED_LOOP_DRIVE else "wear"
-    c.p[key] *= 1.0 + 5.0 * s
-    return f"pump internal leakage × {1 + 5 * s:.1f}"
+    if c.kind is CircuitKind.CLOSED_LOOP_DRIVE:
+        key, base = "pump_wear", c.p["pump_drain"]
+    else:
+        key, base = "wear", c.p["leak"]
+    extra = 0.10 * s * c.p["qth"]
+    c.p[key] *= 1.0 + extra / max(base, 1e-6)
+    return f"pump internal leakage {extra:.1f} L/min higher at its test pressure"
 
 
 @fault("motor_worn", CircuitKind.CLOSED_LOOP_DRIVE, CircuitKind.MOTOR)
@@ -138,14 +146,15 @@ def motor_worn(m: Machine, c: CircuitModel | None, s: float, rng: Random) -> str
 
 @fault("case_drain_restricted", CircuitKind.CLOSED_LOOP_DRIVE, *VARIABLE, CircuitKind.MOTOR)
 def case_drain_restricted(m: Machine, c: CircuitModel | None, s: float, rng: Random) -> str:
-    """Kinked or undersized case drain hose: its resistance × (1 + 10·s). Drain flow is what the
-    pump leaks and does not change; case pressure rises with it."""
+    """Kinked or undersized case drain hose: the flow-dependent part of its resistance × (1 + 20·s).
+    Drain flow is what the pump leaks and does not change; case pressure rises with it."""
     assert c is not None
-    c.p["drain_r"] *= 1.0 + 10.0 * s
-    return f"case drain line resistance × {1 + 10 * s:.1f}"
+    c.p["drain_r"] *= 1.0 + 20.0 * s
+    return f"case drain line resistance × {1 + 20 * s:.0f}"
 
 
 # --- reliefs and settings in open circuits ---------------------------------------------------
+
 
 def _main(c: CircuitModel) -> tuple[str, ReliefState] | None:
     rid = main_relief_id(c)
@@ -250,6 +259,7 @@ def ls_signal_leak(m: Machine, c: CircuitModel | None, s: float, rng: Random) ->
 
 # --- actuators, accumulators, brakes, pilot ---------------------------------------------------
 
+
 @fault("pilot_supply_low", CircuitKind.PILOT_SUPPLY)
 def pilot_supply_low(m: Machine, c: CircuitModel | None, s: float, rng: Random) -> str:
     """Pilot relief set low or dirty, or a pilot filter loading up: pilot supply 45 %·s low."""
@@ -287,7 +297,9 @@ def load_holding_valve_leak(m: Machine, c: CircuitModel | None, s: float, rng: R
     return f"load-holding valve leakage × {1 + 6 * s:.0f}"
 
 
-@fault("accumulator_precharge_lost", CircuitKind.ACCUMULATOR, CircuitKind.PILOT_SUPPLY, CircuitKind.BRAKE_RELEASE)
+@fault(
+    "accumulator_precharge_lost", CircuitKind.ACCUMULATOR, CircuitKind.PILOT_SUPPLY, CircuitKind.BRAKE_RELEASE
+)
 def accumulator_precharge_lost(m: Machine, c: CircuitModel | None, s: float, rng: Random) -> str:
     """Nitrogen lost through a split bladder or a leaking gas valve: precharge 70 %·s down."""
     assert c is not None
@@ -299,6 +311,7 @@ def accumulator_precharge_lost(m: Machine, c: CircuitModel | None, s: float, rng
 
 
 # --- the whole visit ---------------------------------------------------------------------------
+
 
 def _window(m: Machine) -> tuple[float, float]:
     w = m.profile.test_window
@@ -335,9 +348,17 @@ def gauge_error(m: Machine, c: CircuitModel | None, s: float, rng: Random) -> st
     """One pressure reading goes wrong (which one drawn from the seed): either its gauge reads off
     by a bias of (10 + 10·s) % of its span, up or down, or a gauge one standard range too small
     was fitted and its needle stops at full scale."""
-    m.gauge_fault = {"overrange": float(rng.random() < 0.5), "pick": rng.random(),
-                     "sign": rng.choice((-1.0, 1.0)), "size": 0.10 + 0.10 * s}
-    return "one gauge overranged" if m.gauge_fault["overrange"] else f"one gauge biased by {100 * m.gauge_fault['size']:.0f} % of its span"
+    m.gauge_fault = {
+        "overrange": float(rng.random() < 0.5),
+        "pick": rng.random(),
+        "sign": rng.choice((-1.0, 1.0)),
+        "size": 0.10 + 0.10 * s,
+    }
+    return (
+        "one gauge overranged"
+        if m.gauge_fault["overrange"]
+        else f"one gauge biased by {100 * m.gauge_fault['size']:.0f} % of its span"
+    )
 
 
 @fault("suction_cavitation", *OPEN)

@@ -19,11 +19,13 @@ from collections.abc import Callable
 from dataclasses import dataclass, field
 from random import Random
 
+import pint
+
 from fieldkit.model.condition import Condition, FunctionState
 from fieldkit.model.profile import Circuit, CircuitKind, MachineProfile, TestPoint
 from fieldkit.model.roles import Role
 from fieldkit.physics.fluid import ViscosityCurve, grade
-from fieldkit.units import Kind, to_canonical
+from fieldkit.units import Q_, Kind, to_canonical, unit
 
 KELVIN = 273.15
 
@@ -35,6 +37,12 @@ LEAKAGE_SCATTER = 0.10
 RESTRICTION_SCATTER = 0.10
 LOAD_SCATTER = 0.05
 TYPICAL_SCATTER = 0.03
+
+
+def qty(value: float, expr: str) -> pint.Quantity:
+    """A quantity for the physics core from a float and one of pint's own unit expressions
+    (cached; never text a person typed)."""
+    return Q_(value, unit(expr))
 
 
 class Draw:
@@ -169,6 +177,7 @@ class Machine:
 
 # --- reading the profile -----------------------------------------------------------------
 
+
 def param(circuit: Circuit, name: str) -> float | None:
     """A circuit parameter in its kind's canonical unit, or None when the profile has none."""
     q = circuit.parameters.get(name)
@@ -222,6 +231,16 @@ def typical(tp: TestPoint, state: FunctionState) -> float | None:
     return middle(*bounds(tp, state))
 
 
+def drain_line(max_case: float, healthy_flow: float, draw: Draw) -> tuple[float, float]:
+    """A sound case drain line: a static back pressure (tank height, cooler, fittings) of a
+    quarter of the allowed case pressure, and a flow-dependent part that adds a tenth of it at
+    the machine's healthy drain flow (simulator's own split: a sound drain line is sized so flow
+    costs little). Returns (static bar, bar per L/min)."""
+    static = draw(0.25 * max_case, RESTRICTION_SCATTER)
+    per_flow = draw(0.10 * max_case / max(healthy_flow, 0.1), RESTRICTION_SCATTER)
+    return static, per_flow
+
+
 def build_machine(profile: MachineProfile, rng: Random | None) -> Machine:
     """The healthy machine for a profile, with scatter from ``rng`` (None: the nominal machine)."""
     from fieldkit.simulate.physics_table import BUILDERS
@@ -259,6 +278,19 @@ def build_machine(profile: MachineProfile, rng: Random | None) -> Machine:
 
 
 __all__ = [
-    "CircuitModel", "Draw", "Env", "Machine", "ReliefState", "TestSetting", "any_bounds", "bounds",
-    "build_machine", "middle", "param", "point", "typical",
+    "CircuitModel",
+    "Draw",
+    "Env",
+    "Machine",
+    "ReliefState",
+    "TestSetting",
+    "any_bounds",
+    "bounds",
+    "build_machine",
+    "drain_line",
+    "middle",
+    "param",
+    "point",
+    "qty",
+    "typical",
 ]

@@ -30,10 +30,24 @@ from fieldkit.model.profile import Circuit, CircuitKind, ReliefLayout, TestPoint
 from fieldkit.model.roles import Role
 from fieldkit.physics.reliefs import Arrangement, Parallel, ReliefValve, Series, deadhead, opening_pressure
 from fieldkit.simulate.machine import (
-    LEAKAGE_SCATTER, LOAD_SCATTER, RESTRICTION_SCATTER, SETTING_SCATTER, CircuitModel, Draw, Env, Machine,
-    ReliefState, any_bounds, bounds, middle, param, point,
+    LEAKAGE_SCATTER,
+    LOAD_SCATTER,
+    RESTRICTION_SCATTER,
+    SETTING_SCATTER,
+    CircuitModel,
+    Draw,
+    Env,
+    Machine,
+    ReliefState,
+    any_bounds,
+    bounds,
+    drain_line,
+    middle,
+    param,
+    point,
+    qty,
 )
-from fieldkit.units import Q_, Kind, to_canonical
+from fieldkit.units import Kind, to_canonical
 
 #: A pump starts to lose fill when its inlet vacuum passes about a quarter of a bar (air and
 #: vapour come out of the oil) and loses about a tenth of its fill per further 0.1 bar:
@@ -55,6 +69,7 @@ def cavitation_fill(vacuum_bar: float) -> float:
 
 # --- reliefs -------------------------------------------------------------------------------
 
+
 def main_relief_id(model: CircuitModel) -> str | None:
     """The main relief: one named 'main', else the one set at the main_relief_setting figure,
     else the first one in the layout."""
@@ -72,7 +87,7 @@ def main_relief_id(model: CircuitModel) -> str | None:
 
 
 def _valve(rid: str, r: ReliefState) -> ReliefValve:
-    return ReliefValve(rid, Q_(r.setting, "bar"), Q_(r.override, "bar"), r.drain)
+    return ReliefValve(rid, qty(r.setting, "bar"), qty(r.override, "bar"), r.drain)
 
 
 def relief_tree(model: CircuitModel) -> Arrangement | None:
@@ -114,7 +129,7 @@ def downstream(model: CircuitModel, return_bar: float) -> float:
     tree = relief_tree(model)
     if not isinstance(tree, Series):
         return return_bar
-    return opening_pressure(Series(tree.items[1:]), Q_(return_bar, "bar")).m_as("bar")
+    return opening_pressure(Series(tree.items[1:]), qty(return_bar, "bar")).m_as("bar")
 
 
 def relief_pressure(model: CircuitModel, return_bar: float) -> float | None:
@@ -122,10 +137,11 @@ def relief_pressure(model: CircuitModel, return_bar: float) -> float | None:
     tree = relief_tree(model)
     if tree is None:
         return None
-    return deadhead(tree, Q_(return_bar, "bar")).upstream.m_as("bar")
+    return deadhead(tree, qty(return_bar, "bar")).upstream.m_as("bar")
 
 
 # --- flows and line losses -------------------------------------------------------------------
+
 
 def intake(model: CircuitModel, env: Env) -> float:
     """Oil the pump draws at full displacement (L/min)."""
@@ -173,6 +189,7 @@ def case_pressure(model: CircuitModel, drain: float) -> float:
 
 # --- operating points ------------------------------------------------------------------------
 
+
 def _fixed_stall(model: CircuitModel, env: Env) -> tuple[float, float] | None:
     """Stall pressure and the flow going over the reliefs."""
     main = main_relief_id(model)
@@ -204,11 +221,27 @@ def _variable_pressure(model: CircuitModel, state: FunctionState, env: Env) -> f
     p = model.p
     if state is FunctionState.STALLED:
         return _variable_limit(model, env)[0]
-    if state is FunctionState.NEUTRAL:
-        return p.get("standby", p["cutoff"])
+    if state is FunctionState.NEUTRAL:  # LS: standby; compensated: it holds its cut-off
+        return p["standby"] if "standby" in p else _variable_limit(model, env)[0]
     if model.kind is CircuitKind.LOAD_SENSING:
-        return min(p["load_p"] * p["ls_ratio"] + p["margin"], _variable_limit(model, env)[0])
+        return min(p["load_p"] * p["ls_ratio"] + _margin(model, env), _variable_limit(model, env)[0])
     return p["load_p"]
+
+
+def _demand(model: CircuitModel, env: Env) -> float:
+    """Flow a function at full lever asks for: the rated flow, at this engine speed."""
+    return model.p["qr"] * env.speed_ratio
+
+
+def _margin(model: CircuitModel, env: Env) -> float:
+    """Margin a load-sensing pump holds with a function at full lever. The spool is an orifice
+    sized for the rated flow at the margin setting; a pump that cannot deliver that flow (worn,
+    starved) passes less, and by the orifice law the drop across the spool falls with the
+    square of the flow."""
+    p = model.p
+    delivered = max_delivery(model, p["load_p"] + p["margin"], env)
+    share = min(1.0, delivered / _demand(model, env))
+    return p["margin"] * share * share
 
 
 def _variable_flow(model: CircuitModel, state: FunctionState, env: Env) -> float:
@@ -219,7 +252,7 @@ def _variable_flow(model: CircuitModel, state: FunctionState, env: Env) -> float
         return 0.02 * model.p["qr"]
     if state is FunctionState.STALLED and not _variable_limit(model, env)[1]:
         return 0.02 * model.p["qr"]
-    return min(max_delivery(model, pressure, env), model.p["qr"] * env.speed_ratio)
+    return min(max_delivery(model, pressure, env), _demand(model, env))
 
 
 def _shared(model: CircuitModel, role: Role, flow: float, env: Env) -> float | None:
@@ -228,12 +261,18 @@ def _shared(model: CircuitModel, role: Role, flow: float, env: Env) -> float | N
     if role is Role.FILTER_PRESSURE_DROP:
         return filter_drop(model, flow, env)
     if role is Role.SUCTION_PRESSURE:
-        return -min(inlet_vacuum(model, intake(model, env) if model.kind is CircuitKind.OPEN_FIXED_PUMP else flow, env),
-                    DEEPEST_VACUUM_BAR)
+        return -min(
+            inlet_vacuum(
+                model, intake(model, env) if model.kind is CircuitKind.OPEN_FIXED_PUMP else flow, env
+            ),
+            DEEPEST_VACUUM_BAR,
+        )
     return None
 
 
-def fixed_pump(machine: Machine, model: CircuitModel, tp: TestPoint, state: FunctionState, env: Env) -> float | None:
+def fixed_pump(
+    machine: Machine, model: CircuitModel, tp: TestPoint, state: FunctionState, env: Env
+) -> float | None:
     role = tp.role
     p = model.p
     if state is FunctionState.STALLED:
@@ -246,8 +285,11 @@ def fixed_pump(machine: Machine, model: CircuitModel, tp: TestPoint, state: Func
         return _shared(model, role, flow, env)
     if state is FunctionState.UNDER_LOAD and role is Role.PUMP_FLOW:
         return max_delivery(model, p["p_test"], env)
-    load = {FunctionState.NEUTRAL: 0.0, FunctionState.FULL_STROKE: LOAD_SHARE * p["p_test"],
-            FunctionState.UNDER_LOAD: p["p_test"]}[state]
+    load = {
+        FunctionState.NEUTRAL: 0.0,
+        FunctionState.FULL_STROKE: LOAD_SHARE * p["p_test"],
+        FunctionState.UNDER_LOAD: p["p_test"],
+    }[state]
     flow = max_delivery(model, load, env)
     if role is Role.PUMP_FLOW:
         return flow
@@ -257,7 +299,9 @@ def fixed_pump(machine: Machine, model: CircuitModel, tp: TestPoint, state: Func
     return _shared(model, role, flow, env)
 
 
-def variable_pump(machine: Machine, model: CircuitModel, tp: TestPoint, state: FunctionState, env: Env) -> float | None:
+def variable_pump(
+    machine: Machine, model: CircuitModel, tp: TestPoint, state: FunctionState, env: Env
+) -> float | None:
     role = tp.role
     p = model.p
     pressure = _variable_pressure(model, state, env)
@@ -302,11 +346,16 @@ def return_back(model: CircuitModel, env: Env) -> float:
 
 # --- healthy parameters ------------------------------------------------------------------------
 
+
 def _reliefs(circuit: Circuit, draw: Draw) -> dict[str, ReliefState]:
-    return {r.id: ReliefState(draw(to_canonical(r.setting, Kind.PRESSURE), SETTING_SCATTER),
-                              to_canonical(r.override, Kind.PRESSURE) if r.override is not None else 0.0,
-                              r.drain)
-            for r in circuit.reliefs}
+    return {
+        r.id: ReliefState(
+            draw(to_canonical(r.setting, Kind.PRESSURE), SETTING_SCATTER),
+            to_canonical(r.override, Kind.PRESSURE) if r.override is not None else 0.0,
+            r.drain,
+        )
+        for r in circuit.reliefs
+    }
 
 
 def build_open(machine: Machine, circuit: Circuit, draw: Draw) -> CircuitModel:
@@ -322,17 +371,32 @@ def build_open(machine: Machine, circuit: Circuit, draw: Draw) -> CircuitModel:
     qr = rated_flow if rated_flow is not None else (0.95 if fixed else 1.0) * qth
     model = CircuitModel(circuit, {}, _reliefs(circuit, draw))
     p = model.p
-    p.update(disp=disp, qth=qth, qr=qr, fill=min(1.0, qr / qth) if fixed else 1.0, wear=1.0,
-             ret_restrict=1.0, suc_restrict=1.0, case_extra=0.0, ls_ratio=1.0)
+    p.update(
+        disp=disp,
+        qth=qth,
+        qr=qr,
+        fill=min(1.0, qr / qth) if fixed else 1.0,
+        wear=1.0,
+        ret_restrict=1.0,
+        suc_restrict=1.0,
+        case_extra=0.0,
+        ls_ratio=1.0,
+    )
     main = main_relief_id(model)
     main_setting = model.reliefs[main].setting if main else param(circuit, "main_relief_setting")
 
     # Settings of a variable pump; the flow test pressure of a fixed one.
-    cutoff = param(circuit, "compensator_setting") or middle(*bounds(point(circuit, Role.STALL_PRESSURE), FunctionState.STALLED))
+    cutoff = param(circuit, "compensator_setting") or middle(
+        *bounds(point(circuit, Role.STALL_PRESSURE), FunctionState.STALLED)
+    )
     if not fixed:
         p["cutoff"] = draw(cutoff if cutoff else (main_setting or 200.0), SETTING_SCATTER)
     if kind is CircuitKind.LOAD_SENSING:
-        standby = param(circuit, "ls_standby_setting") or middle(*bounds(point(circuit, Role.LS_STANDBY_PRESSURE), FunctionState.NEUTRAL)) or 25.0
+        standby = (
+            param(circuit, "ls_standby_setting")
+            or middle(*bounds(point(circuit, Role.LS_STANDBY_PRESSURE), FunctionState.NEUTRAL))
+            or 25.0
+        )
         margin = param(circuit, "ls_margin_setting") or max(10.0, standby - 4.0)
         shift = draw(1.0, SETTING_SCATTER * 2) - 1.0  # one spring sets both
         p.update(standby=standby * (1 + shift), margin=margin * (1 + shift), ls_vent=draw(0.3, LOAD_SCATTER))
@@ -353,11 +417,8 @@ def build_open(machine: Machine, circuit: Circuit, draw: Draw) -> CircuitModel:
         p["leak"] = p["drain"]  # what leaks inside a piston pump leaves by its case drain
     p["load_p"] = draw(LOAD_SHARE * (p.get("cutoff") or main_setting or 150.0), LOAD_SCATTER)
 
-    # Case drain line: a static part plus a share proportional to drain flow, so a sound pump
-    # reads about a third of the allowed case pressure at its stall leakage (simulator's choice).
     max_case = param(circuit, "max_case_pressure") or any_bounds(point(circuit, Role.CASE_PRESSURE))[1] or 2.0
-    p["drain_static"] = 0.3
-    p["drain_r"] = draw(max(0.01, (0.35 * max_case - 0.3) / max(p["drain"], 0.1)), RESTRICTION_SCATTER)
+    p["drain_static"], p["drain_r"] = drain_line(max_case, max(p["drain"], 0.1), draw)
 
     # Return line and filter, inlet: half of what the profile allows on a sound machine.
     total = middle(*any_bounds(point(circuit, Role.RETURN_PRESSURE)))
@@ -377,11 +438,20 @@ def build_open(machine: Machine, circuit: Circuit, draw: Draw) -> CircuitModel:
     if fixed:
         neutral = middle(*bounds(point(circuit, Role.PUMP_OUTLET_PRESSURE), FunctionState.NEUTRAL))
         back = downstream(model, p["ret_turb"] + p["ret_lam"])
-        p["centre_dp"] = draw(max(0.5, (neutral if neutral is not None else back + 3.0) - back), RESTRICTION_SCATTER)
+        p["centre_dp"] = draw(
+            max(0.5, (neutral if neutral is not None else back + 3.0) - back), RESTRICTION_SCATTER
+        )
     return model
 
 
 __all__ = [
-    "build_open", "cavitation_fill", "fixed_pump", "main_relief_id", "relief_pressure", "relief_tree",
-    "return_back", "stall_pressure", "variable_pump",
+    "build_open",
+    "cavitation_fill",
+    "fixed_pump",
+    "main_relief_id",
+    "relief_pressure",
+    "relief_tree",
+    "return_back",
+    "stall_pressure",
+    "variable_pump",
 ]

@@ -10,13 +10,22 @@ from fieldkit.model.condition import FunctionState
 from fieldkit.model.profile import Circuit, CircuitKind, TestPoint
 from fieldkit.model.roles import Role
 from fieldkit.simulate.actuators import accumulator_params, actuator, build_actuator, precharge_reading
-from fieldkit.simulate.closed_loop import brake_release, build_brake, build_closed_loop, build_motor, closed_loop, motor
+from fieldkit.simulate.closed_loop import (
+    brake_release,
+    build_brake,
+    build_closed_loop,
+    build_motor,
+    closed_loop,
+    motor,
+)
 from fieldkit.simulate.machine import Builder, CircuitModel, Draw, Env, Machine, PointPhysics
 from fieldkit.simulate.open_circuits import build_open, fixed_pump, variable_pump
 
 
 def _with_accumulator(physics: PointPhysics) -> PointPhysics:
-    def value(machine: Machine, model: CircuitModel, tp: TestPoint, state: FunctionState, env: Env) -> float | None:
+    def value(
+        machine: Machine, model: CircuitModel, tp: TestPoint, state: FunctionState, env: Env
+    ) -> float | None:
         if tp.role is Role.ACCUMULATOR_PRECHARGE and "precharge" in model.p:
             return precharge_reading(model, machine.setting.gas_c)
         return physics(machine, model, tp, state, env)

@@ -2,11 +2,12 @@
 
 Every test point is read under each condition its expected ranges name (a charge point in
 neutral and in stroke), plus the few pairings a test procedure needs although no range asks
-for them: return pressure while a function is stalled (it adds to the reliefs), charge pressure
-at stall, case pressure where the most oil leaks to the case (at stall, or a motor under load), and pump outlet with LS signal while a
-function moves (margin is their difference). The order is the one a technician works in: oil
-temperature and speed first, then everything in neutral, in stroke, under load, stalled; drift
-tests with the load held; engine-off checks (accumulator gas) last; and oil temperature again.
+for them: return pressure with a function stalled on a fixed pump (it adds to the reliefs),
+charge pressure at stall, case pressure where the most oil leaks to the case (a variable pump
+at stall, a motor under load), and pump outlet with LS signal while a function moves (margin is
+their difference). The order is the one a technician works in: oil temperature and speed first,
+then everything in neutral, in stroke, under load, stalled; drift tests with the load held;
+engine-off checks (accumulator gas) last; and oil temperature again.
 """
 
 from __future__ import annotations
@@ -33,8 +34,10 @@ class Stage(IntEnum):
 
 
 _STATE_STAGE = {
-    FunctionState.NEUTRAL: Stage.NEUTRAL, FunctionState.FULL_STROKE: Stage.FULL_STROKE,
-    FunctionState.UNDER_LOAD: Stage.UNDER_LOAD, FunctionState.STALLED: Stage.STALLED,
+    FunctionState.NEUTRAL: Stage.NEUTRAL,
+    FunctionState.FULL_STROKE: Stage.FULL_STROKE,
+    FunctionState.UNDER_LOAD: Stage.UNDER_LOAD,
+    FunctionState.STALLED: Stage.STALLED,
 }
 
 #: Conditions a role is read in when its ranges say nothing about the condition.
@@ -50,10 +53,9 @@ _DEFAULT_STATE: dict[Role, FunctionState] = {
     Role.LOOP_B_PRESSURE: FunctionState.STALLED,
 }
 
-#: Pairings a test procedure adds (common practice): (circuit kind or None for any, role) → states.
-_EXTRA: dict[tuple[CircuitKind | None, Role], tuple[FunctionState, ...]] = {
-    (None, Role.RETURN_PRESSURE): (FunctionState.STALLED,),
-    (CircuitKind.CLOSED_LOOP_DRIVE, Role.CASE_PRESSURE): (FunctionState.STALLED,),
+#: Pairings a test procedure adds (common practice): (circuit kind, role) → states.
+_EXTRA: dict[tuple[CircuitKind, Role], tuple[FunctionState, ...]] = {
+    (CircuitKind.OPEN_FIXED_PUMP, Role.RETURN_PRESSURE): (FunctionState.STALLED,),
     (CircuitKind.LOAD_SENSING, Role.CASE_PRESSURE): (FunctionState.STALLED,),
     (CircuitKind.PRESSURE_COMPENSATED, Role.CASE_PRESSURE): (FunctionState.STALLED,),
     (CircuitKind.MOTOR, Role.CASE_PRESSURE): (FunctionState.UNDER_LOAD,),
@@ -85,10 +87,11 @@ def states_for(circuit: Circuit, tp: TestPoint) -> list[FunctionState]:
     procedure's pairings."""
     states: list[FunctionState] = []
     for rng in tp.expected:
-        states.append(rng.when.function[0] if rng.when.function else _DEFAULT_STATE.get(tp.role, FunctionState.NEUTRAL))
+        states.append(
+            rng.when.function[0] if rng.when.function else _DEFAULT_STATE.get(tp.role, FunctionState.NEUTRAL)
+        )
     if not tp.expected:
         states.append(_DEFAULT_STATE.get(tp.role, FunctionState.NEUTRAL))
-    states.extend(_EXTRA.get((None, tp.role), ()))
     states.extend(_EXTRA.get((circuit.kind, tp.role), ()))
     return list(dict.fromkeys(states))
 

@@ -42,6 +42,9 @@ class FieldkitApp(App[None]):
         from fieldkit.tui.screens.start import StartScreen
 
         self.push_screen(StartScreen(self.bench, demo=self.demo))
+        problem = settings_problem()
+        if problem:
+            self.notify(problem, title="Settings", severity="warning", timeout=12, markup=False)
 
     def on_unmount(self) -> None:
         for bench in self._own_benches:
@@ -94,10 +97,12 @@ class FieldkitApp(App[None]):
         self.push_screen(QuitDialog(typed, where), answer)
 
     def action_toggle_keys(self) -> None:
-        if self.screen.query("HelpPanel"):
-            self.action_hide_help_panel()
-        else:
-            self.action_show_help_panel()
+        from fieldkit.tui.screens.dialogs import KeysScreen
+
+        if isinstance(self.screen, KeysScreen):
+            self.pop_screen()
+            return
+        self.push_screen(KeysScreen(key_rows(self, self.screen), "Keys on this screen (F1 or Esc closes)"))
 
     def action_general_caution(self) -> None:
         from fieldkit.tui.screens.dialogs import CautionScreen
@@ -132,8 +137,34 @@ class FieldkitApp(App[None]):
     def say(self, message: str, severity: str = "information") -> None:
         self.notify(message, severity=severity, markup=False)  # type: ignore[arg-type]
 
+    def set_units(self, display: str | None = None, decimal_comma: bool | None = None) -> None:
+        """Change and remember the display units or the decimal separator, then redraw."""
+        update: dict[str, object] = {}
+        if display is not None:
+            update["display"] = display
+        if decimal_comma is not None:
+            update["decimal_comma"] = decimal_comma
+        self.bench.settings = self.bench.settings.model_copy(update=update)
+        try:
+            self.bench.settings.save()
+        except OSError as exc:
+            self.notify(f"not remembered for next time: {exc}", severity="warning", markup=False)
+        reload = getattr(self.screen, "reload", None)
+        if callable(reload):
+            reload()
+        s = self.bench.settings
+        self.notify(f"values shown in {self.bench.system.pressure}, {self.bench.system.flow}, "
+                    f"{self.bench.system.temperature}; '2,500' reads as {'2.5' if s.decimal_comma else '2500'}",
+                    markup=False)
+
     def palette_commands(self) -> Iterable[tuple[str, str, Callable[[], object]]]:
         yield "General caution (procedures first)", "the machine's own procedures come first", self.action_general_caution
+        yield "Units: bar, L/min, °C", "metric display", lambda: self.set_units(display="metric")
+        yield "Units: MPa, L/min, °C", "SI display", lambda: self.set_units(display="si")
+        yield "Units: psi, gpm, °F", "US display", lambda: self.set_units(display="us")
+        comma = self.bench.settings.decimal_comma
+        yield (f"Decimal comma {'off' if comma else 'on'}", "how '2,500' is read when it could be either",
+               lambda: self.set_units(decimal_comma=not comma))
         yield "Daylight / workshop colours", "light colours for a laptop in the sun", self.action_toggle_daylight
         yield "Keys", "show or hide every key of this screen", self.action_toggle_keys
         yield "Quit fieldkit", "saved readings are already on disk", self.action_request_quit
@@ -145,7 +176,42 @@ class FieldkitApp(App[None]):
                 yield command
 
 
-def _open_store(path):  # noqa: ANN001, ANN202
+def settings_problem() -> str:
+    """A sentence when the settings file exists but cannot be read (Settings.load then falls
+    back to defaults silently; the technician should know their defaults were not used)."""
+    import json
+
+    from pydantic import ValidationError
+
+    from fieldkit.settings import Settings, data_home
+
+    path = data_home() / "settings.json"
+    if not path.exists():
+        return ""
+    try:
+        Settings.model_validate(json.loads(path.read_text(encoding="utf-8")))
+    except (OSError, ValueError, ValidationError) as exc:
+        first = str(exc).splitlines()[0][:120]
+        return f"{path} could not be read ({first}); default settings are used and it is rewritten when you change one."
+    return ""
+
+
+def key_rows(app: App, screen: Screen) -> list[tuple[str, str]]:
+    """The keys a person can press here: the screen's hints, its bindings, then the app's."""
+    rows: list[tuple[str, str]] = list(getattr(screen, "KEY_HINTS", []))
+    seen: set[str] = set()
+    for key, active in screen.active_bindings.items():
+        if not isinstance(active.node, (Screen, App)) or not active.binding.description or key in seen:
+            continue
+        seen.add(key)
+        what = active.binding.description
+        if active.binding.tooltip:
+            what += f": {active.binding.tooltip}"
+        rows.append((app.get_key_display(active.binding), what))
+    return rows
+
+
+def _open_store(path):
     from fieldkit.store import open_store
 
     return open_store(path)

@@ -8,6 +8,7 @@ from fieldkit.diagnosis.results import Diagnosis
 from fieldkit.model.profile import MachineProfile
 from fieldkit.model.visit import Visit
 from fieldkit.settings import data_home
+from fieldkit.units import DisplaySystem
 
 FORMATS = ("pdf", "text", "markdown")
 JOBCARD_MODULE = "fieldkit.report.jobcard"
@@ -27,8 +28,10 @@ def jobcard_available() -> bool:
 
 
 def export_job_card(visit: Visit, profile: MachineProfile, diagnosis: Diagnosis, folder: Path,
-                    fmt: str) -> tuple[Path, str]:
-    """The file written and a sentence saying what it is."""
+                    fmt: str, system: DisplaySystem | None = None) -> tuple[Path, str]:
+    """The file written and a sentence saying what it is. The folder is created if needed."""
+    folder = Path(folder).expanduser()
+    folder.mkdir(parents=True, exist_ok=True)
     try:
         from fieldkit.report.jobcard import write_job_card
     except ModuleNotFoundError as exc:
@@ -38,5 +41,10 @@ def export_job_card(visit: Visit, profile: MachineProfile, diagnosis: Diagnosis,
 
         path = write_plain_summary(visit, profile, diagnosis, folder)
         return path, f"plain-text summary written to {path} (the {fmt} job card writer is not installed)"
-    path = write_job_card(visit, profile, diagnosis, folder, fmt)
+    import inspect
+
+    if system is not None and "system" in inspect.signature(write_job_card).parameters:
+        path = write_job_card(visit, profile, diagnosis, folder, fmt, system=system)
+    else:
+        path = write_job_card(visit, profile, diagnosis, folder, fmt)
     return path, f"{fmt} job card written to {path}"

@@ -25,6 +25,7 @@ START: list[BindingType] = [
     Binding("d", "open_demo", "Demo", id="start.demo"),
     Binding("i", "import_file", "Import", id="start.import"),
     Binding("h", "machine_history", "History", id="start.history"),
+    Binding("escape", "back", "Back", id="start.back", show=False),
 ]
 
 VISIT: list[BindingType] = [
@@ -60,4 +61,48 @@ READINGS: list[BindingType] = [
 HISTORY: list[BindingType] = [
     Binding("a", "toggle_scope", "This serial / all", id="history.scope"),
     Binding("escape", "cancel", "Back", id="history.back"),
+]
+
+FAULT: list[BindingType] = [
+    Binding("escape", "back", "Back", id="fault.back"),
+]
+
+CONFIRM: list[BindingType] = [
+    Binding("y", "answer(True)", "Yes", id="confirm.yes"),
+    Binding("n", "answer(False)", "No", id="confirm.no"),
+]
+
+QUIT: list[BindingType] = [
+    Binding("s", "answer('save')", "Save it and quit", id="quit.save"),
+    Binding("q", "answer('discard')", "Quit without it", id="quit.discard"),
+]
+
+NOTES: list[BindingType] = [
+    Binding("ctrl+s", "save", "Save notes", id="notes.save"),
+]
+
+CAUTIONS: list[BindingType] = [
+    Binding("f2", "cancel", "Close", id="cautions.close", priority=True),
+]
+
+KEYS: list[BindingType] = [
+    Binding("f1", "cancel", "Close", id="keys.close", priority=True),
+]
+
+FINISH: list[BindingType] = [
+    Binding("ctrl+s", "finish", "Close visit + job card", id="finish.close"),
+    Binding("escape", "back", "Back", id="finish.back"),
+]
+
+JOB_CARD: list[BindingType] = [
+    Binding("ctrl+s", "write", "Write", id="jobcard.write"),
+]
+
+ADD_GAUGE: list[BindingType] = [
+    Binding("ctrl+s", "add", "Add gauge", id="gauge.add"),
+]
+
+NEW_VISIT: list[BindingType] = [
+    Binding("ctrl+s", "create", "Start visit", id="newvisit.create"),
+    Binding("escape", "cancel", "Cancel", id="newvisit.cancel"),
 ]

@@ -22,6 +22,13 @@ from fieldkit.model.visit import Visit
 from fieldkit.physics.common import Level
 from fieldkit.units import DisplaySystem, Kind, format_value, to_canonical
 
+SHORT_STATE = {
+    FunctionState.NEUTRAL: "neutral",
+    FunctionState.FULL_STROKE: "full stroke",
+    FunctionState.STALLED: "stalled over relief",
+    FunctionState.UNDER_LOAD: "under load",
+}
+
 
 def state_from_label(label: str) -> FunctionState | None:
     """The function state a next-test sentence names ("function at full stroke")."""
@@ -90,7 +97,8 @@ def gauge_fit(point: TestPoint, gauge: Gauge | None, function: FunctionState,
     physics.gauges.gauge_suitability against the point's highest pressure (overrange is an
     error: do not connect)."""
     if gauge is None:
-        return GaugeFit(Level.WARNING, "no gauge chosen: the reading will be judged with an assumed class 2.5 gauge")
+        return GaugeFit(Level.WARNING, "no gauge chosen: the reading will be judged as if taken with an assumed "
+                                       f"class 2.5 gauge{_gauge_to_add(point, function)}")
     if gauge.kind is not point.kind:
         return GaugeFit(Level.ERROR, f"{gauge.id} measures {gauge.kind.value}; this point needs a {point.kind.value} reading")
     work = working_value(point, function)
@@ -110,6 +118,23 @@ def gauge_fit(point: TestPoint, gauge: Gauge | None, function: FunctionState,
         return GaugeFit(Level.ERROR, f"{gauge.id} ends at {format_value(gauge.full_scale, system)}, "
                                      f"below the expected {format_value(work, system)}")
     return GaugeFit(Level.OK, f"{gauge.id} (0–{format_value(gauge.full_scale, system)}) covers the expected reading")
+
+
+def _gauge_to_add(point: TestPoint, function: FunctionState) -> str:
+    """'; add a 0–16 bar gauge (^g)' for a pressure point: the smallest standard range that reads
+    the expected value within 3/4 of its scale and stays above the point's highest pressure."""
+    if point.kind is not Kind.PRESSURE:
+        return f"; add a {point.kind.value} meter with ^g"
+    from fieldkit.physics.gauges import smallest_gauge
+
+    work = working_value(point, function) or point.max_pressure
+    if work is None:
+        return "; add one with ^g"
+    try:
+        size = smallest_gauge(work, point.max_pressure)
+    except FieldkitError:
+        return "; add one with ^g"
+    return f"; add a 0–{format_value(size)} gauge with ^g"
 
 
 def suggest_gauge(point: TestPoint, gauges: list[Gauge], function: FunctionState,

@@ -15,13 +15,15 @@ from fieldkit.errors import FieldkitError
 from fieldkit.model.condition import FunctionState
 from fieldkit.model.profile import MachineProfile, TestPoint
 from fieldkit.model.roles import Role
-from fieldkit.model.visit import Reading, Visit
+from fieldkit.model.visit import Reading
 from fieldkit.store.base import VisitSummary
 from fieldkit.store.sqlite import SqliteVisitStore
+from fieldkit.tui.step import SHORT_STATE
 from fieldkit.units import DisplaySystem, format_value, to_canonical
 
 NORMALISED_ROLES = {Role.PUMP_CASE_DRAIN_FLOW, Role.MOTOR_CASE_DRAIN_FLOW}
 SPARKS = "▁▂▃▄▅▆▇█"
+
 
 
 @dataclass(slots=True)
@@ -89,16 +91,16 @@ def _normalised(reading: Reading, oil: pint.Quantity | None, profile: MachinePro
         return None
 
 
-def history_table(store: SqliteVisitStore, profile: MachineProfile, visit: Visit, system: DisplaySystem,
-                  *, same_serial: bool = True) -> HistoryTable:
-    """Readings of every test point over the visits to this machine, oldest visit first. With
-    ``same_serial`` only visits to the same serial number count (when the visit has one)."""
+def history_table(store: SqliteVisitStore, profile: MachineProfile, system: DisplaySystem,
+                  *, serial: str = "") -> HistoryTable:
+    """Readings of every test point over the visits to this machine model, oldest visit first;
+    with ``serial``, only the visits to that one machine."""
     points = {tp.id: tp for _c, tp in profile.all_test_points()}
     found = store.machine_history(profile.id)
     scope = f"every {profile.name}"
-    if same_serial and visit.machine_serial:
-        found = [(s, rs) for s, rs in found if store.get_visit(s.id).machine_serial == visit.machine_serial]
-        scope = f"serial {visit.machine_serial}"
+    if serial:
+        found = [(s, rs) for s, rs in found if store.get_visit(s.id).machine_serial == serial]
+        scope = f"serial {serial}"
     visits = [s for s, _ in found]
     table = HistoryTable(visits, scope=scope)
     by_key: dict[tuple[str, FunctionState], HistoryRow] = {}
@@ -114,7 +116,7 @@ def history_table(store: SqliteVisitStore, profile: MachineProfile, visit: Visit
             if row is None:
                 norm = tp.role in NORMALISED_ROLES
                 ref = f" at {format_value(profile.reference_oil_temperature, system)}" if norm else ""
-                row = HistoryRow(tp, r.condition.function, f"{tp.label}{ref} ({r.condition.function.label})",
+                row = HistoryRow(tp, r.condition.function, f"{tp.label}{ref} · {SHORT_STATE[r.condition.function]}",
                                  [""] * len(visits), [None] * len(visits), norm)
                 by_key[key] = row
             shown = r.value

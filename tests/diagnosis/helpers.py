@@ -306,11 +306,15 @@ class Scene:
             return {"low": low - step, "in_range": low + step}[side]
         return {"in_range": high - step, "high": high + step}[side]  # type: ignore[operator]
 
-    def value_at(self, free_si: float) -> float:
+    def value_at(self, free_si: float, together: bool = False) -> float:
+        """The rule's value with the free reading at ``free_si``; with ``together``, every reading
+        of the free one's kind moves with it (for min/max of two sides, which is piecewise)."""
         env = dict(self.figures)
+        free_kind = next(n for n in self.needs if n.name == self.free).point.kind
         for need in self.needs:
             nominal = si_of(need.point.kind, self.nominal[need.name])
-            env[need.name] = free_si if need.name == self.free else nominal
+            moves = need.name == self.free or (together and need.point.kind is free_kind)
+            env[need.name] = free_si if moves else nominal
         # A leakage normalised to the reference temperature (pump_case_drain_flow_at_ref) is
         # read at that temperature here, so the viscosity ratio is exactly 1: the reading itself.
         return float(self.rule.value.evaluate(env))
@@ -320,13 +324,20 @@ class Scene:
         free_need = next(n for n in self.needs if n.name == self.free)
         x0 = si_of(free_need.point.kind, self.nominal[self.free])
         step = abs(x0) * 0.1 if x0 != 0 else 1.0
-        f0, f1, f2 = self.value_at(x0), self.value_at(x0 + step), self.value_at(x0 + 2 * step)
-        slope = (f1 - f0) / step
+        for together in (False, True):
+            f0, f1, f2 = (self.value_at(x0 + k * step, together) for k in range(3))
+            slope = (f1 - f0) / step
+            if slope != 0 and math.isclose(f2 - f1, f1 - f0, rel_tol=1e-6, abs_tol=1e-12):
+                break
         assert slope != 0 and math.isclose(f2 - f1, f1 - f0, rel_tol=1e-6, abs_tol=1e-12), (
             f"{self.rule.id}: value is not linear in {self.free}; extend the scene builder")
         x = x0 + (self.target(side) - f0) / slope
         out = dict(self.nominal)
         out[self.free] = canonical_of(free_need.point.kind, x)
+        if together:
+            for need in self.needs:
+                if need.point.kind is free_need.point.kind:
+                    out[need.name] = canonical_of(need.point.kind, x)
         return out
 
     def visit(self, side: str) -> Visit:

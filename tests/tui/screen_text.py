@@ -28,3 +28,9 @@ def screen_lines(app: App) -> list[str]:
 
 def screen_text(app: App) -> str:
     return "\n".join(screen_lines(app))
+
+
+def static_text(widget) -> str:
+    """The whole text a Static was given (not cut to the window), for long messages."""
+    content = widget.content
+    return getattr(content, "plain", str(content))

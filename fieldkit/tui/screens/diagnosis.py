@@ -6,17 +6,16 @@ from __future__ import annotations
 from rich.text import Text
 from textual import on
 from textual.app import ComposeResult
-from textual.binding import Binding
 from textual.containers import VerticalScroll
 from textual.screen import Screen
 from textual.widgets import DataTable, OptionList, Static, TabbedContent, TabPane
 
 from fieldkit.diagnosis.results import Diagnosis, RankedFault
-from fieldkit.tui.widgets.keybar import KeyBar
 from fieldkit.tui import keys
 from fieldkit.tui.safe_text import literal
 from fieldkit.tui.widgets.band import VERDICT_WORD
 from fieldkit.tui.widgets.faults import FaultList, FindingsView, percent, prob_bar
+from fieldkit.tui.widgets.keybar import KeyBar
 
 
 def next_tests_text(diagnosis: Diagnosis) -> Text:
@@ -57,12 +56,10 @@ class DiagnosisScreen(Screen):
         with TabbedContent(id="diag-tabs"):
             with TabPane("Faults", id="tab-faults"):
                 yield FaultList(id="faults")
-            with TabPane("Findings", id="tab-findings"):
-                with VerticalScroll():
-                    yield FindingsView(id="findings")
-            with TabPane("Next tests", id="tab-next"):
-                with VerticalScroll():
-                    yield Static(next_tests_text(self.diagnosis), id="next-tests")
+            with TabPane("Findings", id="tab-findings"), VerticalScroll():
+                yield FindingsView(id="findings")
+            with TabPane("Next tests", id="tab-next"), VerticalScroll():
+                yield Static(next_tests_text(self.diagnosis), id="next-tests")
             with TabPane("Readings", id="tab-readings"):
                 yield DataTable(id="checks", cursor_type="row", zebra_stripes=True)
         yield KeyBar()
@@ -94,7 +91,7 @@ class DiagnosisScreen(Screen):
     def action_dismiss_screen(self) -> None:
         self.app.pop_screen()
 
-    def palette_commands(self):  # noqa: ANN201
+    def palette_commands(self):
         for f in self.diagnosis.faults[:12]:
             yield f"Why: {f.display_title}", "findings for and against", lambda key=f.key: self._open(key)
         yield "Back to the visit", "close the diagnosis", self.action_dismiss_screen
@@ -148,7 +145,7 @@ def fault_explanation(f: RankedFault) -> Text:
 class FaultScreen(Screen):
     """Why a fault ranks where it does."""
 
-    BINDINGS = [Binding("escape", "back", "Back", id="fault.back")]
+    BINDINGS = keys.FAULT
 
     def __init__(self, fault: RankedFault) -> None:
         super().__init__()

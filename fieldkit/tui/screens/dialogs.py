@@ -7,16 +7,15 @@ from pathlib import Path
 from rich.text import Text
 from textual import on
 from textual.app import ComposeResult
-from textual.binding import Binding
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.screen import ModalScreen
 from textual.widgets import Button, Input, Label, OptionList, Static, TextArea
 from textual.widgets.option_list import Option
 
 from fieldkit.diagnosis.catalogue import Caution
-from fieldkit.tui.widgets.keybar import KeyBar
 from fieldkit.tui import keys
 from fieldkit.tui.safe_text import literal
+from fieldkit.tui.widgets.keybar import KeyBar
 from fieldkit.tui.widgets.step_panel import SEVERITY_MARK
 
 
@@ -32,8 +31,7 @@ class Dialog(ModalScreen):
 class ConfirmDialog(Dialog):
     """Yes or no. ``body`` may hold user text: pass a Text made with ``literal``."""
 
-    BINDINGS = [Binding("y", "answer(True)", "Yes", id="confirm.yes"),
-                Binding("n", "answer(False)", "No", id="confirm.no")]
+    BINDINGS = keys.CONFIRM
 
     def __init__(self, title: str, body: Text | str, yes: str = "Yes", no: str = "No") -> None:
         super().__init__()
@@ -82,7 +80,7 @@ class LinePrompt(Dialog):
     """Type one line (a reason to skip, a corrected value, a file path)."""
 
     def __init__(self, title: str, question: Text | str, value: str = "", placeholder: str = "",
-                 check=None) -> None:  # noqa: ANN001 - check: str -> str error ("" when fine)
+                 check=None) -> None:
         super().__init__()
         self._title, self._question, self._value, self._placeholder = title, question, value, placeholder
         self._check = check
@@ -112,8 +110,7 @@ class LinePrompt(Dialog):
 class QuitDialog(Dialog):
     """A value is typed but not saved: save it, throw it away knowingly, or go back."""
 
-    BINDINGS = [Binding("s", "answer('save')", "Save it and quit", id="quit.save"),
-                Binding("q", "answer('discard')", "Quit without it", id="quit.discard")]
+    BINDINGS = keys.QUIT
 
     def __init__(self, typed: str, where: str) -> None:
         super().__init__()
@@ -146,7 +143,7 @@ class QuitDialog(Dialog):
 class NotesDialog(Dialog):
     """Edit the visit notes (free text; skip sentences live here too)."""
 
-    BINDINGS = [Binding("ctrl+s", "save", "Save notes", id="notes.save")]
+    BINDINGS = keys.NOTES
 
     def __init__(self, notes: str) -> None:
         super().__init__()
@@ -168,7 +165,7 @@ class NotesDialog(Dialog):
 class CautionScreen(Dialog):
     """The general caution, and the cautions of the current step in full."""
 
-    BINDINGS = [Binding("f2", "cancel", "Close", id="cautions.close", priority=True)]
+    BINDINGS = keys.CAUTIONS
 
     def __init__(self, general: Caution, step: list[Caution], where: str = "") -> None:
         super().__init__()
@@ -178,8 +175,9 @@ class CautionScreen(Dialog):
         out = Text(end="")
         out.append_text(literal(self._general.title, "bold"))
         out.append("\n")
-        out.append_text(literal(self._general.text))
-        out.append_text(literal(f"\n(source: {self._general.source})", "dim"))
+        out.append_text(literal(self._general.text, multiline=True))
+        out.append("\n")
+        out.append_text(literal(f"(source: {self._general.source})", "dim"))
         if self._step:
             out.append("\n\n")
             out.append_text(literal(f"For this step{': ' + self._where if self._where else ''}", "bold underline"))
@@ -187,8 +185,9 @@ class CautionScreen(Dialog):
                 out.append(f"\n\n{SEVERITY_MARK.get(c.severity.value, c.severity.value)} ", "bold")
                 out.append_text(literal(c.title, "bold"))
                 out.append("\n")
-                out.append_text(literal(c.text))
-                out.append_text(literal(f"\n(source: {c.source})", "dim"))
+                out.append_text(literal(c.text, multiline=True))
+                out.append("\n")
+                out.append_text(literal(f"(source: {c.source})", "dim"))
         with Vertical(classes="dialog dialog-tall", id="caution-box"):
             yield Label(Text("Safety first", style="bold"), classes="dialog-title")
             with VerticalScroll():
@@ -196,7 +195,7 @@ class CautionScreen(Dialog):
         yield KeyBar()
 
 
-def existing_file(suffixes: tuple[str, ...]):  # noqa: ANN201 - a check for LinePrompt
+def existing_file(suffixes: tuple[str, ...]):
     def check(text: str) -> str:
         path = Path(text.strip()).expanduser()
         if not text.strip():
@@ -207,3 +206,27 @@ def existing_file(suffixes: tuple[str, ...]):  # noqa: ANN201 - a check for Line
             return f"{path.name}: expected a {' or '.join(suffixes)} file"
         return ""
     return check
+
+
+class KeysScreen(Dialog):
+    """Every key of the current screen and the app, with what it does (F1)."""
+
+    BINDINGS = keys.KEYS
+
+    def __init__(self, rows: list[tuple[str, str]], title: str) -> None:
+        super().__init__()
+        self._rows, self._title = rows, title
+
+    def compose(self) -> ComposeResult:
+        out = Text(end="")
+        width = max((len(k) for k, _ in self._rows), default=4) + 2
+        for i, (key, what) in enumerate(self._rows):
+            if i:
+                out.append("\n")
+            out.append(f"{key:<{width}}", "bold")
+            out.append_text(literal(what))
+        with Vertical(classes="dialog dialog-tall"):
+            yield Label(Text(self._title, style="bold"), classes="dialog-title")
+            with VerticalScroll():
+                yield Static(out, id="keys-text")
+        yield KeyBar()

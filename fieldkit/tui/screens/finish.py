@@ -7,7 +7,6 @@ from pathlib import Path
 from rich.text import Text
 from textual import on
 from textual.app import ComposeResult
-from textual.binding import Binding
 from textual.containers import Horizontal, Vertical
 from textual.screen import Screen
 from textual.widgets import Button, Input, Label, Select, Static, TextArea
@@ -17,11 +16,13 @@ from fieldkit.errors import FieldkitError
 from fieldkit.model.profile import MachineProfile
 from fieldkit.model.visit import MAX_TEXT, Visit
 from fieldkit.session import Workbench
-from fieldkit.tui.widgets.keybar import KeyBar
+from fieldkit.tui import keys
 from fieldkit.tui.export import FORMATS, default_folder, export_job_card, jobcard_available
 from fieldkit.tui.safe_text import literal
 from fieldkit.tui.screens.dialogs import Dialog
 from fieldkit.tui.widgets.faults import percent
+from fieldkit.tui.widgets.keybar import KeyBar
+from fieldkit.units import DisplaySystem
 
 WRITE_ERRORS = (FieldkitError, OSError, ValueError)
 
@@ -41,14 +42,13 @@ def draft_summary(diagnosis: Diagnosis) -> str:
     return " ".join(parts)
 
 
-def _format_select(id: str) -> Select:  # noqa: A002
+def _format_select(id: str) -> Select:
     default = "pdf" if jobcard_available() else "text"
     return Select([(Text(f), f) for f in FORMATS], value=default, allow_blank=False, id=id, compact=True)
 
 
 class FinishScreen(Screen):
-    BINDINGS = [Binding("ctrl+s", "finish", "Close visit + job card", id="finish.close"),
-                Binding("escape", "back", "Back", id="finish.back")]
+    BINDINGS = keys.FINISH
 
     def __init__(self, bench: Workbench, visit: Visit, profile: MachineProfile, diagnosis: Diagnosis) -> None:
         super().__init__()
@@ -108,7 +108,7 @@ class FinishScreen(Screen):
             return
         diagnosis = self.bench.diagnose(closed, self.profile)
         try:
-            _path, what = export_job_card(closed, self.profile, diagnosis, folder, fmt)
+            _path, what = export_job_card(closed, self.profile, diagnosis, folder, fmt, self.bench.system)
         except WRITE_ERRORS as exc:
             self.dismiss(f"✓ Visit closed. ✗ The job card was not written ({exc}); Find (F3) → 'Write the job card' tries again.")
             return
@@ -121,11 +121,12 @@ class FinishScreen(Screen):
 class JobCardDialog(Dialog):
     """Write the job card of a closed visit again."""
 
-    BINDINGS = [Binding("ctrl+s", "write", "Write", id="jobcard.write")]
+    BINDINGS = keys.JOB_CARD
 
-    def __init__(self, visit: Visit, profile: MachineProfile, diagnosis: Diagnosis) -> None:
+    def __init__(self, visit: Visit, profile: MachineProfile, diagnosis: Diagnosis,
+                 system: DisplaySystem | None = None) -> None:
         super().__init__()
-        self.visit, self.profile, self.diagnosis = visit, profile, diagnosis
+        self.visit, self.profile, self.diagnosis, self.system = visit, profile, diagnosis, system
 
     def compose(self) -> ComposeResult:
         with Vertical(classes="dialog"):
@@ -147,7 +148,7 @@ class JobCardDialog(Dialog):
         folder = Path(self.query_one("#jc-folder", Input).value.strip() or default_folder()).expanduser()
         try:
             _path, what = export_job_card(self.visit, self.profile, self.diagnosis, folder,
-                                          str(self.query_one("#jc-format", Select).value))
+                                          str(self.query_one("#jc-format", Select).value), self.system)
         except WRITE_ERRORS as exc:
             self.query_one("#jc-msg", Static).update(literal(f"✗ not written: {exc}"))
             return

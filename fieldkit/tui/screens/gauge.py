@@ -6,16 +6,16 @@ from pydantic import ValidationError
 from rich.text import Text
 from textual import on
 from textual.app import ComposeResult
-from textual.binding import Binding
 from textual.containers import Grid, Vertical
 from textual.widgets import Button, Input, Label, Select, Static
 
 from fieldkit.errors import FieldkitError
 from fieldkit.model.gauge import EN837_CLASSES, Gauge
-from fieldkit.tui.widgets.keybar import KeyBar
+from fieldkit.tui import keys
 from fieldkit.tui.messages import explain
 from fieldkit.tui.safe_text import literal
 from fieldkit.tui.screens.dialogs import Dialog
+from fieldkit.tui.widgets.keybar import KeyBar
 from fieldkit.units import Kind, kind_of, parse_value
 
 OTHER_STANDARD = "% of full scale (meter's own data)"
@@ -46,7 +46,7 @@ def build_gauge(gauge_id: str, full_scale: str, scale_start: str, accuracy: str,
 
 
 class AddGaugeDialog(Dialog):
-    BINDINGS = [Binding("ctrl+s", "add", "Add gauge", id="gauge.add")]
+    BINDINGS = keys.ADD_GAUGE
 
     def __init__(self, taken: set[str], decimal_comma: bool = False) -> None:
         super().__init__()
@@ -57,18 +57,18 @@ class AddGaugeDialog(Dialog):
             yield Label(Text("Add a gauge or meter", style="bold"), classes="dialog-title")
             with Grid(classes="form"):
                 yield Label("Id")
-                yield Input(placeholder="e.g. G250", id="g-id")
+                yield Input(placeholder="e.g. G250", id="g-id", compact=True)
                 yield Label("Full scale")
-                yield Input(placeholder="e.g. 250 bar, 100 L/min", id="g-top")
+                yield Input(placeholder="e.g. 250 bar, 100 L/min", id="g-top", compact=True)
                 yield Label("Scale start")
-                yield Input(placeholder="empty for 0; -1 bar for compound", id="g-start")
+                yield Input(placeholder="empty for 0; -1 bar for compound", id="g-start", compact=True)
                 yield Label("Class %")
-                yield Input(value="1.6", placeholder="EN 837-1: 0.6 1 1.6 2.5", id="g-class")
+                yield Input(value="1.6", placeholder="EN 837-1: 0.6 1 1.6 2.5", id="g-class", compact=True)
                 yield Label("Standard")
                 yield Select([(Text("EN 837-1 (pressure gauge)"), "EN 837-1"), (Text(OTHER_STANDARD), OTHER_STANDARD)],
                              value="EN 837-1", allow_blank=False, id="g-standard", compact=True)
                 yield Label("Label")
-                yield Input(placeholder="optional, e.g. 0-250 bar glycerine", id="g-label")
+                yield Input(placeholder="optional, e.g. 0-250 bar glycerine", id="g-label", compact=True)
             yield Static("", id="g-error", classes="inline-error")
             yield Button("Add (ctrl+s)", id="g-add", variant="primary")
         yield KeyBar()

@@ -10,10 +10,10 @@ from textual.widgets import DataTable, Static
 from fieldkit.model.profile import MachineProfile
 from fieldkit.model.visit import Visit
 from fieldkit.session import Workbench
-from fieldkit.tui.widgets.keybar import KeyBar
 from fieldkit.tui import keys
 from fieldkit.tui.safe_text import literal
 from fieldkit.tui.trend import history_table
+from fieldkit.tui.widgets.keybar import KeyBar
 
 
 class HistoryScreen(Screen):
@@ -28,7 +28,7 @@ class HistoryScreen(Screen):
         yield Static(id="topbar")
         yield DataTable(id="history", cursor_type="row", zebra_stripes=True, header_height=2)
         yield Static(Text("Case drain flows are shown at the reference oil temperature (leakage scales with "
-                          "1/viscosity), so hot and cold days compare. Trend: one mark per visit, low ▁ to high █.",
+                          "1/viscosity), so hot and cold days compare. Trend: one mark per visit, low ▁ to high █, oldest visit on the left; the columns list the newest visit first.",
                           end=""), id="history-note")
         yield KeyBar()
 
@@ -37,11 +37,8 @@ class HistoryScreen(Screen):
         self.query_one("#history", DataTable).focus()
 
     def show(self) -> None:
-        visit = self.visit
-        if visit is None:
-            from fieldkit.model.visit import Visit as _V
-            visit = _V(job_number="-", machine=self.profile.id)
-        table = history_table(self.bench.store, self.profile, visit, self.bench.system, same_serial=self.same_serial)
+        serial = self.visit.machine_serial if self.visit is not None and self.same_serial else ""
+        table = history_table(self.bench.store, self.profile, self.bench.system, serial=serial)
         title = Text(end="", no_wrap=True, overflow="ellipsis")
         title.append("History · ", "bold")
         title.append_text(literal(f"{self.profile.name} · {table.scope} · {len(table.visits)} visits"))
@@ -53,14 +50,16 @@ class HistoryScreen(Screen):
         grid.add_column(Text("test point (condition)"), key="label")
         grid.add_column(Text("trend"), key="trend")
         grid.add_column(Text("change"), key="change")
-        for s in table.visits:
+        order = list(range(len(table.visits)))[::-1]  # newest visit first, beside the trend
+        for i in order:
+            s = table.visits[i]
             head = literal(f"{s.date:%Y-%m-%d}\n{s.job_number}")
             if self.visit is not None and s.id == self.visit.id:
                 head.append(" ◂", "bold")
             grid.add_column(head, key=s.id)
         for row in table.rows:
             grid.add_row(literal(row.label), Text(row.trend, style="bold"), Text(row.change),
-                         *[literal(c or "—") for c in row.cells], height=1)
+                         *[literal(row.cells[i] or "—") for i in order], height=1)
         if not table.rows:
             grid.add_row(Text("no readings on record for this machine"), Text(""), Text(""),
                          *[Text("") for _ in table.visits])

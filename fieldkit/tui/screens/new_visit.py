@@ -10,7 +10,6 @@ from pydantic import ValidationError
 from rich.text import Text
 from textual import on
 from textual.app import ComposeResult
-from textual.binding import Binding
 from textual.containers import Grid, Horizontal, Vertical
 from textual.screen import Screen
 from textual.widgets import Button, Checkbox, Input, Label, Select, Static
@@ -19,9 +18,10 @@ from fieldkit.errors import FieldkitError
 from fieldkit.model.gauge import Gauge
 from fieldkit.model.visit import Visit
 from fieldkit.session import Workbench
-from fieldkit.tui.widgets.keybar import KeyBar
+from fieldkit.tui import keys
 from fieldkit.tui.messages import explain
 from fieldkit.tui.safe_text import literal
+from fieldkit.tui.widgets.keybar import KeyBar
 
 FIELDS = ("job", "customer", "site", "serial", "hours", "technician", "oil")
 
@@ -49,8 +49,7 @@ def parse_hours(text: str) -> float | None:
 
 
 class NewVisitScreen(Screen):
-    BINDINGS = [Binding("ctrl+s", "create", "Start visit", id="newvisit.create"),
-                Binding("escape", "cancel", "Cancel", id="newvisit.cancel")]
+    BINDINGS = keys.NEW_VISIT
 
     def __init__(self, bench: Workbench, machine: str | None = None) -> None:
         super().__init__()
@@ -69,21 +68,22 @@ class NewVisitScreen(Screen):
                 yield Select(profiles, value=self.machine if self.machine else (profiles[0][1] if profiles else Select.NULL),
                              allow_blank=not profiles, id="machine", compact=True)
                 yield Label("Job number")
-                yield Input(placeholder="required, e.g. RHS-25-0400", id="job", max_length=40)
+                yield Input(placeholder="required, e.g. RHS-25-0400", id="job", max_length=40, compact=True)
                 yield Label("Customer")
-                yield Input(s.customer, id="customer", max_length=200)
+                yield Input(s.customer, id="customer", max_length=200, compact=True)
                 yield Label("Site")
-                yield Input(id="site", max_length=200)
+                yield Input(id="site", max_length=200, compact=True)
                 yield Label("Serial")
-                yield Input(placeholder="machine serial number", id="serial", max_length=60)
+                yield Input(placeholder="machine serial number", id="serial", max_length=60, compact=True)
                 yield Label("Hour meter")
-                yield Input(placeholder="e.g. 8315", id="hours", max_length=20)
+                yield Input(placeholder="e.g. 8315", id="hours", max_length=20, compact=True)
                 yield Label("Technician")
-                yield Input(s.technician, id="technician", max_length=120)
+                yield Input(s.technician, id="technician", max_length=120, compact=True)
                 yield Label("Oil")
-                yield Input(s.oil, placeholder="e.g. VG46 mineral", id="oil", max_length=60)
-            yield Checkbox(f"Bring the {len(self.gauges)} gauges of the last visit", value=bool(self.gauges),
-                           id="bring-gauges", disabled=not self.gauges)
+                yield Input(s.oil, placeholder="e.g. VG46 mineral", id="oil", max_length=60, compact=True)
+            label = (f"Bring the {len(self.gauges)} gauges of the last visit ({', '.join(g.id for g in self.gauges)})"
+                     if self.gauges else "No earlier visit has gauges: add them in the visit with ^g")
+            yield Checkbox(literal(label), value=bool(self.gauges), id="bring-gauges", disabled=not self.gauges)
             yield Static("", id="new-error", classes="inline-error")
             with Horizontal(classes="dialog-buttons"):
                 yield Button("Start visit (ctrl+s)", id="create", variant="primary")

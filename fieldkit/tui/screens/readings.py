@@ -16,9 +16,9 @@ from fieldkit.errors import AmbiguousInputError, FieldkitError
 from fieldkit.model.profile import TestPoint
 from fieldkit.model.visit import Reading
 from fieldkit.session import Workbench
-from fieldkit.tui.widgets.keybar import KeyBar
 from fieldkit.tui import keys
 from fieldkit.tui.safe_text import literal
+from fieldkit.tui.widgets.keybar import KeyBar
 from fieldkit.units import format_value
 
 
@@ -57,11 +57,11 @@ class ReadingsScreen(Screen):
         self.readings = self.bench.store.reading_history(self.visit_id, self.point.id)
         table = self.query_one("#trail", DataTable)
         table.clear(columns=True)
-        table.add_columns("id", "taken (UTC)", "entered", "value", "condition", "gauge", "status")
+        table.add_columns("id", "status", "entered", "value", "condition", "gauge", "taken (UTC)")
         for r in self.readings:
-            table.add_row(literal(r.id), Text(f"{r.taken_at:%m-%d %H:%M}"), literal(r.entered),
+            table.add_row(literal(r.id), literal(reading_status(r, self.readings)), literal(r.entered),
                           literal(format_value(r.value, self.bench.system)), literal(r.condition.describe()),
-                          literal(r.gauge or "—"), literal(reading_status(r, self.readings)), key=r.id)
+                          literal(r.gauge or "—"), Text(f"{r.taken_at:%Y-%m-%d %H:%M}"), key=r.id)
         if not self.readings:
             self._say("No readings at this point yet.")
 

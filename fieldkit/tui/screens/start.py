@@ -16,10 +16,10 @@ from fieldkit.errors import FieldkitError
 from fieldkit.model.visit import VisitStatus
 from fieldkit.session import Workbench, read_visit_file
 from fieldkit.store.base import VisitSummary
-from fieldkit.tui.widgets.keybar import KeyBar
 from fieldkit.tui import keys
 from fieldkit.tui.messages import explain
 from fieldkit.tui.safe_text import literal
+from fieldkit.tui.widgets.keybar import KeyBar
 
 DEMO_OPEN_VISIT = "demo-open-visit.json"
 
@@ -130,6 +130,13 @@ class StartScreen(Screen):
         if isinstance(focused, DataTable) and focused.row_count:
             focused.action_select_cursor()
 
+    def action_back(self) -> None:
+        """Leave the demo store for the user's own (only when the demo was opened on top of it)."""
+        if len(self.app.screen_stack) > 2 and self.app.screen is self:
+            self.app.pop_screen()
+        else:
+            self._say("This is the first screen: ^q quits (every saved reading is already on disk).")
+
     def action_resume_latest(self) -> None:
         opened = sorted(self._open(), key=lambda s: s.updated_at, reverse=True)
         if not opened:
@@ -228,7 +235,7 @@ class StartScreen(Screen):
             return
         self._import_visit(visit, as_new=False)
 
-    def _import_visit(self, visit, *, as_new: bool) -> None:  # noqa: ANN001
+    def _import_visit(self, visit, *, as_new: bool) -> None:
         try:
             stored = self.bench.store.import_visit(visit, as_new=as_new)
         except FieldkitError as exc:

@@ -10,6 +10,7 @@ from __future__ import annotations
 import re
 from collections.abc import Callable, Iterable
 from pathlib import Path
+from typing import ClassVar
 
 from rich.text import Text
 from textual import on
@@ -26,16 +27,31 @@ from fieldkit.model.gauge import Gauge
 from fieldkit.model.profile import Circuit, MachineProfile, TestPoint
 from fieldkit.model.visit import Reading, Visit, VisitStatus
 from fieldkit.session import Workbench
-from fieldkit.tui.widgets.keybar import KeyBar
 from fieldkit.tui import keys
 from fieldkit.tui.messages import explain
-from fieldkit.tui.plan import PlanCircuit, PlanPoint, PointState, build_plan, notes_with_skip, notes_without_skip, skipped_points
+from fieldkit.tui.plan import (
+    PlanCircuit,
+    PlanPoint,
+    PointState,
+    build_plan,
+    notes_with_skip,
+    notes_without_skip,
+    skipped_points,
+)
 from fieldkit.tui.safe_text import literal
-from fieldkit.tui.step import default_function, gauge_fit, general_caution, last_condition_values, step_cautions, suggest_gauge
+from fieldkit.tui.step import (
+    SHORT_STATE,
+    default_function,
+    gauge_fit,
+    last_condition_values,
+    step_cautions,
+    suggest_gauge,
+)
 from fieldkit.tui.widgets.bars import caution_strip, next_line, top_fault_line, visit_title
-from fieldkit.tui.widgets.faults import FaultList, FindingsView
+from fieldkit.tui.widgets.faults import FaultList, FindingsView, percent
+from fieldkit.tui.widgets.keybar import KeyBar
 from fieldkit.tui.widgets.plan_list import PlanList
-from fieldkit.tui.widgets.step_panel import SHORT_STATE, StepPanel, StepView
+from fieldkit.tui.widgets.step_panel import StepPanel, StepView
 from fieldkit.units import Kind, format_value, parse_value
 
 _BARE_NUMBER = re.compile(r"^\s*[+\-]?\d[\d.,]*\s*$")
@@ -46,7 +62,9 @@ class VisitScreen(Screen):
     """One visit, worked through test point by test point."""
 
     BINDINGS = keys.VISIT
-    HORIZONTAL_BREAKPOINTS = [(0, "-narrow"), (118, "-wide")]
+    KEY_HINTS: ClassVar[list[tuple[str, str]]] = [("↑ ↓", "choose a test point (also from the value field)"), ("Tab", "next field: gauge, condition, speed, oil"),
+                 ("Enter", "save the reading (in any entry field)"), ("Esc", "back to the visit list")]
+    HORIZONTAL_BREAKPOINTS: ClassVar[list[tuple[int, str]]] = [(0, "-narrow"), (118, "-wide")]
 
     def __init__(self, bench: Workbench, visit_id: str, *, demo: bool = False) -> None:
         super().__init__()
@@ -61,6 +79,7 @@ class VisitScreen(Screen):
         self._previous_top: RankedFault | None = None
         self._shown_top: RankedFault | None = None
         self._keep_message = False  # a 'saved' line stays until the next keystroke
+        self._side_shown = False
 
     # --- layout -------------------------------------------------------------------------------
     def compose(self) -> ComposeResult:
@@ -123,12 +142,27 @@ class VisitScreen(Screen):
 
     def _show_header(self) -> None:
         assert self.visit is not None and self.profile is not None
-        self.query_one("#topbar", Static).update(visit_title(self.visit, self.profile, demo=self.demo))
-        self.query_one("#next-line", Static).update(next_line(self.next_test, self.closed))
-        was = self._previous_top if self._previous_top is not None else None
-        self.query_one("#top-fault", Static).update(top_fault_line(self.diagnosis, was))
-        self.query_one("#side-faults", FaultList).show(self.diagnosis)
-        self.query_one("#side-findings", FindingsView).show(self.diagnosis)
+        # One-line strips keep their size: no layout pass for them.
+        self.query_one("#topbar", Static).update(visit_title(self.visit, self.profile, demo=self.demo), layout=False)
+        self.query_one("#next-line", Static).update(next_line(self.next_test, self.closed), layout=False)
+        self.query_one("#top-fault", Static).update(top_fault_line(self.diagnosis, self._previous_top), layout=False)
+        self._show_side()
+
+    def _show_side(self) -> None:
+        """The wide layout's fault and finding lists (skipped while they are hidden)."""
+        if self.has_class("-wide"):
+            self.query_one("#side-faults", FaultList).show(self.diagnosis)
+            self.query_one("#side-findings", FindingsView).show(self.diagnosis)
+            self._side_shown = True
+        else:
+            self._side_shown = False
+
+    def on_resize(self) -> None:
+        self.call_after_refresh(self._side_after_resize)
+
+    def _side_after_resize(self) -> None:
+        if self.has_class("-wide") and not self._side_shown and self.diagnosis is not None:
+            self._show_side()
 
     def _show_closed_state(self) -> None:
         for wid in ("#value", "#gauge", "#function", "#speed", "#oil"):
@@ -182,7 +216,7 @@ class VisitScreen(Screen):
             next_test=self.next_test, system=self.bench.system, checks=plan_point.checks if plan_point else [],
         )
         self.query_one("#step", StepPanel).show(view)
-        self.query_one("#cautions", Static).update(caution_strip(cautions))
+        self.query_one("#cautions", Static).update(caution_strip(cautions), layout=False)
         self.query_one("#value", Input).placeholder = f"e.g. {_example(point)}"
         self._update_parse_message()
 
@@ -344,9 +378,8 @@ class VisitScreen(Screen):
         return True
 
     def _ask_which(self, exc: AmbiguousInputError, point: TestPoint, condition: Condition, gauge: Gauge | None) -> None:
-        from fieldkit.tui.screens.dialogs import ChoiceDialog
-
         from fieldkit.model.quantity import quantity_text
+        from fieldkit.tui.screens.dialogs import ChoiceDialog
 
         choices = list(exc.choices)
         labels = [Text(f"{quantity_text(c.quantity)}   (= {format_value(c.quantity, self.bench.system)})", end="")
@@ -379,8 +412,13 @@ class VisitScreen(Screen):
             unskipped = " (no longer marked skipped)"
         self.reload()
         shown = format_value(reading.value, self.bench.system)
-        self._message(literal(f"✓ saved {reading.entered or shown} at {point.label} ({reading.condition.function.label})"
-                              f"{unskipped}; reading {reading.id}"), "ok")
+        change = ""
+        top, was = self._shown_top, self._previous_top
+        if top is not None and was is not None and top.key != was.key:
+            change = (f" Now most likely: {top.display_title} {percent(top.probability)} "
+                      f"(was {was.display_title} {percent(was.probability)}).")
+        self._message(literal(f"✓ saved {reading.entered or shown} at {point.label}, "
+                              f"{SHORT_STATE[reading.condition.function]}{unskipped}.{change}"), "ok")
         self._keep_message = True
 
     # --- actions ------------------------------------------------------------------------------
@@ -533,7 +571,7 @@ class VisitScreen(Screen):
         from fieldkit.tui.screens.finish import JobCardDialog
 
         if self.visit is not None and self.profile is not None and self.diagnosis is not None:
-            self.app.push_screen(JobCardDialog(self.visit, self.profile, self.diagnosis),
+            self.app.push_screen(JobCardDialog(self.visit, self.profile, self.diagnosis, self.bench.system),
                                  lambda r: self._message(literal(r), "ok") if r else None)
 
     def reopen(self) -> None:
@@ -596,7 +634,7 @@ class VisitScreen(Screen):
         yield "Back to the visit list", "leave this visit", self.action_leave
         if self.profile is not None:
             for circuit, point in self.profile.all_test_points():
-                yield (f"Go to {point.label} ({circuit.name})", "select this test point",
+                yield (f"Go to {point.label} ({circuit.id})", "select this test point",
                        lambda pid=point.id: self.select_point(pid))
         if self.diagnosis is not None:
             for f in self.diagnosis.faults[:8]:

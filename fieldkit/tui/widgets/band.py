@@ -13,6 +13,7 @@ The scale is linear and chosen per reading so the band and the reading both fit 
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import ClassVar
 
 from rich.style import Style
 from rich.text import Text
@@ -84,13 +85,13 @@ def band_plain(check: ReadingCheck, width: int) -> str:
 class ReadingBands(Widget):
     """The band pictures of the readings taken at one test point, newest last."""
 
-    COMPONENT_CLASSES = {"band--track", "band--band", "band--edge", "band--unc",
+    COMPONENT_CLASSES: ClassVar[set[str]] = {"band--track", "band--band", "band--edge", "band--unc",
                          "band--ok", "band--bad", "band--unsure", "band--label"}
     DEFAULT_CSS = """
     ReadingBands { height: auto; }
     """
 
-    def __init__(self, *, id: str | None = None) -> None:  # noqa: A002 - Textual's name
+    def __init__(self, *, id: str | None = None) -> None:
         super().__init__(id=id)
         self._checks: list[ReadingCheck] = []
 
@@ -98,7 +99,7 @@ class ReadingBands(Widget):
         self._checks = list(checks)
         self.refresh(layout=True)
 
-    def get_content_height(self, container, viewport, width: int) -> int:  # noqa: ANN001
+    def get_content_height(self, container, viewport, width: int) -> int:
         return max(1, 3 * len(self._checks))
 
     def _style(self, name: str) -> Style:

@@ -7,6 +7,8 @@ next is marked with ▸.
 
 from __future__ import annotations
 
+from typing import ClassVar
+
 from rich.style import Style
 from rich.text import Text
 from textual.widgets import OptionList
@@ -14,7 +16,6 @@ from textual.widgets.option_list import Option, OptionDoesNotExist
 
 from fieldkit.tui.plan import PlanCircuit, PlanPoint, PointState
 from fieldkit.tui.safe_text import literal
-
 
 
 def point_text(p: PlanPoint, *, recommended: bool, styles: dict[PointState, Style] | None = None) -> Text:
@@ -30,8 +31,12 @@ def point_text(p: PlanPoint, *, recommended: bool, styles: dict[PointState, Styl
 class PlanList(OptionList):
     """Test points grouped by circuit; highlighting one selects it for the step panel."""
 
-    COMPONENT_CLASSES = {"plan--not-measured", "plan--in-range", "plan--out-of-range", "plan--inconclusive",
+    COMPONENT_CLASSES: ClassVar[set[str]] = {"plan--not-measured", "plan--in-range", "plan--out-of-range", "plan--inconclusive",
                          "plan--skipped", "plan--circuit"}
+
+    def __init__(self, *, id: str | None = None) -> None:
+        super().__init__(id=id)
+        self._ids: list[str | None] = []
 
     def _state_styles(self) -> dict[PointState, Style]:
         return {s: self.get_component_rich_style("plan--" + s.value.replace(" ", "-"), partial=True) for s in PointState}
@@ -45,8 +50,16 @@ class PlanList(OptionList):
             options.append(Option(head, id=f"circuit:{pc.circuit.id}", disabled=True))
             for p in pc.points:
                 options.append(Option(point_text(p, recommended=p.id == recommended, styles=styles), id=p.id))
-        self.clear_options()
-        self.add_options(options)
+        ids = [o.id for o in options]
+        if ids == self._ids:
+            # Same plan, new states: swap the prompts in place (no rebuild, no jump of the cursor).
+            for option in options:
+                assert option.id is not None
+                self.replace_option_prompt(option.id, option.prompt)
+        else:
+            self.clear_options()
+            self.add_options(options)
+            self._ids = ids
         if selected is not None:
             self.select_point(selected)
 

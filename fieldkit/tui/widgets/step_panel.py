@@ -16,16 +16,10 @@ from fieldkit.model.profile import Circuit, MachineProfile, TestPoint
 from fieldkit.physics.common import Level
 from fieldkit.tui.plan import PlanPoint
 from fieldkit.tui.safe_text import literal
-from fieldkit.tui.step import GaugeFit, describe_when, range_text
+from fieldkit.tui.step import SHORT_STATE, GaugeFit, describe_when, range_text
 from fieldkit.tui.widgets.band import ReadingBands
 from fieldkit.units import DisplaySystem, format_value
 
-SHORT_STATE = {
-    FunctionState.NEUTRAL: "neutral",
-    FunctionState.FULL_STROKE: "full stroke",
-    FunctionState.STALLED: "stalled over relief",
-    FunctionState.UNDER_LOAD: "under load",
-}
 SEVERITY_MARK = {"danger": "‼ DANGER", "warning": "! WARNING", "notice": "i NOTICE"}
 FIT_MARK = {Level.OK: "✓ suits", Level.NOTE: "i note", Level.WARNING: "! check", Level.ERROR: "✗ DO NOT CONNECT"}
 

@@ -1,0 +1,156 @@
+"""The PDF job card, read back with pypdf: content, paper size, symbols, pagination, repeatability."""
+
+from __future__ import annotations
+
+import io
+import itertools
+import re
+from datetime import UTC, datetime
+from pathlib import Path
+
+import pytest
+from fpdf import FPDF
+from pypdf import PdfReader
+from report_builders import (
+    HOSTILE,
+    SAMPLE_VISITS,
+    UNICODE_NOTE,
+    load,
+    many_readings,
+    with_reading_note,
+    with_text,
+)
+
+import fieldkit.report.pdf as pdf_module
+from fieldkit.diagnosis.results import Verdict
+from fieldkit.report.model import Band, build_report
+from fieldkit.report.pdf import render_pdf
+
+FIXED = datetime(2025, 5, 14, 8, 30, tzinfo=UTC)
+# ISO 216 A4 is 210 × 297 mm and ANSI Letter 8.5 × 11 in; at 72 pt/in: 595.28 × 841.89 and 612 × 792 pt.
+A4 = (595.28, 841.89)
+LETTER = (612.0, 792.0)
+
+
+def _flat(text: str) -> str:
+    """Whitespace collapsed, so text that wrapped inside a table cell still matches."""
+    return re.sub(r"\s+", " ", text).strip()
+
+
+def _read(data: bytes) -> tuple[PdfReader, str]:
+    reader = PdfReader(io.BytesIO(data))
+    return reader, _flat("\n".join(page.extract_text() for page in reader.pages))
+
+
+@pytest.mark.parametrize("path", SAMPLE_VISITS, ids=lambda p: p.stem)
+def test_pdf_holds_every_reading_the_top_fault_and_the_cautions(bench, path: Path) -> None:
+    visit, profile = load(bench, path)
+    diagnosis = bench.diagnose(visit, profile)
+    _reader, text = _read(render_pdf(build_report(visit, profile, diagnosis), fixed_date=FIXED))
+    for check in diagnosis.checks:
+        assert _flat(check.value) in text, check.value
+    assert _flat(diagnosis.top.display_title) in text
+    for caution in diagnosis.cautions:
+        assert _flat(caution.title) in text, caution.title
+    assert _flat(visit.job_number) in text
+    assert "Sign-off" in text
+
+
+def test_pdf_is_a4_by_default_and_letter_when_asked(worn) -> None:
+    card = build_report(*worn)
+    for letter, size in ((False, A4), (True, LETTER)):
+        reader, _text = _read(render_pdf(card, letter=letter, fixed_date=FIXED))
+        for page in reader.pages:
+            box = page.mediabox
+            assert (float(box.width), float(box.height)) == pytest.approx(size, abs=0.01)
+
+
+def test_symbols_outside_latin1_print_as_typed(worn) -> None:
+    visit, profile, diagnosis = worn
+    noted = with_text(visit, notes=UNICODE_NOTE)
+    _reader, text = _read(render_pdf(build_report(noted, profile, diagnosis), fixed_date=FIXED))
+    assert UNICODE_NOTE in text
+
+
+def test_a_character_the_font_lacks_is_marked_not_swapped(worn) -> None:
+    visit, profile, diagnosis = worn
+    noted = with_text(visit, notes="pump \u4e2d seal")  # a CJK character: DejaVu Sans has no glyph for it
+    _reader, text = _read(render_pdf(build_report(noted, profile, diagnosis), fixed_date=FIXED))
+    assert "pump [U+4E2D] seal" in text
+
+
+def test_markup_in_user_text_is_printed_literally(worn) -> None:
+    visit, profile, diagnosis = worn
+    hostile = with_reading_note(with_text(visit, notes=HOSTILE, customer="**Bold** Ltd"), 0, "[x](y) **z**")
+    _reader, text = _read(render_pdf(build_report(hostile, profile, diagnosis), fixed_date=FIXED))
+    assert _flat(HOSTILE) in text
+    assert "**Bold** Ltd" in text
+    assert "[x](y) **z**" in text
+
+
+def test_same_visit_and_fixed_date_give_the_same_pdf(worn) -> None:
+    card = build_report(*worn)
+    first, second = render_pdf(card, fixed_date=FIXED), render_pdf(card, fixed_date=FIXED)
+    reader, text_one = _read(first)
+    _reader, text_two = _read(second)
+    assert text_one == text_two
+    assert first == second  # same process, same zlib: the bytes match too
+    assert reader.metadata.creation_date == FIXED
+
+
+def test_a_band_picture_is_drawn_in_each_reading_row(worn, monkeypatch: pytest.MonkeyPatch) -> None:
+    drawn: list[tuple[float, float, float]] = []
+    real = pdf_module.band_picture
+
+    def spy(pdf: FPDF, band: Band, verdict: Verdict, x: float, y: float, w: float, h: float) -> None:
+        drawn.append((band.value, y, h))
+        real(pdf, band, verdict, x, y, w, h)
+
+    monkeypatch.setattr(pdf_module, "band_picture", spy)
+    card = build_report(*worn)
+    render_pdf(card, fixed_date=FIXED)
+    with_band = [r.band.value for r in card.readings if r.band is not None]
+    assert [value for value, _y, _h in drawn] == with_band
+    # Rows on one page follow each other downwards without overlapping.
+    tops = [y for _v, y, _h in drawn]
+    assert all(h >= 6.0 for _v, _y, h in drawn)
+    assert any(b > a for a, b in itertools.pairwise(tops))
+
+
+def test_forty_readings_run_onto_more_pages_with_the_headings_repeated(bench) -> None:
+    visit, profile = load(bench)
+    big = many_readings(visit, 40)
+    diagnosis = bench.diagnose(big, profile)
+    assert len(diagnosis.checks) == 40
+    reader, text = _read(render_pdf(build_report(big, profile, diagnosis), fixed_date=FIXED))
+    assert len(reader.pages) >= 3
+    for check in diagnosis.checks:
+        assert _flat(check.value) in text
+    pages_with_heading = sum("Test point and condition" in page.extract_text() for page in reader.pages)
+    assert pages_with_heading >= 2
+    assert f"page {len(reader.pages)} of {len(reader.pages)}" in text
+
+
+def test_demo_open_visit_fits_on_two_pages(bench) -> None:
+    visit, profile = load(bench, next(p for p in SAMPLE_VISITS if p.stem == "demo-open-visit"))
+    reader, _text = _read(render_pdf(build_report(visit, profile, bench.diagnose(visit, profile)), fixed_date=FIXED))
+    assert len(reader.pages) <= 2
+
+
+def test_a_very_long_reading_note_moves_to_the_notes_instead_of_breaking_the_table(worn) -> None:
+    visit, profile, diagnosis = worn
+    note = "\n".join(f"line {i}: seal weeping at the test port" for i in range(120))
+    card = build_report(with_reading_note(visit, 2, note), profile, diagnosis)
+    _reader, text = _read(render_pdf(card, fixed_date=FIXED))
+    assert "printed in full under Notes" in text
+    assert "line 0: seal weeping" in text and "line 119: seal weeping" in text
+
+
+def test_importing_the_report_package_does_not_load_the_pdf_library() -> None:
+    import subprocess
+    import sys
+
+    code = ("import sys, fieldkit.report, fieldkit.report.model, fieldkit.report.jobcard, "
+            "fieldkit.report.command, fieldkit.report.text, fieldkit.report.markdown; print('fpdf' in sys.modules)")
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
+    assert out.stdout.strip() == "False"
