@@ -47,21 +47,23 @@ def wrap_lines(pdf: FPDF, text: str, room: float, size: float, bold: bool = Fals
     space = measure(" ")
     lines: list[str] = []
     for paragraph in text.split("\n"):
-        line, used = "", 0.0
+        # Words between single spaces; an empty "word" is an extra space, which takes room as fpdf2's does.
+        words: list[str] = []
+        used = 0.0
         for word in paragraph.split(" "):
             w = measure(word)
-            if line and used + space + w <= room:
-                line, used = f"{line} {word}", used + space + w
+            if words and used + space + w <= room:
+                words.append(word)
+                used += space + w
                 continue
-            if line:
-                lines.append(line)
-            line, used = "", 0.0
+            if words:
+                lines.append(" ".join(words))
             while w > room and len(word) > 1:
                 head, word = _cut(word, room, measure)
                 lines.append(head)
                 w = measure(word)
-            line, used = word, w
-        lines.append(line)
+            words, used = [word], w
+        lines.append(" ".join(words))
     return lines
 
 

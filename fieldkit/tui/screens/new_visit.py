@@ -81,9 +81,8 @@ class NewVisitScreen(Screen):
                 yield Input(s.technician, id="technician", max_length=120, compact=True)
                 yield Label("Oil")
                 yield Input(s.oil, placeholder="e.g. VG46 mineral", id="oil", max_length=60, compact=True)
-            label = (f"Bring the {len(self.gauges)} gauges of the last visit ({', '.join(g.id for g in self.gauges)})"
-                     if self.gauges else "No earlier visit has gauges: add them in the visit with ^g")
-            yield Checkbox(literal(label), value=bool(self.gauges), id="bring-gauges", disabled=not self.gauges)
+            yield Checkbox(self._gauge_label(bool(self.gauges)), value=bool(self.gauges), id="bring-gauges",
+                           disabled=not self.gauges)
             yield Static("", id="new-error", classes="inline-error")
             with Horizontal(classes="dialog-buttons"):
                 yield Button("Start visit (ctrl+s)", id="create", variant="primary")
@@ -92,6 +91,17 @@ class NewVisitScreen(Screen):
 
     def on_mount(self) -> None:
         self.query_one("#job", Input).focus()
+
+    def _gauge_label(self, on: bool) -> Text:
+        """The checkbox's state in words too: its mark differs only in colour."""
+        if not self.gauges:
+            return Text("No earlier visit has gauges: add them in the visit with ^g")
+        ids = ", ".join(g.id for g in self.gauges)
+        return literal(f"{'YES' if on else 'NO'}: bring the {len(self.gauges)} gauges of the last visit ({ids})")
+
+    @on(Checkbox.Changed, "#bring-gauges")
+    def _gauges_toggled(self, event: Checkbox.Changed) -> None:
+        event.checkbox.label = self._gauge_label(event.value)
 
     @on(Input.Submitted)
     def _enter(self, event: Input.Submitted) -> None:
