@@ -12,7 +12,7 @@ import re
 from datetime import timedelta
 
 import pytest
-from diagnosis_helpers import DEMO_OPEN_VISIT, knowledge, library, load_visit, with_readings
+from diagnosis_helpers import DEMO_OPEN_VISIT, knowledge, library, load_visit, precise_gauge, with_readings
 
 from fieldkit.diagnosis.engine import diagnose
 from fieldkit.diagnosis.results import Diagnosis, NextTest
@@ -66,13 +66,12 @@ def _first_unread_point(visit: Visit, d: Diagnosis) -> NextTest:
 
 
 def _value_for(profile: MachineProfile, t: NextTest, outcome: str) -> float:
-    """A value clearly low (30 % under the range, well beyond any suitable gauge's error) or in the
-    middle of the point's range, canonical."""
+    """A value clearly low (5 % under the range) or in the middle of the point's range, canonical."""
     _c, point = profile.test_point(t.test_point)
     rng = point.expected_for(Condition(function=STATE_BY_LABEL[t.condition]))
     assert rng is not None and rng.low is not None and rng.high is not None
     low, high = to_canonical(rng.low, point.kind), to_canonical(rng.high, point.kind)
-    return low * 0.70 if outcome == "low" else (low + high) / 2
+    return low * 0.95 if outcome == "low" else (low + high) / 2
 
 
 @pytest.mark.parametrize("outcome", ["low", "in range"])
@@ -85,9 +84,8 @@ def test_taking_the_proposed_reading_moves_the_ranking_as_its_outcomes_said(outc
 
     _c, point = profile.test_point(t.test_point)
     assert point.kind is Kind.PRESSURE
-    highest = to_canonical(point.max_pressure, Kind.PRESSURE)
-    gauge = next(g for g in visit.gauges
-                 if g.kind is Kind.PRESSURE and to_canonical(g.full_scale, Kind.PRESSURE) > highest)
+    # A gauge a technician would choose for this point: rated above its highest pressure.
+    gauge = precise_gauge("next", Kind.PRESSURE, to_canonical(point.max_pressure, Kind.PRESSURE))
     last = max(r.taken_at for r in visit.readings)
     reading = Reading(
         id="r-next", test_point=t.test_point, value=Q_(_value_for(profile, t, outcome), "bar"),
@@ -96,10 +94,10 @@ def test_taking_the_proposed_reading_moves_the_ranking_as_its_outcomes_said(outc
                             oil_temperature=Q_(55.0, "degC")),
         gauge=gauge.id, taken_at=last + timedelta(minutes=10),
     )
-    after = diagnose(with_readings(visit, [reading]), profile, knowledge())
+    after = diagnose(with_readings(visit, [reading], [gauge]), profile, knowledge())
 
     assert after.top.display_title == said["title"]
-    # The prediction assumed a hard outcome; this reading is far enough outside the range to be one.
+    # The prediction assumed a hard outcome; with a class 0.1 test gauge this reading is well clear of the range.
     assert after.top.probability == pytest.approx(int(said["pct"]) / 100, abs=0.01)
     if outcome == "low":
         assert after.top.key != d.top.key  # the ranking turned over, as predicted

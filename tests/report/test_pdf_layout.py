@@ -37,6 +37,9 @@ PDF = _pdf()
        bold=st.booleans())
 def test_our_cell_height_is_never_less_than_fpdf2s(text: str, width: float, size: float, bold: bool) -> None:
     ours = text_height(PDF, text, width, size, bold)
+    if not text:  # fpdf2's table leaves an empty cell unmeasured, and so do we
+        assert ours == 0.0
+        return
     PDF.set_font(FAMILY, "B" if bold else "", size)
     lh = line_height(size)
     theirs = PDF.multi_cell(w=width, h=lh, text=text, max_line_height=lh, padding=PADDING, dry_run=True,
