@@ -250,9 +250,13 @@ def _import(bench, args: argparse.Namespace) -> int:  # noqa: ANN001
         return 0
     from fieldkit.session import read_visit_file
 
-    visit, profile = read_visit_file(path)
-    if profile is None:
-        bench.library.get(visit.machine)  # an unknown machine is refused before anything is stored
+    visit, _embedded = read_visit_file(path)
+    # A visit can only be worked on with its machine's profile installed: refuse before storing.
+    if visit.machine not in bench.library.ids():
+        from fieldkit.settings import user_profiles_dir
+
+        raise FieldkitError(f"{path}: machine profile '{visit.machine}' is not installed; put its TOML file in "
+                            f"{user_profiles_dir()} (or pass --profiles DIR) and import again")
     stored = bench.store.import_visit(visit, as_new=args.as_new)
     print(f"imported visit {stored.id} ({stored.job_number}, {len(stored.readings)} readings)")
     return 0

@@ -22,7 +22,7 @@ from fieldkit.model.visit import Reading, Visit
 from fieldkit.settings import Settings, data_home
 from fieldkit.store import SqliteVisitStore, open_store
 from fieldkit.tomlfile import read_text, validation_error
-from fieldkit.units import DisplaySystem, Kind, parse_value, to_canonical
+from fieldkit.units import DisplaySystem, Kind, ParsedValue, parse_value, to_canonical
 
 MAX_VISIT_FILE = 20_000_000
 
@@ -87,22 +87,23 @@ class Workbench:
         return diagnose(visit, profile or self.profile_for(visit), self.knowledge, self.system)
 
     # --- readings -----------------------------------------------------------------------
-    def parse_for_point(self, point: TestPoint, text: str):  # noqa: ANN201 - a ParsedValue
+    def parse_for_point(self, point: TestPoint, text: str) -> ParsedValue:
         """Parse text for a test point: its kind is required, and a separator that reads two ways
         is settled by the point's plausible range (asked about when both are plausible)."""
         return parse_value(text, point.kind, decimal_comma=self.settings.decimal_comma,
                            role_name=point.label, plausible=plausibility(point))
 
     def record(self, visit_id: str, point_id: str, text: str, condition: Condition, *, gauge: str | None = None,
-               note: str = "", replaces: str | None = None) -> Reading:
-        """Parse and save one reading at once (committed before this returns)."""
+               note: str = "", replaces: str | None = None, chosen: ParsedValue | None = None) -> Reading:
+        """Parse and save one reading at once (committed before this returns). ``chosen`` is the
+        reading a person picked after :class:`~fieldkit.errors.AmbiguousInputError` asked."""
         visit = self.store.get_visit(visit_id)
         profile = self.profile_for(visit)
         try:
             _circuit, point = profile.test_point(point_id)
         except KeyError:
             raise FieldkitError(f"machine '{profile.id}' has no test point '{point_id}'") from None
-        parsed = self.parse_for_point(point, text)
+        parsed = chosen if chosen is not None else self.parse_for_point(point, text)
         reading = Reading(test_point=point.id, value=parsed.quantity, reference=parsed.reference,
                           entered=parsed.text, condition=condition, gauge=gauge, note=note)
         if replaces:

@@ -8,15 +8,15 @@ same for the same job card, because the creation date is the only varying input.
 
 from __future__ import annotations
 
-from collections.abc import Iterator
-from contextlib import contextmanager
+import hashlib
 from datetime import UTC, datetime
 from pathlib import Path
 
 from fpdf import FPDF
 
 from fieldkit.diagnosis.results import Verdict
-from fieldkit.report.model import Caution, JobCard, Note
+from fieldkit.report.model import JobCard, Note
+from fieldkit.report.pdf_boxes import cautions, sign_off
 from fieldkit.report.pdf_draw import (
     ACCENT,
     INK,
@@ -32,21 +32,16 @@ from fieldkit.report.pdf_draw import (
     band_picture,
     probability_bar,
 )
+from fieldkit.report.pdf_layout import BODY, FOOT, MARGIN, SMALL, TINY, fit, placed, section, text_block
 from fieldkit.report.pdf_tables import Cell, measured_table
 from fieldkit.report.pdf_text import FAMILY, block_height, draw_block, line_height
 
 FONTS = Path(__file__).parent / "fonts"
-MARGIN = 10.0
-FOOT = 14.0  # bottom margin: the footer line sits in it
-BODY = 8.0
-SMALL = 6.8
-TINY = 6.0
 REMARK_SIZE = 6.2
 #: Relative widths: number, test point and condition, reading, expected, gauge, band, verdict.
 READING_COLUMNS = [5, 43, 16, 21, 34, 35, 19]
 REMARK_PAD = 0.6
 
-SEVERITY = {"danger": (OUT, OUT_FILL), "warning": (UNSURE, UNSURE_FILL), "notice": (ACCENT, (226, 238, 243))}
 VERDICT_STYLE = {
     Verdict.LOW: (OUT, OUT_FILL, True),
     Verdict.HIGH: (OUT, OUT_FILL, True),
@@ -64,6 +59,11 @@ class JobCardPDF(FPDF):
         self.card = card
         #: Reading notes too long for a table row; printed in full under Notes.
         self.spill: list[Note] = []
+        # fpdf2 replaces its page-total alias ("{nb}" by default) anywhere in the text, so a note
+        # saying "{nb}" would print a number. Our alias is a digest of the card's own text: no
+        # text on the card can contain it, and the same card always gets the same one.
+        self.total_pages = "{" + hashlib.sha256(repr(card).encode("utf-8", "replace")).hexdigest()[:12] + "}"
+        self.alias_nb_pages(self.total_pages)
         self.add_font(FAMILY, "", FONTS / "DejaVuSans.ttf")
         self.add_font(FAMILY, "B", FONTS / "DejaVuSans-Bold.ttf")
         regular, bold = self.fonts[FAMILY], self.fonts[FAMILY + "B"]
@@ -84,9 +84,9 @@ class JobCardPDF(FPDF):
             return
         self.set_text_color(*MUTED)
         y = self.t_margin
-        _fit(self, self.l_margin, y, self.epw * 0.6, 4, f"{self.card.title}, job {self.card.header.job_number} "
+        fit(self, self.l_margin, y, self.epw * 0.6, 4, f"{self.card.title}, job {self.card.header.job_number} "
              "(continued)", TINY, floor=4.5)
-        _fit(self, self.l_margin + self.epw * 0.6, y, self.epw * 0.4, 4, self.card.header.machine, TINY,
+        fit(self, self.l_margin + self.epw * 0.6, y, self.epw * 0.4, 4, self.card.header.machine, TINY,
              align="R", floor=4.5)
         self.set_draw_color(*RULE)
         self.set_line_width(0.2)
@@ -99,7 +99,7 @@ class JobCardPDF(FPDF):
         self.set_font(FAMILY, "", TINY)
         self.set_text_color(*MUTED)
         self.cell(self.epw * 0.75, 4, f"Job {self.card.header.job_number} · {self.card.header.date} · "
-                                      f"page {self.page_no()} of {{nb}}")
+                                      f"page {self.page_no()} of {self.total_pages}")
         self.cell(self.epw * 0.25, 4, self.card.generator, align="R")
         self.set_text_color(*INK)
 
@@ -120,86 +120,28 @@ def render_pdf(card: JobCard, *, letter: bool = False, fixed_date: datetime | No
     _faults(pdf, card)
     _actions(pdf, card)
     _next_test(pdf, card)
-    _cautions(pdf, card)
+    cautions(pdf, card)
     _notes(pdf, card)
-    _sign_off(pdf, card)
+    sign_off(pdf, card)
     return bytes(pdf.output())
 
 
 # --- building blocks -------------------------------------------------------------------------
-
-@contextmanager
-def _placed(pdf: FPDF, height: float) -> Iterator[float]:
-    """Room for a block drawn at fixed positions: a new page if it does not fit, and no automatic
-    page break while it is drawn (a break half way would scatter it over pages). Yields its top."""
-    if pdf.y + height > pdf.page_break_trigger:
-        pdf.add_page()
-    pdf.set_auto_page_break(False)
-    try:
-        yield pdf.y
-    finally:
-        pdf.set_auto_page_break(True, margin=FOOT)
-
-
-def _section(pdf: FPDF, title: str, keep: float = 20.0) -> None:
-    """A section heading, moved to the next page if it would sit alone at the foot of this one."""
-    if pdf.y + 8 + keep > pdf.page_break_trigger:
-        pdf.add_page()
-    pdf.ln(2.0)
-    pdf.set_font(FAMILY, "B", 9.5)
-    pdf.set_text_color(*ACCENT)
-    pdf.cell(0, 4.8, title, new_x="LMARGIN", new_y="NEXT")
-    pdf.set_draw_color(*ACCENT)
-    pdf.set_line_width(0.35)
-    pdf.line(pdf.l_margin, pdf.y, pdf.w - pdf.r_margin, pdf.y)
-    pdf.ln(1.2)
-    pdf.set_text_color(*INK)
-
-
-def _fit(pdf: FPDF, x: float, y: float, w: float, h: float, text: str, size: float, bold: bool = False,
-         align: str = "L", floor: float = 5.5) -> None:
-    """One line of text in a fixed box, in a smaller font when it is too long; text that does not
-    fit even at ``floor`` wraps (in the same box's width) rather than being cut."""
-    style = "B" if bold else ""
-    while size > floor:
-        pdf.set_font(FAMILY, style, size)
-        if pdf.get_string_width(text) <= w - 1:
-            break
-        size -= 0.5
-    pdf.set_font(FAMILY, style, size)
-    pdf.set_xy(x, y)
-    if pdf.get_string_width(text) <= w - 1:
-        pdf.cell(w, h, text, align=align)
-    else:
-        lh = line_height(size)
-        lines = len(pdf.multi_cell(w, lh, text, dry_run=True, output="LINES"))
-        pdf.set_xy(x, y + max(0.0, (h - lines * lh) / 2))
-        pdf.multi_cell(w, lh, text, align=align)
-
-
-def _text(pdf: FPDF, text: str, size: float = BODY, bold: bool = False, color: tuple[int, int, int] = INK,
-          indent: float = 0.0) -> None:
-    pdf.set_font(FAMILY, "B" if bold else "", size)
-    pdf.set_text_color(*color)
-    pdf.set_x(pdf.l_margin + indent)
-    pdf.multi_cell(pdf.epw - indent, line_height(size), text, align="L", new_x="LMARGIN", new_y="NEXT")
-    pdf.set_text_color(*INK)
-
 
 def _header(pdf: FPDF, card: JobCard) -> None:
     h = card.header
     pdf.set_fill_color(*ACCENT)
     pdf.rect(pdf.l_margin, pdf.t_margin, pdf.epw, 10, style="F")
     pdf.set_text_color(255, 255, 255)
-    _fit(pdf, pdf.l_margin + 3, pdf.t_margin, pdf.epw * 0.42, 10, card.title.upper(), 15, bold=True)
-    _fit(pdf, pdf.l_margin + pdf.epw * 0.45, pdf.t_margin, pdf.epw * 0.55 - 3, 10, f"Job {h.job_number}", 12,
+    fit(pdf, pdf.l_margin + 3, pdf.t_margin, pdf.epw * 0.42, 10, card.title.upper(), 15, bold=True)
+    fit(pdf, pdf.l_margin + pdf.epw * 0.45, pdf.t_margin, pdf.epw * 0.55 - 3, 10, f"Job {h.job_number}", 12,
          bold=True, align="R")
     pdf.set_text_color(*INK)
     pdf.set_xy(pdf.l_margin, pdf.t_margin + 11.5)
     rows = [[Cell(a.label, color=MUTED), Cell(a.value, bold=a.label == "Customer"),
              Cell(b.label, color=MUTED), Cell(b.value, bold=b.label == "Machine")]
             for a, b in zip(h.visit_fields(), h.machine_fields(), strict=True)]
-    measured_table(pdf, None, rows, [17, 46, 21, 46], size=SMALL + 0.5)
+    measured_table(pdf, None, rows, [17, 46, 21, 46], size=SMALL + 0.3)
 
 
 def _summary(pdf: FPDF, card: JobCard) -> None:
@@ -208,7 +150,7 @@ def _summary(pdf: FPDF, card: JobCard) -> None:
     lines = [(card.conclusion, BODY + 0.5, True, INK), (f"{card.counts} {card.units}", BODY, False, INK)]
     height = sum(block_height(pdf, t, w - 4, s, b) for t, s, b, _c in lines) + 3
     stripe = OUT if not card.settled else ACCENT
-    with _placed(pdf, height) as y:
+    with placed(pdf, height) as y:
         pdf.set_fill_color(240, 245, 247)
         pdf.rect(x, y, w, height, style="F")
         pdf.set_fill_color(*stripe)
@@ -221,7 +163,7 @@ def _summary(pdf: FPDF, card: JobCard) -> None:
 
 def _readings(pdf: JobCardPDF, card: JobCard) -> None:
     """The readings table; a remark or a note sits in a row of its own under its reading."""
-    _section(pdf, "Readings", keep=30)
+    section(pdf, "Readings", keep=30)
     rows: list[list[Cell | str]] = []
     fills: list[tuple[int, int, int] | None] = []
     least: list[float] = []
@@ -266,7 +208,7 @@ def _readings(pdf: JobCardPDF, card: JobCard) -> None:
                    aligns="RLLLLLL", size=SMALL, draw={1: draw_remark, 5: draw_band}, row_fills=fills,
                    row_heights=least)
     pdf.ln(0.8)
-    with _placed(pdf, 4.5) as top:
+    with placed(pdf, 4.5) as top:
         band_legend(pdf, pdf.l_margin, top, TINY)
     pdf.set_xy(pdf.l_margin, top + 4.5)
 
@@ -278,7 +220,7 @@ def _too_tall(pdf: FPDF, text: str, width: float) -> bool:
 
 
 def _findings(pdf: FPDF, card: JobCard) -> None:
-    _section(pdf, "Findings")
+    section(pdf, "Findings")
     if card.findings.flagged:
         rows = []
         for f in card.findings.flagged:
@@ -287,15 +229,15 @@ def _findings(pdf: FPDF, card: JobCard) -> None:
             rows.append([Cell(f.verdict_text, bold=bold, color=colour, fill=fill), Cell(title, bold=True), f.message])
         measured_table(pdf, ["Verdict", "Finding", "What it shows"], rows, [19, 50, 113], size=SMALL)
     else:
-        _text(pdf, "No finding out of range or inconclusive.")
+        text_block(pdf, "No finding out of range or inconclusive.")
     for summary in (card.findings.in_range_summary, card.findings.not_checked_summary):
         if summary:
             pdf.ln(1)
-            _text(pdf, summary, TINY + 0.3, color=MUTED)
+            text_block(pdf, summary, TINY + 0.3, color=MUTED)
 
 
 def _faults(pdf: FPDF, card: JobCard) -> None:
-    _section(pdf, "Likely faults")
+    section(pdf, "Likely faults")
     rows = [[str(f.rank), Cell(f.title, bold=True), Cell(f.probability_text, bold=True), "", f.evidence_text]
             for f in card.faults.top]
 
@@ -306,16 +248,16 @@ def _faults(pdf: FPDF, card: JobCard) -> None:
                    aligns="RLRLL", size=SMALL, draw={3: draw_bar})
     pdf.ln(1)
     key = ("×N: a finding is N times as likely with this fault as on a healthy machine; ÷N: N times less likely.")
-    _text(pdf, " ".join(t for t in (card.faults.others_text, key) if t), TINY + 0.4, color=MUTED)
+    text_block(pdf, " ".join(t for t in (card.faults.others_text, key) if t), TINY + 0.4, color=MUTED)
 
 
 def _actions(pdf: FPDF, card: JobCard) -> None:
-    _section(pdf, "Recommended actions and parts")
+    section(pdf, "Recommended actions and parts")
     if card.actions:
         rows = [[str(i), a.text, Cell(a.reason, color=MUTED)] for i, a in enumerate(card.actions, start=1)]
         measured_table(pdf, ["#", "Action", "Because of"], rows, [5, 120, 57], aligns="RLL", size=SMALL)
     else:
-        _text(pdf, "No action recommended.")
+        text_block(pdf, "No action recommended.")
     if card.parts:
         pdf.ln(1.5)
         grouped: dict[str, list[str]] = {}
@@ -327,8 +269,8 @@ def _actions(pdf: FPDF, card: JobCard) -> None:
 
 
 def _next_test(pdf: FPDF, card: JobCard) -> None:
-    _section(pdf, "Next test", keep=15)
-    _text(pdf, card.next_test_note, SMALL + 0.5, bold=card.next_test is None)
+    section(pdf, "Next test", keep=15)
+    text_block(pdf, card.next_test_note, SMALL + 0.5, bold=card.next_test is None)
     t = card.next_test
     if t is None:
         return
@@ -336,7 +278,7 @@ def _next_test(pdf: FPDF, card: JobCard) -> None:
     x, w = pdf.l_margin, pdf.epw
     parts = [(t.title, BODY, True), (t.why, SMALL, False)]
     height = sum(block_height(pdf, s, w - 3.5, size, bold) for s, size, bold in parts) + 3
-    with _placed(pdf, height) as y:
+    with placed(pdf, height) as y:
         pdf.set_draw_color(*ACCENT)
         pdf.set_line_width(0.35)
         pdf.set_fill_color(240, 245, 247)
@@ -347,53 +289,11 @@ def _next_test(pdf: FPDF, card: JobCard) -> None:
     pdf.set_xy(pdf.l_margin, y + height)
 
 
-def _caution_lines(c: Caution, edge: tuple[int, int, int]) -> list[tuple[str, float, bool, tuple[int, int, int]]]:
-    return [(c.title, 6.8, True, edge), (c.text, 6.1, False, INK),
-            (f"Raised: {c.raised_by}. Source: {c.source}.", 5.5, False, MUTED)]
-
-
-def _caution_box(pdf: FPDF, c: Caution, x: float, y: float, w: float, h: float | None = None) -> float:
-    """One caution in a box with a stripe in its severity's colour; returns the height it needs.
-
-    Called with ``h=None`` it only measures, so boxes in one row can share the tallest height.
-    """
-    edge, fill = SEVERITY.get(c.severity, SEVERITY["notice"])
-    lines = _caution_lines(c, edge)
-    if h is None:
-        return sum(block_height(pdf, t, w - 3, size, bold) for t, size, bold, _c in lines) + 1.6
-    pdf.set_fill_color(*fill)
-    pdf.set_draw_color(*edge)
-    pdf.set_line_width(0.3)
-    pdf.rect(x, y, w, h, style="DF")
-    pdf.set_fill_color(*edge)
-    pdf.rect(x, y, 1.8, h, style="F")
-    top = y + 0.8
-    for text, size, bold, colour in lines:
-        top += draw_block(pdf, x + 2.5, top, w - 3, text, size, bold, colour)
-    return h
-
-
-def _cautions(pdf: FPDF, card: JobCard) -> None:
-    """Safety cautions as boxes: the general one across the page, the rest two to a row."""
-    _section(pdf, "Safety cautions", keep=30)
-    gap = 1.5
-    general = [c for c in card.cautions if c.general]
-    rest = [c for c in card.cautions if not c.general]
-    rows: list[list[Caution]] = [[c] for c in general] + [rest[i:i + 2] for i in range(0, len(rest), 2)]
-    for row in rows:
-        w = pdf.epw if len(row) == 1 and row[0].general else (pdf.epw - gap) / 2
-        h = max(_caution_box(pdf, c, 0, 0, w) for c in row)
-        with _placed(pdf, h) as y:
-            for k, c in enumerate(row):
-                _caution_box(pdf, c, pdf.l_margin + k * (w + gap), y, w, h)
-        pdf.set_xy(pdf.l_margin, y + h + gap)
-
-
 def _notes(pdf: JobCardPDF, card: JobCard) -> None:
     notes = card.notes + pdf.spill
     if not notes:
         return
-    _section(pdf, "Notes", keep=12)
+    section(pdf, "Notes", keep=12)
     lh = line_height(SMALL + 0.5)
     for n in notes:
         # Flowing text (write), so a note of any length breaks across pages like a paragraph.
@@ -403,44 +303,3 @@ def _notes(pdf: JobCardPDF, card: JobCard) -> None:
         pdf.set_font(FAMILY, "", SMALL + 0.5)
         pdf.write(lh, n.text)
         pdf.ln(lh + 1)
-
-
-def _sign_off(pdf: FPDF, card: JobCard) -> None:
-    height = 26
-    _section(pdf, "Sign-off", keep=height)
-    with _placed(pdf, height) as top:
-        _sign_off_boxes(pdf, card, top + 1, height)
-    pdf.set_y(top + height)
-
-
-def _sign_off_boxes(pdf: FPDF, card: JobCard, y: float, height: float) -> None:
-    gap = 8
-    w = (pdf.epw - gap) / len(card.sign_off)
-    statements = {
-        "Technician": "Readings taken and recorded as above.",
-        "Customer": "Findings and recommended actions explained to me.",
-    }
-    for k, s in enumerate(card.sign_off):
-        x = pdf.l_margin + k * (w + gap)
-        pdf.set_draw_color(*RULE)
-        pdf.set_line_width(0.3)
-        pdf.rect(x, y, w, height - 4, style="D")
-        pdf.set_xy(x + 2.5, y + 1)
-        pdf.set_font(FAMILY, "B", BODY)
-        pdf.cell(pdf.get_string_width(s.role) + 2, 4.5, s.role)
-        pdf.set_font(FAMILY, "", TINY)
-        pdf.set_text_color(*MUTED)
-        pdf.cell(w - 5 - pdf.get_string_width(s.role) - 2, 4.5, statements.get(s.role, ""))
-        pdf.set_text_color(*INK)
-        for j, label in enumerate(("Name", "Signature", "Date")):
-            line_y = y + 11.5 + j * 4.8
-            pdf.set_xy(x + 2.5, line_y - 4)
-            pdf.set_font(FAMILY, "", SMALL)
-            pdf.set_text_color(*MUTED)
-            pdf.cell(18, 4, label)
-            pdf.set_text_color(*INK)
-            if label == "Name" and s.name:
-                _fit(pdf, x + 21, line_y - 4.5, w - 24, 4.5, s.name, BODY)
-            pdf.set_draw_color(*MUTED)
-            pdf.set_line_width(0.2)
-            pdf.line(x + 20.5, line_y, x + w - 3, line_y)

@@ -65,6 +65,7 @@ async def in_process(store: Path, rounds: int, size: tuple[int, int]) -> dict[st
     bench = Workbench.open(store)
     seed_demo(bench.store)
     times: dict[str, list[float]] = {"start_to_first_screen": [], "open_visit": [], "enter_to_faults": [],
+                                     "save_handler": [], "save_handler_to_repaint": [],
                                      "diagnose_only": [], "record_only": []}
     t0 = time.perf_counter()
     app = make_app(bench, demo=True)
@@ -96,6 +97,16 @@ async def in_process(store: Path, rounds: int, size: tuple[int, int]) -> dict[st
             assert top.display_title in likely.content.plain  # the LIKELY line shows the new ranking
             if screen.has_class("-wide"):  # and the wide layout's list of ranked faults
                 assert side.get_option_at_index(0).id == top.key
+        # The same without the test driver's key delivery: the Enter handler itself (store commit,
+        # diagnosis, widget updates), and until the screen has been repainted with the result.
+        for i in range(rounds):
+            value.value = f"{24 + i * 0.1:.1f} bar"
+            await pilot.pause()
+            t0 = time.perf_counter()
+            assert screen.save_reading()
+            times["save_handler"].append(time.perf_counter() - t0)
+            await pilot.pause()
+            times["save_handler_to_repaint"].append(time.perf_counter() - t0)
         visit = bench.store.get_visit(screen.visit_id)
         for _ in range(rounds):
             t0 = time.perf_counter()

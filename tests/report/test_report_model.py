@@ -10,7 +10,8 @@ from report_builders import with_text
 
 from fieldkit.diagnosis.results import Diagnosis, Verdict
 from fieldkit.model.visit import Visit
-from fieldkit.report.model import SETTLED, TOP_FAULTS, ReportError, build_report, make_band, plain
+from fieldkit.report.model import SETTLED, TOP_FAULTS, ReportError, build_report, make_band
+from fieldkit.report.usertext import plain
 from fieldkit.units import DisplaySystem
 
 

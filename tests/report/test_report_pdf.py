@@ -88,6 +88,14 @@ def test_markup_in_user_text_is_printed_literally(worn) -> None:
     assert "[x](y) **z**" in text
 
 
+def test_a_note_that_looks_like_a_page_number_alias_stays_as_typed(worn) -> None:
+    visit, profile, diagnosis = worn
+    noted = with_text(visit, notes="see {nb} and {pg} pages")
+    reader, text = _read(render_pdf(build_report(noted, profile, diagnosis), fixed_date=FIXED))
+    assert "see {nb} and {pg} pages" in text
+    assert f"page 1 of {len(reader.pages)}" in text
+
+
 def test_same_visit_and_fixed_date_give_the_same_pdf(worn) -> None:
     card = build_report(*worn)
     first, second = render_pdf(card, fixed_date=FIXED), render_pdf(card, fixed_date=FIXED)

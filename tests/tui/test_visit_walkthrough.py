@@ -6,6 +6,8 @@ from __future__ import annotations
 
 from pathlib import Path
 
+from textual.widgets import Select
+
 from fieldkit.model.condition import FunctionState
 from fieldkit.model.visit import VisitStatus
 from fieldkit.session import Workbench
@@ -59,9 +61,9 @@ async def test_a_demo_visit_from_resume_to_closed_job_card(demo_app, store_path:
         await pilot.press("ctrl+u", "tab", "tab")
         assert app.focused is screen.query_one("#function")
         states = list(FunctionState)
-        steps = states.index(FunctionState.FULL_STROKE) - states.index(screen._function())
+        steps = states.index(FunctionState.FULL_STROKE) - states.index(screen.query_one("#function", Select).value)
         await pilot.press("enter", *(["down"] * steps if steps >= 0 else ["up"] * -steps), "enter")
-        await wait_until(pilot, lambda: screen._function() is FunctionState.FULL_STROKE)
+        await wait_until(pilot, lambda: screen.query_one("#function", Select).value is FunctionState.FULL_STROKE)
         await pilot.press("shift+tab", "shift+tab")
         assert app.focused is screen.query_one("#value")
 

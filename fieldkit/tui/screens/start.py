@@ -205,7 +205,7 @@ class StartScreen(Screen):
 
     def import_path(self, path: Path) -> None:
         from fieldkit.tui.screens.dialogs import ConfirmDialog
-        from fieldkit.tui.screens.visit import import_readings_csv
+        from fieldkit.tui.screens.visit_actions import import_readings_csv
 
         if path.suffix.lower() == ".csv":
             target = self._selected_open_visit()

@@ -1,0 +1,77 @@
+"""Layout primitives for the PDF job card: page geometry, type sizes, section headings and
+blocks that must not be split across pages."""
+
+from __future__ import annotations
+
+from collections.abc import Iterator
+from contextlib import contextmanager
+
+from fpdf import FPDF
+
+from fieldkit.report.pdf_draw import ACCENT, INK
+from fieldkit.report.pdf_text import FAMILY, line_height
+
+MARGIN = 10.0
+FOOT = 14.0  # bottom margin: the footer line sits in it
+BODY = 8.0
+SMALL = 6.8
+TINY = 6.0
+
+
+@contextmanager
+def placed(pdf: FPDF, height: float) -> Iterator[float]:
+    """Room for a block drawn at fixed positions: a new page if it does not fit, and no automatic
+    page break while it is drawn (a break half way would scatter it over pages). Yields its top."""
+    if pdf.y + height > pdf.page_break_trigger:
+        pdf.add_page()
+    pdf.set_auto_page_break(False)
+    try:
+        yield pdf.y
+    finally:
+        pdf.set_auto_page_break(True, margin=FOOT)
+
+
+def section(pdf: FPDF, title: str, keep: float = 20.0) -> None:
+    """A section heading, moved to the next page if it would sit alone at the foot of this one."""
+    if pdf.y + 8 + keep > pdf.page_break_trigger:
+        pdf.add_page()
+    pdf.ln(2.0)
+    pdf.set_font(FAMILY, "B", 9.5)
+    pdf.set_text_color(*ACCENT)
+    pdf.cell(0, 4.8, title, new_x="LMARGIN", new_y="NEXT")
+    pdf.set_draw_color(*ACCENT)
+    pdf.set_line_width(0.35)
+    pdf.line(pdf.l_margin, pdf.y, pdf.w - pdf.r_margin, pdf.y)
+    pdf.ln(1.2)
+    pdf.set_text_color(*INK)
+
+
+def fit(pdf: FPDF, x: float, y: float, w: float, h: float, text: str, size: float, bold: bool = False,
+         align: str = "L", floor: float = 5.5) -> None:
+    """One line of text in a fixed box, in a smaller font when it is too long; text that does not
+    fit even at ``floor`` wraps (in the same box's width) rather than being cut."""
+    style = "B" if bold else ""
+    while size > floor:
+        pdf.set_font(FAMILY, style, size)
+        if pdf.get_string_width(text) <= w - 1:
+            break
+        size -= 0.5
+    pdf.set_font(FAMILY, style, size)
+    pdf.set_xy(x, y)
+    if pdf.get_string_width(text) <= w - 1:
+        pdf.cell(w, h, text, align=align)
+    else:
+        lh = line_height(size)
+        lines = len(pdf.multi_cell(w, lh, text, dry_run=True, output="LINES"))
+        pdf.set_xy(x, y + max(0.0, (h - lines * lh) / 2))
+        pdf.multi_cell(w, lh, text, align=align)
+
+
+def text_block(pdf: FPDF, text: str, size: float = BODY, bold: bool = False, color: tuple[int, int, int] = INK,
+               indent: float = 0.0) -> None:
+    """A paragraph across the page that may run onto the next one (unlike a boxed block)."""
+    pdf.set_font(FAMILY, "B" if bold else "", size)
+    pdf.set_text_color(*color)
+    pdf.set_x(pdf.l_margin + indent)
+    pdf.multi_cell(pdf.epw - indent, line_height(size), text, align="L", new_x="LMARGIN", new_y="NEXT")
+    pdf.set_text_color(*INK)
