@@ -282,7 +282,7 @@ class Evaluator:
         texts = self._texts(rule, value, u, low, high)
         template = {Verdict.LOW: spec.say_low, Verdict.HIGH: spec.say_high, Verdict.IN_RANGE: spec.say_ok}.get(verdict, "")
         if not template:
-            template = "{title}: {value} ± {uncertainty}; limits {limits}"
+            template = "{title}: {value} ± {uncertainty}, against {limits}."
         message = fill(template, texts)
         if verdict is Verdict.INCONCLUSIVE:
             message += f" Too close to a limit to call with this gauge (P low {p_low:.0%}, P high {p_high:.0%})."
@@ -303,15 +303,15 @@ class Evaluator:
     def _texts(self, rule: Rule, value: float, u: float, low: float | None, high: float | None) -> dict[str, str]:
         kind = _kind_of_dim(rule.value.result)
 
-        def show(x: float | None) -> str:
+        def show(x: float | None, significant: int = 4) -> str:
             if x is None:
                 return "—"
-            return format_si(x, kind, self.system) if kind is not None else f"{x:.3g}"
+            return format_si(x, kind, self.system, significant=significant) if kind is not None else f"{x:.3g}"
 
         def show_spread(x: float) -> str:
             if kind is Kind.TEMPERATURE:  # a temperature difference, in kelvin whatever the display
                 return f"{x:.2g} K"
-            return show(x)
+            return show(x, significant=2)
 
         limits = f"{show(low)} to {show(high)}" if low is not None and high is not None else (
             f"at least {show(low)}" if low is not None else f"at most {show(high)}")
