@@ -8,7 +8,6 @@ from __future__ import annotations
 
 from enum import StrEnum
 from pathlib import Path
-
 from typing import Annotated
 
 from pydantic import AfterValidator, Field

@@ -7,23 +7,33 @@ and rule findings (:mod:`findings`) â†’ posterior over faults (:mod:`ranking`) â
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 from functools import lru_cache
 from pathlib import Path
 
 from fieldkit.diagnosis.catalogue import Caution, Fault, load_cautions, load_faults
-from fieldkit.diagnosis.findings import Evaluator, outcome_probabilities, verdict_for
+from fieldkit.diagnosis.findings import Evaluator, Hypothesis, outcome_probabilities, verdict_for
 from fieldkit.diagnosis.measure import ASSUMED_CLASS, Measured, measure_visit
 from fieldkit.diagnosis.next_test import suggest
 from fieldkit.diagnosis.ranking import entropy_bits, hypotheses_for, log_posterior, rank
 from fieldkit.diagnosis.results import CautionNote, Diagnosis, Finding, NextTest, ReadingCheck, Verdict
 from fieldkit.diagnosis.rulepack import Rule, load_packs
+from fieldkit.errors import FieldkitError
 from fieldkit.model.condition import FunctionState
 from fieldkit.model.profile import MachineProfile, TestPoint
-from fieldkit.model.roles import ROLES
 from fieldkit.model.visit import Visit
-from fieldkit.errors import FieldkitError
-from fieldkit.units import CANONICAL_UNIT, METRIC, DisplaySystem, Kind, Q_, display_scale, format_value, to_canonical, unit
+from fieldkit.units import (
+    CANONICAL_UNIT,
+    METRIC,
+    Q_,
+    DisplaySystem,
+    Kind,
+    display_scale,
+    format_value,
+    to_canonical,
+    unit,
+)
 
 
 @dataclass(frozen=True)
@@ -120,17 +130,22 @@ def _gauge_advice(full_bar: float, start_bar: float | None, accuracy: float, rea
     return "" if check.ok else check.message
 
 
-def _gauge_findings(measured: list[Measured], hyps: list, rules_cautions: dict[str, Caution]) -> list[Finding]:
-    """Built-in check: a reading at or above its gauge's full scale cannot be trusted."""
-    import math
+#: P(a reading at or past full scale | the gauge is at fault) and P(same | a sound gauge):
+#: a needle on its stop almost never happens on a gauge of the right range. common practice.
+OVERRANGE_IF_GAUGE_FAULT = 0.6
+OVERRANGE_IF_SOUND = 0.02
 
+
+def _gauge_findings(measured: list[Measured], hyps: list[Hypothesis]) -> list[Finding]:
+    """Built-in check: a reading at or above its gauge's full scale cannot be trusted."""
+    llr = math.log(OVERRANGE_IF_GAUGE_FAULT / OVERRANGE_IF_SOUND)
     out: list[Finding] = []
     for m in measured:
         if m.gauge is None or m.gauge.kind is not m.kind:
             continue
         top = to_canonical(m.gauge.full_scale, m.kind)
         if m.canonical >= top:
-            ev = {h.key: math.log(0.6 / 0.02) for h in hyps if h.fault.id == "gauge_error"}
+            ev = {h.key: llr for h in hyps if h.fault.id == "gauge_error"}
             out.append(Finding(
                 rule_id="gauge-overranged", title=f"Gauge overranged at {m.point.label}", circuit=m.circuit.id,
                 verdict=Verdict.HIGH, message=(f"{m.point.label} read {format_value(m.reading.value)} on a gauge whose "
@@ -184,7 +199,7 @@ def diagnose(visit: Visit, profile: MachineProfile, knowledge: Knowledge | None 
     hyps = hypotheses_for(profile, knowledge.faults)
     evaluator = Evaluator(profile, measured, system)
     findings, pairs = evaluator.run(knowledge.rules, hyps)
-    findings.extend(_gauge_findings(measured, hyps, knowledge.cautions))
+    findings.extend(_gauge_findings(measured, hyps))
     ranked, posterior = rank(hyps, findings)
     logs = log_posterior(hyps, findings)
     next_tests = suggest(evaluator, pairs, hyps, posterior, logs)
@@ -198,4 +213,4 @@ def diagnose(visit: Visit, profile: MachineProfile, knowledge: Knowledge | None 
     )
 
 
-__all__ = ["Diagnosis", "Knowledge", "default_knowledge", "diagnose", "ROLES"]
+__all__ = ["Diagnosis", "Knowledge", "default_knowledge", "diagnose"]

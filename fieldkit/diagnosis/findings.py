@@ -25,7 +25,7 @@ from fieldkit.model.condition import FunctionState
 from fieldkit.model.parameters import PARAMETERS
 from fieldkit.model.profile import Circuit, MachineProfile
 from fieldkit.model.roles import ROLES, Role
-from fieldkit.units import DisplaySystem, Kind, Q_, format_si, to_canonical
+from fieldkit.units import Q_, DisplaySystem, Kind, format_si, to_canonical
 
 #: A verdict is stated when one outcome is at least this likely; otherwise it is 'inconclusive'.
 CONFIDENT = 0.95

@@ -17,7 +17,7 @@ from fieldkit.model.gauge import Gauge
 from fieldkit.model.profile import Circuit, MachineProfile, TestPoint
 from fieldkit.model.roles import Role
 from fieldkit.model.visit import Reading, Visit
-from fieldkit.units import CANONICAL_UNIT, Kind, PressureReference, Q_, kind_of, to_canonical, to_gauge, unit
+from fieldkit.units import CANONICAL_UNIT, Q_, Kind, PressureReference, kind_of, to_canonical, to_gauge, unit
 
 ASSUMED_CLASS = 2.5
 _SQRT3 = math.sqrt(3.0)

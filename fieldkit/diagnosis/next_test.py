@@ -19,7 +19,7 @@ from fieldkit.diagnosis.results import Finding, NextTest, Verdict
 from fieldkit.diagnosis.rulepack import Rule
 from fieldkit.model.condition import FunctionState
 from fieldkit.model.profile import Circuit, TestPoint
-from fieldkit.model.roles import ROLES, Role
+from fieldkit.model.roles import Role
 from fieldkit.units import Kind
 
 MAX_JOINT_RULES = 3
@@ -182,4 +182,4 @@ def _smaller_gauge_advice(evaluator: Evaluator, cand: _Candidate) -> str:
             f"gauge{current} (smaller full scale, smaller error).")
 
 
-__all__ = ["suggest", "ROLES"]
+__all__ = ["suggest"]

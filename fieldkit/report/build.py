@@ -19,6 +19,7 @@ from fieldkit.diagnosis.results import (
 )
 from fieldkit.model.profile import MachineProfile
 from fieldkit.model.visit import Visit
+from fieldkit.report.gauge_use import GaugeUse, gauge_uses
 from fieldkit.report.model import (
     GENERAL_CAUTION_ID,
     LEADING,
@@ -61,7 +62,7 @@ _FALLBACK_GENERAL = CautionNote(
 def assemble(visit: Visit, profile: MachineProfile, diagnosis: Diagnosis, system: DisplaySystem) -> JobCard:
     """The job card for :func:`fieldkit.report.model.build_report` (which documents it)."""
     _check_inputs(visit, profile, diagnosis)
-    readings = _readings(visit, diagnosis)
+    readings = _readings(visit, diagnosis, gauge_uses(visit, profile, system))
     settled = bool(diagnosis.faults) and diagnosis.top.probability >= SETTLED
     next_test, next_note = _next_step(diagnosis, settled)
     leading = _leading_faults(diagnosis, settled)
@@ -142,7 +143,7 @@ _VERDICT_TEXT = {
 }
 
 
-def _readings(visit: Visit, diagnosis: Diagnosis) -> list[ReadingRow]:
+def _readings(visit: Visit, diagnosis: Diagnosis, uses: dict[str, GaugeUse]) -> list[ReadingRow]:
     notes = {r.id: plain(r.note).strip() for r in visit.readings}
     repeat_advice = {t.test_point: t.gauge_advice for t in diagnosis.next_tests if t.repeat and t.gauge_advice}
     rows = []
@@ -150,18 +151,24 @@ def _readings(visit: Visit, diagnosis: Diagnosis) -> list[ReadingRow]:
         band = None
         if c.value_num is not None and (c.low_num is not None or c.high_num is not None):
             band = make_band(c.value_num, c.uncertainty_num, c.low_num, c.high_num, c.unit)
+        use = uses.get(c.reading_id, GaugeUse())
         rows.append(ReadingRow(
             number=i, reading_id=c.reading_id, test_point=one_line(c.test_point_label), circuit=c.circuit,
             condition=one_line(c.condition), reading=one_line(c.value), expected=one_line(c.expected),
             uncertainty=c.uncertainty, gauge=one_line(c.gauge), verdict=c.verdict,
-            verdict_text=_VERDICT_TEXT[c.verdict], remark=_remark(c, repeat_advice.get(c.test_point, "")),
-            note=notes.get(c.reading_id, ""), band=band,
+            verdict_text=_VERDICT_TEXT[c.verdict], remark=_remark(c, repeat_advice.get(c.test_point, ""), use),
+            note=notes.get(c.reading_id, ""), band=band, low_share=use.low_share if c.gauge_advice else "",
         ))
     return rows
 
 
-def _remark(c: ReadingCheck, repeat_advice: str) -> str:
-    """What a technician should know or do about one reading, in a sentence or two."""
+def _remark(c: ReadingCheck, repeat_advice: str, use: GaugeUse) -> str:
+    """What a technician should know or do about one reading, in a sentence or two.
+
+    A gauge too small for its point gets a sentence of its own; a reading low on a big gauge's
+    scale only gets its error's share of the reading (``low_share``) beside the gauge error.
+    Any other concern about the gauge keeps the diagnosis's own words.
+    """
     parts = []
     if c.verdict is Verdict.INCONCLUSIVE:
         parts.append(f"Inconclusive: the reading lies within the gauge's error ({c.uncertainty}) of a limit, "
@@ -172,7 +179,13 @@ def _remark(c: ReadingCheck, repeat_advice: str) -> str:
         parts.append("The machine profile has no expected range for this condition: compare it with the "
                      "maker's figure by hand.")
     if c.gauge_advice and c.gauge_advice not in repeat_advice:
-        parts.append("Gauge: " + plain(c.gauge_advice).rstrip(".") + ".")
+        if use.overrange or use.low:
+            if use.overrange:
+                parts.append(use.overrange)
+            if use.high_on_scale:
+                parts.append("Gauge: " + plain(c.gauge_advice).rstrip(".") + ".")
+        else:
+            parts.append("Gauge: " + plain(c.gauge_advice).rstrip(".") + ".")
     if c.discounted:
         parts.append("Not used in the diagnosis: " + plain(c.discounted).rstrip(".") + ".")
     return " ".join(parts)

@@ -30,6 +30,11 @@ MAX_AGAINST = 2
 
 GENERAL_CAUTION_ID = "general"
 
+#: Explains the share printed after a gauge error, once per card.
+LOW_ON_SCALE_KEY = ("A share after a gauge error, as in ±0.6 bar (23 %): the reading was below a quarter of "
+                    "the gauge's span, so the gauge's class error is that share of the reading; where the "
+                    "point allows, a smaller range reads it better.")
+
 
 class ReportError(FieldkitError):
     """A job card cannot be made for this visit (no readings, wrong machine)."""
@@ -154,6 +159,14 @@ class ReadingRow:
     remark: str
     note: str
     band: Band | None
+    #: The gauge read below a quarter of its span: its class error as a share of the reading
+    #: ("23 %"), explained once by :data:`LOW_ON_SCALE_KEY` rather than in a remark per reading.
+    low_share: str = ""
+
+    @property
+    def uncertainty_text(self) -> str:
+        """The gauge error, with its share of the reading when the gauge read low on its scale."""
+        return f"{self.uncertainty} ({self.low_share})" if self.low_share else self.uncertainty
 
     @property
     def flagged(self) -> bool:
@@ -308,6 +321,11 @@ class JobCard:
     notes: list[Note]
     sign_off: list[SignOff]
     generator: str = field(default=f"fieldkit {__version__}")
+
+    @property
+    def low_on_scale_key(self) -> str:
+        """The key to gauge-error shares, when any reading has one."""
+        return LOW_ON_SCALE_KEY if any(r.low_share for r in self.readings) else ""
 
     @property
     def remarks(self) -> list[ReadingRow]:

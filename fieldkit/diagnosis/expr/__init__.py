@@ -84,7 +84,15 @@ from collections.abc import Mapping
 from fieldkit.diagnosis.expr.compiled import Compiled
 from fieldkit.diagnosis.expr.compiler import REL_TOLERANCE, Compiler, same_type
 from fieldkit.diagnosis.expr.dims import (
-    BOOLEAN, DIMENSIONLESS, Dim, TypeSpec, describe, kind_dimension, si_value, to_quantity, to_type,
+    BOOLEAN,
+    DIMENSIONLESS,
+    Dim,
+    TypeSpec,
+    describe,
+    kind_dimension,
+    si_value,
+    to_quantity,
+    to_type,
 )
 from fieldkit.diagnosis.expr.errors import ExprError
 from fieldkit.diagnosis.expr.functions import ANY, BUILTIN_FUNCTIONS, SAME, FunctionSpec, function_table

@@ -16,13 +16,32 @@ from dataclasses import dataclass
 from typing import Any
 
 from fieldkit.diagnosis.expr.dims import (
-    BOOLEAN, DIMENSIONLESS, TempTag, ValueType, describe, kind_dimension, literal_si, normalise,
-    spelling_si, to_type,
+    BOOLEAN,
+    DIMENSIONLESS,
+    TempTag,
+    ValueType,
+    describe,
+    kind_dimension,
+    literal_si,
+    normalise,
+    spelling_si,
+    to_type,
 )
 from fieldkit.diagnosis.expr.errors import ExprError
 from fieldkit.diagnosis.expr.functions import ANY, SAME, FunctionSpec, is_marker
 from fieldkit.diagnosis.expr.syntax import (
-    Call, Chain, Compare, Logic, Name, Negate, Node, Not, Number, Power, Truth, When,
+    Call,
+    Chain,
+    Compare,
+    Logic,
+    Name,
+    Negate,
+    Node,
+    Not,
+    Number,
+    Power,
+    Truth,
+    When,
 )
 from fieldkit.diagnosis.expr.temperature import after_add, check_alike, merge
 from fieldkit.errors import FieldkitError

@@ -16,7 +16,7 @@ import pint
 from pint.util import UnitsContainer
 
 from fieldkit.diagnosis.expr.errors import ExprError
-from fieldkit.units import CANONICAL_UNIT, SPELLINGS, Kind, Q_, unit
+from fieldkit.units import CANONICAL_UNIT, Q_, SPELLINGS, Kind, unit
 
 Dim: TypeAlias = UnitsContainer
 DIMENSIONLESS: Dim = UnitsContainer()

@@ -11,7 +11,19 @@ from collections.abc import Callable
 from fieldkit.diagnosis.expr.errors import ExprError
 from fieldkit.diagnosis.expr.lexer import Tok, Token, tokenize
 from fieldkit.diagnosis.expr.syntax import (
-    Call, Chain, Compare, Logic, Name, Negate, Node, Not, Number, Power, Step, Truth, When,
+    Call,
+    Chain,
+    Compare,
+    Logic,
+    Name,
+    Negate,
+    Node,
+    Not,
+    Number,
+    Power,
+    Step,
+    Truth,
+    When,
 )
 
 MAX_DEPTH = 32
