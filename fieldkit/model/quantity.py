@@ -14,7 +14,7 @@ import pint
 from pydantic import BeforeValidator, PlainSerializer, WithJsonSchema
 
 from fieldkit.errors import FieldkitError
-from fieldkit.units import EXAMPLE, SPELLINGS, Kind, Q_, format_value, kind_of, parse_quantity, unit
+from fieldkit.units import EXAMPLE, SPELLINGS, Kind, PressureReference, Q_, format_value, kind_of, parse_value, unit
 
 
 @lru_cache(maxsize=None)
@@ -31,6 +31,16 @@ def quantity_text(q: pint.Quantity) -> str:
     return format_value(q, kind=kind_of(q), spelling=spelling, exact=True) if spelling else format_value(q, exact=True)
 
 
+def _gauge_only(text: str, kind: Kind | None) -> pint.Quantity:
+    """Parse a value for a field that has no reference of its own (limits, settings, scales):
+    they are gauge pressures, so '0.8 bar abs' here is refused rather than silently read as gauge."""
+    parsed = parse_value(text, kind)
+    if parsed.reference is not None and parsed.reference is not PressureReference.GAUGE:
+        raise ValueError(f"'{text}' is an {parsed.reference.value} pressure; write it as gauge pressure here "
+                         f"(absolute minus the standard atmosphere, 1.01325 bar)")
+    return parsed.quantity
+
+
 def _parser(kind: Kind):  # noqa: ANN202 - returns a pydantic validator
     def parse(value: Any) -> pint.Quantity:
         if isinstance(value, pint.Quantity):
@@ -42,7 +52,7 @@ def _parser(kind: Kind):  # noqa: ANN202 - returns a pydantic validator
         if not isinstance(value, str):
             raise ValueError(f"expected a {kind.value} as text such as '{EXAMPLE[kind]}'")
         try:
-            return parse_quantity(value, kind)
+            return _gauge_only(value, kind)
         except FieldkitError as exc:  # pydantic shows ValueError messages with the field's location
             raise ValueError(str(exc)) from None
 
@@ -95,7 +105,7 @@ def quantity_or_error(value: Any, what: str = "value") -> pint.Quantity:
     if not isinstance(value, str):
         raise ValueError(f"{what} must be text with a unit, such as '22 bar' or '62 L/min'")
     try:
-        return parse_quantity(value)
+        return _gauge_only(value, None)
     except FieldkitError as exc:
         raise ValueError(str(exc)) from None
 

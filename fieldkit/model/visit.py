@@ -63,12 +63,13 @@ class Reading(Strict):
             except FieldkitError as exc:
                 raise ValueError(f"value: {exc}") from None
             said = data.get("reference")
+            data = {**data, "value": parsed.quantity}
             if parsed.reference is not None and parsed.reference is not PressureReference.GAUGE:
                 if said is not None and said != parsed.reference.value:
                     raise ValueError(f"value says {parsed.reference.value} but reference says {said}")
-                data = {**data, "reference": parsed.reference.value}
+                data["reference"] = parsed.reference.value
             elif parsed.reference is not None and said is None:
-                data = {**data, "reference": PressureReference.GAUGE.value}
+                data["reference"] = PressureReference.GAUGE.value
         return data
 
     @model_validator(mode="after")

@@ -59,7 +59,7 @@ def _use(m: Measured, system: DisplaySystem) -> GaugeUse | None:
     overrange = ""
     if work < start:
         overrange = (f"Gauge unsuited: the reading {_bar(work, system)} lies below the start of its scale "
-                     f"({format_value(g.scale_start, system)}); use a vacuum or compound gauge that covers it.")
+                     f"({_bar(start, system)}); use a vacuum or compound gauge that covers it.")
     elif peak >= top:
         reach = highest if highest is not None and peak > work else work
         overrange = (f"Gauge too small: the point can reach {_bar(reach, system)}, past its "
@@ -72,9 +72,8 @@ def _use(m: Measured, system: DisplaySystem) -> GaugeUse | None:
     working_side = top if top > 0 else -start
     high = not overrange and abs(work) > STEADY_FRACTION * working_side
     low_share = ""
-    if abs(work) < LOW_READING_FRACTION * span:
-        error = g.accuracy_class / 100.0 * span
-        low_share = f"{100.0 * error / abs(work):.0f} %" if work else "all"
+    if work and abs(work) < LOW_READING_FRACTION * span:  # at zero a share means nothing: the advice stays
+        low_share = f"{g.accuracy_class * span / abs(work):.0f} %"
     return GaugeUse(overrange, low_share, high)
 
 

@@ -33,14 +33,33 @@ from fieldkit.report.pdf_draw import (
     probability_bar,
 )
 from fieldkit.report.pdf_layout import BODY, FOOT, MARGIN, SMALL, TINY, fit, placed, section, text_block
-from fieldkit.report.pdf_tables import Cell, measured_table
-from fieldkit.report.pdf_text import FAMILY, block_height, draw_block, line_height
+from fieldkit.report.pdf_tables import Cell, Run, measured_table
+from fieldkit.report.pdf_text import (
+    FAMILY,
+    block_height,
+    draw_block,
+    draw_runs,
+    line_height,
+    runs_height,
+    text_height,
+)
 
 FONTS = Path(__file__).parent / "fonts"
 REMARK_SIZE = 6.2
 #: Relative widths: number, test point and condition, reading, expected, gauge, band, verdict.
 READING_COLUMNS = [5, 43, 16, 21, 34, 35, 19]
-REMARK_PAD = 0.6
+#: Number, action, and the fault or finding it answers (in smaller, muted type).
+ACTION_COLUMNS = [5, 125, 52]
+REASON = 6.3
+#: Room for "inconclusive" in bold, in the same units as the readings' columns.
+VERDICT_WIDTH = 19
+REMARK_PAD = 0.45
+#: Cell padding where rows are many (readings, header grid): the rules between rows keep them apart.
+TIGHT = 0.45
+#: Height of the title band at the top of page 1.
+BAND = 9.0
+#: Least height of a reading row: room for its band picture.
+READING_ROW = 6.2
 
 VERDICT_STYLE = {
     Verdict.LOW: (OUT, OUT_FILL, True),
@@ -131,31 +150,31 @@ def render_pdf(card: JobCard, *, letter: bool = False, fixed_date: datetime | No
 def _header(pdf: FPDF, card: JobCard) -> None:
     h = card.header
     pdf.set_fill_color(*ACCENT)
-    pdf.rect(pdf.l_margin, pdf.t_margin, pdf.epw, 10, style="F")
+    pdf.rect(pdf.l_margin, pdf.t_margin, pdf.epw, BAND, style="F")
     pdf.set_text_color(255, 255, 255)
-    fit(pdf, pdf.l_margin + 3, pdf.t_margin, pdf.epw * 0.42, 10, card.title.upper(), 15, bold=True)
-    fit(pdf, pdf.l_margin + pdf.epw * 0.45, pdf.t_margin, pdf.epw * 0.55 - 3, 10, f"Job {h.job_number}", 12,
+    fit(pdf, pdf.l_margin + 3, pdf.t_margin, pdf.epw * 0.42, BAND, card.title.upper(), 14, bold=True)
+    fit(pdf, pdf.l_margin + pdf.epw * 0.45, pdf.t_margin, pdf.epw * 0.55 - 3, BAND, f"Job {h.job_number}", 12,
          bold=True, align="R")
     pdf.set_text_color(*INK)
-    pdf.set_xy(pdf.l_margin, pdf.t_margin + 11.5)
+    pdf.set_xy(pdf.l_margin, pdf.t_margin + BAND + 1)
     rows = [[Cell(a.label, color=MUTED), Cell(a.value, bold=a.label == "Customer"),
              Cell(b.label, color=MUTED), Cell(b.value, bold=b.label == "Machine")]
             for a, b in zip(h.visit_fields(), h.machine_fields(), strict=True)]
-    measured_table(pdf, None, rows, [17, 46, 21, 46], size=SMALL + 0.3)
+    measured_table(pdf, None, rows, [17, 46, 21, 46], size=SMALL + 0.3, padding=TIGHT)
 
 
 def _summary(pdf: FPDF, card: JobCard) -> None:
-    pdf.ln(3)
+    pdf.ln(2)
     x, w = pdf.l_margin, pdf.epw
     lines = [(card.conclusion, BODY + 0.5, True, INK), (f"{card.counts} {card.units}", BODY, False, INK)]
-    height = sum(block_height(pdf, t, w - 4, s, b) for t, s, b, _c in lines) + 3
+    height = sum(block_height(pdf, t, w - 4, s, b) for t, s, b, _c in lines) + 2
     stripe = OUT if not card.settled else ACCENT
     with placed(pdf, height) as y:
         pdf.set_fill_color(240, 245, 247)
         pdf.rect(x, y, w, height, style="F")
         pdf.set_fill_color(*stripe)
         pdf.rect(x, y, 1.6, height, style="F")
-        top = y + 1.5
+        top = y + 1
         for text, size, bold, colour in lines:
             top += draw_block(pdf, x + 4, top, w - 4, text, size, bold, colour)
     pdf.set_xy(pdf.l_margin, y + height)
@@ -167,18 +186,19 @@ def _readings(pdf: JobCardPDF, card: JobCard) -> None:
     rows: list[list[Cell | str]] = []
     fills: list[tuple[int, int, int] | None] = []
     least: list[float] = []
+    joined: list[bool] = []
     owner: list[int | None] = []  # the reading a table row draws a band for
-    remarks: dict[int, tuple[str, tuple[int, int, int]]] = {}  # table row -> remark drawn into it
-    remark_width = pdf.epw * (1 - READING_COLUMNS[0] / sum(READING_COLUMNS)) - REMARK_PAD
+    remark_width = pdf.epw * (1 - READING_COLUMNS[0] / sum(READING_COLUMNS))
     for k, r in enumerate(card.readings):
         colour, fill, bold = VERDICT_STYLE[r.verdict]
         stripe = ZEBRA if k % 2 else None
         rows.append([
             str(r.number), f"{r.test_point}\n{r.condition}", Cell(r.reading, bold=True), r.expected,
-            f"{r.uncertainty}\n{r.gauge}", "", Cell(r.verdict_text, bold=bold, color=colour, fill=fill),
+            f"{r.uncertainty_text}\n{r.gauge}", "", Cell(r.verdict_text, bold=bold, color=colour, fill=fill),
         ])
         fills.append(stripe)
-        least.append(7.0)
+        least.append(READING_ROW)
+        joined.append(False)
         owner.append(k)
         remark = " ".join(t for t in (r.remark, f"Note: {r.note}" if r.note else "") if t)
         if remark and _too_tall(pdf, remark, remark_width):
@@ -186,11 +206,12 @@ def _readings(pdf: JobCardPDF, card: JobCard) -> None:
             moved = "The note on this reading is long: it is printed in full under Notes."
             remark = " ".join(t for t in (r.remark, moved) if t)
         if remark:
-            # Drawn by hand with a tighter line height than the table's: remarks are secondary.
-            remarks[len(rows)] = (remark, UNSURE if r.verdict is Verdict.INCONCLUSIVE else MUTED)
-            rows.append(["", Cell("", span=6)])
+            # Smaller type than the reading itself: remarks are secondary.
+            tone = UNSURE if r.verdict is Verdict.INCONCLUSIVE else MUTED
+            rows.append(["", Cell(remark, color=tone, size=REMARK_SIZE, span=6)])
             fills.append(stripe)
-            least.append(block_height(pdf, remark, remark_width, REMARK_SIZE) + 2 * REMARK_PAD)
+            least.append(0.0)
+            joined.append(True)
             owner.append(None)
 
     def draw_band(pdf: FPDF, i: int, x: float, y: float, w: float, h: float) -> None:
@@ -198,25 +219,22 @@ def _readings(pdf: JobCardPDF, card: JobCard) -> None:
         if k is not None and card.readings[k].band is not None:
             band_picture(pdf, card.readings[k].band, card.readings[k].verdict, x, y, w, h)
 
-    def draw_remark(pdf: FPDF, i: int, x: float, y: float, w: float, h: float) -> None:
-        if i in remarks:
-            text, colour = remarks[i]
-            draw_block(pdf, x, y + REMARK_PAD, remark_width, text, REMARK_SIZE, colour=colour)
-
     measured_table(pdf, ["#", "Test point and condition", "Reading", "Expected", "Gauge error and gauge",
                          "Position in range", "Verdict"], rows, READING_COLUMNS,
-                   aligns="RLLLLLL", size=SMALL, draw={1: draw_remark, 5: draw_band}, row_fills=fills,
-                   row_heights=least)
-    pdf.ln(0.8)
-    with placed(pdf, 4.5) as top:
+                   aligns="RLLLLLL", size=SMALL, draw={5: draw_band}, row_fills=fills, row_heights=least,
+                   continues=joined, padding=TIGHT)
+    pdf.ln(0.6)
+    with placed(pdf, 4.0) as top:
         band_legend(pdf, pdf.l_margin, top, TINY)
-    pdf.set_xy(pdf.l_margin, top + 4.5)
+    pdf.set_xy(pdf.l_margin, top + 4.0)
+    if card.low_on_scale_key:
+        text_block(pdf, card.low_on_scale_key, TINY, color=MUTED)
 
 
 def _too_tall(pdf: FPDF, text: str, width: float) -> bool:
     """A remark taller than a third of a page would make a table row that may not fit any page."""
     page = pdf.page_break_trigger - pdf.t_margin
-    return block_height(pdf, text, width, REMARK_SIZE) > page / 3
+    return text_height(pdf, text, width, REMARK_SIZE, padding=TIGHT) > page / 3
 
 
 def _findings(pdf: FPDF, card: JobCard) -> None:
@@ -225,9 +243,11 @@ def _findings(pdf: FPDF, card: JobCard) -> None:
         rows = []
         for f in card.findings.flagged:
             colour, fill, bold = VERDICT_STYLE[f.verdict]
-            title = f.title + (f" ({f.circuit})" if f.circuit else "")
-            rows.append([Cell(f.verdict_text, bold=bold, color=colour, fill=fill), Cell(title, bold=True), f.message])
-        measured_table(pdf, ["Verdict", "Finding", "What it shows"], rows, [19, 50, 113], size=SMALL)
+            title = f.title + (f" ({f.circuit})" if f.circuit else "") + ":"
+            rows.append([Cell(f.verdict_text, bold=bold, color=colour, fill=fill),
+                         Cell(runs=(Run(title, bold=True), Run(f.message)))])
+        measured_table(pdf, ["Verdict", "Finding: what it shows"], rows, [VERDICT_WIDTH, 182 - VERDICT_WIDTH],
+                       size=SMALL)
     else:
         text_block(pdf, "No finding out of range or inconclusive.")
     for summary in (card.findings.in_range_summary, card.findings.not_checked_summary):
@@ -254,8 +274,14 @@ def _faults(pdf: FPDF, card: JobCard) -> None:
 def _actions(pdf: FPDF, card: JobCard) -> None:
     section(pdf, "Recommended actions and parts")
     if card.actions:
-        rows = [[str(i), a.text, Cell(a.reason, color=MUTED)] for i, a in enumerate(card.actions, start=1)]
-        measured_table(pdf, ["#", "Action", "Because of"], rows, [5, 120, 57], aligns="RLL", size=SMALL)
+        # A reason is printed once for a run of actions it explains; the run shares one block.
+        rows, joined = [], []
+        for i, a in enumerate(card.actions, start=1):
+            same = i > 1 and card.actions[i - 2].reason == a.reason
+            rows.append([str(i), a.text, Cell("" if same else a.reason, color=MUTED, size=REASON)])
+            joined.append(same)
+        measured_table(pdf, ["#", "Action", "Because of"], rows, ACTION_COLUMNS, aligns="RLL", size=SMALL,
+                       continues=joined)
     else:
         text_block(pdf, "No action recommended.")
     if card.parts:
@@ -263,29 +289,27 @@ def _actions(pdf: FPDF, card: JobCard) -> None:
         grouped: dict[str, list[str]] = {}
         for p in card.parts:
             grouped.setdefault(p.for_fault, []).append(p.name)
-        rows = [["; ".join(names), Cell(fault, color=MUTED)] for fault, names in grouped.items()]
-        measured_table(pdf, ["Parts to have at hand (if the fault is confirmed)", "For"], rows, [125, 57],
-                       size=SMALL)
+        rows = [["; ".join(names), Cell(fault, color=MUTED, size=REASON)] for fault, names in grouped.items()]
+        measured_table(pdf, ["Parts to have at hand (if the fault is confirmed)", "For"], rows,
+                       [sum(ACTION_COLUMNS[:2]), ACTION_COLUMNS[2]], size=SMALL)
 
 
 def _next_test(pdf: FPDF, card: JobCard) -> None:
     section(pdf, "Next test", keep=15)
-    text_block(pdf, card.next_test_note, SMALL + 0.5, bold=card.next_test is None)
     t = card.next_test
     if t is None:
+        text_block(pdf, card.next_test_note, SMALL + 0.5, bold=True)
         return
-    pdf.ln(1)
     x, w = pdf.l_margin, pdf.epw
-    parts = [(t.title, BODY, True), (t.why, SMALL, False)]
-    height = sum(block_height(pdf, s, w - 3.5, size, bold) for s, size, bold in parts) + 3
+    why = (Run(card.next_test_note, bold=True), Run(t.why))
+    height = block_height(pdf, t.title, w - 3.5, BODY, True) + runs_height(pdf, why, w - 3.5, SMALL) + 2
     with placed(pdf, height) as y:
         pdf.set_draw_color(*ACCENT)
         pdf.set_line_width(0.35)
         pdf.set_fill_color(240, 245, 247)
         pdf.rect(x, y, w, height, style="DF")
-        top = y + 1.5
-        for s, size, bold in parts:
-            top += draw_block(pdf, x + 3.5, top, w - 3.5, s, size, bold)
+        top = y + 1 + draw_block(pdf, x + 3.5, y + 1, w - 3.5, t.title, BODY, True)
+        draw_runs(pdf, x + 3.5, top, w - 3.5, why, SMALL)
     pdf.set_xy(pdf.l_margin, y + height)
 
 

@@ -2,85 +2,135 @@
 
 from __future__ import annotations
 
+import itertools
+
 from fpdf import FPDF
 
 from fieldkit.report.model import Caution, JobCard
 from fieldkit.report.pdf_draw import ACCENT, INK, MUTED, OUT, OUT_FILL, RULE, UNSURE, UNSURE_FILL
 from fieldkit.report.pdf_layout import BODY, SMALL, TINY, fit, placed, section
-from fieldkit.report.pdf_text import FAMILY, block_height, draw_block, line_height
+from fieldkit.report.pdf_text import FAMILY, Run, block_height, draw_block, draw_runs, runs_height
 
 SEVERITY = {"danger": (OUT, OUT_FILL), "warning": (UNSURE, UNSURE_FILL), "notice": (ACCENT, (226, 238, 243))}
 
 
-TITLE, TEXT, META = 6.8, 6.1, 5.5  # type sizes in a caution box
+TITLE, TEXT, META = 6.8, 6.2, 5.6  # type sizes in a caution box
+COLUMNS = 3
+GAP = 1.5
+STRIPE = 1.6
+INSET = STRIPE + 0.6  # text starts this far from the box's left edge
 
 
-def _raised_on_title_line(pdf: FPDF, c: Caution, w: float) -> bool:
-    """Whether "Raised: …" fits to the right of a one-line title (it saves a line per box)."""
-    room = w - 3 - 2 * pdf.c_margin
-    pdf.set_font(FAMILY, "B", TITLE)
-    title = pdf.get_string_width(c.title)
-    pdf.set_font(FAMILY, "", META)
-    return title + 4 + pdf.get_string_width(f"Raised: {c.raised_by}.") <= room
+def _meta(c: Caution) -> str:
+    """Why the caution is on this card and where it comes from, in one muted line."""
+    raised = "Always shown" if c.general else "Raised by " + c.raised_by.removeprefix("reading ")
+    return f"({raised}; source: {c.source})"
 
 
-def _caution_lines(pdf: FPDF, c: Caution, w: float,
-                   edge: tuple[int, int, int]) -> list[tuple[str, float, bool, tuple[int, int, int]]]:
-    meta = f"Source: {c.source}." if _raised_on_title_line(pdf, c, w) else f"Raised: {c.raised_by}. Source: {c.source}."
-    return [(c.title, TITLE, True, edge), (c.text, TEXT, False, INK), (meta, META, False, MUTED)]
+def _body(c: Caution) -> tuple[Run, ...]:
+    """The caution's text with why and where from after it, muted, in the same paragraph."""
+    return (Run(c.text), Run(_meta(c), colour=MUTED))
 
 
-def _caution_box(pdf: FPDF, c: Caution, x: float, y: float, w: float, h: float | None = None) -> float:
-    """One caution in a box with a stripe in its severity's colour; returns the height it needs.
+def _caution_height(pdf: FPDF, c: Caution, w: float) -> float:
+    return block_height(pdf, c.title, w - INSET, TITLE, True) + runs_height(pdf, _body(c), w - INSET, TEXT) + 1.2
 
-    Called with ``h=None`` it only measures, so boxes in one row can share the tallest height.
-    """
+
+def _caution_box(pdf: FPDF, c: Caution, x: float, y: float, w: float, h: float) -> None:
+    """One caution in a box with a stripe in its severity's colour."""
     edge, fill = SEVERITY.get(c.severity, SEVERITY["notice"])
-    lines = _caution_lines(pdf, c, w, edge)
-    if h is None:
-        return sum(block_height(pdf, t, w - 3, size, bold) for t, size, bold, _c in lines) + 1.6
     pdf.set_fill_color(*fill)
-    pdf.set_draw_color(*edge)
-    pdf.set_line_width(0.3)
-    pdf.rect(x, y, w, h, style="DF")
+    pdf.rect(x, y, w, h, style="F")
     pdf.set_fill_color(*edge)
-    pdf.rect(x, y, 1.8, h, style="F")
-    top = y + 0.8
-    if _raised_on_title_line(pdf, c, w):
-        pdf.set_font(FAMILY, "", META)
-        pdf.set_text_color(*MUTED)
-        pdf.set_xy(x + 2.5, top)
-        pdf.cell(w - 3, line_height(TITLE), f"Raised: {c.raised_by}.", align="R")
-    for text, size, bold, colour in lines:
-        top += draw_block(pdf, x + 2.5, top, w - 3, text, size, bold, colour)
-    return h
+    pdf.rect(x, y, STRIPE, h, style="F")
+    top = y + 0.6
+    top += draw_block(pdf, x + INSET, top, w - INSET, c.title, TITLE, True, edge)
+    draw_runs(pdf, x + INSET, top, w - INSET, _body(c), TEXT)
+
+
+def _balanced(heights: list[float], columns: int) -> list[int]:
+    """Where to cut a run of boxes into ``columns`` columns, in reading order, so that the tallest
+    column is as short as it can be: the start index of each column after the first."""
+    n = len(heights)
+    best: tuple[float, list[int]] = (float("inf"), [])
+
+    def tallest(cuts: list[int]) -> float:
+        edges = [0, *cuts, n]
+        return max(sum(heights[a:b]) + GAP * max(0, b - a - 1) for a, b in itertools.pairwise(edges))
+
+    for cuts in itertools.combinations(range(1, n), min(columns - 1, max(0, n - 1))):
+        t = tallest(list(cuts))
+        if t < best[0] - 1e-9:
+            best = (t, list(cuts))
+    return best[1]
+
+
+def _column_height(heights: list[float]) -> float:
+    return sum(heights) + GAP * max(0, len(heights) - 1)
 
 
 def cautions(pdf: FPDF, card: JobCard) -> None:
-    """Safety cautions as boxes: the general one across the page, the rest two to a row."""
-    section(pdf, "Safety cautions", keep=30)
-    gap = 1.5
-    general = [c for c in card.cautions if c.general]
-    rest = [c for c in card.cautions if not c.general]
-    rows: list[list[Caution]] = [[c] for c in general] + [rest[i:i + 2] for i in range(0, len(rest), 2)]
-    for row in rows:
-        w = pdf.epw if len(row) == 1 and row[0].general else (pdf.epw - gap) / 2
-        h = max(_caution_box(pdf, c, 0, 0, w) for c in row)
+    """Safety cautions as boxes: the general one across the page, the rest in three columns that
+    are read downwards, balanced in height and continued on the next page when they must be."""
+    section(pdf, "Safety cautions", keep=24)
+    for c in (c for c in card.cautions if c.general):
+        h = _caution_height(pdf, c, pdf.epw)
         with placed(pdf, h) as y:
-            for k, c in enumerate(row):
-                _caution_box(pdf, c, pdf.l_margin + k * (w + gap), y, w, h)
-        pdf.set_xy(pdf.l_margin, y + h + gap)
+            _caution_box(pdf, c, pdf.l_margin, y, pdf.epw, h)
+        pdf.set_xy(pdf.l_margin, y + h + GAP)
+    rest = [c for c in card.cautions if not c.general]
+    w = (pdf.epw - (COLUMNS - 1) * GAP) / COLUMNS
+    heights = [_caution_height(pdf, c, w) for c in rest]
+    start = 0
+    while start < len(rest):
+        room = pdf.page_break_trigger - pdf.y
+        if heights[start] > room:
+            pdf.add_page()
+            room = pdf.page_break_trigger - pdf.y
+        cuts = _balanced(heights[start:], COLUMNS)
+        columns = [list(range(a, b)) for a, b in itertools.pairwise([0, *cuts, len(rest) - start])]
+        if max(_column_height([heights[start + i] for i in col]) for col in columns) > room:
+            columns = _filled(heights[start:], room)  # fill this page, go on with the rest on the next
+        y0 = pdf.y
+        bottom = y0
+        with placed(pdf, 0.0):
+            for k, col in enumerate(columns):
+                y = y0
+                for i in col:
+                    c, h = rest[start + i], heights[start + i]
+                    _caution_box(pdf, c, pdf.l_margin + k * (w + GAP), y, w, h)
+                    y += h + GAP
+                bottom = max(bottom, y - GAP)
+        start += sum(len(col) for col in columns)
+        pdf.set_xy(pdf.l_margin, bottom + GAP)
+
+
+def _filled(heights: list[float], room: float) -> list[list[int]]:
+    """Boxes placed column after column while they fit in ``room``; at least one box."""
+    columns: list[list[int]] = []
+    i = 0
+    for _k in range(COLUMNS):
+        col: list[int] = []
+        while i < len(heights) and _column_height([heights[j] for j in col] + [heights[i]]) <= room:
+            col.append(i)
+            i += 1
+        columns.append(col)
+    if i == 0:
+        columns[0] = [0]
+    return [col for col in columns if col]
 
 
 def sign_off(pdf: FPDF, card: JobCard) -> None:
-    height = 23
+    height = 18.5
     section(pdf, "Sign-off", keep=height)
     with placed(pdf, height) as top:
-        _sign_off_boxes(pdf, card, top + 1, height)
+        _sign_off_boxes(pdf, card, top + 0.5, height - 0.5)
     pdf.set_y(top + height)
 
 
 def _sign_off_boxes(pdf: FPDF, card: JobCard, y: float, height: float) -> None:
+    """A box per signer: role and what they sign for, then name and date on one line and a
+    signature line with room to sign above it."""
     gap = 8
     w = (pdf.epw - gap) / len(card.sign_off)
     statements = {
@@ -91,23 +141,25 @@ def _sign_off_boxes(pdf: FPDF, card: JobCard, y: float, height: float) -> None:
         x = pdf.l_margin + k * (w + gap)
         pdf.set_draw_color(*RULE)
         pdf.set_line_width(0.3)
-        pdf.rect(x, y, w, height - 2, style="D")
-        pdf.set_xy(x + 2.5, y + 1)
+        pdf.rect(x, y, w, height, style="D")
+        pdf.set_xy(x + 2, y + 0.5)
         pdf.set_font(FAMILY, "B", BODY)
         pdf.cell(pdf.get_string_width(s.role) + 2, 4.5, s.role)
         pdf.set_font(FAMILY, "", TINY)
         pdf.set_text_color(*MUTED)
-        pdf.cell(w - 5 - pdf.get_string_width(s.role) - 2, 4.5, statements.get(s.role, ""))
-        pdf.set_text_color(*INK)
-        for j, label in enumerate(("Name", "Signature", "Date")):
-            line_y = y + 10 + j * 4.5
-            pdf.set_xy(x + 2.5, line_y - 4)
+        pdf.cell(w - 4 - pdf.get_string_width(s.role) - 2, 4.5, statements.get(s.role, ""))
+        name_w = (w - 4) * 0.62
+        fields = [("Name", x + 2, y + 9.5, name_w), ("Date", x + 2 + name_w + 3, y + 9.5, w - 7 - name_w),
+                  ("Signature", x + 2, y + height - 1.5, w - 4)]
+        for label, fx, line_y, fw in fields:
             pdf.set_font(FAMILY, "", SMALL)
             pdf.set_text_color(*MUTED)
-            pdf.cell(18, 4, label)
+            label_w = pdf.get_string_width(label) + 2.5
+            pdf.set_xy(fx, line_y - 4)
+            pdf.cell(label_w, 4, label)
             pdf.set_text_color(*INK)
             if label == "Name" and s.name:
-                fit(pdf, x + 21, line_y - 4.5, w - 24, 4.5, s.name, BODY)
+                fit(pdf, fx + label_w, line_y - 4.5, fw - label_w, 4.5, s.name, BODY)
             pdf.set_draw_color(*MUTED)
             pdf.set_line_width(0.2)
-            pdf.line(x + 20.5, line_y, x + w - 3, line_y)
+            pdf.line(fx + label_w, line_y, fx + fw, line_y)

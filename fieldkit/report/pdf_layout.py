@@ -9,13 +9,14 @@ from contextlib import contextmanager
 from fpdf import FPDF
 
 from fieldkit.report.pdf_draw import ACCENT, INK
-from fieldkit.report.pdf_text import FAMILY, line_height
+from fieldkit.report.pdf_text import FAMILY, line_height, print_line, wrap_lines
 
 MARGIN = 10.0
 FOOT = 14.0  # bottom margin: the footer line sits in it
 BODY = 8.0
 SMALL = 6.8
 TINY = 6.0
+SECTION = 7.0  # height of a section heading with its rule and spacing
 
 
 @contextmanager
@@ -33,16 +34,17 @@ def placed(pdf: FPDF, height: float) -> Iterator[float]:
 
 def section(pdf: FPDF, title: str, keep: float = 20.0) -> None:
     """A section heading, moved to the next page if it would sit alone at the foot of this one."""
-    if pdf.y + 8 + keep > pdf.page_break_trigger:
+    if pdf.y + SECTION + keep > pdf.page_break_trigger:
         pdf.add_page()
-    pdf.ln(2.0)
-    pdf.set_font(FAMILY, "B", 9.5)
+    pdf.ln(1.6)
+    pdf.set_font(FAMILY, "B", 9.0)
     pdf.set_text_color(*ACCENT)
-    pdf.cell(0, 4.8, title, new_x="LMARGIN", new_y="NEXT")
+    print_line(pdf, pdf.l_margin + pdf.c_margin, pdf.y, 4.4, title)
+    pdf.set_y(pdf.y + 4.4)
     pdf.set_draw_color(*ACCENT)
     pdf.set_line_width(0.35)
     pdf.line(pdf.l_margin, pdf.y, pdf.w - pdf.r_margin, pdf.y)
-    pdf.ln(1.2)
+    pdf.ln(1.0)
     pdf.set_text_color(*INK)
 
 
@@ -69,9 +71,17 @@ def fit(pdf: FPDF, x: float, y: float, w: float, h: float, text: str, size: floa
 
 def text_block(pdf: FPDF, text: str, size: float = BODY, bold: bool = False, color: tuple[int, int, int] = INK,
                indent: float = 0.0) -> None:
-    """A paragraph across the page that may run onto the next one (unlike a boxed block)."""
+    """A paragraph across the page that may run onto the next one (unlike a boxed block); each
+    line is placed by us, so a line that does not fit at the foot of a page starts the next one."""
+    lh = line_height(size)
+    width = pdf.epw - indent
+    lines = wrap_lines(pdf, text, width - 2 * pdf.c_margin, size, bold)  # a cell insets its text by c_margin
     pdf.set_font(FAMILY, "B" if bold else "", size)
-    pdf.set_text_color(*color)
-    pdf.set_x(pdf.l_margin + indent)
-    pdf.multi_cell(pdf.epw - indent, line_height(size), text, align="L", new_x="LMARGIN", new_y="NEXT")
+    for line in lines:
+        if pdf.y + lh > pdf.page_break_trigger:
+            pdf.add_page()
+            pdf.set_font(FAMILY, "B" if bold else "", size)
+        pdf.set_text_color(*color)
+        print_line(pdf, pdf.l_margin + indent + pdf.c_margin, pdf.y, lh, line)
+        pdf.set_xy(pdf.l_margin, pdf.y + lh)
     pdf.set_text_color(*INK)
