@@ -11,11 +11,11 @@ from __future__ import annotations
 
 import contextlib
 import os
-import tempfile
 from datetime import UTC, datetime
 from pathlib import Path
 
 from fieldkit.diagnosis.results import Diagnosis
+from fieldkit.durable import sync_folder, write_temp
 from fieldkit.model.profile import MachineProfile
 from fieldkit.model.visit import Visit
 from fieldkit.report.model import JobCard, ReportError, build_report
@@ -80,35 +80,18 @@ def write_atomic(path: Path, data: bytes) -> Path:
     if path.is_dir():
         raise ReportError(f"{path}: is a folder; give a file name for the job card")
     try:
-        fd, tmp_name = tempfile.mkstemp(prefix=".fieldkit-report-", suffix=".tmp", dir=folder)
+        tmp = write_temp(folder, data, ".fieldkit-report-")
     except OSError as exc:
         raise ReportError(f"{folder}: cannot write in this folder ({exc.strerror or exc})") from None
-    tmp = Path(tmp_name)
     try:
-        with os.fdopen(fd, "wb") as fh:
-            fh.write(data)
-            fh.flush()
-            os.fsync(fh.fileno())
         os.replace(tmp, path)
     except OSError as exc:
         raise ReportError(f"{path}: cannot write the job card ({exc.strerror or exc})") from None
     finally:
         with contextlib.suppress(FileNotFoundError):
             tmp.unlink()
-    _sync_folder(folder)
+    sync_folder(folder)
     return path
-
-
-def _sync_folder(folder: Path) -> None:
-    """Make the rename itself durable (POSIX); elsewhere the rename is as good as it gets."""
-    if os.name != "posix":
-        return
-    with contextlib.suppress(OSError):
-        fd = os.open(folder, os.O_RDONLY)
-        try:
-            os.fsync(fd)
-        finally:
-            os.close(fd)
 
 
 def write_job_card(visit: Visit, profile: MachineProfile, diagnosis: Diagnosis, folder: Path, fmt: str, *,

@@ -19,6 +19,7 @@ import tempfile
 from enum import Enum
 from pathlib import Path
 
+from fieldkit.durable import sync_folder
 from fieldkit.errors import StoreError
 from fieldkit.store.migrations import APPLICATION_ID, MIGRATIONS, Migration, apply_pending, latest_version
 
@@ -181,16 +182,4 @@ def _move_into_place(tmp: Path, path: Path) -> None:
                 os.replace(tmp, path)
         else:
             raise StoreError(f"{path}: cannot create the store ({exc.strerror or exc})") from None
-    _sync_folder(path.parent)
-
-
-def _sync_folder(folder: Path) -> None:
-    """Make the new directory entry durable too (POSIX only; Windows has no folder fsync)."""
-    if os.name != "posix":
-        return
-    with contextlib.suppress(OSError):
-        fd = os.open(folder, os.O_RDONLY)
-        try:
-            os.fsync(fd)
-        finally:
-            os.close(fd)
+    sync_folder(path.parent)

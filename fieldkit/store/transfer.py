@@ -18,7 +18,6 @@ import datetime as dt
 import enum
 import json
 import os
-import tempfile
 from datetime import UTC
 from pathlib import Path
 from typing import Any
@@ -26,6 +25,7 @@ from typing import Any
 import pint
 from pydantic import ValidationError
 
+from fieldkit.durable import sync_folder, write_temp
 from fieldkit.errors import DataFileError
 from fieldkit.model.base import SCHEMA_VERSION, Strict
 from fieldkit.model.profile import MachineProfile
@@ -181,25 +181,19 @@ def write_export(text: str, folder: str | os.PathLike[str], name: str, *, overwr
     target = where / file_name
     if target.parent != where or Path(file_name).name != file_name:  # belt and braces
         raise DataFileError(str(where), f"refusing the file name {file_name!r}")
-    data = text.encode("utf-8")
     try:
-        fd, tmp_name = tempfile.mkstemp(prefix=".fieldkit-export-", suffix=".tmp", dir=where)
+        tmp = write_temp(where, text.encode("utf-8"), ".fieldkit-export-")
     except OSError as exc:
         raise DataFileError(str(where), f"cannot write in this folder ({exc.strerror or exc})") from None
-    tmp = Path(tmp_name)
     try:
         try:
-            with os.fdopen(fd, "wb") as fh:
-                fh.write(data)
-                fh.flush()
-                os.fsync(fh.fileno())
             final = _place(tmp, target, overwrite)
         except OSError as exc:
             raise DataFileError(str(target), f"cannot write the export ({exc.strerror or exc})") from None
     finally:
         with contextlib.suppress(FileNotFoundError):
             tmp.unlink()
-    _sync_folder(where)
+    sync_folder(where)
     return final
 
 
@@ -221,14 +215,3 @@ def _place(tmp: Path, target: Path, overwrite: bool) -> Path:
             os.replace(tmp, candidate)
             return candidate
     raise DataFileError(str(target.parent), f"too many exports named {stem!r} already; move some away")
-
-
-def _sync_folder(folder: Path) -> None:
-    if os.name != "posix":
-        return
-    with contextlib.suppress(OSError):
-        fd = os.open(folder, os.O_RDONLY)
-        try:
-            os.fsync(fd)
-        finally:
-            os.close(fd)
