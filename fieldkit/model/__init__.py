@@ -4,7 +4,14 @@ Validated by pydantic; the same models validate the data files people edit (prof
 templates) and the visits fieldkit saves, so a file is right exactly when the program can use it.
 """
 
-from fieldkit.model.profile import Circuit, CircuitKind, ConditionSpec, ExpectedRange, MachineProfile, TestPoint
+from fieldkit.model.profile import (
+    Circuit,
+    CircuitKind,
+    ConditionSpec,
+    ExpectedRange,
+    MachineProfile,
+    TestPoint,
+)
 from fieldkit.model.roles import ROLES, Role, RoleInfo
 from fieldkit.model.visit import Condition, FunctionState, Gauge, Reading, Visit, VisitStatus
 

@@ -16,7 +16,15 @@ from pydantic import Field, ValidationError
 from fieldkit.errors import DataFileError
 from fieldkit.model.base import Strict
 from fieldkit.model.profile import CircuitKind, MachineProfile, Relief, TestPoint
-from fieldkit.tomlfile import key_lines, line_for, load_model, parse_toml, read_text, validate, validation_error
+from fieldkit.tomlfile import (
+    key_lines,
+    line_for,
+    load_model,
+    parse_toml,
+    read_text,
+    validate,
+    validation_error,
+)
 
 
 class CircuitTemplate(Strict):

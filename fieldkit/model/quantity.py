@@ -14,7 +14,17 @@ import pint
 from pydantic import BeforeValidator, PlainSerializer, WithJsonSchema
 
 from fieldkit.errors import FieldkitError
-from fieldkit.units import EXAMPLE, SPELLINGS, Kind, PressureReference, Q_, format_value, kind_of, parse_value, unit
+from fieldkit.units import (
+    EXAMPLE,
+    Q_,
+    SPELLINGS,
+    Kind,
+    PressureReference,
+    format_value,
+    kind_of,
+    parse_value,
+    unit,
+)
 
 
 @lru_cache(maxsize=None)

@@ -6,8 +6,8 @@ deletion marks the old one, so the job card can always show what was entered and
 
 from __future__ import annotations
 
-import uuid
 import datetime as dt
+import uuid
 from datetime import UTC, datetime
 from enum import StrEnum
 

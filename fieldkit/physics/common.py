@@ -27,7 +27,7 @@ from typing import Any
 import pint
 
 from fieldkit.errors import DimensionError, FieldkitError
-from fieldkit.units import CANONICAL_UNIT, Kind, Q_, require, unit, ureg
+from fieldkit.units import CANONICAL_UNIT, Q_, Kind, require, unit, ureg
 
 
 class OutOfRangeError(FieldkitError, ValueError):

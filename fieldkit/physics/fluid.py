@@ -15,7 +15,7 @@ from dataclasses import dataclass
 import pint
 
 from fieldkit.physics.common import Check, Level, OutOfRangeError, celsius, kelvin, out, shown, si
-from fieldkit.units import Kind, Q_
+from fieldkit.units import Q_, Kind
 
 #: Mineral hydraulic oil density, kg/m³: 850–890 is the usual range; 870 is mid-range (from memory).
 OIL_DENSITY = Q_(870.0, "kilogram / meter ** 3")

@@ -12,7 +12,7 @@ import pint
 
 from fieldkit.physics.common import Ratio, fraction, in_unit, out, si
 from fieldkit.physics.fluid import OIL_DENSITY, OIL_SPECIFIC_HEAT
-from fieldkit.units import Kind, Q_, unit
+from fieldkit.units import Q_, Kind, unit
 
 _CP_UNIT = "joule / kilogram / kelvin"
 _CP_EXAMPLE = "2060 J/(kg·K)"

@@ -27,7 +27,7 @@ from typing import Union
 import pint
 
 from fieldkit.physics.common import OutOfRangeError, out, shown, si
-from fieldkit.units import Kind, Q_
+from fieldkit.units import Q_, Kind
 
 _ZERO_BAR = Q_(0.0, "bar")
 
