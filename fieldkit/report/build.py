@@ -74,7 +74,7 @@ def assemble(visit: Visit, profile: MachineProfile, diagnosis: Diagnosis, system
         counts=_counts(readings),
         settled=settled,
         readings=readings,
-        findings=_findings(diagnosis.findings),
+        findings=_findings(diagnosis.findings, readings),
         faults=_faults(diagnosis.faults),
         actions=_actions(leading, diagnosis.findings),
         parts=_parts(leading),
@@ -152,17 +152,26 @@ def _readings(visit: Visit, diagnosis: Diagnosis, uses: dict[str, GaugeUse]) -> 
         if c.value_num is not None and (c.low_num is not None or c.high_num is not None):
             band = make_band(c.value_num, c.uncertainty_num, c.low_num, c.high_num, c.unit)
         use = uses.get(c.reading_id, GaugeUse())
+        share = _low_share(c, use)
         rows.append(ReadingRow(
             number=i, reading_id=c.reading_id, test_point=one_line(c.test_point_label), circuit=c.circuit,
             condition=one_line(c.condition), reading=one_line(c.value), expected=one_line(c.expected),
             uncertainty=c.uncertainty, gauge=one_line(c.gauge), verdict=c.verdict,
-            verdict_text=_VERDICT_TEXT[c.verdict], remark=_remark(c, repeat_advice.get(c.test_point, ""), use),
-            note=notes.get(c.reading_id, ""), band=band, low_share=use.low_share if c.gauge_advice else "",
+            verdict_text=_VERDICT_TEXT[c.verdict],
+            remark=_remark(c, repeat_advice.get(c.test_point, ""), use, bool(share)),
+            note=notes.get(c.reading_id, ""), band=band, low_share=share,
         ))
     return rows
 
 
-def _remark(c: ReadingCheck, repeat_advice: str, use: GaugeUse) -> str:
+def _low_share(c: ReadingCheck, use: GaugeUse) -> str:
+    """The printed gauge error as a share of the reading, for a reading low on its gauge's scale."""
+    if not (use.low and c.gauge_advice and c.value_num):
+        return ""
+    return f"{100.0 * c.uncertainty_num / abs(c.value_num):.0f} %"
+
+
+def _remark(c: ReadingCheck, repeat_advice: str, use: GaugeUse, share_shown: bool) -> str:
     """What a technician should know or do about one reading, in a sentence or two.
 
     A gauge too small for its point gets a sentence of its own; a reading low on a big gauge's
@@ -171,27 +180,27 @@ def _remark(c: ReadingCheck, repeat_advice: str, use: GaugeUse) -> str:
     """
     parts = []
     if c.verdict is Verdict.INCONCLUSIVE:
-        parts.append(f"Inconclusive: the reading lies within the gauge's error ({c.uncertainty}) of a limit, "
-                     "so it cannot be called in or out of range.")
+        parts.append(f"Inconclusive: within the gauge's error ({c.uncertainty}) of a limit, so it cannot be "
+                     "called in or out of range.")
         parts.append(plain(repeat_advice) if repeat_advice else
                      "Repeat it with a gauge of smaller full scale or better accuracy class.")
     elif c.verdict is Verdict.NOT_MEASURED:
         parts.append("The machine profile has no expected range for this condition: compare it with the "
                      "maker's figure by hand.")
     if c.gauge_advice and c.gauge_advice not in repeat_advice:
-        if use.overrange or use.low:
-            if use.overrange:
-                parts.append(use.overrange)
-            if use.high_on_scale:
-                parts.append("Gauge: " + plain(c.gauge_advice).rstrip(".") + ".")
-        else:
+        # Said briefly only when every concern has a brief form; otherwise in the diagnosis's words.
+        brief = bool(use.overrange or use.low) and (share_shown or not use.low) and not use.high_on_scale
+        if not brief:
             parts.append("Gauge: " + plain(c.gauge_advice).rstrip(".") + ".")
+        elif use.overrange:
+            parts.append(use.overrange)
     if c.discounted:
         parts.append("Not used in the diagnosis: " + plain(c.discounted).rstrip(".") + ".")
     return " ".join(parts)
 
 
-def _findings(findings: list[Finding]) -> Findings:
+def _findings(findings: list[Finding], readings: list[ReadingRow]) -> Findings:
+    rows = {r.reading_id: r for r in readings}
     order = {Verdict.LOW: 0, Verdict.HIGH: 0, Verdict.INCONCLUSIVE: 1}
     flagged = sorted((f for f in findings if f.verdict in order), key=lambda f: order[f.verdict])
     items = []
@@ -200,9 +209,13 @@ def _findings(findings: list[Finding]) -> Findings:
         if f.verdict is Verdict.INCONCLUSIVE and not action:
             action = ("Too close to a limit to call: repeat the readings it uses with a gauge of smaller "
                       "span or better accuracy class.")
+        used = [rows[r] for r in f.readings if r in rows]
+        repeats = (f.verdict is Verdict.INCONCLUSIVE and len(f.readings) == 1 and len(used) == 1
+                   and used[0].verdict is Verdict.INCONCLUSIVE)
         items.append(FindingItem(
             title=one_line(f.title), circuit=f.circuit or "", verdict=f.verdict,
             verdict_text=_VERDICT_TEXT[f.verdict], message=plain(f.message), action=action,
+            readings=[r.number for r in used], repeats_reading=repeats,
         ))
     in_range = [one_line(f.title) for f in findings if f.verdict is Verdict.IN_RANGE]
     not_checked = [one_line(f.title) + (f" (needs {', '.join(f.missing)})" if f.missing else "")

@@ -27,14 +27,10 @@ class GaugeUse:
 
     #: The point can reach the gauge's full scale: a sentence naming a gauge that suits.
     overrange: str = ""
-    #: Read below a quarter of the span: the class error as a share of the reading ("23 %").
-    low_share: str = ""
+    #: Read below a quarter of the span, where the gauge's error is a large share of the reading.
+    low: bool = False
     #: Read above 3/4 of the scale (EN 837-2): the card keeps the diagnosis's own words for it.
     high_on_scale: bool = False
-
-    @property
-    def low(self) -> bool:
-        return bool(self.low_share)
 
 
 def gauge_uses(visit: Visit, profile: MachineProfile, system: DisplaySystem) -> dict[str, GaugeUse]:
@@ -71,10 +67,8 @@ def _use(m: Measured, system: DisplaySystem) -> GaugeUse | None:
             overrange += "."
     working_side = top if top > 0 else -start
     high = not overrange and abs(work) > STEADY_FRACTION * working_side
-    low_share = ""
-    if work and abs(work) < LOW_READING_FRACTION * span:  # at zero a share means nothing: the advice stays
-        low_share = f"{g.accuracy_class * span / abs(work):.0f} %"
-    return GaugeUse(overrange, low_share, high)
+    low = bool(work) and abs(work) < LOW_READING_FRACTION * span  # at zero a share means nothing: advice stays
+    return GaugeUse(overrange, low, high)
 
 
 def _bar(value: float, system: DisplaySystem) -> str:

@@ -73,10 +73,12 @@ def render_markdown(card: JobCard) -> str:
     out += ["", "## Readings", ""]
     out += table(
         ["#", "Test point", "Condition", "Reading", "Expected", "Gauge error", "Gauge", "Verdict"],
-        [[str(r.number), r.test_point, r.condition, r.reading, r.expected, r.uncertainty, r.gauge, r.verdict_text]
-         for r in card.readings],
+        [[str(r.number), r.test_point, r.condition, r.reading, r.expected, r.uncertainty_text, r.gauge,
+          r.verdict_text] for r in card.readings],
         align="rlllllll",
     )
+    if card.low_on_scale_key:
+        out += ["", f"*{inline(card.low_on_scale_key)}*"]
     if card.remarks:
         out += ["", "Remarks on readings:", ""]
         for r in card.remarks:

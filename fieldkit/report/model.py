@@ -31,9 +31,8 @@ MAX_AGAINST = 2
 GENERAL_CAUTION_ID = "general"
 
 #: Explains the share printed after a gauge error, once per card.
-LOW_ON_SCALE_KEY = ("A share after a gauge error, as in ±0.6 bar (23 %): the reading was below a quarter of "
-                    "the gauge's span, so the gauge's class error is that share of the reading; where the "
-                    "point allows, a smaller range reads it better.")
+LOW_ON_SCALE_KEY = ("A share after a gauge error, as in ±0.35 bar (6 %): read below a quarter of the gauge's "
+                    "span, where its error is that share of the reading; a smaller range reads it better.")
 
 
 class ReportError(FieldkitError):
@@ -159,8 +158,8 @@ class ReadingRow:
     remark: str
     note: str
     band: Band | None
-    #: The gauge read below a quarter of its span: its class error as a share of the reading
-    #: ("23 %"), explained once by :data:`LOW_ON_SCALE_KEY` rather than in a remark per reading.
+    #: The gauge read below a quarter of its span: the gauge error above as a share of the reading
+    #: ("13 %"), explained once by :data:`LOW_ON_SCALE_KEY` rather than in a remark per reading.
     low_share: str = ""
 
     @property
@@ -181,6 +180,11 @@ class FindingItem:
     verdict_text: str
     message: str
     action: str
+    #: Numbers of the readings (rows of the readings table) the finding rests on.
+    readings: list[int] = field(default_factory=list)
+    #: Inconclusive on a single reading that is itself inconclusive: the readings table already
+    #: says all the finding says, so a short card names it in one line instead of a row.
+    repeats_reading: bool = False
 
 
 @dataclass(slots=True)
@@ -188,6 +192,19 @@ class Findings:
     flagged: list[FindingItem]
     in_range: list[str]
     not_checked: list[str]
+
+    @property
+    def detailed(self) -> list[FindingItem]:
+        """Flagged findings that say more than their reading's row."""
+        return [f for f in self.flagged if not f.repeats_reading]
+
+    @property
+    def repeated_summary(self) -> str:
+        repeated = [f for f in self.flagged if f.repeats_reading]
+        if not repeated:
+            return ""
+        names = "; ".join(f"{f.title} (reading {f.readings[0]})" for f in repeated)
+        return f"Also inconclusive, like the one reading each rests on (see Readings): {names}."
 
     @property
     def in_range_summary(self) -> str:

@@ -4,6 +4,11 @@ Fonts are the bundled DejaVu Sans regular and bold, so Δ, ±, ≥, ° and µ pr
 character the font lacks (a CJK name, say) is printed as ``[U+4E2D]``: visibly a placeholder,
 never a different character. Text is never read as markup. With ``fixed_date`` the file is the
 same for the same job card, because the creation date is the only varying input.
+
+A visit of a usual size (up to about 18 readings) fits on two pages of either paper: rows are
+padded tightly, a remark under a reading only says what needs doing there, findings that only
+repeat a reading are named in one line, parts are one paragraph and the cautions are three
+columns; body text stays at 6.8 pt or more and remarks and keys at 6 pt or more.
 """
 
 from __future__ import annotations
@@ -32,7 +37,18 @@ from fieldkit.report.pdf_draw import (
     band_picture,
     probability_bar,
 )
-from fieldkit.report.pdf_layout import BODY, FOOT, MARGIN, SMALL, TINY, fit, placed, section, text_block
+from fieldkit.report.pdf_layout import (
+    BODY,
+    FOOT,
+    MARGIN,
+    SMALL,
+    TINY,
+    fit,
+    placed,
+    runs_block,
+    section,
+    text_block,
+)
 from fieldkit.report.pdf_tables import Cell, Run, measured_table
 from fieldkit.report.pdf_text import (
     FAMILY,
@@ -51,15 +67,14 @@ READING_COLUMNS = [5, 43, 16, 21, 34, 35, 19]
 #: Number, action, and the fault or finding it answers (in smaller, muted type).
 ACTION_COLUMNS = [5, 125, 52]
 REASON = 6.3
-#: Room for "inconclusive" in bold, in the same units as the readings' columns.
-VERDICT_WIDTH = 19
-REMARK_PAD = 0.45
+#: Verdict (room for "inconclusive" in bold) and the finding with what it shows.
+FINDING_COLUMNS = [18, 164]
 #: Cell padding where rows are many (readings, header grid): the rules between rows keep them apart.
-TIGHT = 0.45
+TIGHT = 0.4
 #: Height of the title band at the top of page 1.
 BAND = 9.0
 #: Least height of a reading row: room for its band picture.
-READING_ROW = 6.2
+READING_ROW = 6.0
 
 VERDICT_STYLE = {
     Verdict.LOW: (OUT, OUT_FILL, True),
@@ -110,11 +125,11 @@ class JobCardPDF(FPDF):
         self.set_draw_color(*RULE)
         self.set_line_width(0.2)
         self.line(self.l_margin, self.t_margin + 4.5, self.w - self.r_margin, self.t_margin + 4.5)
-        self.set_xy(self.l_margin, self.t_margin + 7)
+        self.set_xy(self.l_margin, self.t_margin + 6)
         self.set_text_color(*INK)
 
     def footer(self) -> None:
-        self.set_y(-(FOOT - 3))
+        self.set_y(-(FOOT - 2.5))
         self.set_font(FAMILY, "", TINY)
         self.set_text_color(*MUTED)
         self.cell(self.epw * 0.75, 4, f"Job {self.card.header.job_number} · {self.card.header.date} · "
@@ -160,7 +175,7 @@ def _header(pdf: FPDF, card: JobCard) -> None:
     rows = [[Cell(a.label, color=MUTED), Cell(a.value, bold=a.label == "Customer"),
              Cell(b.label, color=MUTED), Cell(b.value, bold=b.label == "Machine")]
             for a, b in zip(h.visit_fields(), h.machine_fields(), strict=True)]
-    measured_table(pdf, None, rows, [17, 46, 21, 46], size=SMALL + 0.3, padding=TIGHT)
+    measured_table(pdf, None, rows, [15, 82, 21, 72], size=SMALL + 0.3, padding=TIGHT)
 
 
 def _summary(pdf: FPDF, card: JobCard) -> None:
@@ -182,7 +197,6 @@ def _summary(pdf: FPDF, card: JobCard) -> None:
 
 def _readings(pdf: JobCardPDF, card: JobCard) -> None:
     """The readings table; a remark or a note sits in a row of its own under its reading."""
-    section(pdf, "Readings", keep=30)
     rows: list[list[Cell | str]] = []
     fills: list[tuple[int, int, int] | None] = []
     least: list[float] = []
@@ -222,7 +236,7 @@ def _readings(pdf: JobCardPDF, card: JobCard) -> None:
     measured_table(pdf, ["#", "Test point and condition", "Reading", "Expected", "Gauge error and gauge",
                          "Position in range", "Verdict"], rows, READING_COLUMNS,
                    aligns="RLLLLLL", size=SMALL, draw={5: draw_band}, row_fills=fills, row_heights=least,
-                   continues=joined, padding=TIGHT)
+                   continues=joined, padding=TIGHT, title="Readings")
     pdf.ln(0.6)
     with placed(pdf, 4.0) as top:
         band_legend(pdf, pdf.l_margin, top, TINY)
@@ -238,26 +252,28 @@ def _too_tall(pdf: FPDF, text: str, width: float) -> bool:
 
 
 def _findings(pdf: FPDF, card: JobCard) -> None:
-    section(pdf, "Findings")
-    if card.findings.flagged:
+    detailed = card.findings.detailed
+    if detailed:
         rows = []
-        for f in card.findings.flagged:
+        for f in detailed:
             colour, fill, bold = VERDICT_STYLE[f.verdict]
             title = f.title + (f" ({f.circuit})" if f.circuit else "") + ":"
             rows.append([Cell(f.verdict_text, bold=bold, color=colour, fill=fill),
                          Cell(runs=(Run(title, bold=True), Run(f.message)))])
-        measured_table(pdf, ["Verdict", "Finding: what it shows"], rows, [VERDICT_WIDTH, 182 - VERDICT_WIDTH],
-                       size=SMALL)
+        measured_table(pdf, ["Verdict", "Finding: what it shows"], rows, FINDING_COLUMNS, size=SMALL,
+                       title="Findings")
     else:
-        text_block(pdf, "No finding out of range or inconclusive.")
-    for summary in (card.findings.in_range_summary, card.findings.not_checked_summary):
+        section(pdf, "Findings", keep=8)
+        if not card.findings.flagged:
+            text_block(pdf, "No finding out of range or inconclusive.")
+    summaries = (card.findings.repeated_summary, card.findings.in_range_summary, card.findings.not_checked_summary)
+    for summary in summaries:
         if summary:
-            pdf.ln(1)
+            pdf.ln(0.6)
             text_block(pdf, summary, TINY + 0.3, color=MUTED)
 
 
 def _faults(pdf: FPDF, card: JobCard) -> None:
-    section(pdf, "Likely faults")
     rows = [[str(f.rank), Cell(f.title, bold=True), Cell(f.probability_text, bold=True), "", f.evidence_text]
             for f in card.faults.top]
 
@@ -265,14 +281,14 @@ def _faults(pdf: FPDF, card: JobCard) -> None:
         probability_bar(pdf, card.faults.top[i].probability, x, y, w, h)
 
     measured_table(pdf, ["#", "Fault", "%", "Probability", "Evidence"], rows, [5, 52, 11, 20, 94],
-                   aligns="RLRLL", size=SMALL, draw={3: draw_bar})
+                   aligns="RLRLL", size=SMALL, draw={3: draw_bar}, title="Likely faults")
     pdf.ln(1)
     key = ("×N: a finding is N times as likely with this fault as on a healthy machine; ÷N: N times less likely.")
     text_block(pdf, " ".join(t for t in (card.faults.others_text, key) if t), TINY + 0.4, color=MUTED)
 
 
 def _actions(pdf: FPDF, card: JobCard) -> None:
-    section(pdf, "Recommended actions and parts")
+    title = "Recommended actions and parts"
     if card.actions:
         # A reason is printed once for a run of actions it explains; the run shares one block.
         rows, joined = [], []
@@ -281,17 +297,20 @@ def _actions(pdf: FPDF, card: JobCard) -> None:
             rows.append([str(i), a.text, Cell("" if same else a.reason, color=MUTED, size=REASON)])
             joined.append(same)
         measured_table(pdf, ["#", "Action", "Because of"], rows, ACTION_COLUMNS, aligns="RLL", size=SMALL,
-                       continues=joined)
+                       continues=joined, title=title)
     else:
+        section(pdf, title, keep=8)
         text_block(pdf, "No action recommended.")
     if card.parts:
-        pdf.ln(1.5)
+        # One paragraph: a short list reads as well as a table and takes a third of the room.
         grouped: dict[str, list[str]] = {}
         for p in card.parts:
             grouped.setdefault(p.for_fault, []).append(p.name)
-        rows = [["; ".join(names), Cell(fault, color=MUTED, size=REASON)] for fault, names in grouped.items()]
-        measured_table(pdf, ["Parts to have at hand (if the fault is confirmed)", "For"], rows,
-                       [sum(ACTION_COLUMNS[:2]), ACTION_COLUMNS[2]], size=SMALL)
+        runs = [Run("Parts to have at hand if the fault is confirmed:", bold=True)]
+        for k, (fault, names) in enumerate(grouped.items()):
+            runs += [Run(("· " if k else "") + "; ".join(names)), Run(f"– for {fault}", colour=MUTED)]
+        pdf.ln(0.8)
+        runs_block(pdf, runs, SMALL)
 
 
 def _next_test(pdf: FPDF, card: JobCard) -> None:

@@ -14,16 +14,16 @@ from fieldkit.report.pdf_text import FAMILY, Run, block_height, draw_block, draw
 SEVERITY = {"danger": (OUT, OUT_FILL), "warning": (UNSURE, UNSURE_FILL), "notice": (ACCENT, (226, 238, 243))}
 
 
-TITLE, TEXT, META = 6.8, 6.2, 5.6  # type sizes in a caution box
+TITLE, TEXT = 6.8, 6.2  # type sizes in a caution box: its title, and its text with why and source
 COLUMNS = 3
-GAP = 1.5
+GAP = 1.2
 STRIPE = 1.6
 INSET = STRIPE + 0.6  # text starts this far from the box's left edge
 
 
 def _meta(c: Caution) -> str:
     """Why the caution is on this card and where it comes from, in one muted line."""
-    raised = "Always shown" if c.general else "Raised by " + c.raised_by.removeprefix("reading ")
+    raised = "always shown" if c.general else "raised by the " + c.raised_by.replace("reading taken at", "reading at")
     return f"({raised}; source: {c.source})"
 
 
@@ -33,7 +33,7 @@ def _body(c: Caution) -> tuple[Run, ...]:
 
 
 def _caution_height(pdf: FPDF, c: Caution, w: float) -> float:
-    return block_height(pdf, c.title, w - INSET, TITLE, True) + runs_height(pdf, _body(c), w - INSET, TEXT) + 1.2
+    return block_height(pdf, c.title, w - INSET, TITLE, True) + runs_height(pdf, _body(c), w - INSET, TEXT) + 1.0
 
 
 def _caution_box(pdf: FPDF, c: Caution, x: float, y: float, w: float, h: float) -> None:
@@ -43,7 +43,7 @@ def _caution_box(pdf: FPDF, c: Caution, x: float, y: float, w: float, h: float) 
     pdf.rect(x, y, w, h, style="F")
     pdf.set_fill_color(*edge)
     pdf.rect(x, y, STRIPE, h, style="F")
-    top = y + 0.6
+    top = y + 0.5
     top += draw_block(pdf, x + INSET, top, w - INSET, c.title, TITLE, True, edge)
     draw_runs(pdf, x + INSET, top, w - INSET, _body(c), TEXT)
 
@@ -70,25 +70,20 @@ def _column_height(heights: list[float]) -> float:
 
 
 def cautions(pdf: FPDF, card: JobCard) -> None:
-    """Safety cautions as boxes: the general one across the page, the rest in three columns that
-    are read downwards, balanced in height and continued on the next page when they must be."""
+    """Safety cautions as boxes in three columns read downwards, the general caution first,
+    balanced in height and continued on the next page when they must be."""
     section(pdf, "Safety cautions", keep=24)
-    for c in (c for c in card.cautions if c.general):
-        h = _caution_height(pdf, c, pdf.epw)
-        with placed(pdf, h) as y:
-            _caution_box(pdf, c, pdf.l_margin, y, pdf.epw, h)
-        pdf.set_xy(pdf.l_margin, y + h + GAP)
-    rest = [c for c in card.cautions if not c.general]
+    boxes = [c for c in card.cautions if c.general] + [c for c in card.cautions if not c.general]
     w = (pdf.epw - (COLUMNS - 1) * GAP) / COLUMNS
-    heights = [_caution_height(pdf, c, w) for c in rest]
+    heights = [_caution_height(pdf, c, w) for c in boxes]
     start = 0
-    while start < len(rest):
+    while start < len(boxes):
         room = pdf.page_break_trigger - pdf.y
         if heights[start] > room:
             pdf.add_page()
             room = pdf.page_break_trigger - pdf.y
         cuts = _balanced(heights[start:], COLUMNS)
-        columns = [list(range(a, b)) for a, b in itertools.pairwise([0, *cuts, len(rest) - start])]
+        columns = [list(range(a, b)) for a, b in itertools.pairwise([0, *cuts, len(boxes) - start])]
         if max(_column_height([heights[start + i] for i in col]) for col in columns) > room:
             columns = _filled(heights[start:], room)  # fill this page, go on with the rest on the next
         y0 = pdf.y
@@ -97,7 +92,7 @@ def cautions(pdf: FPDF, card: JobCard) -> None:
             for k, col in enumerate(columns):
                 y = y0
                 for i in col:
-                    c, h = rest[start + i], heights[start + i]
+                    c, h = boxes[start + i], heights[start + i]
                     _caution_box(pdf, c, pdf.l_margin + k * (w + GAP), y, w, h)
                     y += h + GAP
                 bottom = max(bottom, y - GAP)

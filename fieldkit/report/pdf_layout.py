@@ -3,20 +3,20 @@ blocks that must not be split across pages."""
 
 from __future__ import annotations
 
-from collections.abc import Iterator
+from collections.abc import Iterator, Sequence
 from contextlib import contextmanager
 
 from fpdf import FPDF
 
 from fieldkit.report.pdf_draw import ACCENT, INK
-from fieldkit.report.pdf_text import FAMILY, line_height, print_line, wrap_lines
+from fieldkit.report.pdf_text import FAMILY, Run, line_height, print_line, print_runs, wrap_lines, wrap_runs
 
 MARGIN = 10.0
-FOOT = 14.0  # bottom margin: the footer line sits in it
+FOOT = 12.0  # bottom margin: the footer line sits in it
 BODY = 8.0
 SMALL = 6.8
 TINY = 6.0
-SECTION = 7.0  # height of a section heading with its rule and spacing
+SECTION = 6.4  # height of a section heading with its rule and spacing
 
 
 @contextmanager
@@ -32,19 +32,19 @@ def placed(pdf: FPDF, height: float) -> Iterator[float]:
         pdf.set_auto_page_break(True, margin=FOOT)
 
 
-def section(pdf: FPDF, title: str, keep: float = 20.0) -> None:
+def section(pdf: FPDF, title: str, keep: float = 12.0) -> None:
     """A section heading, moved to the next page if it would sit alone at the foot of this one."""
     if pdf.y + SECTION + keep > pdf.page_break_trigger:
         pdf.add_page()
-    pdf.ln(1.6)
+    pdf.ln(1.4)
     pdf.set_font(FAMILY, "B", 9.0)
     pdf.set_text_color(*ACCENT)
-    print_line(pdf, pdf.l_margin + pdf.c_margin, pdf.y, 4.4, title)
-    pdf.set_y(pdf.y + 4.4)
+    print_line(pdf, pdf.l_margin + pdf.c_margin, pdf.y, 4.2, title)
+    pdf.set_y(pdf.y + 4.2)
     pdf.set_draw_color(*ACCENT)
     pdf.set_line_width(0.35)
     pdf.line(pdf.l_margin, pdf.y, pdf.w - pdf.r_margin, pdf.y)
-    pdf.ln(1.0)
+    pdf.ln(0.8)
     pdf.set_text_color(*INK)
 
 
@@ -83,5 +83,16 @@ def text_block(pdf: FPDF, text: str, size: float = BODY, bold: bool = False, col
             pdf.set_font(FAMILY, "B" if bold else "", size)
         pdf.set_text_color(*color)
         print_line(pdf, pdf.l_margin + indent + pdf.c_margin, pdf.y, lh, line)
+        pdf.set_xy(pdf.l_margin, pdf.y + lh)
+    pdf.set_text_color(*INK)
+
+
+def runs_block(pdf: FPDF, runs: Sequence[Run], size: float = BODY, color: tuple[int, int, int] = INK) -> None:
+    """A paragraph of styled runs across the page, flowing onto the next page like :func:`text_block`."""
+    lh = line_height(size)
+    for line in wrap_runs(pdf, runs, pdf.epw - 2 * pdf.c_margin, size):
+        if pdf.y + lh > pdf.page_break_trigger:
+            pdf.add_page()
+        print_runs(pdf, pdf.l_margin + pdf.c_margin, pdf.y, lh, line, size, color)
         pdf.set_xy(pdf.l_margin, pdf.y + lh)
     pdf.set_text_color(*INK)

@@ -16,6 +16,7 @@ from dataclasses import dataclass
 
 from fpdf import FPDF
 
+from fieldkit.report.pdf_layout import section
 from fieldkit.report.pdf_text import (
     FAMILY,
     PADDING,
@@ -103,6 +104,7 @@ def measured_table(
     row_heights: Sequence[float] | None = None,
     continues: Sequence[bool] | None = None,
     padding: float = PADDING,
+    title: str | None = None,
 ) -> None:
     """A table across the page width; ``widths`` are relative and scaled to the printable width.
 
@@ -110,7 +112,8 @@ def measured_table(
     ``row_fills`` each row gets its own background instead of alternate stripes, so a reading and
     the remark row under it can share one. ``row_heights`` sets a least height per row, for rows
     whose content a ``draw`` callback puts in. ``continues[i]`` joins row i to the row above: no
-    rule between them and no page break either.
+    rule between them and no page break either. A ``title`` is printed as a section heading that
+    moves to the next page with the table's first rows rather than stay alone at a page's foot.
     """
     draw = draw or {}
     total = sum(widths)
@@ -128,6 +131,8 @@ def measured_table(
     fills: list[tuple[int, int, int] | None] = list(row_fills) if row_fills is not None else \
         [zebra if i % 2 else None for i in range(len(laid))]
 
+    if title is not None:
+        section(pdf, title, keep=head_h + (_group(heights, joined, 0) if laid else 0.0))
     start = 0
     while start < len(laid):
         room = pdf.page_break_trigger - pdf.y - 0.05

@@ -2,8 +2,9 @@
 
 fpdf2's ``multi_cell`` re-measures a line once per character it adds, which made a job card take
 seconds. Everything on the card (table cells, remarks, cautions, paragraphs) is broken into lines
-here, greedily at spaces as fpdf2 does, and each line is printed with a plain ``cell``; so
-measuring and drawing use the same lines and always agree. Word widths are cached per document.
+here, greedily at spaces as fpdf2 does, and each line is put on the page with fpdf2's plain
+``text`` (:func:`print_line`); so measuring and drawing use the same lines and always agree.
+Word widths are cached per document, so a word is measured once however often it is printed.
 """
 
 from __future__ import annotations
@@ -16,13 +17,13 @@ from fpdf import FPDF
 
 FAMILY = "fieldkit-sans"
 PT = 25.4 / 72  # mm per point
-PADDING = 0.6  # mm around the text of every table cell
+PADDING = 0.5  # mm around the text of every table cell
 
 _WIDTHS: weakref.WeakKeyDictionary[FPDF, dict[tuple[str, float, str], float]] = weakref.WeakKeyDictionary()
 
 
 def line_height(size: float) -> float:
-    return size * PT * 1.12
+    return size * PT * 1.1
 
 
 @dataclass(frozen=True, slots=True)
@@ -35,15 +36,18 @@ class Run:
 
 
 def _measurer(pdf: FPDF, bold: bool, size: float) -> Callable[[str], float]:
+    """Width of a text in our family at this style and size, cached per document. The font is
+    only set when a width is not cached yet: callers that print set their own font."""
     style = "B" if bold else ""
-    pdf.set_font(FAMILY, style, size)
     cache = _WIDTHS.setdefault(pdf, {})
 
     def measure(text: str) -> float:
         key = (style, size, text)
-        if key not in cache:
-            cache[key] = pdf.get_string_width(text)
-        return cache[key]
+        width = cache.get(key)
+        if width is None:
+            pdf.set_font(FAMILY, style, size)
+            width = cache[key] = pdf.get_string_width(text)
+        return width
 
     return measure
 
@@ -97,13 +101,16 @@ def text_height(pdf: FPDF, text: str, width: float, size: float, bold: bool = Fa
 def wrap_runs(pdf: FPDF, runs: Sequence[Run], room: float, size: float) -> list[list[Run]]:
     """Runs joined by single spaces and broken into lines no wider than ``room`` mm, each line the
     runs it holds (a run broken over two lines appears on both). Greedy at spaces, like
-    :func:`wrap_lines`; a word wider than a line is cut between characters."""
-    words: list[tuple[str, Run]] = [(w, r) for r in runs if r.text for w in r.text.split(" ")]
+    :func:`wrap_lines`; a word wider than a line is cut between characters. Everything is one
+    paragraph: a ``\n`` in a run counts as a space."""
+    # One paragraph: a line break inside a run is a space here.
+    words: list[tuple[str, Run]] = [(w, r) for r in runs if r.text for w in r.text.replace("\n", " ").split(" ")]
     lines: list[list[tuple[str, Run]]] = []
     line: list[tuple[str, Run]] = []
     used = 0.0
+    measurers = {bold: _measurer(pdf, bold, size) for bold in (False, True)}
     for word, run in words:
-        measure = _measurer(pdf, run.bold, size)
+        measure = measurers[run.bold]
         w = measure(word)
         space = measure(" ")
         if line and used + space + w <= room:
@@ -141,7 +148,8 @@ def print_runs(pdf: FPDF, x: float, top: float, lh: float, line: Sequence[Run], 
                colour: tuple[int, int, int]) -> None:
     """One wrapped line of runs from ``x``; runs are a space apart, as they were measured."""
     for run in line:
-        measure = _measurer(pdf, run.bold, size)  # sets the run's font
+        measure = _measurer(pdf, run.bold, size)
+        pdf.set_font(FAMILY, "B" if run.bold else "", size)
         pdf.set_text_color(*(run.colour or colour))
         print_line(pdf, x, top, lh, run.text)
         x += measure(run.text) + measure(" ")

@@ -56,11 +56,15 @@ def _readings(out: list[str], card: JobCard) -> None:
         head = f"{r.number:>2}  {r.verdict_text:<{VERDICT_COLUMN - 4}}"
         _para(out, f"{r.test_point} - {r.condition}", head, hang)
         _para(out, f"{r.reading} (gauge error {r.uncertainty}); expected {r.expected}", hang)
-        _para(out, f"gauge {r.gauge}", hang)
+        share = f"; low on its scale, its error is {r.low_share} of the reading" if r.low_share else ""
+        _para(out, f"gauge {r.gauge}{share}", hang)
         if r.remark:
             _para(out, r.remark, hang)
         if r.note:
             _para(out, f"Note: {r.note}", hang)
+    if card.low_on_scale_key:
+        out.append("")
+        _para(out, card.low_on_scale_key)
 
 
 def _findings(out: list[str], card: JobCard) -> None:

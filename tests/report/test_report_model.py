@@ -192,3 +192,22 @@ def test_a_visit_model_without_current_readings_counts_as_empty(worn) -> None:
     only_deleted: Visit = visit.model_copy(update={"readings": [deleted]})
     with pytest.raises(ReportError, match="no readings"):
         build_report(only_deleted, profile, diagnosis)
+
+
+def test_an_inconclusive_finding_on_one_inconclusive_reading_is_named_not_repeated(worn) -> None:
+    # Worn-charge-pump demo visit: "Loop B pressure with the drive stalled" rests on reading 9
+    # alone, itself inconclusive; its message only restates that row. It is named in one line.
+    card = build_report(*worn)
+    repeated = [f for f in card.findings.flagged if f.repeats_reading]
+    assert [f.title for f in repeated] == ["Loop B pressure with the drive stalled"]
+    (finding,) = repeated
+    (number,) = finding.readings
+    assert card.readings[number - 1].verdict is Verdict.INCONCLUSIVE
+    assert finding not in card.findings.detailed
+    assert f"{finding.title} (reading {number})" in card.findings.repeated_summary
+    # A finding that rests on several readings, or on one that reads otherwise, keeps its row.
+    for f in card.findings.detailed:
+        if f.verdict is Verdict.INCONCLUSIVE and len(f.readings) == 1:
+            assert card.readings[f.readings[0] - 1].verdict is not Verdict.INCONCLUSIVE
+    assert any(len(f.readings) > 1 for f in card.findings.detailed if f.verdict is Verdict.INCONCLUSIVE)
+    assert len(card.findings.detailed) + len(repeated) == len(card.findings.flagged)

@@ -1,0 +1,70 @@
+"""What the job card says about each reading's gauge, against what the diagnosis found.
+
+The oracle is the diagnosis's own gauge advice (fieldkit.physics.gauges.gauge_suitability: a
+point that can reach the full scale overranges the gauge, EN 837-1; a reading below a quarter
+of the span has a large relative error, common practice). The card splits that advice into a
+brief remark and a share beside the gauge error; nothing may be lost or invented on the way.
+"""
+
+from __future__ import annotations
+
+import re
+from pathlib import Path
+
+import pytest
+from report_builders import SAMPLE_VISITS, load
+
+from fieldkit.report.gauge_use import gauge_uses
+from fieldkit.report.model import LOW_ON_SCALE_KEY, build_report
+from fieldkit.report.text import render_text
+from fieldkit.units import METRIC
+
+
+@pytest.mark.parametrize("path", SAMPLE_VISITS, ids=lambda p: p.stem)
+def test_the_card_flags_the_same_gauges_the_diagnosis_does(bench, path: Path) -> None:
+    visit, profile = load(bench, path)
+    diagnosis = bench.diagnose(visit, profile)
+    uses = gauge_uses(visit, profile, METRIC)
+    for check in diagnosis.checks:
+        use = uses.get(check.reading_id)
+        overranged = "overranged" in check.gauge_advice
+        low = "below a quarter" in check.gauge_advice
+        assert bool(use and use.overrange) == overranged, (check.test_point_label, check.gauge_advice)
+        assert bool(use and use.low) == low, (check.test_point_label, check.gauge_advice)
+
+
+@pytest.mark.parametrize("path", SAMPLE_VISITS, ids=lambda p: p.stem)
+def test_every_gauge_concern_reaches_the_card_in_a_brief_form(bench, path: Path) -> None:
+    visit, profile = load(bench, path)
+    diagnosis = bench.diagnose(visit, profile)
+    card = build_report(visit, profile, diagnosis)
+    for check, row in zip(diagnosis.checks, card.readings, strict=True):
+        advice = check.gauge_advice
+        if "overranged" in advice:
+            # The same better gauge as the diagnosis names ("use a 0–16 bar gauge").
+            better = re.search(r"use a 0–\S+ \S+ gauge", advice)
+            assert better is not None and better.group(0) in row.remark, row.remark
+            assert row.remark.count("Gauge too small") == 1
+        if "below a quarter" in advice:
+            assert row.low_share, row.test_point
+            assert "below a quarter" not in row.remark  # said once, in the key, not per reading
+        if not advice:
+            assert not row.low_share and "Gauge" not in row.remark
+    assert card.low_on_scale_key == (LOW_ON_SCALE_KEY if any(r.low_share for r in card.readings) else "")
+
+
+def test_a_low_share_is_the_printed_gauge_error_over_the_reading(worn) -> None:
+    # Worn-charge-pump demo visit, reading 5: case pressure 0.7 bar on the 0–10 bar class 1.6
+    # gauge, printed error ±0.092 bar: 0.092 / 0.7 = 13 % [calc]. The share must agree with the
+    # two numbers printed beside it, or the card would contradict itself.
+    card = build_report(*worn)
+    row = next(r for r in card.readings if r.low_share and r.reading == "0.7 bar")
+    assert row.uncertainty == "±0.092 bar"
+    assert row.low_share == "13 %"
+    assert row.uncertainty_text == "±0.092 bar (13 %)"
+
+
+def test_the_plain_text_card_spells_the_share_out_and_keeps_the_key(worn) -> None:
+    text = re.sub(r"\s+", " ", render_text(build_report(*worn)))
+    assert "low on its scale, its error is 13 % of the reading" in text
+    assert re.sub(r"\s+", " ", LOW_ON_SCALE_KEY) in text
