@@ -12,9 +12,13 @@ import os
 import sys
 from collections.abc import Sequence
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 from fieldkit import __version__
 from fieldkit.errors import FieldkitError
+
+if TYPE_CHECKING:
+    from fieldkit.session import Workbench
 
 
 def _parser() -> argparse.ArgumentParser:
@@ -97,7 +101,7 @@ def main(argv: Sequence[str] | None = None) -> int:
         return 0
 
 
-def _workbench(args: argparse.Namespace, store: str | None = None):  # noqa: ANN202
+def _workbench(args: argparse.Namespace, store: str | None = None) -> Workbench:
     from fieldkit.session import Workbench
     from fieldkit.settings import Settings
 
@@ -212,7 +216,7 @@ def _rules(args: argparse.Namespace) -> int:
     return 1 if errors else 0
 
 
-def _visits(bench, args: argparse.Namespace) -> int:  # noqa: ANN001
+def _visits(bench: Workbench, args: argparse.Namespace) -> int:
     rows = bench.store.list_visits(status=args.status, machine=args.machine)
     if not rows:
         print("no visits in the store")
@@ -224,7 +228,7 @@ def _visits(bench, args: argparse.Namespace) -> int:  # noqa: ANN001
     return 0
 
 
-def _export(bench, args: argparse.Namespace) -> int:  # noqa: ANN001
+def _export(bench: Workbench, args: argparse.Namespace) -> int:
     from fieldkit.store.transfer import export_file_name, export_visit_json, write_export
 
     visit = bench.store.get_visit(args.visit)
@@ -234,7 +238,7 @@ def _export(bench, args: argparse.Namespace) -> int:  # noqa: ANN001
     return 0
 
 
-def _import(bench, args: argparse.Namespace) -> int:  # noqa: ANN001
+def _import(bench: Workbench, args: argparse.Namespace) -> int:
     path: Path = args.file
     if path.suffix.lower() == ".csv":
         if not args.visit:
@@ -262,7 +266,7 @@ def _import(bench, args: argparse.Namespace) -> int:  # noqa: ANN001
     return 0
 
 
-def _diagnose(bench, args: argparse.Namespace) -> int:  # noqa: ANN001
+def _diagnose(bench: Workbench, args: argparse.Namespace) -> int:
     visit, profile = bench.resolve(args.visit)
     result = bench.diagnose(visit, profile)
     if args.json:

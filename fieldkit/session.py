@@ -9,8 +9,11 @@ from __future__ import annotations
 
 import json
 import os
+from collections.abc import Callable
 from dataclasses import dataclass
 from pathlib import Path
+
+import pint
 
 from fieldkit.diagnosis.engine import Knowledge, default_knowledge, diagnose
 from fieldkit.diagnosis.results import Diagnosis
@@ -111,7 +114,7 @@ class Workbench:
         return self.store.add_reading(visit_id, reading)
 
 
-def plausibility(point: TestPoint):  # noqa: ANN201 - a predicate on quantities
+def plausibility(point: TestPoint) -> Callable[[pint.Quantity], bool] | None:
     """A generous plausibility check for a point: within ten times its expected range or its
     highest pressure. It only decides between two readings of '2,500'; it never rejects a value."""
     highs = [r.high for r in point.expected if r.high is not None]
@@ -121,7 +124,7 @@ def plausibility(point: TestPoint):  # noqa: ANN201 - a predicate on quantities
         return None
     ceiling = max(to_canonical(h, point.kind) for h in highs) * (1.5 if point.kind is Kind.PRESSURE else 3.0)
 
-    def plausible(q) -> bool:  # noqa: ANN001
+    def plausible(q: pint.Quantity) -> bool:
         return abs(to_canonical(q, point.kind)) <= ceiling
 
     return plausible

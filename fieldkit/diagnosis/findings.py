@@ -23,7 +23,7 @@ from fieldkit.diagnosis.rulepack import Rule
 from fieldkit.diagnosis.symbols import DERIVED, MACHINE_FIGURES, SYMBOLS
 from fieldkit.model.condition import FunctionState
 from fieldkit.model.parameters import PARAMETERS
-from fieldkit.model.profile import Circuit, MachineProfile
+from fieldkit.model.profile import Circuit, MachineProfile, ReliefLayout
 from fieldkit.model.roles import ROLES, Role
 from fieldkit.units import Q_, DisplaySystem, Kind, format_si, to_canonical
 
@@ -192,7 +192,7 @@ class Evaluator:
         valves = {r.id: ReliefValve(r.id, r.setting, r.override if r.override is not None else Q_(0.0, "bar"), r.drain)
                   for r in circuit.reliefs}
 
-        def build(layout):  # noqa: ANN001, ANN202 - a ReliefLayout → physics tree
+        def build(layout: ReliefLayout) -> Series | Parallel:
             items = [valves[m] if isinstance(m, str) else build(m) for m in layout.members()]
             return Series(items) if layout.series else Parallel(items)
 

@@ -7,6 +7,7 @@ JSON export and import is an exact round trip.
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from functools import lru_cache
 from typing import Annotated, Any
 
@@ -51,7 +52,7 @@ def _gauge_only(text: str, kind: Kind | None) -> pint.Quantity:
     return parsed.quantity
 
 
-def _parser(kind: Kind):  # noqa: ANN202 - returns a pydantic validator
+def _parser(kind: Kind) -> Callable[[Any], pint.Quantity]:
     def parse(value: Any) -> pint.Quantity:
         if isinstance(value, pint.Quantity):
             if kind_of(value) is not kind and value.dimensionality != Q_(1, unit_for(kind)).dimensionality:
