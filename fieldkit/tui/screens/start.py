@@ -39,6 +39,7 @@ class StartScreen(Screen):
         self.bench = bench
         self.demo = demo
         self.summaries: list[VisitSummary] = []
+        self._lists_fresh = False
 
     def compose(self) -> ComposeResult:
         yield Static(id="topbar")
@@ -57,9 +58,15 @@ class StartScreen(Screen):
             self.query_one(table_id, DataTable).add_columns("job", "date", "machine", "readings", "customer")
         self.query_one("#machines", DataTable).add_columns("machine", "id", "circuits", "visits")
         self.refresh_lists()
+        self._lists_fresh = True
         self.query_one("#open-visits" if self._open() else "#past-visits", DataTable).focus()
 
     def on_screen_resume(self) -> None:
+        # The first resume follows the mount that has just filled the lists: reading the store
+        # again there only delayed the first screen.
+        if self._lists_fresh:
+            self._lists_fresh = False
+            return
         self.refresh_lists()
 
     # --- lists ------------------------------------------------------------------------------

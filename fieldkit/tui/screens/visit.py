@@ -1,8 +1,11 @@
 """The visit screen: the test plan, the selected step, reading entry and the live diagnosis.
 
 A reading is saved to the store the moment Enter is pressed (Workbench.record commits before it
-returns); the diagnosis is then run again at once, in the UI thread, because it takes a few
-milliseconds (tests/bench/bench_tui.py measures it).
+returns); the visit is read back and diagnosed again at once, in the UI thread, because that
+takes a few milliseconds. The next frame carries the 'saved' line and the new ranking (title,
+NEXT and LIKELY lines, the ranked-fault list); the findings, the plan's glyphs and the step
+panel, a larger redraw, are painted a frame later. Widgets whose text did not change are not
+redrawn at all. tests/bench/bench_tui.py times it from the key press to the screen.
 """
 
 from __future__ import annotations
@@ -44,12 +47,17 @@ from fieldkit.tui.step import (
     suggest_gauge,
 )
 from fieldkit.tui.widgets.bars import caution_strip, next_line, top_fault_line, visit_title
+from fieldkit.tui.widgets.changes import show_text
 from fieldkit.tui.widgets.faults import FaultList, FindingsView, percent
 from fieldkit.tui.widgets.keybar import KeyBar
 from fieldkit.tui.widgets.plan_list import PlanList
 from fieldkit.tui.widgets.step_panel import StepPanel, StepView
 from fieldkit.units import Kind, format_value, parse_value
 
+WIDE_FROM = 118  # columns from which the ranked faults and findings are shown beside the step
+# s: one turn of the event loop, for the widgets changed by a save to report to the screen
+# before the rest is queued behind their frame (Textual's call_after_refresh alone may run first)
+HAND_OVER = 0.001
 _BARE_NUMBER = re.compile(r"^\s*[+\-]?\d[\d.,]*\s*$")
 VALUE_HINT = "type the value as the gauge shows it (e.g. 24,5 bar · 3,500 psi · 0.75 bar abs); Enter saves it"
 
@@ -60,10 +68,18 @@ class VisitScreen(VisitActions, Screen):
     BINDINGS = keys.VISIT
     KEY_HINTS: ClassVar[list[tuple[str, str]]] = [("↑ ↓", "choose a test point (also from the value field)"), ("Tab", "next field: gauge, condition, speed, oil"),
                  ("Enter", "save the reading (in any entry field)"), ("Esc", "back to the visit list")]
-    HORIZONTAL_BREAKPOINTS: ClassVar[list[tuple[int, str]]] = [(0, "-narrow"), (118, "-wide")]
+    HORIZONTAL_BREAKPOINTS: ClassVar[list[tuple[int, str]]] = [(0, "-narrow"), (WIDE_FROM, "-wide")]
 
     def __init__(self, bench: Workbench, visit_id: str, *, demo: bool = False) -> None:
         super().__init__()
+        # Textual sets the breakpoint class at the screen's first resize, which comes after the
+        # first frame; set from the start, the first frame already has the layout (and the side
+        # lists) it keeps, and no style pass is spent on changing it.
+        try:
+            wide = self.app.size.width >= WIDE_FROM
+        except RuntimeError:  # built outside a running app: the first resize decides
+            wide = False
+        self.add_class("-wide" if wide else "-narrow", update=False)
         self.bench = bench
         self.visit_id = visit_id
         self.demo = demo
@@ -119,34 +135,56 @@ class VisitScreen(VisitActions, Screen):
         return self.diagnosis.next_tests[0] if self.diagnosis and self.diagnosis.next_tests else None
 
     def reload(self, *, first: bool = False) -> None:
-        """Read the visit back from the store and diagnose it again (a few ms)."""
+        """Read the visit back from the store, diagnose it again (a few ms) and show it all."""
+        self._diagnose_again()
+        self._show_rest(first=first)
+
+    def _diagnose_again(self) -> None:
+        """The visit as stored, its diagnosis, and the lines and list that show the ranking."""
         self.visit = self.bench.store.get_visit(self.visit_id)
         self.profile = self.bench.profile_for(self.visit)
         self._previous_top = self._shown_top
         self.diagnosis = self.bench.diagnose(self.visit, self.profile)
         self._shown_top = self.diagnosis.faults[0] if self.diagnosis.faults else None
         self.plan = build_plan(self.profile, self.diagnosis, self.visit.notes)
-        nxt = self.next_test
         if self.point_id is None:
+            nxt = self.next_test
             self.point_id = nxt.test_point if nxt else self.profile.circuits[0].test_points[0].id
+        self._show_ranking()
+
+    def _show_ranking(self) -> None:
+        assert self.visit is not None and self.profile is not None
+        # One-line strips keep their size: no layout pass for them.
+        show_text(self.query_one("#topbar", Static), visit_title(self.visit, self.profile, demo=self.demo), layout=False)
+        show_text(self.query_one("#next-line", Static), next_line(self.next_test, self.closed), layout=False)
+        show_text(self.query_one("#top-fault", Static), top_fault_line(self.diagnosis, self._previous_top), layout=False)
+        if self._wide():
+            self.query_one("#side-faults", FaultList).show(self.diagnosis)
+        else:
+            self._side_shown = False
+
+    def _show_rest(self, *, first: bool = False) -> None:
+        """Paint the rest from the current diagnosis: findings, the plan's glyphs, the selected
+        step and the entry row's state (its defaults too, the first time)."""
+        self._show_side()
+        nxt = self.next_test
         self.query_one("#plan", PlanList).show(self.plan, nxt.test_point if nxt else None, self.point_id)
-        self._show_header()
         if first:
             self._fill_condition_defaults(force=True)
         self._show_point(reset_entry=first)
         self._show_closed_state()
 
-    def _show_header(self) -> None:
-        assert self.visit is not None and self.profile is not None
-        # One-line strips keep their size: no layout pass for them.
-        self.query_one("#topbar", Static).update(visit_title(self.visit, self.profile, demo=self.demo), layout=False)
-        self.query_one("#next-line", Static).update(next_line(self.next_test, self.closed), layout=False)
-        self.query_one("#top-fault", Static).update(top_fault_line(self.diagnosis, self._previous_top), layout=False)
-        self._show_side()
+    def _show_rest_later(self) -> None:
+        if self.is_attached and self.visit is not None:
+            self._show_rest()
+
+    def _wide(self) -> bool:
+        """Whether the side lists are on screen (the breakpoint class)."""
+        return self.has_class("-wide")
 
     def _show_side(self) -> None:
         """The wide layout's fault and finding lists (skipped while they are hidden)."""
-        if self.has_class("-wide"):
+        if self._wide():
             self.query_one("#side-faults", FaultList).show(self.diagnosis)
             self.query_one("#side-findings", FindingsView).show(self.diagnosis)
             self._side_shown = True
@@ -157,7 +195,7 @@ class VisitScreen(VisitActions, Screen):
         self.call_after_refresh(self._side_after_resize)
 
     def _side_after_resize(self) -> None:
-        if self.has_class("-wide") and not self._side_shown and self.diagnosis is not None:
+        if self._wide() and not self._side_shown and self.diagnosis is not None:
             self._show_side()
 
     def _show_closed_state(self) -> None:
@@ -212,7 +250,7 @@ class VisitScreen(VisitActions, Screen):
             next_test=self.next_test, system=self.bench.system, checks=plan_point.checks if plan_point else [],
         )
         self.query_one("#step", StepPanel).show(view)
-        self.query_one("#cautions", Static).update(caution_strip(cautions), layout=False)
+        show_text(self.query_one("#cautions", Static), caution_strip(cautions), layout=False)
         self.query_one("#value", Input).placeholder = f"e.g. {_example(point)}"
         self._update_parse_message()
 
@@ -273,7 +311,7 @@ class VisitScreen(VisitActions, Screen):
     # --- parsing and saving -------------------------------------------------------------------
     def _message(self, text: Text | str, mood: str) -> None:
         widget = self.query_one("#parse-msg", Static)
-        widget.update(text if isinstance(text, Text) else Text(text, end=""))
+        show_text(widget, text if isinstance(text, Text) else Text(text, end=""))
         for m in ("ok", "error", "info", "ask"):
             widget.set_class(m == mood, f"-{m}")
 
@@ -404,7 +442,7 @@ class VisitScreen(VisitActions, Screen):
         if point.id in skipped_points(self.visit.notes) and not self.closed:
             self.bench.store.update_visit(self.visit_id, notes=notes_without_skip(self.visit.notes, point.id))
             unskipped = " (no longer marked skipped)"
-        self.reload()
+        self._diagnose_again()
         shown = format_value(reading.value, self.bench.system)
         change = ""
         top, was = self._shown_top, self._previous_top
@@ -414,6 +452,14 @@ class VisitScreen(VisitActions, Screen):
         self._message(literal(f"✓ saved {reading.entered or shown} at {point.label}, "
                               f"{SHORT_STATE[reading.condition.function]}{unskipped}.{change}"), "ok")
         self._keep_message = True
+        # The saved line and the new ranking go out in the next frame on their own; the findings,
+        # the plan's glyphs and the step panel, the larger redraw, follow in the frame after.
+        # Visit, diagnosis and plan are already current: only the painting of those waits.
+        self.set_timer(HAND_OVER, self._show_rest_after_next_frame)
+
+    def _show_rest_after_next_frame(self) -> None:
+        # By now the widgets changed by the save have told the screen, so this waits for their frame.
+        self.call_after_refresh(self._show_rest_later)
 
     # --- actions ------------------------------------------------------------------------------
     def action_move_point(self, delta: int) -> None:

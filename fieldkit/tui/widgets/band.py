@@ -95,9 +95,19 @@ class ReadingBands(Widget):
         super().__init__(id=id)
         self._checks: list[ReadingCheck] = []
 
+    @property
+    def checks(self) -> list[ReadingCheck]:
+        """The readings drawn now."""
+        return list(self._checks)
+
     def show(self, checks: list[ReadingCheck]) -> None:
+        """Draw these readings; nothing happens when they are the ones already drawn, and the
+        screen is laid out again only when the number of pictures (the height) changes."""
+        if checks == self._checks:
+            return
+        resized = len(checks) != len(self._checks)
         self._checks = list(checks)
-        self.refresh(layout=True)
+        self.refresh(layout=resized)
 
     def get_content_height(self, container, viewport, width: int) -> int:
         return max(1, 3 * len(self._checks))
@@ -106,23 +116,39 @@ class ReadingBands(Widget):
         return self.get_component_rich_style(f"band--{name}", partial=True)
 
     def render(self) -> Text:
+        # Styles looked up once per render, and runs of cells with one role appended as one
+        # piece: per-cell look-ups made this the slowest widget of the visit screen.
+        style = {name[len("band--"):]: self._style(name[len("band--"):]) for name in self.COMPONENT_CLASSES}
         if not self._checks:
-            return Text("no reading here yet", style=self._style("label"), end="")
+            return Text("no reading here yet", style=style["label"], end="")
         width = max(12, self.content_size.width - 12)
         out = Text(end="", no_wrap=True, overflow="ellipsis")
         for i, c in enumerate(self._checks):
             if i:
                 out.append("\n")
             mood = "ok" if c.verdict is Verdict.IN_RANGE else "bad" if c.verdict in (Verdict.LOW, Verdict.HIGH) else "unsure"
-            out.append_text(literal(c.condition, self._style("label")))
+            out.append_text(literal(c.condition, style["label"]))
             out.append("\n")
             if c.value_num is not None:
-                for cell in draw_band(c.value_num, c.uncertainty_num, c.low_num, c.high_num, width):
-                    role = mood if cell.role == "mark" else cell.role
-                    out.append(cell.char, self._style(role))
-            out.append(f" {VERDICT_WORD[c.verdict]}", self._style(mood) + Style(bold=True))
+                cells = draw_band(c.value_num, c.uncertainty_num, c.low_num, c.high_num, width)
+                for role, chars in cell_runs(cells, mood):
+                    out.append(chars, style[role])
+            out.append(f" {VERDICT_WORD[c.verdict]}", style[mood] + Style(bold=True))
             out.append("\n")
-            out.append_text(literal(f"  {c.value} {c.uncertainty} · expected {c.expected}", self._style("label")))
+            out.append_text(literal(f"  {c.value} {c.uncertainty} · expected {c.expected}", style["label"]))
             if c.discounted:
-                out.append_text(literal(f" · not counted: {c.discounted}", self._style("unsure")))
+                out.append_text(literal(f" · not counted: {c.discounted}", style["unsure"]))
         return out
+
+
+def cell_runs(cells: list[Cell], mood: str) -> list[tuple[str, str]]:
+    """Consecutive cells of one role joined: (role, characters); the reading mark takes the
+    verdict's mood as its role."""
+    runs: list[tuple[str, str]] = []
+    for cell in cells:
+        role = mood if cell.role == "mark" else cell.role
+        if runs and runs[-1][0] == role:
+            runs[-1] = (role, runs[-1][1] + cell.char)
+        else:
+            runs.append((role, cell.char))
+    return runs

@@ -12,6 +12,7 @@ from textual.widgets.option_list import Option
 
 from fieldkit.diagnosis.results import Diagnosis, Finding, RankedFault, Verdict
 from fieldkit.tui.safe_text import literal
+from fieldkit.tui.widgets.changes import same_text, show_text
 
 EIGHTHS = " ▏▎▍▌▋▊▉█"
 FINDING_GLYPH = {
@@ -60,13 +61,20 @@ class FaultList(OptionList):
     """Ranked faults; choosing one opens its explanation."""
 
     def show(self, diagnosis: Diagnosis | None, limit: int = 12) -> None:
+        """Show the ranking. When the same faults stay in the same order only the changed bars
+        are swapped; a new order rebuilds the list, keeping the highlighted row number."""
+        options = [Option(fault_text(f), id=f.key) for f in diagnosis.faults[:limit]] if diagnosis else []
+        if [o.id for o in options] == [self.get_option_at_index(i).id for i in range(self.option_count)]:
+            for index, option in enumerate(options):
+                if not same_text(self.get_option_at_index(index).prompt, option.prompt):
+                    self.replace_option_prompt_at_index(index, option.prompt)
+            return
         keep = self.highlighted
         self.clear_options()
-        if diagnosis is None:
+        if not options:
             return
-        self.add_options([Option(fault_text(f), id=f.key) for f in diagnosis.faults[:limit]])
-        if self.option_count:
-            self.highlighted = min(keep or 0, self.option_count - 1)
+        self.add_options(options)
+        self.highlighted = min(keep or 0, self.option_count - 1)
 
 
 class FindingsView(Static):
@@ -74,7 +82,7 @@ class FindingsView(Static):
 
     def show(self, diagnosis: Diagnosis | None) -> None:
         if diagnosis is None or not diagnosis.findings:
-            self.update(Text("no findings yet: take a reading", end=""))
+            show_text(self, Text("no findings yet: take a reading", end=""))
             return
         out = Text(end="")
         measured = [f for f in diagnosis.findings if f.verdict is not Verdict.NOT_MEASURED]
@@ -82,4 +90,4 @@ class FindingsView(Static):
             if i:
                 out.append("\n")
             out.append_text(finding_text(f))
-        self.update(out if measured else Text("no findings yet: take a reading", end=""))
+        show_text(self, out if measured else Text("no findings yet: take a reading", end=""))

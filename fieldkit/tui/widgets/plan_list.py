@@ -16,6 +16,7 @@ from textual.widgets.option_list import Option, OptionDoesNotExist
 
 from fieldkit.tui.plan import PlanCircuit, PlanPoint, PointState
 from fieldkit.tui.safe_text import literal
+from fieldkit.tui.widgets.changes import same_text
 
 
 def point_text(p: PlanPoint, *, recommended: bool, styles: dict[PointState, Style] | None = None) -> Text:
@@ -52,10 +53,11 @@ class PlanList(OptionList):
                 options.append(Option(point_text(p, recommended=p.id == recommended, styles=styles), id=p.id))
         ids = [o.id for o in options]
         if ids == self._ids:
-            # Same plan, new states: swap the prompts in place (no rebuild, no jump of the cursor).
-            for option in options:
-                assert option.id is not None
-                self.replace_option_prompt(option.id, option.prompt)
+            # Same plan, new states: swap the changed prompts in place (no rebuild, no jump of the
+            # cursor, and nothing redrawn when a reading left every state as it was).
+            for index, option in enumerate(options):
+                if not same_text(self.get_option_at_index(index).prompt, option.prompt):
+                    self.replace_option_prompt_at_index(index, option.prompt)
         else:
             self.clear_options()
             self.add_options(options)

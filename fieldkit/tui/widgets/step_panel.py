@@ -18,6 +18,7 @@ from fieldkit.tui.plan import PlanPoint
 from fieldkit.tui.safe_text import literal
 from fieldkit.tui.step import SHORT_STATE, GaugeFit, describe_when, range_text
 from fieldkit.tui.widgets.band import ReadingBands
+from fieldkit.tui.widgets.changes import show_text
 from fieldkit.units import DisplaySystem, format_value
 
 SEVERITY_MARK = {"danger": "‼ DANGER", "warning": "! WARNING", "notice": "i NOTICE"}
@@ -48,7 +49,9 @@ def _row(out: Text, label: str, value: str) -> None:
 
 
 class StepPanel(VerticalScroll):
-    """Where the point is, how to reach it, what to set, the gauge check, readings, cautions."""
+    """Where the point is, how to reach it, what to set, the gauge check, readings, cautions.
+
+    ``show`` runs after every saved reading; only the parts whose text changed are redrawn."""
 
     def compose(self) -> ComposeResult:
         yield Static(id="step-head")
@@ -67,14 +70,14 @@ class StepPanel(VerticalScroll):
             head.append(f"\n{view.plan_point.state.glyph} {view.plan_point.state.value}", "bold")
             if view.plan_point.why:
                 head.append_text(literal(f": {view.plan_point.why}"))
-        self.query_one("#step-head", Static).update(head)
+        show_text(self.query_one("#step-head", Static), head)
 
         nxt = self.query_one("#step-next", Static)
         if view.next_test is not None and view.next_test.test_point == tp.id:
-            nxt.update(Text.assemble(("▸ Recommended next: ", "bold"), literal(view.next_test.why), end=""))
+            show_text(nxt, Text.assemble(("▸ Recommended next: ", "bold"), literal(view.next_test.why), end=""))
             nxt.remove_class("-hidden")
         else:
-            nxt.update("")
+            show_text(nxt, "")
             nxt.add_class("-hidden")
 
         info = Text(end="")
@@ -91,13 +94,13 @@ class StepPanel(VerticalScroll):
         if not tp.expected:
             _row(info, "Expect", "no expected range in the profile: the reading is recorded, not judged")
         _row(info, "Takes", f"about {tp.minutes:g} min")
-        self.query_one("#step-info", Static).update(info)
+        show_text(self.query_one("#step-info", Static), info)
 
         gauge = Text(end="")
         gauge.append(f"Gauge   {FIT_MARK[view.fit.level]}: ", "bold")
         gauge.append_text(literal(view.fit.message))
         widget = self.query_one("#step-gauge", Static)
-        widget.update(gauge)
+        show_text(widget, gauge)
         widget.set_class(view.fit.level is Level.ERROR, "-error")
         widget.set_class(view.fit.level is Level.WARNING, "-warning")
 
@@ -115,4 +118,4 @@ class StepPanel(VerticalScroll):
             cautions.append_text(literal(c.text))
         if not view.cautions:
             cautions.append("No step cautions listed; F2 shows the general caution.")
-        self.query_one("#step-cautions", Static).update(cautions)
+        show_text(self.query_one("#step-cautions", Static), cautions)
