@@ -12,12 +12,15 @@ import os
 from collections.abc import Callable
 from dataclasses import dataclass
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 import pint
 
-from fieldkit.diagnosis.engine import Knowledge, default_knowledge, diagnose
-from fieldkit.diagnosis.results import Diagnosis
 from fieldkit.errors import DataFileError, FieldkitError
+
+if TYPE_CHECKING:
+    from fieldkit.diagnosis.engine import Knowledge
+    from fieldkit.diagnosis.results import Diagnosis
 from fieldkit.model.condition import Condition
 from fieldkit.model.loading import ProfileLibrary, default_library
 from fieldkit.model.profile import MachineProfile, TestPoint
@@ -63,6 +66,9 @@ class Workbench:
 
     @property
     def knowledge(self) -> Knowledge:
+        # Imported here: the start screen needs no rules, and the engine costs ~0.1 s to import.
+        from fieldkit.diagnosis.engine import default_knowledge
+
         return default_knowledge(self.rules_folder)
 
     @property
@@ -87,6 +93,8 @@ class Workbench:
         return self.library.get(visit.machine)
 
     def diagnose(self, visit: Visit, profile: MachineProfile | None = None) -> Diagnosis:
+        from fieldkit.diagnosis.engine import diagnose
+
         return diagnose(visit, profile or self.profile_for(visit), self.knowledge, self.system)
 
     # --- readings -----------------------------------------------------------------------

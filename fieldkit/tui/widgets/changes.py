@@ -8,11 +8,10 @@ those widgets keeps the frame that brings the new ranking short (tests/bench/ben
 from __future__ import annotations
 
 from rich.text import Text
-from textual.visual import VisualType
 from textual.widgets import Static
 
 
-def same_text(a: VisualType | object, b: VisualType | object) -> bool:
+def same_text(a: object, b: object) -> bool:
     """True when two contents would draw the same: equal strings, or Rich texts with the same
     characters, spans and whole-text settings (``Text.__eq__`` alone ignores the base style)."""
     if isinstance(a, Text) and isinstance(b, Text):
