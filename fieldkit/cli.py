@@ -27,17 +27,33 @@ def _parser() -> argparse.ArgumentParser:
         description="Log hydraulic test-point readings, check them with physics, rank likely faults, print the job card.",
     )
     p.add_argument("--version", action="version", version=f"fieldkit {__version__}")
-    p.add_argument("--store", metavar="PATH", help="visit store file (default: $FIELDKIT_STORE or the user data folder)")
-    p.add_argument("--units", choices=["metric", "si", "us"], help="display units: bar, MPa or psi (default: your setting)")
+    p.add_argument(
+        "--store", metavar="PATH", help="visit store file (default: $FIELDKIT_STORE or the user data folder)"
+    )
+    p.add_argument(
+        "--units",
+        choices=["metric", "si", "us"],
+        help="display units: bar, MPa or psi (default: your setting)",
+    )
     p.add_argument("--decimal-comma", action="store_true", help="read '2,500' as two and a half")
-    p.add_argument("--profiles", metavar="DIR", action="append", type=Path, default=[],
-                   help="another folder of machine profiles (may repeat)")
-    p.add_argument("--rules", metavar="DIR", type=Path, help="another rules folder (packs, faults, cautions, templates)")
+    p.add_argument(
+        "--profiles",
+        metavar="DIR",
+        action="append",
+        type=Path,
+        default=[],
+        help="another folder of machine profiles (may repeat)",
+    )
+    p.add_argument(
+        "--rules", metavar="DIR", type=Path, help="another rules folder (packs, faults, cautions, templates)"
+    )
     sub = p.add_subparsers(dest="command", metavar="COMMAND")
 
     sub.add_parser("demo", help="open the terminal UI on the bundled demo visits (a separate demo store)")
 
-    c = sub.add_parser("convert", help="convert a value as a technician writes it, e.g. convert \"3,500 psi\" bar")
+    c = sub.add_parser(
+        "convert", help='convert a value as a technician writes it, e.g. convert "3,500 psi" bar'
+    )
     c.add_argument("value")
     c.add_argument("unit")
 
@@ -55,15 +71,23 @@ def _parser() -> argparse.ArgumentParser:
     i = sub.add_parser("import", help="import a visit JSON file, or a CSV of readings into a visit")
     i.add_argument("file", type=Path)
     i.add_argument("--visit", help="for a CSV: the visit id the readings belong to")
-    i.add_argument("--as-new", action="store_true", help="import a visit under fresh ids (when it is already in the store)")
+    i.add_argument(
+        "--as-new",
+        action="store_true",
+        help="import a visit under fresh ids (when it is already in the store)",
+    )
 
     d = sub.add_parser("diagnose", help="findings, ranked faults, next test and cautions for a visit")
     d.add_argument("visit", help="a visit JSON file, or the id of a visit in the store")
-    d.add_argument("--json", action="store_true", help="machine-readable output (shape documented in the README)")
+    d.add_argument(
+        "--json", action="store_true", help="machine-readable output (shape documented in the README)"
+    )
 
     r = sub.add_parser("rules", help="rule pack tools")
     rs = r.add_subparsers(dest="rules_command", metavar="ACTION")
-    rc = rs.add_parser("check", help="lint rule packs: unknown names, dimension mismatches, rules that never fire")
+    rc = rs.add_parser(
+        "check", help="lint rule packs: unknown names, dimension mismatches, rules that never fire"
+    )
     rc.add_argument("folder", nargs="?", type=Path)
 
     rep = sub.add_parser("report", help="write the job card for a visit")
@@ -74,14 +98,18 @@ def _parser() -> argparse.ArgumentParser:
     rep.add_argument("--letter", action="store_true", help="US Letter paper (default A4)")
     rep.add_argument("--fixed-date", metavar="ISO", help="creation date to write (for byte-identical output)")
 
-    sim = sub.add_parser("simulate", help="write a visit a gauge would show on a machine, healthy or with one fault")
+    sim = sub.add_parser(
+        "simulate", help="write a visit a gauge would show on a machine, healthy or with one fault"
+    )
     sim.add_argument("profile", help="machine profile id or TOML file")
     sim.add_argument("--fault")
     sim.add_argument("--severity", type=float, default=1.0)
     sim.add_argument("--seed", type=int, default=0)
     sim.add_argument("--out", type=Path)
 
-    ev = sub.add_parser("evaluate", help="simulate many visits per fault and measure how often the diagnosis is right")
+    ev = sub.add_parser(
+        "evaluate", help="simulate many visits per fault and measure how often the diagnosis is right"
+    )
     ev.add_argument("--cases", type=int, default=20)
     ev.add_argument("--seed", type=int, default=1)
     return p
@@ -110,7 +138,9 @@ def _workbench(args: argparse.Namespace, store: str | None = None) -> Workbench:
         settings = settings.model_copy(update={"display": args.units})
     if args.decimal_comma:
         settings = settings.model_copy(update={"decimal_comma": True})
-    return Workbench.open(store or args.store, profile_dirs=args.profiles, rules_folder=args.rules, settings=settings)
+    return Workbench.open(
+        store or args.store, profile_dirs=args.profiles, rules_folder=args.rules, settings=settings
+    )
 
 
 def _dispatch(args: argparse.Namespace) -> int:
@@ -153,7 +183,7 @@ def _dispatch(args: argparse.Namespace) -> int:
 
 
 def _run_ui(args: argparse.Namespace, demo: bool) -> int:
-    from fieldkit.session import demo_store_path, seed_demo
+    from fieldkit.session import demo_store_is_stale, demo_store_path, retire_demo_store, seed_demo
 
     store = args.store
     if demo:
@@ -161,6 +191,15 @@ def _run_ui(args: argparse.Namespace, demo: bool) -> int:
     bench = _workbench(args, store)
     try:
         if demo:
+            if demo_store_is_stale(bench.store, bench.library):
+                bench.close()
+                kept = retire_demo_store(demo_store_path())
+                print(
+                    f"fieldkit: the demo store was made by an earlier version; it is kept as {kept} "
+                    "and a fresh demo is built",
+                    file=sys.stderr,
+                )
+                bench = _workbench(args, store)
             seed_demo(bench.store)
         from fieldkit.tui.app import make_app
 
@@ -187,7 +226,9 @@ def _schema(args: argparse.Namespace) -> int:
 
     model = Visit if args.what == "visit" else MachineProfile
     schema = model.model_json_schema()
-    schema["$comment"] = f"fieldkit {args.what} schema, version {model.model_fields['schema_version'].default}"
+    schema["$comment"] = (
+        f"fieldkit {args.what} schema, version {model.model_fields['schema_version'].default}"
+    )
     print(json.dumps(schema, indent=2, ensure_ascii=False))
     return 0
 
@@ -204,15 +245,22 @@ def _rules(args: argparse.Namespace) -> int:
     from fieldkit.diagnosis.rulepack import load_packs
     from fieldkit.model.loading import load_templates
 
-    knowledge = Knowledge(load_packs(folder), load_faults(folder / "faults.toml"), load_cautions(folder / "cautions.toml"), folder)
+    knowledge = Knowledge(
+        load_packs(folder),
+        load_faults(folder / "faults.toml"),
+        load_cautions(folder / "cautions.toml"),
+        folder,
+    )
     if (folder / "templates").is_dir():
         load_templates(folder / "templates")
     found = problems(knowledge)
     for p in found:
         print(p)
     errors = sum(p.error for p in found)
-    print(f"{len(knowledge.rules)} rules, {len(knowledge.faults)} faults, {len(knowledge.cautions)} cautions: "
-          f"{errors} errors, {len(found) - errors} warnings")
+    print(
+        f"{len(knowledge.rules)} rules, {len(knowledge.faults)} faults, {len(knowledge.cautions)} cautions: "
+        f"{errors} errors, {len(found) - errors} warnings"
+    )
     return 1 if errors else 0
 
 
@@ -223,8 +271,10 @@ def _visits(bench: Workbench, args: argparse.Namespace) -> int:
         return 0
     print(f"{'id':<14}{'job':<14}{'date':<12}{'status':<8}{'readings':>8}  machine / customer")
     for s in rows:
-        print(f"{s.id:<14}{s.job_number[:13]:<14}{s.date.isoformat():<12}{s.status.value:<8}{s.reading_count:>8}  "
-              f"{s.machine} / {s.customer}")
+        print(
+            f"{s.id:<14}{s.job_number[:13]:<14}{s.date.isoformat():<12}{s.status.value:<8}{s.reading_count:>8}  "
+            f"{s.machine} / {s.customer}"
+        )
     return 0
 
 
@@ -247,8 +297,12 @@ def _import(bench: Workbench, args: argparse.Namespace) -> int:
 
         visit = bench.store.get_visit(args.visit)
         profile = bench.library.get(visit.machine)
-        readings = read_readings_csv(path, test_points=kinds_by_test_point(profile),
-                                     gauges={g.id for g in visit.gauges}, decimal_comma=bench.settings.decimal_comma)
+        readings = read_readings_csv(
+            path,
+            test_points=kinds_by_test_point(profile),
+            gauges={g.id for g in visit.gauges},
+            decimal_comma=bench.settings.decimal_comma,
+        )
         bench.store.add_readings(visit.id, readings)
         print(f"imported {len(readings)} readings into visit {visit.id}")
         return 0
@@ -259,8 +313,10 @@ def _import(bench: Workbench, args: argparse.Namespace) -> int:
     if visit.machine not in bench.library.ids():
         from fieldkit.settings import user_profiles_dir
 
-        raise FieldkitError(f"{path}: machine profile '{visit.machine}' is not installed; put its TOML file in "
-                            f"{user_profiles_dir()} (or pass --profiles DIR) and import again")
+        raise FieldkitError(
+            f"{path}: machine profile '{visit.machine}' is not installed; put its TOML file in "
+            f"{user_profiles_dir()} (or pass --profiles DIR) and import again"
+        )
     stored = bench.store.import_visit(visit, as_new=args.as_new)
     print(f"imported visit {stored.id} ({stored.job_number}, {len(stored.readings)} readings)")
     return 0

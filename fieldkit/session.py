@@ -11,6 +11,7 @@ import json
 import os
 from collections.abc import Callable
 from dataclasses import dataclass
+from datetime import UTC, datetime
 from pathlib import Path
 from typing import TYPE_CHECKING
 
@@ -43,7 +44,9 @@ def read_visit_file(path: Path) -> tuple[Visit, MachineProfile | None]:
     try:
         data = json.loads(text)
     except json.JSONDecodeError as exc:
-        raise DataFileError(str(path), f"not valid JSON: {exc.msg} (column {exc.colno})", line=exc.lineno) from None
+        raise DataFileError(
+            str(path), f"not valid JSON: {exc.msg} (column {exc.colno})", line=exc.lineno
+        ) from None
     if isinstance(data, dict) and FORMAT_KEY in data:
         return read_visit_json(text, name=str(path))
     try:
@@ -60,9 +63,17 @@ class Workbench:
     rules_folder: Path | None = None
 
     @classmethod
-    def open(cls, store_path: str | os.PathLike[str] | None = None, *, profile_dirs: list[Path] | None = None,
-             rules_folder: Path | None = None, settings: Settings | None = None) -> Workbench:
-        return cls(open_store(store_path), default_library(profile_dirs), settings or Settings.load(), rules_folder)
+    def open(
+        cls,
+        store_path: str | os.PathLike[str] | None = None,
+        *,
+        profile_dirs: list[Path] | None = None,
+        rules_folder: Path | None = None,
+        settings: Settings | None = None,
+    ) -> Workbench:
+        return cls(
+            open_store(store_path), default_library(profile_dirs), settings or Settings.load(), rules_folder
+        )
 
     @property
     def knowledge(self) -> Knowledge:
@@ -101,11 +112,26 @@ class Workbench:
     def parse_for_point(self, point: TestPoint, text: str) -> ParsedValue:
         """Parse text for a test point: its kind is required, and a separator that reads two ways
         is settled by the point's plausible range (asked about when both are plausible)."""
-        return parse_value(text, point.kind, decimal_comma=self.settings.decimal_comma,
-                           role_name=point.label, plausible=plausibility(point))
+        return parse_value(
+            text,
+            point.kind,
+            decimal_comma=self.settings.decimal_comma,
+            role_name=point.label,
+            plausible=plausibility(point),
+        )
 
-    def record(self, visit_id: str, point_id: str, text: str, condition: Condition, *, gauge: str | None = None,
-               note: str = "", replaces: str | None = None, chosen: ParsedValue | None = None) -> Reading:
+    def record(
+        self,
+        visit_id: str,
+        point_id: str,
+        text: str,
+        condition: Condition,
+        *,
+        gauge: str | None = None,
+        note: str = "",
+        replaces: str | None = None,
+        chosen: ParsedValue | None = None,
+    ) -> Reading:
         """Parse and save one reading at once (committed before this returns). ``chosen`` is the
         reading a person picked after :class:`~fieldkit.errors.AmbiguousInputError` asked."""
         visit = self.store.get_visit(visit_id)
@@ -115,8 +141,15 @@ class Workbench:
         except KeyError:
             raise FieldkitError(f"machine '{profile.id}' has no test point '{point_id}'") from None
         parsed = chosen if chosen is not None else self.parse_for_point(point, text)
-        reading = Reading(test_point=point.id, value=parsed.quantity, reference=parsed.reference,
-                          entered=parsed.text, condition=condition, gauge=gauge, note=note)
+        reading = Reading(
+            test_point=point.id,
+            value=parsed.quantity,
+            reference=parsed.reference,
+            entered=parsed.text,
+            condition=condition,
+            gauge=gauge,
+            note=note,
+        )
         if replaces:
             return self.store.correct_reading(visit_id, replaces, reading)
         return self.store.add_reading(visit_id, reading)
@@ -126,7 +159,8 @@ def plausibility(point: TestPoint) -> Callable[[pint.Quantity], bool] | None:
     """A generous plausibility check for a point: within ten times its expected range or its
     highest pressure. It only decides between two readings of '2,500'; it never rejects a value."""
     highs = [r.high for r in point.expected if r.high is not None]
-    if point.max_pressure is not None:
+    if point.max_pressure is not None and point.kind is Kind.PRESSURE:
+        # The point's rating is a pressure even where it reads a flow or a temperature.
         highs.append(point.max_pressure)
     if not highs:
         return None
@@ -140,6 +174,25 @@ def plausibility(point: TestPoint) -> Callable[[pint.Quantity], bool] | None:
 
 def demo_store_path() -> Path:
     return data_home() / "demo.sqlite3"
+
+
+def demo_store_is_stale(store: SqliteVisitStore, library: ProfileLibrary) -> bool:
+    """A demo store made by an earlier fieldkit names machines the bundled demo no longer has
+    (the demo machines were renamed once); such a store is rebuilt whole, never half-renamed."""
+    known = set(library.ids())
+    return any(s.machine not in known for s in store.list_visits())
+
+
+def retire_demo_store(path: Path) -> Path:
+    """Move an outdated demo store (and its WAL files) aside, keeping it, so a fresh one is built.
+    Returns where the old file went."""
+    stamp = datetime.now(UTC).strftime("%Y%m%dT%H%M%SZ")
+    kept = path.with_name(f"{path.name}.replaced-{stamp}")
+    for suffix in ("", "-wal", "-shm"):
+        old = Path(f"{path}{suffix}")
+        if old.exists():
+            old.rename(Path(f"{kept}{suffix}"))
+    return kept
 
 
 def seed_demo(store: SqliteVisitStore) -> None:

@@ -111,8 +111,9 @@ def validate(model: type[M], data: Any, path: str, text: str | None = None) -> M
         raise validation_error(exc, path, text) from None
 
 
-def validation_error(exc: ValidationError, path: str, text: str | None,
-                     prefix: tuple[Any, ...] = ()) -> DataFileError:
+def validation_error(
+    exc: ValidationError, path: str, text: str | None, prefix: tuple[Any, ...] = ()
+) -> DataFileError:
     """One message from a pydantic error; ``prefix`` places a part validated on its own (a test
     point) back at its key path in the file."""
     lines = key_lines(text) if text else {}
@@ -147,7 +148,7 @@ def _plain_message(err: Any) -> str:
     msg = str(err["msg"])
     for prefix in ("Value error, ", "Assertion failed, "):
         if msg.startswith(prefix):
-            msg = msg[len(prefix):]
+            msg = msg[len(prefix) :]
     if err["type"] == "extra_forbidden":
         return "unknown key (misspelt?)"
     if err["type"] == "missing":

@@ -119,74 +119,174 @@ EXAMPLE: dict[Kind, str] = {
 # Spelling → (pint unit expression, kind). Case matters except where a spelling is listed in
 # several cases on purpose: "MPa" typed as "mpa" means megapascal in this trade, never millipascal.
 _PRESSURE = {
-    "bar": "bar", "Bar": "bar", "BAR": "bar",
+    "bar": "bar",
+    "Bar": "bar",
+    "BAR": "bar",
     "mbar": "millibar",
-    "psi": "psi", "PSI": "psi", "Psi": "psi", "lbf/in2": "psi", "lb/in2": "psi", "lbf/in²": "psi",
-    "MPa": "megapascal", "Mpa": "megapascal", "mpa": "megapascal", "MPA": "megapascal",
-    "kPa": "kilopascal", "kpa": "kilopascal", "KPa": "kilopascal", "KPA": "kilopascal",
+    "psi": "psi",
+    "PSI": "psi",
+    "Psi": "psi",
+    "lbf/in2": "psi",
+    "lb/in2": "psi",
+    "lbf/in²": "psi",
+    "MPa": "megapascal",
+    "Mpa": "megapascal",
+    "mpa": "megapascal",
+    "MPA": "megapascal",
+    "kPa": "kilopascal",
+    "kpa": "kilopascal",
+    "KPa": "kilopascal",
+    "KPA": "kilopascal",
     "Pa": "pascal",
-    "kgf/cm2": "kilogram_force / centimeter ** 2", "kgf/cm²": "kilogram_force / centimeter ** 2",
-    "kgf/cm^2": "kilogram_force / centimeter ** 2", "kg/cm2": "kilogram_force / centimeter ** 2",
-    "kg/cm²": "kilogram_force / centimeter ** 2", "ksc": "kilogram_force / centimeter ** 2",
-    "inHg": "inch_Hg", "in Hg": "inch_Hg", "inhg": "inch_Hg",
+    "kgf/cm2": "kilogram_force / centimeter ** 2",
+    "kgf/cm²": "kilogram_force / centimeter ** 2",
+    "kgf/cm^2": "kilogram_force / centimeter ** 2",
+    "kg/cm2": "kilogram_force / centimeter ** 2",
+    "kg/cm²": "kilogram_force / centimeter ** 2",
+    "ksc": "kilogram_force / centimeter ** 2",
+    "inHg": "inch_Hg",
+    "in Hg": "inch_Hg",
+    "inhg": "inch_Hg",
     "atm": "atmosphere",
 }
 _FLOW = {
-    "L/min": "liter / minute", "l/min": "liter / minute", "lpm": "liter / minute", "LPM": "liter / minute",
-    "L/s": "liter / second", "l/s": "liter / second",
-    "gpm": "gallon / minute", "GPM": "gallon / minute", "USgpm": "gallon / minute",
+    "L/min": "liter / minute",
+    "l/min": "liter / minute",
+    "lpm": "liter / minute",
+    "LPM": "liter / minute",
+    "L/s": "liter / second",
+    "l/s": "liter / second",
+    "gpm": "gallon / minute",
+    "GPM": "gallon / minute",
+    "USgpm": "gallon / minute",
     "gal/min": "gallon / minute",
-    "cc/min": "centimeter ** 3 / minute", "cm3/min": "centimeter ** 3 / minute",
-    "mL/min": "milliliter / minute", "ml/min": "milliliter / minute",
-    "m3/h": "meter ** 3 / hour", "m³/h": "meter ** 3 / hour",
+    "cc/min": "centimeter ** 3 / minute",
+    "cm3/min": "centimeter ** 3 / minute",
+    "mL/min": "milliliter / minute",
+    "ml/min": "milliliter / minute",
+    "m3/h": "meter ** 3 / hour",
+    "m³/h": "meter ** 3 / hour",
 }
 _TEMPERATURE = {
-    "°C": "degC", "ºC": "degC", "C": "degC", "degC": "degC", "deg C": "degC", "° C": "degC",
-    "°F": "degF", "ºF": "degF", "F": "degF", "degF": "degF", "deg F": "degF", "° F": "degF",
+    "°C": "degC",
+    "ºC": "degC",
+    "C": "degC",
+    "degC": "degC",
+    "deg C": "degC",
+    "° C": "degC",
+    "°F": "degF",
+    "ºF": "degF",
+    "F": "degF",
+    "degF": "degF",
+    "deg F": "degF",
+    "° F": "degF",
     "K": "kelvin",
 }
 _SPEED = {
-    "rpm": "revolution / minute", "RPM": "revolution / minute", "r/min": "revolution / minute",
-    "rev/min": "revolution / minute", "min-1": "revolution / minute", "1/min": "revolution / minute",
+    "rpm": "revolution / minute",
+    "RPM": "revolution / minute",
+    "r/min": "revolution / minute",
+    "rev/min": "revolution / minute",
+    "min-1": "revolution / minute",
+    "1/min": "revolution / minute",
     "rev/s": "revolution / second",
 }
 _DISPLACEMENT = {
-    "cc/rev": "centimeter ** 3 / revolution", "cm3/rev": "centimeter ** 3 / revolution",
-    "cm³/rev": "centimeter ** 3 / revolution", "ml/rev": "centimeter ** 3 / revolution",
-    "mL/rev": "centimeter ** 3 / revolution", "cc/r": "centimeter ** 3 / revolution",
-    "in3/rev": "inch ** 3 / revolution", "in³/rev": "inch ** 3 / revolution",
+    "cc/rev": "centimeter ** 3 / revolution",
+    "cm3/rev": "centimeter ** 3 / revolution",
+    "cm³/rev": "centimeter ** 3 / revolution",
+    "ml/rev": "centimeter ** 3 / revolution",
+    "mL/rev": "centimeter ** 3 / revolution",
+    "cc/r": "centimeter ** 3 / revolution",
+    "in3/rev": "inch ** 3 / revolution",
+    "in³/rev": "inch ** 3 / revolution",
     "cir": "inch ** 3 / revolution",
 }
 _VELOCITY = {
-    "mm/min": "millimeter / minute", "mm/s": "millimeter / second", "mm/h": "millimeter / hour",
-    "m/s": "meter / second", "in/min": "inch / minute", "in/s": "inch / second",
+    "mm/min": "millimeter / minute",
+    "mm/s": "millimeter / second",
+    "mm/h": "millimeter / hour",
+    "m/s": "meter / second",
+    "in/min": "inch / minute",
+    "in/s": "inch / second",
 }
 _VOLUME = {
-    "L": "liter", "l": "liter", "mL": "milliliter", "ml": "milliliter", "cc": "centimeter ** 3",
-    "cm3": "centimeter ** 3", "cm³": "centimeter ** 3", "gal": "gallon", "in3": "inch ** 3",
-    "in³": "inch ** 3", "m3": "meter ** 3", "m³": "meter ** 3",
+    "L": "liter",
+    "l": "liter",
+    "mL": "milliliter",
+    "ml": "milliliter",
+    "cc": "centimeter ** 3",
+    "cm3": "centimeter ** 3",
+    "cm³": "centimeter ** 3",
+    "gal": "gallon",
+    "in3": "inch ** 3",
+    "in³": "inch ** 3",
+    "m3": "meter ** 3",
+    "m³": "meter ** 3",
 }
-_LENGTH = {"mm": "millimeter", "cm": "centimeter", "m": "meter", "in": "inch", "µm": "micrometer", "um": "micrometer"}
-_AREA = {"mm2": "millimeter ** 2", "mm²": "millimeter ** 2", "cm2": "centimeter ** 2", "cm²": "centimeter ** 2",
-         "in2": "inch ** 2", "in²": "inch ** 2", "m2": "meter ** 2", "m²": "meter ** 2"}
+_LENGTH = {
+    "mm": "millimeter",
+    "cm": "centimeter",
+    "m": "meter",
+    "in": "inch",
+    "µm": "micrometer",
+    "um": "micrometer",
+}
+_AREA = {
+    "mm2": "millimeter ** 2",
+    "mm²": "millimeter ** 2",
+    "cm2": "centimeter ** 2",
+    "cm²": "centimeter ** 2",
+    "in2": "inch ** 2",
+    "in²": "inch ** 2",
+    "m2": "meter ** 2",
+    "m²": "meter ** 2",
+}
 _FORCE = {"N": "newton", "kN": "kilonewton", "lbf": "pound_force", "kgf": "kilogram_force"}
-_TORQUE = {"N·m": "newton * meter", "Nm": "newton * meter", "N.m": "newton * meter", "N m": "newton * meter",
-           "lbf·ft": "pound_force * foot", "lbf.ft": "pound_force * foot", "lb-ft": "pound_force * foot",
-           "ft-lb": "pound_force * foot"}
+_TORQUE = {
+    "N·m": "newton * meter",
+    "Nm": "newton * meter",
+    "N.m": "newton * meter",
+    "N m": "newton * meter",
+    "lbf·ft": "pound_force * foot",
+    "lbf.ft": "pound_force * foot",
+    "lb-ft": "pound_force * foot",
+    "ft-lb": "pound_force * foot",
+}
 _POWER = {"kW": "kilowatt", "W": "watt", "hp": "horsepower", "HP": "horsepower"}
 _TIME = {"s": "second", "sec": "second", "min": "minute", "h": "hour", "hr": "hour"}
 _MASS = {"kg": "kilogram", "g": "gram", "lb": "pound", "t": "metric_ton"}
-_DENSITY = {"kg/m3": "kilogram / meter ** 3", "kg/m³": "kilogram / meter ** 3", "g/cm3": "gram / centimeter ** 3"}
-_VISCOSITY = {"cSt": "centistokes", "cst": "centistokes", "mm2/s": "millimeter ** 2 / second",
-              "mm²/s": "millimeter ** 2 / second"}
+_DENSITY = {
+    "kg/m3": "kilogram / meter ** 3",
+    "kg/m³": "kilogram / meter ** 3",
+    "g/cm3": "gram / centimeter ** 3",
+}
+_VISCOSITY = {
+    "cSt": "centistokes",
+    "cst": "centistokes",
+    "mm2/s": "millimeter ** 2 / second",
+    "mm²/s": "millimeter ** 2 / second",
+}
 _RATIO = {"%": "percent"}
 
 _TABLES: tuple[tuple[Kind, dict[str, str]], ...] = (
-    (Kind.PRESSURE, _PRESSURE), (Kind.FLOW, _FLOW), (Kind.TEMPERATURE, _TEMPERATURE),
-    (Kind.SPEED, _SPEED), (Kind.DISPLACEMENT, _DISPLACEMENT), (Kind.VELOCITY, _VELOCITY),
-    (Kind.VOLUME, _VOLUME), (Kind.LENGTH, _LENGTH), (Kind.AREA, _AREA), (Kind.FORCE, _FORCE),
-    (Kind.TORQUE, _TORQUE), (Kind.POWER, _POWER), (Kind.TIME, _TIME), (Kind.MASS, _MASS),
-    (Kind.DENSITY, _DENSITY), (Kind.VISCOSITY, _VISCOSITY), (Kind.RATIO, _RATIO),
+    (Kind.PRESSURE, _PRESSURE),
+    (Kind.FLOW, _FLOW),
+    (Kind.TEMPERATURE, _TEMPERATURE),
+    (Kind.SPEED, _SPEED),
+    (Kind.DISPLACEMENT, _DISPLACEMENT),
+    (Kind.VELOCITY, _VELOCITY),
+    (Kind.VOLUME, _VOLUME),
+    (Kind.LENGTH, _LENGTH),
+    (Kind.AREA, _AREA),
+    (Kind.FORCE, _FORCE),
+    (Kind.TORQUE, _TORQUE),
+    (Kind.POWER, _POWER),
+    (Kind.TIME, _TIME),
+    (Kind.MASS, _MASS),
+    (Kind.DENSITY, _DENSITY),
+    (Kind.VISCOSITY, _VISCOSITY),
+    (Kind.RATIO, _RATIO),
 )
 SPELLINGS: dict[str, tuple[str, Kind]] = {
     spelling: (unit, kind) for kind, table in _TABLES for spelling, unit in table.items()
@@ -195,12 +295,22 @@ SPELLINGS: dict[str, tuple[str, Kind]] = {
 # Pressure units that take a reference letter glued on: "bara", "psig", "psid".
 _GLUED_REFERENCE = {"bar", "Bar", "BAR", "psi", "PSI", "kPa", "MPa"}
 _REFERENCE_WORDS = {
-    "a": PressureReference.ABSOLUTE, "abs": PressureReference.ABSOLUTE, "absolute": PressureReference.ABSOLUTE,
-    "(a)": PressureReference.ABSOLUTE, "(abs)": PressureReference.ABSOLUTE, "A": PressureReference.ABSOLUTE,
-    "g": PressureReference.GAUGE, "(g)": PressureReference.GAUGE, "gauge": PressureReference.GAUGE,
-    "gage": PressureReference.GAUGE, "G": PressureReference.GAUGE,
-    "d": PressureReference.DIFFERENTIAL, "(d)": PressureReference.DIFFERENTIAL, "diff": PressureReference.DIFFERENTIAL,
-    "differential": PressureReference.DIFFERENTIAL, "D": PressureReference.DIFFERENTIAL,
+    "a": PressureReference.ABSOLUTE,
+    "abs": PressureReference.ABSOLUTE,
+    "absolute": PressureReference.ABSOLUTE,
+    "(a)": PressureReference.ABSOLUTE,
+    "(abs)": PressureReference.ABSOLUTE,
+    "A": PressureReference.ABSOLUTE,
+    "g": PressureReference.GAUGE,
+    "(g)": PressureReference.GAUGE,
+    "gauge": PressureReference.GAUGE,
+    "gage": PressureReference.GAUGE,
+    "G": PressureReference.GAUGE,
+    "d": PressureReference.DIFFERENTIAL,
+    "(d)": PressureReference.DIFFERENTIAL,
+    "diff": PressureReference.DIFFERENTIAL,
+    "differential": PressureReference.DIFFERENTIAL,
+    "D": PressureReference.DIFFERENTIAL,
 }
 
 _NUMBER = re.compile(
@@ -251,8 +361,12 @@ def _number_readings(raw: str, decimal_comma: bool) -> tuple[float, float | None
     for ch in _THIN_SPACES:
         if ch in compact:
             groups = compact.split(ch)
-            if any(len(g) != 3 or not g.isdigit() for g in groups[1:-1]) or not re.fullmatch(r"\d{3}([.,]\d*)?", groups[-1]):
-                raise UnitInputError(f"'{raw}' is not a number: spaces may only separate groups of three digits")
+            if any(len(g) != 3 or not g.isdigit() for g in groups[1:-1]) or not re.fullmatch(
+                r"\d{3}([.,]\d*)?", groups[-1]
+            ):
+                raise UnitInputError(
+                    f"'{raw}' is not a number: spaces may only separate groups of three digits"
+                )
             compact = compact.replace(ch, "")
     commas, dots = compact.count(","), compact.count(".")
     if commas and dots:
@@ -306,12 +420,14 @@ def _split_unit(rest: str) -> tuple[str, Kind, PressureReference | None]:
     # "bara", "psig", "bar(a)": a reference letter glued on.
     for base in sorted(_GLUED_REFERENCE, key=len, reverse=True):
         if rest.startswith(base):
-            suffix = rest[len(base):]
+            suffix = rest[len(base) :]
             if suffix in _REFERENCE_WORDS and suffix.lower() in {"a", "g", "d", "(a)", "(g)", "(d)"}:
                 return SPELLINGS[base][0], Kind.PRESSURE, _REFERENCE_WORDS[suffix]
     if rest[0].isdigit():  # "12 34 bar": the number stopped at a space that is not a thousands gap
-        raise UnitInputError(f"digits '{rest}' follow the number; a space inside a number may only "
-                             "separate groups of three digits, as in '1 234 bar'")
+        raise UnitInputError(
+            f"digits '{rest}' follow the number; a space inside a number may only "
+            "separate groups of three digits, as in '1 234 bar'"
+        )
     raise UnitInputError(f"'{rest}' is not a unit fieldkit knows; try {_suggest(rest)}")
 
 
@@ -344,16 +460,20 @@ def parse_value(
     cleaned = _clean(text)
     match = _NUMBER.match(cleaned)
     if not match:
-        raise UnitInputError(f"'{cleaned}' does not start with a number; type e.g. '{EXAMPLE[expect or Kind.PRESSURE]}'")
+        raise UnitInputError(
+            f"'{cleaned}' does not start with a number; type e.g. '{EXAMPLE[expect or Kind.PRESSURE]}'"
+        )
     sign = -1.0 if match.group("sign") in {"-", "−", "–"} else 1.0
     raw = match.group("num").strip(_THIN_SPACES)
     # The number pattern may swallow a trailing space before the unit; give it back.
-    rest = cleaned[match.end():]
+    rest = cleaned[match.end() :]
     first, second = _number_readings(raw, decimal_comma)
     unit_expr, kind, reference = _split_unit(rest)
     if expect is not None and kind is not expect:
         need = f"{role_name} needs" if role_name else "this needs"
-        raise DimensionError(f"'{cleaned}' is a {kind.value}; {need} a {expect.value} such as '{EXAMPLE[expect]}'")
+        raise DimensionError(
+            f"'{cleaned}' is a {kind.value}; {need} a {expect.value} such as '{EXAMPLE[expect]}'"
+        )
     if kind is Kind.PRESSURE and reference is None:
         reference = PressureReference.GAUGE
     u = unit(unit_expr)
@@ -406,7 +526,9 @@ def require(q: Any, kind: Kind, what: str = "value") -> pint.Quantity:
     """Check that a quantity handed in from code is of the expected kind; a wrong one raises a
     clear error instead of giving a silently wrong number."""
     if not isinstance(q, pint.Quantity):
-        raise DimensionError(f"{what} must be a {kind.value} with a unit, such as {EXAMPLE[kind]!r}; got {q!r}")
+        raise DimensionError(
+            f"{what} must be a {kind.value} with a unit, such as {EXAMPLE[kind]!r}; got {q!r}"
+        )
     if q.dimensionality != _dimensionality(kind):
         raise DimensionError(f"{what} must be a {kind.value} such as {EXAMPLE[kind]!r}; got {q:~P}")
     return q
@@ -435,7 +557,10 @@ def to_canonical(q: pint.Quantity, kind: Kind) -> float:
 
 # --- gauge and absolute -------------------------------------------------------------------
 
-def to_gauge(q: pint.Quantity, reference: PressureReference | None, barometric: pint.Quantity | None = None) -> pint.Quantity:
+
+def to_gauge(
+    q: pint.Quantity, reference: PressureReference | None, barometric: pint.Quantity | None = None
+) -> pint.Quantity:
     """Gauge pressure of a reading. Absolute readings subtract the local barometric pressure
     (the standard atmosphere if none was recorded); gauge and differential pass unchanged."""
     require(q, Kind.PRESSURE, "pressure")
@@ -444,7 +569,9 @@ def to_gauge(q: pint.Quantity, reference: PressureReference | None, barometric: 
     return q
 
 
-def to_absolute(q: pint.Quantity, reference: PressureReference | None, barometric: pint.Quantity | None = None) -> pint.Quantity:
+def to_absolute(
+    q: pint.Quantity, reference: PressureReference | None, barometric: pint.Quantity | None = None
+) -> pint.Quantity:
     """Absolute pressure of a reading (what suction limits for piston pumps are written in)."""
     require(q, Kind.PRESSURE, "pressure")
     if reference is PressureReference.ABSOLUTE:
@@ -453,6 +580,7 @@ def to_absolute(q: pint.Quantity, reference: PressureReference | None, barometri
 
 
 # --- display ------------------------------------------------------------------------------
+
 
 @dataclass(frozen=True, slots=True)
 class DisplaySystem:
@@ -514,7 +642,9 @@ def convert(q: pint.Quantity, spelling: str) -> pint.Quantity:
         target = unit(unit_expr)
         return Q_(magnitude_in(q, target), target)
     except pint.DimensionalityError:
-        raise DimensionError(f"{_plain(q)} is a {kind_of(q).value}; it cannot be shown in {spelling} ({kind.value})") from None
+        raise DimensionError(
+            f"{_plain(q)} is a {kind_of(q).value}; it cannot be shown in {spelling} ({kind.value})"
+        ) from None
 
 
 def _decimals(magnitude: float, significant: int) -> int:

@@ -19,9 +19,20 @@ from fieldkit.resources import samples_dir
 from fieldkit.store import open_store
 from fieldkit.store.transfer import read_visit_json
 
-COMMANDS = ("demo", "convert", "schema", "visits", "export", "import", "diagnose", "rules", "report", "simulate",
-            "evaluate")
-SAMPLE = samples_dir() / "visits" / "td9-no-fault.json"
+COMMANDS = (
+    "demo",
+    "convert",
+    "schema",
+    "visits",
+    "export",
+    "import",
+    "diagnose",
+    "rules",
+    "report",
+    "simulate",
+    "evaluate",
+)
+SAMPLE = samples_dir() / "visits" / "fellborer-no-fault.json"
 
 
 @pytest.fixture
@@ -54,10 +65,16 @@ def test_help_lists_every_command(capsys: pytest.CaptureFixture[str]) -> None:
     assert missing == []
 
 
-@pytest.mark.parametrize(("what", "must_have"), [("visit", {"readings", "gauges", "job_number"}),
-                                                 ("profile", {"circuits", "rated_speed", "test_window"})])
-def test_schema_prints_json_with_a_version_comment(capsys: pytest.CaptureFixture[str], what: str,
-                                                   must_have: set[str]) -> None:
+@pytest.mark.parametrize(
+    ("what", "must_have"),
+    [
+        ("visit", {"readings", "gauges", "job_number"}),
+        ("profile", {"circuits", "rated_speed", "test_window"}),
+    ],
+)
+def test_schema_prints_json_with_a_version_comment(
+    capsys: pytest.CaptureFixture[str], what: str, must_have: set[str]
+) -> None:
     code, out, _err = run(capsys, "schema", what)
     assert code == 0
     schema = json.loads(out)
@@ -86,7 +103,9 @@ def test_visits_on_an_empty_store_says_so(capsys: pytest.CaptureFixture[str], st
     assert out == "no visits in the store\n"
 
 
-def test_import_list_and_export_a_visit(capsys: pytest.CaptureFixture[str], store: Path, tmp_path: Path) -> None:
+def test_import_list_and_export_a_visit(
+    capsys: pytest.CaptureFixture[str], store: Path, tmp_path: Path
+) -> None:
     original = sample_visit()
     code, out, err = run(capsys, "--store", str(store), "import", str(SAMPLE))
     assert code == 0, err
@@ -111,8 +130,9 @@ def test_import_list_and_export_a_visit(capsys: pytest.CaptureFixture[str], stor
     assert profile is not None and profile.id == original.machine
 
 
-def test_truncated_visit_file_is_refused_and_the_store_is_left_alone(capsys: pytest.CaptureFixture[str], store: Path,
-                                                                     tmp_path: Path) -> None:
+def test_truncated_visit_file_is_refused_and_the_store_is_left_alone(
+    capsys: pytest.CaptureFixture[str], store: Path, tmp_path: Path
+) -> None:
     assert run(capsys, "--store", str(store), "import", str(SAMPLE))[0] == 0
     before = stored_visits(store)
     text = SAMPLE.read_text(encoding="utf-8")

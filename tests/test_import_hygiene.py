@@ -53,14 +53,21 @@ CORE_MODULES = [
 
 def probe(modules: list[str], forbidden: tuple[str, ...]) -> dict[str, object]:
     code = PROBE.format(modules=modules, forbidden=forbidden)
-    done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, timeout=120, check=False)
+    done = subprocess.run(
+        [sys.executable, "-c", code], capture_output=True, text=True, timeout=120, check=False
+    )
     assert done.returncode == 0, done.stderr
     return json.loads(done.stdout)
 
 
 def test_core_module_list_covers_loading_physics_and_the_engine() -> None:
-    for name in ("fieldkit.model.loading", "fieldkit.diagnosis.engine", "fieldkit.physics.reliefs",
-                 "fieldkit.physics.pumps_motors", "fieldkit.diagnosis.expr.parser"):
+    for name in (
+        "fieldkit.model.loading",
+        "fieldkit.diagnosis.engine",
+        "fieldkit.physics.reliefs",
+        "fieldkit.physics.pumps_motors",
+        "fieldkit.diagnosis.expr.parser",
+    ):
         assert name in CORE_MODULES
     assert len(submodules(fieldkit.physics)) >= 10
 

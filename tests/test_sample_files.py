@@ -30,23 +30,57 @@ PROFILES = ROOT / "sample_readings" / "profiles"
 VISITS = ROOT / "sample_readings" / "visits"
 DEMO_VISIT = "demo-open-visit.json"
 
-FAULT_IDS = frozenset({
-    "charge_pump_worn", "charge_relief_low", "charge_suction_restricted", "flushing_valve_fault", "hp_relief_low",
-    "pump_worn", "motor_worn", "case_drain_restricted", "main_relief_low", "main_relief_high",
-    "parallel_relief_governing", "return_back_pressure", "compensator_misset", "ls_setting_wrong", "ls_signal_leak",
-    "pilot_supply_low", "brake_not_releasing", "cylinder_seal_bypass", "load_holding_valve_leak",
-    "accumulator_precharge_lost", "relief_overheating", "suction_cavitation", "invalid_test_conditions",
-    "gauge_error", "no_fault",
-})
-CAUTION_IDS = frozenset({
-    "fluid-injection", "stored-energy", "raised-load", "raised-machine", "hot-oil", "gauge-rating",
-    "bleed-before-break", "stall-duration", "lockout", "relief-max-setting", "rotating-parts", "intensification",
-})
+FAULT_IDS = frozenset(
+    {
+        "charge_pump_worn",
+        "charge_relief_low",
+        "charge_suction_restricted",
+        "flushing_valve_fault",
+        "hp_relief_low",
+        "pump_worn",
+        "motor_worn",
+        "case_drain_restricted",
+        "main_relief_low",
+        "main_relief_high",
+        "parallel_relief_governing",
+        "return_back_pressure",
+        "compensator_misset",
+        "ls_setting_wrong",
+        "ls_signal_leak",
+        "pilot_supply_low",
+        "brake_not_releasing",
+        "cylinder_seal_bypass",
+        "load_holding_valve_leak",
+        "accumulator_precharge_lost",
+        "relief_overheating",
+        "suction_cavitation",
+        "invalid_test_conditions",
+        "gauge_error",
+        "no_fault",
+    }
+)
+CAUTION_IDS = frozenset(
+    {
+        "fluid-injection",
+        "stored-energy",
+        "raised-load",
+        "raised-machine",
+        "hot-oil",
+        "gauge-rating",
+        "bleed-before-break",
+        "stall-duration",
+        "lockout",
+        "relief-max-setting",
+        "rotating-parts",
+        "intensification",
+    }
+)
 #: Ground rules: a template range names a published source or says it is common practice or from memory.
 SOURCE_TAGS = ("common practice", "from memory", "trade article", "field notes")
 
 
 # --- loading ------------------------------------------------------------------------------
+
 
 @pytest.fixture(scope="module")
 def templates() -> dict[str, tuple[CircuitTemplate, dict[str, Any]]]:
@@ -65,7 +99,10 @@ def profiles(templates: dict[str, tuple[CircuitTemplate, dict[str, Any]]]) -> di
 
 @pytest.fixture(scope="module")
 def visits() -> dict[str, Visit]:
-    return {p.name: Visit.model_validate_json(p.read_text(encoding="utf-8")) for p in sorted(VISITS.glob("*.json"))}
+    return {
+        p.name: Visit.model_validate_json(p.read_text(encoding="utf-8"))
+        for p in sorted(VISITS.glob("*.json"))
+    }
 
 
 def _fault_visits(visits: dict[str, Visit]) -> dict[str, Visit]:
@@ -91,11 +128,15 @@ def _outside(rng: ExpectedRange, value: float, margin: float = 0.0) -> bool:
     return (low is not None and value < low + margin) or (high is not None and value > high - margin)
 
 
-def test_every_circuit_kind_has_a_template(templates: dict[str, tuple[CircuitTemplate, dict[str, Any]]]) -> None:
+def test_every_circuit_kind_has_a_template(
+    templates: dict[str, tuple[CircuitTemplate, dict[str, Any]]],
+) -> None:
     assert {t.kind for t, _raw in templates.values()} == set(CircuitKind)
 
 
-def test_template_ranges_name_their_source(templates: dict[str, tuple[CircuitTemplate, dict[str, Any]]]) -> None:
+def test_template_ranges_name_their_source(
+    templates: dict[str, tuple[CircuitTemplate, dict[str, Any]]],
+) -> None:
     for name, (tmpl, _raw) in templates.items():
         for tp in tmpl.test_points:
             for rng in tp.expected:
@@ -118,7 +159,9 @@ def test_template_points_say_where_how_long_and_how_high(
     for name, (tmpl, _raw) in templates.items():
         for tp in tmpl.test_points:
             where = f"{name}.{tp.id}"
-            assert tp.location and tp.access and tp.fitting, f"{where}: location, access and fitting are needed"
+            assert tp.location and tp.access and tp.fitting, (
+                f"{where}: location, access and fitting are needed"
+            )
             assert tp.minutes > 0
             if tp.kind is Kind.PRESSURE:
                 assert tp.max_pressure is not None, f"{where}: a pressure point needs max_pressure"
@@ -127,22 +170,25 @@ def test_template_points_say_where_how_long_and_how_high(
                         assert rng.high <= tp.max_pressure, f"{where}: range above the point's max_pressure"
 
 
-def _all_points(templates: dict[str, tuple[CircuitTemplate, dict[str, Any]]],
-                profiles: dict[str, MachineProfile]) -> list[tuple[str, TestPoint]]:
+def _all_points(
+    templates: dict[str, tuple[CircuitTemplate, dict[str, Any]]], profiles: dict[str, MachineProfile]
+) -> list[tuple[str, TestPoint]]:
     points = [(f"template {n}.{tp.id}", tp) for n, (t, _r) in templates.items() for tp in t.test_points]
     points += [(f"profile {p.id}: {tp.id}", tp) for p in profiles.values() for _c, tp in p.all_test_points()]
     return points
 
 
-def test_cautions_come_from_the_catalogue(templates: dict[str, tuple[CircuitTemplate, dict[str, Any]]],
-                                          profiles: dict[str, MachineProfile]) -> None:
+def test_cautions_come_from_the_catalogue(
+    templates: dict[str, tuple[CircuitTemplate, dict[str, Any]]], profiles: dict[str, MachineProfile]
+) -> None:
     for where, tp in _all_points(templates, profiles):
         unknown = set(tp.cautions) - CAUTION_IDS
         assert not unknown, f"{where}: unknown cautions {sorted(unknown)}"
 
 
 def test_high_pressure_points_carry_a_fluid_injection_caution(
-    templates: dict[str, tuple[CircuitTemplate, dict[str, Any]]], profiles: dict[str, MachineProfile],
+    templates: dict[str, tuple[CircuitTemplate, dict[str, Any]]],
+    profiles: dict[str, MachineProfile],
 ) -> None:
     # Fluid injection injury is possible from about 7 bar (UK HSE research report RR976, 2013).
     for where, tp in _all_points(templates, profiles):
@@ -155,9 +201,12 @@ def test_demo_profiles_cover_the_three_scenario_machines(profiles: dict[str, Mac
     assert any(CircuitKind.CLOSED_LOOP_DRIVE in k for k in kinds.values())
     assert any({CircuitKind.LOAD_SENSING, CircuitKind.CYLINDER} <= k for k in kinds.values())
     fixed = [c for p in profiles.values() for c in p.circuits if c.kind is CircuitKind.OPEN_FIXED_PUMP]
-    assert any(c.relief_layout is not None and c.relief_layout.series and any(
-        not isinstance(m, str) and m.parallel for m in c.relief_layout.series) for c in fixed), \
-        "the conveyor needs reliefs in parallel inside a series layout"
+    assert any(
+        c.relief_layout is not None
+        and c.relief_layout.series
+        and any(not isinstance(m, str) and m.parallel for m in c.relief_layout.series)
+        for c in fixed
+    ), "the conveyor needs reliefs in parallel inside a series layout"
 
 
 def test_demo_profiles_say_they_are_fictional() -> None:
@@ -173,13 +222,18 @@ def test_profile_ranges_name_a_source(profiles: dict[str, MachineProfile]) -> No
 
 # --- visits -------------------------------------------------------------------------------
 
-def test_every_visit_names_a_known_machine(visits: dict[str, Visit], profiles: dict[str, MachineProfile]) -> None:
+
+def test_every_visit_names_a_known_machine(
+    visits: dict[str, Visit], profiles: dict[str, MachineProfile]
+) -> None:
     assert visits, "no visits found"
     for name, v in visits.items():
         assert v.machine in profiles, f"{name}: unknown machine '{v.machine}'"
 
 
-def test_every_reading_fits_its_test_point(visits: dict[str, Visit], profiles: dict[str, MachineProfile]) -> None:
+def test_every_reading_fits_its_test_point(
+    visits: dict[str, Visit], profiles: dict[str, MachineProfile]
+) -> None:
     for name, v in visits.items():
         profile = profiles[v.machine]
         for r in v.readings:
@@ -216,11 +270,14 @@ def test_every_closed_visit_shows_a_listed_fault(visits: dict[str, Visit]) -> No
 
 
 def test_each_machine_has_one_healthy_visit_and_two_faulty_ones(
-    visits: dict[str, Visit], profiles: dict[str, MachineProfile],
+    visits: dict[str, Visit],
+    profiles: dict[str, MachineProfile],
 ) -> None:
     faults: set[str] = set()
     for pid in profiles:
-        scenarios = [v.scenario.fault for v in _fault_visits(visits).values() if v.machine == pid and v.scenario]
+        scenarios = [
+            v.scenario.fault for v in _fault_visits(visits).values() if v.machine == pid and v.scenario
+        ]
         assert scenarios.count("no_fault") == 1, pid
         assert len([f for f in scenarios if f != "no_fault"]) >= 2, pid
         faults.update(f for f in scenarios if f != "no_fault")
@@ -236,11 +293,14 @@ def test_visits_cover_the_key_points(visits: dict[str, Visit], profiles: dict[st
         assert {Role.OIL_TEMPERATURE, Role.PUMP_SPEED} <= roles, name
         for r in current:
             if profile.test_point(r.test_point)[1].role is not Role.ACCUMULATOR_PRECHARGE:  # read engine off
-                assert r.condition.speed is not None and r.condition.oil_temperature is not None, f"{name} {r.id}"
+                assert r.condition.speed is not None and r.condition.oil_temperature is not None, (
+                    f"{name} {r.id}"
+                )
 
 
 def test_healthy_visits_read_comfortably_inside_every_range(
-    visits: dict[str, Visit], profiles: dict[str, MachineProfile],
+    visits: dict[str, Visit],
+    profiles: dict[str, MachineProfile],
 ) -> None:
     """Inside by at least the gauge's limit of error (EN 837-1 class × span), so a healthy demo
     machine never reads 'inconclusive'."""
@@ -254,12 +314,15 @@ def test_healthy_visits_read_comfortably_inside_every_range(
             if rng is None:
                 continue
             checked += 1
-            assert not _outside(rng, _value(r.value), _limit_of_error(v.gauge(r.gauge))), \
+            assert not _outside(rng, _value(r.value), _limit_of_error(v.gauge(r.gauge))), (
                 f"{name} {r.id} {r.test_point}: {r.value:~P} is not comfortably inside"
+            )
         assert checked >= 8, f"{name}: only {checked} readings have a range"
 
 
-def test_healthy_visits_keep_to_the_test_window(visits: dict[str, Visit], profiles: dict[str, MachineProfile]) -> None:
+def test_healthy_visits_keep_to_the_test_window(
+    visits: dict[str, Visit], profiles: dict[str, MachineProfile]
+) -> None:
     for name, v in _fault_visits(visits).items():
         if v.scenario is None or v.scenario.fault != "no_fault":
             continue
@@ -269,23 +332,31 @@ def test_healthy_visits_keep_to_the_test_window(visits: dict[str, Visit], profil
             if c.oil_temperature is not None:
                 assert window.oil_min <= c.oil_temperature <= window.oil_max, f"{name} {r.id}"
             if c.speed is not None:
-                assert abs(_value(c.speed) / _value(rated) - 1) * 100 <= window.speed_tolerance_pct, f"{name} {r.id}"
+                assert abs(_value(c.speed) / _value(rated) - 1) * 100 <= window.speed_tolerance_pct, (
+                    f"{name} {r.id}"
+                )
 
 
 def test_every_faulty_visit_has_a_reading_outside_its_range(
-    visits: dict[str, Visit], profiles: dict[str, MachineProfile],
+    visits: dict[str, Visit],
+    profiles: dict[str, MachineProfile],
 ) -> None:
     for name, v in _fault_visits(visits).items():
         if v.scenario is None or v.scenario.fault == "no_fault":
             continue
         profile = profiles[v.machine]
-        outside = [r.id for r in v.current_readings()
-                   if (rng := profile.test_point(r.test_point)[1].expected_for(r.condition)) is not None
-                   and _outside(rng, _value(r.value))]
+        outside = [
+            r.id
+            for r in v.current_readings()
+            if (rng := profile.test_point(r.test_point)[1].expected_for(r.condition)) is not None
+            and _outside(rng, _value(r.value))
+        ]
         assert outside, f"{name}: the fault '{v.scenario.fault}' shows in no reading"
 
 
-def test_demo_visit_is_a_drill_rig_visit_just_started(visits: dict[str, Visit], profiles: dict[str, MachineProfile]) -> None:
+def test_demo_visit_is_a_drill_rig_visit_just_started(
+    visits: dict[str, Visit], profiles: dict[str, MachineProfile]
+) -> None:
     demo = visits[DEMO_VISIT]
     assert demo.status is VisitStatus.OPEN
     assert demo.scenario is None
@@ -304,12 +375,22 @@ def test_a_corrected_reading_replaces_the_mistyped_one(visits: dict[str, Visit])
 
 # --- the faults are physically consistent with their readings --------------------------------
 
-def _pick(v: Visit, profile: MachineProfile, role: Role, function: FunctionState | None = None,
-          circuit: str | None = None) -> list[Reading]:
+
+def _pick(
+    v: Visit,
+    profile: MachineProfile,
+    role: Role,
+    function: FunctionState | None = None,
+    circuit: str | None = None,
+) -> list[Reading]:
     out = []
     for r in v.current_readings():
         c, tp = profile.test_point(r.test_point)
-        if tp.role is role and (function is None or r.condition.function is function) and circuit in (None, c.id):
+        if (
+            tp.role is role
+            and (function is None or r.condition.function is function)
+            and circuit in (None, c.id)
+        ):
             out.append(r)
     return out
 
@@ -351,7 +432,12 @@ def _margin(v: Visit, profile: MachineProfile) -> float:
     return _value(pair[0].value) - _value(pair[1].value)
 
 
-N, FS, ST, UL = FunctionState.NEUTRAL, FunctionState.FULL_STROKE, FunctionState.STALLED, FunctionState.UNDER_LOAD
+N, FS, ST, UL = (
+    FunctionState.NEUTRAL,
+    FunctionState.FULL_STROKE,
+    FunctionState.STALLED,
+    FunctionState.UNDER_LOAD,
+)
 
 
 def _check_fault(fault: str, v: Visit, p: MachineProfile) -> None:  # noqa: C901 - one branch per fault
@@ -365,8 +451,12 @@ def _check_fault(fault: str, v: Visit, p: MachineProfile) -> None:  # noqa: C901
         # reference temperature before comparing with the baseline.
         drain = _pick(v, p, Role.PUMP_CASE_DRAIN_FLOW, ST)[0]
         assert drain.condition.oil_temperature is not None
-        norm = normalised_leakage(drain.value, drain.condition.oil_temperature, p.reference_oil_temperature,
-                                  grade(p.oil_grade).curve)
+        norm = normalised_leakage(
+            drain.value,
+            drain.condition.oil_temperature,
+            p.reference_oil_temperature,
+            grade(p.oil_grade).curve,
+        )
         assert _value(norm) > 2 * _param(p, "case_drain_baseline")
         assert _outside(_range_of(p, drain), _value(norm))
         assert _in_range(p, v, Role.CHARGE_PRESSURE, N) and not _in_range(p, v, Role.CHARGE_PRESSURE, ST)
@@ -410,21 +500,32 @@ def _check_fault(fault: str, v: Visit, p: MachineProfile) -> None:  # noqa: C901
         assert _one(v, p, Role.CYLINDER_SEAL_DRIFT, N) > _param(p, "max_drift_rate")
     elif fault == "accumulator_precharge_lost":
         # Precharge about 90 % of minimum working pressure (field notes, from memory).
-        assert _one(v, p, Role.ACCUMULATOR_PRECHARGE) < 0.5 * 0.9 * _param(p, "accumulator_min_working_pressure")
+        assert _one(v, p, Role.ACCUMULATOR_PRECHARGE) < 0.5 * 0.9 * _param(
+            p, "accumulator_min_working_pressure"
+        )
         assert _in_range(p, v, Role.PUMP_OUTLET_PRESSURE, N)
     else:
         pytest.fail(f"no consistency check written for fault '{fault}'")
 
 
-def test_fault_readings_agree_with_the_fault(visits: dict[str, Visit], profiles: dict[str, MachineProfile]) -> None:
+def test_fault_readings_agree_with_the_fault(
+    visits: dict[str, Visit], profiles: dict[str, MachineProfile]
+) -> None:
     for name, v in _fault_visits(visits).items():
         if v.scenario is not None and v.scenario.fault != "no_fault":
             _check_fault(v.scenario.fault, v, profiles[v.machine])
 
 
-def test_healthy_ls_margin_matches_the_setting(visits: dict[str, Visit], profiles: dict[str, MachineProfile]) -> None:
-    healthy = [v for v in _fault_visits(visits).values() if v.scenario and v.scenario.fault == "no_fault"
-               and any(c.kind is CircuitKind.LOAD_SENSING for c in profiles[v.machine].circuits)]
+def test_healthy_ls_margin_matches_the_setting(
+    visits: dict[str, Visit], profiles: dict[str, MachineProfile]
+) -> None:
+    healthy = [
+        v
+        for v in _fault_visits(visits).values()
+        if v.scenario
+        and v.scenario.fault == "no_fault"
+        and any(c.kind is CircuitKind.LOAD_SENSING for c in profiles[v.machine].circuits)
+    ]
     assert healthy
     for v in healthy:
         p = profiles[v.machine]
@@ -471,8 +572,9 @@ def _line_of(text: str, needle: str) -> int:
     return hits[0]
 
 
-def _load_broken(tmp_path: Path, text: str,
-                 templates: dict[str, tuple[CircuitTemplate, dict[str, Any]]]) -> DataFileError:
+def _load_broken(
+    tmp_path: Path, text: str, templates: dict[str, tuple[CircuitTemplate, dict[str, Any]]]
+) -> DataFileError:
     path = tmp_path / "broken.toml"
     path.write_text(text, encoding="utf-8")
     with pytest.raises(DataFileError) as caught:
@@ -482,14 +584,20 @@ def _load_broken(tmp_path: Path, text: str,
     return err
 
 
-def test_the_unbroken_profile_loads(tmp_path: Path, templates: dict[str, tuple[CircuitTemplate, dict[str, Any]]]) -> None:
+def test_the_unbroken_profile_loads(
+    tmp_path: Path, templates: dict[str, tuple[CircuitTemplate, dict[str, Any]]]
+) -> None:
     path = tmp_path / "good.toml"
     path.write_text(GOOD, encoding="utf-8")
-    assert [tp.id for tp in load_profile(path, templates).circuits[0].test_points] == ["travel.charge", "travel.case"]
+    assert [tp.id for tp in load_profile(path, templates).circuits[0].test_points] == [
+        "travel.charge",
+        "travel.case",
+    ]
 
 
-def test_misspelt_key_is_reported_at_its_line(tmp_path: Path,
-                                              templates: dict[str, tuple[CircuitTemplate, dict[str, Any]]]) -> None:
+def test_misspelt_key_is_reported_at_its_line(
+    tmp_path: Path, templates: dict[str, tuple[CircuitTemplate, dict[str, Any]]]
+) -> None:
     text = GOOD.replace('location = "pump end cover"', 'locaton = "pump end cover"')
     err = _load_broken(tmp_path, text, templates)
     assert err.line == _line_of(text, "locaton")
@@ -497,7 +605,8 @@ def test_misspelt_key_is_reported_at_its_line(tmp_path: Path,
 
 
 def test_flow_in_a_pressure_range_is_reported_at_its_test_point(
-    tmp_path: Path, templates: dict[str, tuple[CircuitTemplate, dict[str, Any]]],
+    tmp_path: Path,
+    templates: dict[str, tuple[CircuitTemplate, dict[str, Any]]],
 ) -> None:
     text = GOOD.replace('high = "2 bar"', 'high = "2 L/min"')
     err = _load_broken(tmp_path, text, templates)
@@ -508,7 +617,8 @@ def test_flow_in_a_pressure_range_is_reported_at_its_test_point(
 
 
 def test_flow_for_a_rated_pressure_is_reported_at_its_line(
-    tmp_path: Path, templates: dict[str, tuple[CircuitTemplate, dict[str, Any]]],
+    tmp_path: Path,
+    templates: dict[str, tuple[CircuitTemplate, dict[str, Any]]],
 ) -> None:
     text = GOOD.replace('rated_max_pressure = "400 bar"', 'rated_max_pressure = "400 L/min"')
     err = _load_broken(tmp_path, text, templates)
@@ -516,16 +626,18 @@ def test_flow_for_a_rated_pressure_is_reported_at_its_line(
     assert "pressure" in err.detail
 
 
-def test_toml_syntax_error_is_reported_at_its_line(tmp_path: Path,
-                                                   templates: dict[str, tuple[CircuitTemplate, dict[str, Any]]]) -> None:
+def test_toml_syntax_error_is_reported_at_its_line(
+    tmp_path: Path, templates: dict[str, tuple[CircuitTemplate, dict[str, Any]]]
+) -> None:
     text = GOOD.replace('low = "20 bar"', 'low = "20 bar')
     err = _load_broken(tmp_path, text, templates)
     assert err.line == _line_of(text, 'low = "20 bar')
     assert "TOML syntax" in err.detail
 
 
-def test_unknown_template_is_reported_at_its_line(tmp_path: Path,
-                                                  templates: dict[str, tuple[CircuitTemplate, dict[str, Any]]]) -> None:
+def test_unknown_template_is_reported_at_its_line(
+    tmp_path: Path, templates: dict[str, tuple[CircuitTemplate, dict[str, Any]]]
+) -> None:
     text = GOOD.replace('kind = "closed_loop_drive"', 'template = "closed_loop_drvie"')
     err = _load_broken(tmp_path, text, templates)
     assert err.line == _line_of(text, "closed_loop_drvie")
@@ -533,16 +645,20 @@ def test_unknown_template_is_reported_at_its_line(tmp_path: Path,
 
 
 def test_omitting_a_point_the_template_lacks_is_reported_at_its_line(
-    tmp_path: Path, templates: dict[str, tuple[CircuitTemplate, dict[str, Any]]],
+    tmp_path: Path,
+    templates: dict[str, tuple[CircuitTemplate, dict[str, Any]]],
 ) -> None:
-    text = GOOD.replace('kind = "closed_loop_drive"', 'template = "closed_loop_drive"\nomit_test_points = ["chrage"]')
+    text = GOOD.replace(
+        'kind = "closed_loop_drive"', 'template = "closed_loop_drive"\nomit_test_points = ["chrage"]'
+    )
     err = _load_broken(tmp_path, text, templates)
     assert err.line == _line_of(text, "omit_test_points")
     assert "chrage" in err.detail
 
 
 def test_bad_range_in_a_point_added_to_a_template_is_reported_at_its_line(
-    tmp_path: Path, templates: dict[str, tuple[CircuitTemplate, dict[str, Any]]],
+    tmp_path: Path,
+    templates: dict[str, tuple[CircuitTemplate, dict[str, Any]]],
 ) -> None:
     text = GOOD.replace('kind = "closed_loop_drive"', 'template = "closed_loop_drive"')
     text = text.replace('id = "case"', 'id = "case_extra"').replace('high = "2 bar"', 'high = "2 L/min"')

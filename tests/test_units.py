@@ -59,6 +59,7 @@ def si_magnitude(text: str, si_unit: str, **kwargs: object) -> float:
 
 # --- conversion factors -------------------------------------------------------------------
 
+
 def test_one_psi_is_the_nist_pound_force_per_square_inch() -> None:
     # Oracle: scipy.constants.psi (lbf/in² from the exact pound and inch); NIST SP 811 B.8 6 894.757 Pa.
     assert si_magnitude("1 psi", "pascal") == pytest.approx(sc.psi, rel=REL)
@@ -137,10 +138,14 @@ SPELLING_CASES = [
 ]
 
 
-@pytest.mark.parametrize(("typed", "kind", "reference", "si_unit", "expected"), SPELLING_CASES,
-                         ids=[case[0] for case in SPELLING_CASES])
-def test_spellings_technicians_write_read_correctly(typed: str, kind: Kind, reference: PressureReference | None,
-                                                    si_unit: str, expected: float) -> None:
+@pytest.mark.parametrize(
+    ("typed", "kind", "reference", "si_unit", "expected"),
+    SPELLING_CASES,
+    ids=[case[0] for case in SPELLING_CASES],
+)
+def test_spellings_technicians_write_read_correctly(
+    typed: str, kind: Kind, reference: PressureReference | None, si_unit: str, expected: float
+) -> None:
     parsed = parse_value(typed)
     assert parsed.kind is kind
     assert parsed.reference is reference
@@ -157,18 +162,23 @@ def test_lower_case_mpa_is_megapascal_not_millipascal() -> None:
 def test_fahrenheit_and_celsius_oil_temperatures_agree() -> None:
     # Oracle: scipy.constants.convert_temperature: 131 °F = 55 °C.
     assert to_canonical(parse_quantity("131 F"), Kind.TEMPERATURE) == pytest.approx(
-        sc.convert_temperature(131, "Fahrenheit", "Celsius"), rel=REL)
+        sc.convert_temperature(131, "Fahrenheit", "Celsius"), rel=REL
+    )
     assert to_canonical(parse_quantity("55C"), Kind.TEMPERATURE) == 55.0
 
 
 def test_every_whitelisted_spelling_has_the_kind_its_units_say() -> None:
     # A spelling filed under the wrong kind would let '45 cc' pass as a displacement, say.
-    wrong = {s: (k, kind_of(Q_(1.0, unit(expr)))) for s, (expr, k) in SPELLINGS.items()
-             if kind_of(Q_(1.0, unit(expr))) is not k}
+    wrong = {
+        s: (k, kind_of(Q_(1.0, unit(expr))))
+        for s, (expr, k) in SPELLINGS.items()
+        if kind_of(Q_(1.0, unit(expr))) is not k
+    }
     assert wrong == {}
 
 
 # --- decimal comma and thousands separators -------------------------------------------------
+
 
 def test_thousands_comma_reads_as_thousands() -> None:
     parsed = parse_value("3,500 psi")
@@ -237,6 +247,7 @@ def test_badly_grouped_digits_are_refused_not_guessed(typed: str) -> None:
 
 # --- gauge and absolute ---------------------------------------------------------------------
 
+
 def test_absolute_reading_becomes_gauge_with_the_standard_atmosphere() -> None:
     # SI Brochure: standard atmosphere 101 325 Pa exactly (scipy.constants.atm).
     gauge = to_gauge(parse_quantity("0.75 bar abs"), ABSOLUTE)
@@ -267,7 +278,11 @@ def test_barometric_pressure_in_inches_of_mercury_converts_with_the_sp811_factor
 def test_reference_word_follows_a_unit_spelt_with_a_space() -> None:
     # Regression: "in Hg abs" was split at its first space and refused.
     parsed = parse_value("28.5 in Hg abs")
-    assert (parsed.quantity.magnitude, parsed.quantity.units, parsed.reference) == (28.5, unit("inch_Hg"), ABSOLUTE)
+    assert (parsed.quantity.magnitude, parsed.quantity.units, parsed.reference) == (
+        28.5,
+        unit("inch_Hg"),
+        ABSOLUTE,
+    )
 
 
 def test_gauge_and_differential_readings_pass_to_gauge_unchanged() -> None:
@@ -284,6 +299,7 @@ def test_gauge_conversion_refuses_a_flow() -> None:
 
 # --- clear messages for wrong input ---------------------------------------------------------
 
+
 def test_a_mass_typed_for_charge_pressure_says_what_it_is_and_what_is_needed() -> None:
     with pytest.raises(DimensionError) as caught:
         parse_value("12 kg", Kind.PRESSURE, role_name=ROLES[Role.CHARGE_PRESSURE].label)
@@ -291,15 +307,20 @@ def test_a_mass_typed_for_charge_pressure_says_what_it_is_and_what_is_needed() -
 
 
 def test_a_flow_typed_where_a_temperature_is_needed_is_refused() -> None:
-    with pytest.raises(DimensionError, match="'62 L/min' is a flow; this needs a temperature such as '55 °C'"):
+    with pytest.raises(
+        DimensionError, match="'62 L/min' is a flow; this needs a temperature such as '55 °C'"
+    ):
         parse_value("62 L/min", Kind.TEMPERATURE)
 
 
-@pytest.mark.parametrize(("typed", "unknown", "suggested"), [
-    ("22 bars", "bars", "'bar'"),
-    ("62 lpmm", "lpmm", "'lpm'"),
-    ("55 degrees", "degrees", "'degC'"),
-])
+@pytest.mark.parametrize(
+    ("typed", "unknown", "suggested"),
+    [
+        ("22 bars", "bars", "'bar'"),
+        ("62 lpmm", "lpmm", "'lpm'"),
+        ("55 degrees", "degrees", "'degC'"),
+    ],
+)
 def test_unknown_unit_is_named_with_suggestions(typed: str, unknown: str, suggested: str) -> None:
     with pytest.raises(UnitInputError) as caught:
         parse_value(typed)
@@ -309,7 +330,9 @@ def test_unknown_unit_is_named_with_suggestions(typed: str, unknown: str, sugges
 
 
 def test_unknown_unit_with_nothing_close_suggests_common_units() -> None:
-    with pytest.raises(UnitInputError, match="'furlongs' is not a unit fieldkit knows; try e.g. 'bar', 'psi'"):
+    with pytest.raises(
+        UnitInputError, match="'furlongs' is not a unit fieldkit knows; try e.g. 'bar', 'psi'"
+    ):
         parse_value("3 furlongs")
 
 
@@ -331,6 +354,7 @@ def test_pint_is_never_given_user_text_for_bar_gram() -> None:
 
 
 # --- display --------------------------------------------------------------------------------
+
 
 def test_metric_display_shows_bar_to_four_figures() -> None:
     # 3500 psi = 3500 · 6894.757293 Pa = 241.3165 bar (scipy.constants.psi / bar).
@@ -372,8 +396,16 @@ def test_display_spellings_parse_back() -> None:
 def test_exact_text_of_tiny_and_long_magnitudes_reads_back_the_same_float() -> None:
     # Regression: '{:.17f}' wrote 1.2345678901234e-05 with its last digits cut and 1e-20 as '0';
     # the extremes of IEEE 754 doubles must still fit in one typed value.
-    for magnitude in (1.2345678901234e-05, 1e-20, -3.3e-07, 1.2345678901234568e17, 0.1 + 0.2,
-                      1e-300, 5e-324, -1.7976931348623157e308):
+    for magnitude in (
+        1.2345678901234e-05,
+        1e-20,
+        -3.3e-07,
+        1.2345678901234568e17,
+        0.1 + 0.2,
+        1e-300,
+        5e-324,
+        -1.7976931348623157e308,
+    ):
         text = format_value(Q_(magnitude, unit("bar")), exact=True)
         assert parse_value(text).quantity.magnitude == magnitude, text
 
@@ -386,6 +418,7 @@ def test_converting_a_pressure_to_a_flow_unit_is_refused() -> None:
 
 
 # --- the convert command (done-criterion) ---------------------------------------------------
+
 
 def test_convert_command_prints_3500_psi_as_241_3_bar(capsys: pytest.CaptureFixture[str]) -> None:
     # 3500 · scipy.constants.psi / 1e5 = 241.3165 bar, shown to 4 significant figures.
@@ -406,7 +439,12 @@ def test_convert_command_reports_bad_input_with_exit_code_2(capsys: pytest.Captu
 
 
 def test_convert_runs_as_a_module_from_the_shell() -> None:
-    done = subprocess.run([sys.executable, "-m", "fieldkit", "convert", "3,500 psi", "bar"],
-                          capture_output=True, text=True, timeout=60, check=False)
+    done = subprocess.run(
+        [sys.executable, "-m", "fieldkit", "convert", "3,500 psi", "bar"],
+        capture_output=True,
+        text=True,
+        timeout=60,
+        check=False,
+    )
     assert done.returncode == 0, done.stderr
     assert done.stdout == "241.3 bar\n"

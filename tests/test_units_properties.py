@@ -34,9 +34,13 @@ PROPERTY_SETTINGS = settings(max_examples=200, deadline=None, suppress_health_ch
 #: Pressure spellings a reference word can follow ("bar abs", "psi g").
 PRESSURE_SPELLINGS = sorted(s for s, (_expr, kind) in SPELLINGS.items() if kind is Kind.PRESSURE)
 REFERENCE_WORDS = {
-    " abs": PressureReference.ABSOLUTE, " a": PressureReference.ABSOLUTE, "(a)": PressureReference.ABSOLUTE,
-    " gauge": PressureReference.GAUGE, " (g)": PressureReference.GAUGE,
-    " d": PressureReference.DIFFERENTIAL, " diff": PressureReference.DIFFERENTIAL,
+    " abs": PressureReference.ABSOLUTE,
+    " a": PressureReference.ABSOLUTE,
+    "(a)": PressureReference.ABSOLUTE,
+    " gauge": PressureReference.GAUGE,
+    " (g)": PressureReference.GAUGE,
+    " d": PressureReference.DIFFERENTIAL,
+    " diff": PressureReference.DIFFERENTIAL,
 }
 GLUED = ("bar", "psi", "kPa", "MPa")
 
@@ -57,7 +61,9 @@ def typed_values(draw: st.DrawFn) -> tuple[str, float, str, PressureReference | 
     """Text for a reading in any whitelisted spelling: (text, magnitude, spelling, reference)."""
     value = draw(magnitudes)
     spelling = draw(st.sampled_from(sorted(SPELLINGS)))
-    reference: PressureReference | None = PressureReference.GAUGE if SPELLINGS[spelling][1] is Kind.PRESSURE else None
+    reference: PressureReference | None = (
+        PressureReference.GAUGE if SPELLINGS[spelling][1] is Kind.PRESSURE else None
+    )
     suffix = ""
     if reference is not None and draw(st.booleans()):
         suffix = draw(st.sampled_from(sorted(REFERENCE_WORDS)))
@@ -71,7 +77,8 @@ def typed_values(draw: st.DrawFn) -> tuple[str, float, str, PressureReference | 
 @PROPERTY_SETTINGS
 @given(typed_values())
 def test_exact_text_reads_back_as_the_same_quantity_in_every_spelling(
-        case: tuple[str, float, str, PressureReference | None]) -> None:
+    case: tuple[str, float, str, PressureReference | None],
+) -> None:
     text, value, spelling, reference = case
     parsed = parse_value(text)
     assert parsed.quantity.magnitude == value
@@ -95,23 +102,94 @@ def test_exact_text_of_any_finite_float_reads_back_bit_for_bit(magnitude: float,
 @PROPERTY_SETTINGS
 @given(typed_values(), st.sampled_from(["metric", "si", "us"]))
 def test_exact_text_in_a_display_system_reads_back_within_float_noise(
-        case: tuple[str, float, str, PressureReference | None], system: str) -> None:
+    case: tuple[str, float, str, PressureReference | None], system: str
+) -> None:
     parsed = parse_value(case[0])
     written = format_value(parsed.quantity, DisplaySystem.named(system), exact=True)
     again = parse_value(written)
     assert again.kind is parsed.kind
     assert to_canonical(again.quantity, parsed.kind) == pytest.approx(
-        to_canonical(parsed.quantity, parsed.kind), rel=1e-12, abs=1e-12)
+        to_canonical(parsed.quantity, parsed.kind), rel=1e-12, abs=1e-12
+    )
 
 
 # --- nothing typed can crash the parser ----------------------------------------------------
 
 FRAGMENTS = [
-    *"0123456789", "12", "500", "2,500", "3.5", ",", ".", ",,", "..", " ", "\u00a0", "\u202f", "\t", "\n", "\x00",
-    "-", "+", "−", "–", "e", "E", "e5", "1e308", "nan", "inf", "Infinity", "٣", "²", "³", "½", "𝟏",
-    "bar", "Bar", "psi", "PSI", "mpa", "MPa", "a", "g", "d", "A", "abs", "(g)", "(a)", "(", ")", "/", "^", "*",
-    "kgf/cm2", "L/min", "gpm", "°", "º", "C", "F", "K", "rpm", "cc/rev", "mm/min", "%", "inHg", "in", "Hg",
-    "[", "]", "'", '"', "\\", "💥", "\ufeff", "\u200b", "ſ", "K",
+    *"0123456789",
+    "12",
+    "500",
+    "2,500",
+    "3.5",
+    ",",
+    ".",
+    ",,",
+    "..",
+    " ",
+    "\u00a0",
+    "\u202f",
+    "\t",
+    "\n",
+    "\x00",
+    "-",
+    "+",
+    "−",
+    "–",
+    "e",
+    "E",
+    "e5",
+    "1e308",
+    "nan",
+    "inf",
+    "Infinity",
+    "٣",
+    "²",
+    "³",
+    "½",
+    "𝟏",
+    "bar",
+    "Bar",
+    "psi",
+    "PSI",
+    "mpa",
+    "MPa",
+    "a",
+    "g",
+    "d",
+    "A",
+    "abs",
+    "(g)",
+    "(a)",
+    "(",
+    ")",
+    "/",
+    "^",
+    "*",
+    "kgf/cm2",
+    "L/min",
+    "gpm",
+    "°",
+    "º",
+    "C",
+    "F",
+    "K",
+    "rpm",
+    "cc/rev",
+    "mm/min",
+    "%",
+    "inHg",
+    "in",
+    "Hg",
+    "[",
+    "]",
+    "'",
+    '"',
+    "\\",
+    "💥",
+    "\ufeff",
+    "\u200b",
+    "ſ",
+    "K",
 ]
 jumbles = st.lists(st.sampled_from(FRAGMENTS), max_size=12).map("".join)
 plausibility = st.sampled_from([None, lambda q: True, lambda q: False, lambda q: abs(q.magnitude) < 100])
@@ -130,15 +208,19 @@ def assert_parses_or_explains(text: str, expect: Kind | None, decimal_comma: boo
 
 @PROPERTY_SETTINGS
 @given(st.text(max_size=80), st.sampled_from([None, *Kind]), st.booleans(), plausibility)
-def test_any_text_gives_a_value_or_a_fieldkit_error(text: str, expect: Kind | None, decimal_comma: bool,
-                                                    plausible: object) -> None:
+def test_any_text_gives_a_value_or_a_fieldkit_error(
+    text: str, expect: Kind | None, decimal_comma: bool, plausible: object
+) -> None:
     assert_parses_or_explains(text, expect, decimal_comma, plausible)
 
 
 @PROPERTY_SETTINGS
-@given(jumbles, st.sampled_from([None, Kind.PRESSURE, Kind.FLOW, Kind.TEMPERATURE]), st.booleans(), plausibility)
+@given(
+    jumbles, st.sampled_from([None, Kind.PRESSURE, Kind.FLOW, Kind.TEMPERATURE]), st.booleans(), plausibility
+)
 def test_jumbled_digits_separators_and_units_give_a_value_or_a_fieldkit_error(
-        text: str, expect: Kind | None, decimal_comma: bool, plausible: object) -> None:
+    text: str, expect: Kind | None, decimal_comma: bool, plausible: object
+) -> None:
     assert_parses_or_explains(text, expect, decimal_comma, plausible)
 
 
@@ -154,10 +236,14 @@ def test_psi_and_bar_readings_of_the_same_pressure_agree(size: float, sign: floa
     x = sign * size
     in_psi = to_canonical(parse_value(f"{typed_number(x)} psi").quantity, Kind.PRESSURE)
     # NIST SP 811 B.8: 1 psi = 6 894.757 Pa (from memory), 7 significant figures.
-    as_bar_sp811 = to_canonical(parse_value(f"{typed_number(x * 6894.757 / 1e5)} bar").quantity, Kind.PRESSURE)
+    as_bar_sp811 = to_canonical(
+        parse_value(f"{typed_number(x * 6894.757 / 1e5)} bar").quantity, Kind.PRESSURE
+    )
     assert in_psi == pytest.approx(as_bar_sp811, rel=1e-7)
     # scipy.constants.psi (exact from the pound and the inch): agreement to float noise.
-    as_bar_scipy = to_canonical(parse_value(f"{typed_number(x * sc.psi / sc.bar)} bar").quantity, Kind.PRESSURE)
+    as_bar_scipy = to_canonical(
+        parse_value(f"{typed_number(x * sc.psi / sc.bar)} bar").quantity, Kind.PRESSURE
+    )
     assert in_psi == pytest.approx(as_bar_scipy, rel=1e-12)
 
 

@@ -88,7 +88,12 @@ def _unique(items: list[Fault] | list[Caution], path: Path, text: str, table: st
     lines = key_lines(text)
     for i, item in enumerate(items):
         if item.id in seen:
-            raise DataFileError(str(path), f"id '{item.id}' appears twice", line_for(lines, (table, i, "id")), f"{table}.{i}.id")
+            raise DataFileError(
+                str(path),
+                f"id '{item.id}' appears twice",
+                line_for(lines, (table, i, "id")),
+                f"{table}.{i}.id",
+            )
         seen.add(item.id)
 
 
@@ -106,5 +111,8 @@ def load_cautions(path: Path) -> dict[str, Caution]:
     cautions = validate(_CautionFile, parse_toml(text, str(path)), str(path), text).caution
     _unique(cautions, path, text, "caution")
     if not any(c.always for c in cautions):
-        raise DataFileError(str(path), "one caution must be marked always = true (the general caution that defers to the machine's procedures)")
+        raise DataFileError(
+            str(path),
+            "one caution must be marked always = true (the general caution that defers to the machine's procedures)",
+        )
     return {c.id: c for c in cautions}

@@ -49,7 +49,12 @@ class Knowledge:
     def load(cls, folder: Path) -> Knowledge:
         from fieldkit.diagnosis.lint import check_references
 
-        k = cls(load_packs(folder), load_faults(folder / "faults.toml"), load_cautions(folder / "cautions.toml"), folder)
+        k = cls(
+            load_packs(folder),
+            load_faults(folder / "faults.toml"),
+            load_cautions(folder / "cautions.toml"),
+            folder,
+        )
         check_references(k)
         return k
 
@@ -92,14 +97,28 @@ def check_reading(m: Measured, system: DisplaySystem) -> ReadingCheck:
         verdict = verdict_for(*outcome_probabilities(m.canonical, m.u_canonical, low, high))
         low, high = shown(low), shown(high)
     u = m.u_canonical * abs(scale)
-    gauge = (f"{m.gauge.id}: 0–{format_value(m.gauge.full_scale, system)} class {m.gauge.accuracy_class:g}"
-             if m.gauge is not None else f"none recorded (assumed class {ASSUMED_CLASS:g})")
+    gauge = (
+        f"{m.gauge.id}: 0–{format_value(m.gauge.full_scale, system)} class {m.gauge.accuracy_class:g}"
+        if m.gauge is not None
+        else f"none recorded (assumed class {ASSUMED_CLASS:g})"
+    )
     return ReadingCheck(
-        reading_id=m.reading.id, test_point=m.point.id, test_point_label=m.point.label, circuit=m.circuit.id,
-        condition=m.reading.condition.describe(), value=format_value(m.reading.value, system),
+        reading_id=m.reading.id,
+        test_point=m.point.id,
+        test_point_label=m.point.label,
+        circuit=m.circuit.id,
+        condition=m.reading.condition.describe(),
+        value=format_value(m.reading.value, system),
         expected=_range_text(low, high, unit_text) if rng is not None else "no range for this condition",
-        uncertainty=f"±{u:.2g} {unit_text}", verdict=verdict, gauge=gauge, gauge_advice=gauge_advice(m),
-        value_num=shown(m.canonical), low_num=low, high_num=high, uncertainty_num=u, unit=unit_text,
+        uncertainty=f"±{u:.2g} {unit_text}",
+        verdict=verdict,
+        gauge=gauge,
+        gauge_advice=gauge_advice(m),
+        value_num=shown(m.canonical),
+        low_num=low,
+        high_num=high,
+        uncertainty_num=u,
+        unit=unit_text,
         discounted=m.invalid,
     )
 
@@ -115,16 +134,21 @@ def gauge_advice(m: Measured) -> str:
 
 
 @lru_cache(maxsize=4096)
-def _gauge_advice(full_bar: float, start_bar: float | None, accuracy: float, reading_bar: float,
-                  highest_bar: float | None) -> str:
+def _gauge_advice(
+    full_bar: float, start_bar: float | None, accuracy: float, reading_bar: float, highest_bar: float | None
+) -> str:
     # Cached on plain numbers: the same readings are judged again after every new one.
     from fieldkit.physics.gauges import gauge_suitability
 
     bar = unit("bar")
     try:
-        check = gauge_suitability(Q_(full_bar, bar), Q_(reading_bar, bar),
-                                  Q_(highest_bar, bar) if highest_bar is not None else None,
-                                  Q_(start_bar, bar) if start_bar is not None else None, accuracy)
+        check = gauge_suitability(
+            Q_(full_bar, bar),
+            Q_(reading_bar, bar),
+            Q_(highest_bar, bar) if highest_bar is not None else None,
+            Q_(start_bar, bar) if start_bar is not None else None,
+            accuracy,
+        )
     except FieldkitError as exc:  # an odd gauge record must not stop the diagnosis
         return f"gauge could not be checked: {exc}"
     return "" if check.ok else check.message
@@ -146,19 +170,34 @@ def _gauge_findings(measured: list[Measured], hyps: list[Hypothesis]) -> list[Fi
         top = to_canonical(m.gauge.full_scale, m.kind)
         if m.canonical >= top:
             ev = {h.key: llr for h in hyps if h.fault.id == "gauge_error"}
-            out.append(Finding(
-                rule_id="gauge-overranged", title=f"Gauge overranged at {m.point.label}", circuit=m.circuit.id,
-                verdict=Verdict.HIGH, message=(f"{m.point.label} read {format_value(m.reading.value)} on a gauge whose "
-                                               f"scale ends at {format_value(m.gauge.full_scale)}: the reading is not valid."),
-                readings=[m.reading.id], p_high=1.0, action="Repeat with a gauge rated above the point's highest pressure.",
-                cautions=["gauge-rating"], source="EN 837-1 (readings beyond the scale carry no class accuracy)",
-                evidence=ev,
-            ))
+            out.append(
+                Finding(
+                    rule_id="gauge-overranged",
+                    title=f"Gauge overranged at {m.point.label}",
+                    circuit=m.circuit.id,
+                    verdict=Verdict.HIGH,
+                    message=(
+                        f"{m.point.label} read {format_value(m.reading.value)} on a gauge whose "
+                        f"scale ends at {format_value(m.gauge.full_scale)}: the reading is not valid."
+                    ),
+                    readings=[m.reading.id],
+                    p_high=1.0,
+                    action="Repeat with a gauge rated above the point's highest pressure.",
+                    cautions=["gauge-rating"],
+                    source="EN 837-1 (readings beyond the scale carry no class accuracy)",
+                    evidence=ev,
+                )
+            )
     return out
 
 
-def _cautions(knowledge: Knowledge, profile: MachineProfile, measured: list[Measured], findings: list[Finding],
-              next_tests: list[NextTest]) -> list[CautionNote]:
+def _cautions(
+    knowledge: Knowledge,
+    profile: MachineProfile,
+    measured: list[Measured],
+    findings: list[Finding],
+    next_tests: list[NextTest],
+) -> list[CautionNote]:
     notes: dict[str, CautionNote] = {}
 
     def add(cid: str, because: str) -> None:
@@ -191,8 +230,9 @@ def _cautions(knowledge: Knowledge, profile: MachineProfile, measured: list[Meas
     return sorted(notes.values(), key=lambda n: (n.id != "general", order.get(n.severity, 3)))
 
 
-def diagnose(visit: Visit, profile: MachineProfile, knowledge: Knowledge | None = None,
-             system: DisplaySystem = METRIC) -> Diagnosis:
+def diagnose(
+    visit: Visit, profile: MachineProfile, knowledge: Knowledge | None = None, system: DisplaySystem = METRIC
+) -> Diagnosis:
     """Findings, ranked faults, next tests and cautions for a visit on a machine."""
     knowledge = knowledge or default_knowledge()
     measured, notes = measure_visit(visit, profile)
@@ -208,8 +248,15 @@ def diagnose(visit: Visit, profile: MachineProfile, knowledge: Knowledge | None 
     if not measured:
         notes.append("no readings yet: the ranking shows the catalogue's priors")
     return Diagnosis(
-        visit_id=visit.id, machine=profile.id, checks=checks, findings=findings, faults=ranked,
-        next_tests=next_tests, cautions=cautions, entropy_bits=entropy_bits(posterior), notes=notes,
+        visit_id=visit.id,
+        machine=profile.id,
+        checks=checks,
+        findings=findings,
+        faults=ranked,
+        next_tests=next_tests,
+        cautions=cautions,
+        entropy_bits=entropy_bits(posterior),
+        notes=notes,
     )
 
 

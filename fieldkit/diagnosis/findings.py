@@ -40,7 +40,9 @@ def _phi(z: float) -> float:
     return 0.5 * math.erfc(-z / _SQRT2)
 
 
-def outcome_probabilities(value: float, u: float, low: float | None, high: float | None) -> tuple[float, float, float]:
+def outcome_probabilities(
+    value: float, u: float, low: float | None, high: float | None
+) -> tuple[float, float, float]:
     """P(true value below low), P(within), P(above high), true value ~ N(value, u²)."""
     if u <= 0.0:
         p_low = 1.0 if low is not None and value < low else 0.0
@@ -130,7 +132,9 @@ class Evaluator:
     # --- names ------------------------------------------------------------------------
     def latest(self, scope: Scope, role: Role, states: Iterable[FunctionState]) -> Measured:
         states = tuple(states)
-        found = [m for m in scope.by_role.get(role, []) if not states or m.reading.condition.function in states]
+        found = [
+            m for m in scope.by_role.get(role, []) if not states or m.reading.condition.function in states
+        ]
         if not found:
             # The first state the rule names is the one to ask the technician to set.
             raise Missing(role, states[0] if states else None)
@@ -155,7 +159,9 @@ class Evaluator:
         }[name]
         return float(q.to_base_units().magnitude)
 
-    def derived(self, scope: Scope, name: str, states: tuple[FunctionState, ...], used: list[Measured]) -> tuple[float, float]:
+    def derived(
+        self, scope: Scope, name: str, states: tuple[FunctionState, ...], used: list[Measured]
+    ) -> tuple[float, float]:
         if name in ("pump_case_drain_flow_at_ref", "motor_case_drain_flow_at_ref"):
             role = Role.PUMP_CASE_DRAIN_FLOW if name.startswith("pump") else Role.MOTOR_CASE_DRAIN_FLOW
             m = self.latest(scope, role, states)
@@ -179,7 +185,10 @@ class Evaluator:
             m = self.latest(scope, Role.OIL_TEMPERATURE, ())
             used.append(m)
             nu = self.curve.cst_at_kelvin(m.canonical + 273.15)
-            slope = (self.curve.cst_at_kelvin(m.canonical + 274.15) - self.curve.cst_at_kelvin(m.canonical + 272.15)) / 2
+            slope = (
+                self.curve.cst_at_kelvin(m.canonical + 274.15)
+                - self.curve.cst_at_kelvin(m.canonical + 272.15)
+            ) / 2
             return nu * 1e-6, abs(slope) * m.u_canonical * 1e-6
         raise NotApplicable(f"derived value '{name}' is not known")
 
@@ -189,15 +198,26 @@ class Evaluator:
         circuit = scope.circuit
         if circuit is None or not circuit.reliefs:
             raise NotApplicable("the circuit lists no relief valves")
-        valves = {r.id: ReliefValve(r.id, r.setting, r.override if r.override is not None else Q_(0.0, "bar"), r.drain)
-                  for r in circuit.reliefs}
+        valves = {
+            r.id: ReliefValve(
+                r.id, r.setting, r.override if r.override is not None else Q_(0.0, "bar"), r.drain
+            )
+            for r in circuit.reliefs
+        }
 
         def build(layout: ReliefLayout) -> Series | Parallel:
             items = [valves[m] if isinstance(m, str) else build(m) for m in layout.members()]
             return Series(items) if layout.series else Parallel(items)
 
-        tree = build(circuit.relief_layout) if circuit.relief_layout else (
-            valves[circuit.reliefs[0].id] if len(circuit.reliefs) == 1 else Parallel(list(valves.values())))
+        tree = (
+            build(circuit.relief_layout)
+            if circuit.relief_layout
+            else (
+                valves[circuit.reliefs[0].id]
+                if len(circuit.reliefs) == 1
+                else Parallel(list(valves.values()))
+            )
+        )
         back = None
         u = 0.0
         try:
@@ -214,7 +234,9 @@ class Evaluator:
     def scopes_for(self, rule: Rule) -> list[Scope]:
         if rule.spec.machine_wide:
             return [self.machine]
-        return [s for s in self.scopes if s.circuit is not None and s.circuit.kind.value in rule.spec.circuits]
+        return [
+            s for s in self.scopes if s.circuit is not None and s.circuit.kind.value in rule.spec.circuits
+        ]
 
     def evaluate(self, rule: Rule, scope: Scope, hypotheses: list[Hypothesis]) -> Finding | None:
         """A finding, or None when the rule does not apply to this circuit."""
@@ -251,9 +273,16 @@ class Evaluator:
         circuit_id = scope.circuit.id if scope.circuit else None
         if missing:
             self.missing_roles[f"{spec.id}@{circuit_id}" if circuit_id else spec.id] = missing_roles
-            return Finding(rule_id=spec.id, title=spec.title, circuit=circuit_id, verdict=Verdict.NOT_MEASURED,
-                           message=f"{spec.title}: needs {', '.join(missing)}", missing=missing, source=spec.source,
-                           p_in_range=1.0)
+            return Finding(
+                rule_id=spec.id,
+                title=spec.title,
+                circuit=circuit_id,
+                verdict=Verdict.NOT_MEASURED,
+                message=f"{spec.title}: needs {', '.join(missing)}",
+                missing=missing,
+                source=spec.source,
+                p_in_range=1.0,
+            )
         try:
             value, u = rule.value.evaluate_with_uncertainty(values, uncert)
             low = high = None
@@ -271,8 +300,15 @@ class Evaluator:
                 if rule.high is not None:
                     high, u_high = rule.high.evaluate_with_uncertainty(values, uncert)
         except Exception as exc:  # an expression failing on these numbers (÷0) is reported, not raised
-            return Finding(rule_id=spec.id, title=spec.title, circuit=circuit_id, verdict=Verdict.INCONCLUSIVE,
-                           message=f"{spec.title}: could not be computed ({exc})", source=spec.source, p_in_range=1.0)
+            return Finding(
+                rule_id=spec.id,
+                title=spec.title,
+                circuit=circuit_id,
+                verdict=Verdict.INCONCLUSIVE,
+                message=f"{spec.title}: could not be computed ({exc})",
+                source=spec.source,
+                p_in_range=1.0,
+            )
         p_low, _, _ = outcome_probabilities(value, math.hypot(u, u_low), low, None)
         _, _, p_high = outcome_probabilities(value, math.hypot(u, u_high), None, high)
         p_ok = max(0.0, 1.0 - p_low - p_high)
@@ -280,45 +316,79 @@ class Evaluator:
         invalid = sorted({m.invalid for m in used if m.invalid}) if spec.discount_when_invalid else []
         weight = INVALID_WEIGHT if invalid else 1.0
         texts = self._texts(rule, value, u, low, high)
-        template = {Verdict.LOW: spec.say_low, Verdict.HIGH: spec.say_high, Verdict.IN_RANGE: spec.say_ok}.get(verdict, "")
+        template = {
+            Verdict.LOW: spec.say_low,
+            Verdict.HIGH: spec.say_high,
+            Verdict.IN_RANGE: spec.say_ok,
+        }.get(verdict, "")
         if not template:
             template = "{title}: {value} ± {uncertainty}, against {limits}."
         message = fill(template, texts)
         if verdict is Verdict.INCONCLUSIVE:
-            message += f" Too close to a limit to call with this gauge (P low {p_low:.0%}, P high {p_high:.0%})."
+            message += (
+                f" Too close to a limit to call with this gauge (P low {p_low:.0%}, P high {p_high:.0%})."
+            )
         if invalid:
             message += f" Counted at reduced weight: {'; '.join(invalid)}."
         finding = Finding(
-            rule_id=spec.id, title=spec.title, circuit=circuit_id, verdict=verdict, message=message,
-            value=texts["value"], uncertainty=texts["uncertainty"], low=texts["low"], high=texts["high"],
-            p_low=p_low, p_in_range=p_ok, p_high=p_high, readings=[m.reading.id for m in used],
-            discount=weight, discount_reason="; ".join(invalid),
+            rule_id=spec.id,
+            title=spec.title,
+            circuit=circuit_id,
+            verdict=verdict,
+            message=message,
+            value=texts["value"],
+            uncertainty=texts["uncertainty"],
+            low=texts["low"],
+            high=texts["high"],
+            p_low=p_low,
+            p_in_range=p_ok,
+            p_high=p_high,
+            readings=[m.reading.id for m in used],
+            discount=weight,
+            discount_reason="; ".join(invalid),
             action=spec.do_low if verdict is Verdict.LOW else spec.do_high if verdict is Verdict.HIGH else "",
-            cautions=list(spec.cautions) if verdict in (Verdict.LOW, Verdict.HIGH, Verdict.INCONCLUSIVE) else [],
+            cautions=list(spec.cautions)
+            if verdict in (Verdict.LOW, Verdict.HIGH, Verdict.INCONCLUSIVE)
+            else [],
             source=spec.source,
         )
         finding.evidence = evidence(rule, scope.circuit, (p_low, p_ok, p_high), weight, hypotheses)
         return finding
 
-    def _texts(self, rule: Rule, value: float, u: float, low: float | None, high: float | None) -> dict[str, str]:
+    def _texts(
+        self, rule: Rule, value: float, u: float, low: float | None, high: float | None
+    ) -> dict[str, str]:
         kind = _kind_of_dim(rule.value.result)
 
         def show(x: float | None, significant: int = 4) -> str:
             if x is None:
                 return "—"
-            return format_si(x, kind, self.system, significant=significant) if kind is not None else f"{x:.3g}"
+            return (
+                format_si(x, kind, self.system, significant=significant) if kind is not None else f"{x:.3g}"
+            )
 
         def show_spread(x: float) -> str:
             if kind is Kind.TEMPERATURE:  # a temperature difference, in kelvin whatever the display
                 return f"{x:.2g} K"
             return show(x, significant=2)
 
-        limits = f"{show(low)} to {show(high)}" if low is not None and high is not None else (
-            f"at least {show(low)}" if low is not None else f"at most {show(high)}")
-        return {"title": rule.spec.title, "value": show(value), "uncertainty": show_spread(u) if u else "0",
-                "low": show(low), "high": show(high), "limits": limits}
+        limits = (
+            f"{show(low)} to {show(high)}"
+            if low is not None and high is not None
+            else (f"at least {show(low)}" if low is not None else f"at most {show(high)}")
+        )
+        return {
+            "title": rule.spec.title,
+            "value": show(value),
+            "uncertainty": show_spread(u) if u else "0",
+            "low": show(low),
+            "high": show(high),
+            "limits": limits,
+        }
 
-    def run(self, rules: list[Rule], hypotheses: list[Hypothesis]) -> tuple[list[Finding], list[tuple[Rule, Scope, Finding]]]:
+    def run(
+        self, rules: list[Rule], hypotheses: list[Hypothesis]
+    ) -> tuple[list[Finding], list[tuple[Rule, Scope, Finding]]]:
         self.missing_roles: dict[str, list[tuple[Role, FunctionState | None]]] = {}
         findings: list[Finding] = []
         pairs: list[tuple[Rule, Scope, Finding]] = []
@@ -332,15 +402,24 @@ class Evaluator:
 
 
 def _kind_of_dim(dim: object) -> Kind | None:
-    for kind in (Kind.PRESSURE, Kind.FLOW, Kind.TEMPERATURE, Kind.SPEED, Kind.VELOCITY, Kind.VISCOSITY, Kind.POWER,
-                 Kind.RATIO):
+    for kind in (
+        Kind.PRESSURE,
+        Kind.FLOW,
+        Kind.TEMPERATURE,
+        Kind.SPEED,
+        Kind.VELOCITY,
+        Kind.VISCOSITY,
+        Kind.POWER,
+        Kind.RATIO,
+    ):
         if dim == kind_dimension(kind):
             return kind
     return None
 
 
-def likelihoods(rule: Rule, circuit: Circuit | None, outcome: tuple[float, float, float],
-                hypotheses: list[Hypothesis]) -> list[float]:
+def likelihoods(
+    rule: Rule, circuit: Circuit | None, outcome: tuple[float, float, float], hypotheses: list[Hypothesis]
+) -> list[float]:
     """P(observation | h) for every hypothesis, the observation being soft (virtual evidence)."""
     healthy = rule.spec.likelihood("no_fault")
     out: list[float] = []
@@ -351,8 +430,13 @@ def likelihoods(rule: Rule, circuit: Circuit | None, outcome: tuple[float, float
     return out
 
 
-def evidence(rule: Rule, circuit: Circuit | None, outcome: tuple[float, float, float], weight: float,
-             hypotheses: list[Hypothesis]) -> dict[str, float]:
+def evidence(
+    rule: Rule,
+    circuit: Circuit | None,
+    outcome: tuple[float, float, float],
+    weight: float,
+    hypotheses: list[Hypothesis],
+) -> dict[str, float]:
     """Log-likelihood ratios against a healthy machine, kept only where they differ from it."""
     liks = likelihoods(rule, circuit, outcome, hypotheses)
     base = sum(o * p for o, p in zip(outcome, rule.spec.likelihood("no_fault")))
@@ -364,4 +448,12 @@ def evidence(rule: Rule, circuit: Circuit | None, outcome: tuple[float, float, f
     return out
 
 
-__all__ = ["Evaluator", "Hypothesis", "evidence", "fill", "likelihoods", "outcome_probabilities", "verdict_for"]
+__all__ = [
+    "Evaluator",
+    "Hypothesis",
+    "evidence",
+    "fill",
+    "likelihoods",
+    "outcome_probabilities",
+    "verdict_for",
+]

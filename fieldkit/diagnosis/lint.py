@@ -43,31 +43,86 @@ def problems(knowledge: Knowledge) -> list[Problem]:
         for table, probs in (("if_low", spec.if_low), ("if_high", spec.if_high)):
             for fault in probs:
                 if fault not in knowledge.faults:
-                    found.append(Problem(rule.path, rule.line, f"rule '{spec.id}' {table} names unknown fault '{fault}'", True))
+                    found.append(
+                        Problem(
+                            rule.path,
+                            rule.line,
+                            f"rule '{spec.id}' {table} names unknown fault '{fault}'",
+                            True,
+                        )
+                    )
                     continue
                 evidenced.add(fault)
                 f = knowledge.faults[fault]
-                if not spec.machine_wide and not f.machine_wide and not any(f.applies_to_name(c) for c in spec.circuits):
-                    found.append(Problem(rule.path, rule.line, f"rule '{spec.id}' gives evidence for '{fault}', which cannot occur in "
-                                                     f"{', '.join(spec.circuits)}", True))
+                if (
+                    not spec.machine_wide
+                    and not f.machine_wide
+                    and not any(f.applies_to_name(c) for c in spec.circuits)
+                ):
+                    found.append(
+                        Problem(
+                            rule.path,
+                            rule.line,
+                            f"rule '{spec.id}' gives evidence for '{fault}', which cannot occur in "
+                            f"{', '.join(spec.circuits)}",
+                            True,
+                        )
+                    )
         for cid in spec.cautions:
             if cid not in knowledge.cautions:
-                found.append(Problem(rule.path, rule.line, f"rule '{spec.id}' raises unknown caution '{cid}'", True))
+                found.append(
+                    Problem(rule.path, rule.line, f"rule '{spec.id}' raises unknown caution '{cid}'", True)
+                )
         if not spec.if_low and not spec.if_high:
-            found.append(Problem(rule.path, rule.line, f"rule '{spec.id}' names no fault in if_low or if_high: it can never move the ranking", True))
+            found.append(
+                Problem(
+                    rule.path,
+                    rule.line,
+                    f"rule '{spec.id}' names no fault in if_low or if_high: it can never move the ranking",
+                    True,
+                )
+            )
         has_low = spec.limits == "expected" or spec.low is not None
         has_high = spec.limits == "expected" or spec.high is not None
         if spec.if_low and not has_low:
-            found.append(Problem(rule.path, rule.line, f"rule '{spec.id}' has if_low but no low limit: that evidence can never fire", True))
+            found.append(
+                Problem(
+                    rule.path,
+                    rule.line,
+                    f"rule '{spec.id}' has if_low but no low limit: that evidence can never fire",
+                    True,
+                )
+            )
         if spec.if_high and not has_high:
-            found.append(Problem(rule.path, rule.line, f"rule '{spec.id}' has if_high but no high limit: that evidence can never fire", True))
+            found.append(
+                Problem(
+                    rule.path,
+                    rule.line,
+                    f"rule '{spec.id}' has if_high but no high limit: that evidence can never fire",
+                    True,
+                )
+            )
         if rule.low is not None and rule.high is not None and not rule.low.names and not rule.high.names:
             lo, hi = rule.low.evaluate({}), rule.high.evaluate({})
             if lo >= hi:
-                found.append(Problem(rule.path, rule.line, f"rule '{spec.id}': low limit is not below high limit, so it can never read in range", True))
+                found.append(
+                    Problem(
+                        rule.path,
+                        rule.line,
+                        f"rule '{spec.id}': low limit is not below high limit, so it can never read in range",
+                        True,
+                    )
+                )
     for fault in knowledge.faults.values():
         if fault.id not in evidenced and fault.id not in BUILT_IN_EVIDENCE:
-            found.append(Problem(str(knowledge.folder / "faults.toml"), None, f"no rule gives evidence for fault '{fault.id}'", False))
+            found.append(
+                Problem(
+                    str(knowledge.folder / "faults.toml"),
+                    None,
+                    f"no rule gives evidence for fault '{fault.id}'",
+                    False,
+                )
+            )
     return found
 
 
@@ -76,5 +131,9 @@ def check_references(knowledge: Knowledge) -> None:
     errors = [p for p in problems(knowledge) if p.error]
     if errors:
         first = errors[0]
-        raise DataFileError(first.path, first.message + (f" (and {len(errors) - 1} more; run 'fieldkit rules check')" if len(errors) > 1 else ""),
-                            line=first.line)
+        raise DataFileError(
+            first.path,
+            first.message
+            + (f" (and {len(errors) - 1} more; run 'fieldkit rules check')" if len(errors) > 1 else ""),
+            line=first.line,
+        )

@@ -88,7 +88,9 @@ def measure_visit(visit: Visit, profile: MachineProfile) -> tuple[list[Measured]
     points = {tp.id: (c, tp) for c, tp in profile.all_test_points()}
     current = visit.current_readings()
     notes: list[str] = []
-    oil = [r for r in current if r.test_point in points and points[r.test_point][1].role is Role.OIL_TEMPERATURE]
+    oil = [
+        r for r in current if r.test_point in points and points[r.test_point][1].role is Role.OIL_TEMPERATURE
+    ]
     window = profile.test_window
     oil_min = to_canonical(window.oil_min, Kind.TEMPERATURE)
     oil_max = to_canonical(window.oil_max, Kind.TEMPERATURE)
@@ -97,12 +99,16 @@ def measure_visit(visit: Visit, profile: MachineProfile) -> tuple[list[Measured]
     out: list[Measured] = []
     for r in current:
         if r.test_point not in points:
-            notes.append(f"reading {r.id} is for test point '{r.test_point}', which profile '{profile.id}' does not have; skipped")
+            notes.append(
+                f"reading {r.id} is for test point '{r.test_point}', which profile '{profile.id}' does not have; skipped"
+            )
             continue
         circuit, point = points[r.test_point]
         kind = point.kind
         if kind_of(r.value) is not kind:
-            notes.append(f"reading {r.id} at {point.label} is a {kind_of(r.value).value}, not a {kind.value}; skipped")
+            notes.append(
+                f"reading {r.id} at {point.label} is a {kind_of(r.value).value}, not a {kind.value}; skipped"
+            )
             continue
         q = r.value
         if kind is Kind.PRESSURE and r.reference is PressureReference.ABSOLUTE:
@@ -121,10 +127,21 @@ def measure_visit(visit: Visit, profile: MachineProfile) -> tuple[list[Measured]
                 speed = to_canonical(r.condition.speed, Kind.SPEED)
                 if abs(speed - rated) > tol * rated:
                     invalid = f"speed {speed:.0f} rpm, not within {window.speed_tolerance_pct:g} % of rated {rated:.0f} rpm"
-        out.append(Measured(
-            reading=r, circuit=circuit, point=point, kind=kind, canonical=canonical, u_canonical=u,
-            si=si_value(q), u_si=u * si_scale(kind), gauge=gauge, assumed_gauge=assumed,
-            oil_temp_c=oil_c, invalid=invalid,
-        ))
+        out.append(
+            Measured(
+                reading=r,
+                circuit=circuit,
+                point=point,
+                kind=kind,
+                canonical=canonical,
+                u_canonical=u,
+                si=si_value(q),
+                u_si=u * si_scale(kind),
+                gauge=gauge,
+                assumed_gauge=assumed,
+                oil_temp_c=oil_c,
+                invalid=invalid,
+            )
+        )
     out.sort(key=lambda m: m.reading.taken_at)
     return out, notes

@@ -41,8 +41,9 @@ def _matrices(rules: list[tuple[Rule, Scope]], hyps: list[Hypothesis]) -> list[l
     return [[likelihoods(rule, scope.circuit, unit, hyps) for unit in _UNIT] for rule, scope in rules]
 
 
-def _expected_entropy(prior: list[float], mats: list[list[list[float]]], soft: tuple[float, float, float] | None = None
-                      ) -> tuple[float, list[tuple[tuple[int, ...], float, list[float]]]]:
+def _expected_entropy(
+    prior: list[float], mats: list[list[list[float]]], soft: tuple[float, float, float] | None = None
+) -> tuple[float, list[tuple[tuple[int, ...], float, list[float]]]]:
     """Expected entropy after observing the rules' outcomes, and (outcomes, P, posterior) per combination.
 
     ``soft`` is the virtual evidence already held about a single rule's outcome (an inconclusive
@@ -91,8 +92,14 @@ def _describe(post: list[float], hyps: list[Hypothesis]) -> str:
     return f"{h.fault.title}{where} {post[i]:.0%}"
 
 
-def suggest(evaluator: Evaluator, pairs: list[tuple[Rule, Scope, Finding]], hyps: list[Hypothesis],
-            posterior: list[float], findings_logs: list[float], limit: int = 3) -> list[NextTest]:
+def suggest(
+    evaluator: Evaluator,
+    pairs: list[tuple[Rule, Scope, Finding]],
+    hyps: list[Hypothesis],
+    posterior: list[float],
+    findings_logs: list[float],
+    limit: int = 3,
+) -> list[NextTest]:
     """The best next measurements, most useful per minute first."""
     now = entropy_bits(posterior)
     candidates: dict[tuple[str, str, str | None], _Candidate] = {}
@@ -116,7 +123,9 @@ def suggest(evaluator: Evaluator, pairs: list[tuple[Rule, Scope, Finding]], hyps
             if m is None:
                 continue
             key = (m.circuit.id, m.point.id, "repeat")
-            cand = candidates.setdefault(key, _Candidate(m.circuit, m.point, m.reading.condition.function, [], finding))
+            cand = candidates.setdefault(
+                key, _Candidate(m.circuit, m.point, m.reading.condition.function, [], finding)
+            )
             cand.rules.append((rule, scope))
     tests: list[NextTest] = []
     for cand in candidates.values():
@@ -149,15 +158,26 @@ def suggest(evaluator: Evaluator, pairs: list[tuple[Rule, Scope, Finding]], hyps
             advice = _smaller_gauge_advice(evaluator, cand)
         verb = "Measure again" if cand.repeat_of else "Measure"
         said = "; ".join(f"if {k}, {v}" for k, v in outcomes.items())
-        why = (f"{verb} {cand.point.label} ({state_text}): it is expected to remove {gain:.2f} of the "
-               f"{now:.2f} bits of doubt in about {minutes:g} min. {said.capitalize()}.")
+        why = (
+            f"{verb} {cand.point.label} ({state_text}): it is expected to remove {gain:.2f} of the "
+            f"{now:.2f} bits of doubt in about {minutes:g} min. {said.capitalize()}."
+        )
         if advice:
             why += f" {advice}"
-        tests.append(NextTest(
-            test_point=cand.point.id, label=cand.point.label, circuit=cand.circuit.id, condition=state_text,
-            minutes=minutes, gain_bits=gain, why=why, repeat=cand.repeat_of is not None, gauge_advice=advice,
-            outcomes=outcomes,
-        ))
+        tests.append(
+            NextTest(
+                test_point=cand.point.id,
+                label=cand.point.label,
+                circuit=cand.circuit.id,
+                condition=state_text,
+                minutes=minutes,
+                gain_bits=gain,
+                why=why,
+                repeat=cand.repeat_of is not None,
+                gauge_advice=advice,
+                outcomes=outcomes,
+            )
+        )
     tests.sort(key=lambda t: -(t.gain_bits / t.minutes))
     return tests[:limit]
 
@@ -174,12 +194,16 @@ def _smaller_gauge_advice(evaluator: Evaluator, cand: _Candidate) -> str:
     if m.gauge is not None and size >= m.gauge.full_scale:
         better = [c for c in (0.6, 0.25, 0.1) if c < m.gauge.accuracy_class]
         if better:
-            return (f"The reading sits within the gauge's error of a limit and no smaller range suits this point: "
-                    f"repeat it with a class {better[0]:g} gauge of the same range (EN 837-1), or a calibrated transducer.")
+            return (
+                f"The reading sits within the gauge's error of a limit and no smaller range suits this point: "
+                f"repeat it with a class {better[0]:g} gauge of the same range (EN 837-1), or a calibrated transducer."
+            )
         return "The reading sits within the gauge's error of a limit: repeat it with a calibrated transducer."
     current = f" instead of the {format_value(m.gauge.full_scale)} one" if m.gauge is not None else ""
-    return (f"The reading sits within the gauge's error of a limit: repeat it with a 0–{format_value(size)} "
-            f"gauge{current} (smaller full scale, smaller error).")
+    return (
+        f"The reading sits within the gauge's error of a limit: repeat it with a 0–{format_value(size)} "
+        f"gauge{current} (smaller full scale, smaller error)."
+    )
 
 
 __all__ = ["suggest"]

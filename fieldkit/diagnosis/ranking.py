@@ -81,13 +81,25 @@ def rank(hypotheses: list[Hypothesis], findings: list[Finding]) -> tuple[list[Ra
                 if f.evidence and max(f.evidence.values()) > cut:
                     against.append(Evidence(f.key, f.title, f.message, math.exp(-max(f.evidence.values()))))
                 elif f.evidence and max(f.evidence.values()) < -cut:
-                    supporting.append(Evidence(f.key, f.title, f.message, math.exp(-max(f.evidence.values()))))
+                    supporting.append(
+                        Evidence(f.key, f.title, f.message, math.exp(-max(f.evidence.values())))
+                    )
         supporting.sort(key=lambda e: -e.ratio)
         against.sort(key=lambda e: e.ratio)
-        ranked.append(RankedFault(
-            id=h.fault.id, circuit=h.circuit.id if h.circuit else None, title=h.fault.title, probability=p,
-            prior=h.prior, description=h.fault.description, confirm=h.fault.confirm, fix=h.fault.fix,
-            parts=list(h.fault.parts), supporting=supporting, against=against,
-        ))
+        ranked.append(
+            RankedFault(
+                id=h.fault.id,
+                circuit=h.circuit.id if h.circuit else None,
+                title=h.fault.title,
+                probability=p,
+                prior=h.prior,
+                description=h.fault.description,
+                confirm=h.fault.confirm,
+                fix=h.fault.fix,
+                parts=list(h.fault.parts),
+                supporting=supporting,
+                against=against,
+            )
+        )
     order = sorted(range(len(ranked)), key=lambda i: -ranked[i].probability)
     return [ranked[i] for i in order], post

@@ -50,7 +50,9 @@ class RuleSpec(Strict):
     id: str = Field(pattern=r"^[a-z][a-z0-9\-]*$", max_length=60)
     title: str = Field(min_length=3, max_length=120)
     circuits: CircuitKinds = Field(description="circuit kinds, or '*' for machine-wide")
-    when: list[FunctionState] = Field(default_factory=list, description="function states the readings are taken in")
+    when: list[FunctionState] = Field(
+        default_factory=list, description="function states the readings are taken in"
+    )
     value: str = Field(min_length=1)
     limits: str | None = Field(default=None, pattern="^expected$")
     low: str | None = None
@@ -65,23 +67,29 @@ class RuleSpec(Strict):
     do_high: str = ""
     cautions: list[str] = Field(default_factory=list, description="raised when the value is out of range")
     source: str = Field(default="", description="where the limit or the physics comes from")
-    discount_when_invalid: bool = Field(default=True, description="weaken evidence from cold oil / wrong speed")
+    discount_when_invalid: bool = Field(
+        default=True, description="weaken evidence from cold oil / wrong speed"
+    )
 
     @model_validator(mode="after")
     def _shape(self) -> RuleSpec:
         if self.limits is None and self.low is None and self.high is None:
-            raise ValueError("a rule needs limits = \"expected\", or low, high or both")
+            raise ValueError('a rule needs limits = "expected", or low, high or both')
         if self.limits is not None and (self.low is not None or self.high is not None):
-            raise ValueError("write either limits = \"expected\" or low/high, not both")
+            raise ValueError('write either limits = "expected" or low/high, not both')
         for table, probs in (("if_low", self.if_low), ("if_high", self.if_high)):
             for fault, p in probs.items():
                 if not MIN_LIKELIHOOD <= p <= 1 - MIN_LIKELIHOOD:
-                    raise ValueError(f"{table}.{fault} = {p}: a likelihood lies between {MIN_LIKELIHOOD} and {1 - MIN_LIKELIHOOD}")
+                    raise ValueError(
+                        f"{table}.{fault} = {p}: a likelihood lies between {MIN_LIKELIHOOD} and {1 - MIN_LIKELIHOOD}"
+                    )
         for fault in set(self.if_low) | set(self.if_high):
             p_low = self.if_low.get(fault, self.healthy.low)
             p_high = self.if_high.get(fault, self.healthy.high)
             if p_low + p_high > 1 - MIN_LIKELIHOOD:
-                raise ValueError(f"for {fault}, P(low) + P(high) = {p_low + p_high:.2f} leaves no room for 'in range'")
+                raise ValueError(
+                    f"for {fault}, P(low) + P(high) = {p_low + p_high:.2f} leaves no room for 'in range'"
+                )
         return self
 
     @property
@@ -151,20 +159,27 @@ def load_pack(path: Path) -> list[Rule]:
         def expr(key: str, source: str | None) -> Any:
             if source is None:
                 return None
-            return _compile(source, str(path), line_for(lines, ("rule", i, key)) or at, f"rule.{i}.{key} ({rs.id})")
+            return _compile(
+                source, str(path), line_for(lines, ("rule", i, key)) or at, f"rule.{i}.{key} ({rs.id})"
+            )
 
         value = expr("value", rs.value)
         low, high = expr("low", rs.low), expr("high", rs.high)
         for key, limit in (("low", low), ("high", high)):
             if limit is not None and limit.result != value.result:
                 raise DataFileError(
-                    str(path), f"rule '{rs.id}': {key} is {_dim(limit.result)} but value is {_dim(value.result)}",
-                    line=line_for(lines, ("rule", i, key)) or at, key=f"rule.{i}.{key}",
+                    str(path),
+                    f"rule '{rs.id}': {key} is {_dim(limit.result)} but value is {_dim(value.result)}",
+                    line=line_for(lines, ("rule", i, key)) or at,
+                    key=f"rule.{i}.{key}",
                 )
         if rs.limits == "expected" and not _single_reading(value.names):
-            raise DataFileError(str(path), f"rule '{rs.id}': limits = \"expected\" needs a value that is one reading "
-                                "(or one reading normalised, such as pump_case_drain_flow_at_ref)",
-                                line=line_for(lines, ("rule", i, "limits")) or at)
+            raise DataFileError(
+                str(path),
+                f"rule '{rs.id}': limits = \"expected\" needs a value that is one reading "
+                "(or one reading normalised, such as pump_case_drain_flow_at_ref)",
+                line=line_for(lines, ("rule", i, "limits")) or at,
+            )
         rules.append(Rule(rs, value, low, high, str(path), at))
     return rules
 
@@ -187,7 +202,9 @@ def load_packs(folder: Path) -> list[Rule]:
     for path in sorted((folder / "packs").glob("*.toml")):
         for rule in load_pack(path):
             if rule.id in seen:
-                raise DataFileError(rule.path, f"rule id '{rule.id}' is also used at {seen[rule.id]}", line=rule.line)
+                raise DataFileError(
+                    rule.path, f"rule id '{rule.id}' is also used at {seen[rule.id]}", line=rule.line
+                )
             seen[rule.id] = rule.where
             rules.append(rule)
     if not rules:

@@ -41,23 +41,28 @@ MACHINE_FIGURES: dict[str, tuple[Kind, str]] = {
 #: Derived quantities: name → (kind, roles it needs, what it is).
 DERIVED: dict[str, tuple[Kind, frozenset[Role], str]] = {
     "pump_case_drain_flow_at_ref": (
-        Kind.FLOW, frozenset({Role.PUMP_CASE_DRAIN_FLOW}),
+        Kind.FLOW,
+        frozenset({Role.PUMP_CASE_DRAIN_FLOW}),
         "pump case drain normalised to the reference oil temperature (laminar leakage ∝ 1/viscosity, ASTM D341 viscosity)",
     ),
     "motor_case_drain_flow_at_ref": (
-        Kind.FLOW, frozenset({Role.MOTOR_CASE_DRAIN_FLOW}),
+        Kind.FLOW,
+        frozenset({Role.MOTOR_CASE_DRAIN_FLOW}),
         "motor case drain normalised to the reference oil temperature",
     ),
     "pump_theoretical_flow": (
-        Kind.FLOW, frozenset(),
+        Kind.FLOW,
+        frozenset(),
         "pump displacement × measured pump speed (rated speed when none was measured)",
     ),
     "relief_deadhead": (
-        Kind.PRESSURE, frozenset(),
+        Kind.PRESSURE,
+        frozenset(),
         "what the pump outlet should read when deadheaded: the circuit's relief layout (series add, parallel lowest wins) plus measured return back pressure",
     ),
     "oil_viscosity": (
-        Kind.VISCOSITY, frozenset({Role.OIL_TEMPERATURE}),
+        Kind.VISCOSITY,
+        frozenset({Role.OIL_TEMPERATURE}),
         "kinematic viscosity of the machine's oil grade at the measured oil temperature (ASTM D341)",
     ),
 }

@@ -16,6 +16,19 @@ from fieldkit.model.roles import ROLES, Role, RoleInfo
 from fieldkit.model.visit import Condition, FunctionState, Gauge, Reading, Visit, VisitStatus
 
 __all__ = [
-    "Circuit", "CircuitKind", "Condition", "ConditionSpec", "ExpectedRange", "FunctionState", "Gauge",
-    "MachineProfile", "ROLES", "Reading", "Role", "RoleInfo", "TestPoint", "Visit", "VisitStatus",
+    "Circuit",
+    "CircuitKind",
+    "Condition",
+    "ConditionSpec",
+    "ExpectedRange",
+    "FunctionState",
+    "Gauge",
+    "MachineProfile",
+    "ROLES",
+    "Reading",
+    "Role",
+    "RoleInfo",
+    "TestPoint",
+    "Visit",
+    "VisitStatus",
 ]

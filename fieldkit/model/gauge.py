@@ -21,8 +21,12 @@ class Gauge(Strict):
     id: str = Field(min_length=1, max_length=40, pattern=r"^[A-Za-z0-9_.\-]+$")
     label: str = ""
     full_scale: AnyQuantity = Field(description="top of the scale, e.g. '60 bar' or '100 L/min'")
-    scale_start: AnyQuantity | None = Field(default=None, description="bottom of the scale; '-1 bar' for a compound gauge")
-    accuracy_class: float = Field(gt=0, le=10, description="limit of error as % of span (EN 837-1 class for pressure gauges)")
+    scale_start: AnyQuantity | None = Field(
+        default=None, description="bottom of the scale; '-1 bar' for a compound gauge"
+    )
+    accuracy_class: float = Field(
+        gt=0, le=10, description="limit of error as % of span (EN 837-1 class for pressure gauges)"
+    )
     standard: str = "EN 837-1"
 
     @model_validator(mode="after")

@@ -49,22 +49,36 @@ def load_templates(folder: Path) -> dict[str, tuple[CircuitTemplate, dict[str, A
         for i, tp in enumerate(tmpl.test_points):
             for j, rng in enumerate(tp.expected):
                 if not rng.source.strip():
-                    raise DataFileError(str(path), "every template range needs a source", line_for(key_lines(text), ("test_points", i, "expected", j)))
+                    raise DataFileError(
+                        str(path),
+                        "every template range needs a source",
+                        line_for(key_lines(text), ("test_points", i, "expected", j)),
+                    )
         if tmpl.id in out:
             raise DataFileError(str(path), f"template id '{tmpl.id}' is already used by another file")
         out[tmpl.id] = (tmpl, raw)
     return out
 
 
-def _merge_circuit(circuit: dict[str, Any], templates: dict[str, tuple[CircuitTemplate, dict[str, Any]]],
-                   path: str, text: str, lines: dict[tuple[Any, ...], int], index: int) -> dict[str, Any]:
+def _merge_circuit(
+    circuit: dict[str, Any],
+    templates: dict[str, tuple[CircuitTemplate, dict[str, Any]]],
+    path: str,
+    text: str,
+    lines: dict[tuple[Any, ...], int],
+    index: int,
+) -> dict[str, Any]:
     name = circuit.get("template")
     if name is None:
         return circuit
     if not isinstance(name, str) or name not in templates:
         known = ", ".join(sorted(templates)) or "none"
-        raise DataFileError(path, f"unknown circuit template '{name}' (known: {known})",
-                            line_for(lines, ("circuits", index, "template")), f"circuits.{index}.template")
+        raise DataFileError(
+            path,
+            f"unknown circuit template '{name}' (known: {known})",
+            line_for(lines, ("circuits", index, "template")),
+            f"circuits.{index}.template",
+        )
     _tmpl, raw = templates[name]
     merged = dict(circuit)
     merged.setdefault("kind", raw["kind"])
@@ -77,8 +91,11 @@ def _merge_circuit(circuit: dict[str, Any], templates: dict[str, tuple[CircuitTe
     known_ids = {tp.get("id") for tp in raw["test_points"]}
     for bad in omit:
         if bad not in known_ids:
-            raise DataFileError(path, f"omit_test_points names '{bad}', which template '{name}' does not have",
-                                line_for(lines, ("circuits", index, "omit_test_points")))
+            raise DataFileError(
+                path,
+                f"omit_test_points names '{bad}', which template '{name}' does not have",
+                line_for(lines, ("circuits", index, "omit_test_points")),
+            )
     for j, tp in enumerate(circuit.get("test_points", [])):
         if isinstance(tp, dict) and tp.get("id") in by_id:
             by_id[tp["id"]].update(tp)  # the profile's keys replace the template's
@@ -105,10 +122,13 @@ def load_profile(path: Path, templates: dict[str, tuple[CircuitTemplate, dict[st
     lines = key_lines(text)
     circuits = raw.get("circuits")
     if isinstance(circuits, list):
-        raw = {**raw, "circuits": [
-            _merge_circuit(c, templates, str(path), text, lines, i) if isinstance(c, dict) else c
-            for i, c in enumerate(circuits)
-        ]}
+        raw = {
+            **raw,
+            "circuits": [
+                _merge_circuit(c, templates, str(path), text, lines, i) if isinstance(c, dict) else c
+                for i, c in enumerate(circuits)
+            ],
+        }
     return validate(MachineProfile, raw, str(path), text)
 
 
@@ -125,7 +145,9 @@ class ProfileLibrary:
                 profile = load_profile(path, self.templates)
                 if profile.id in self._profiles and self._profiles[profile.id][1] != path:
                     other = self._profiles[profile.id][1]
-                    raise DataFileError(str(path), f"profile id '{profile.id}' is also used by {other}", key="id")
+                    raise DataFileError(
+                        str(path), f"profile id '{profile.id}' is also used by {other}", key="id"
+                    )
                 self._profiles[profile.id] = (profile, path)
 
     def get(self, profile_id: str) -> MachineProfile:
@@ -157,4 +179,11 @@ def default_library(extra: list[Path] | None = None) -> ProfileLibrary:
     return ProfileLibrary(folders, rules_dir() / "templates")
 
 
-__all__ = ["CircuitTemplate", "ProfileLibrary", "default_library", "load_model", "load_profile", "load_templates"]
+__all__ = [
+    "CircuitTemplate",
+    "ProfileLibrary",
+    "default_library",
+    "load_model",
+    "load_profile",
+    "load_templates",
+]

@@ -19,7 +19,10 @@ PARAMETERS: dict[str, tuple[Kind, str]] = {
     "high_pressure_relief_setting": (Kind.PRESSURE, "cross-port (high-pressure) relief setting"),
     "main_relief_setting": (Kind.PRESSURE, "main relief setting"),
     "secondary_relief_setting": (Kind.PRESSURE, "second relief setting (series or parallel with the main)"),
-    "parallel_relief_setting": (Kind.PRESSURE, "setting of a lower relief in parallel with the main one (a port or auxiliary relief)"),
+    "parallel_relief_setting": (
+        Kind.PRESSURE,
+        "setting of a lower relief in parallel with the main one (a port or auxiliary relief)",
+    ),
     "compensator_setting": (Kind.PRESSURE, "pressure compensator setting"),
     "ls_standby_setting": (Kind.PRESSURE, "load-sensing standby (low-pressure standby) setting"),
     "ls_margin_setting": (Kind.PRESSURE, "load-sensing margin setting"),

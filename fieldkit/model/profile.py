@@ -42,7 +42,9 @@ class ExpectedRange(Strict):
     when: ConditionSpec = Field(default_factory=ConditionSpec)
     low: AnyQuantity | None = None
     high: AnyQuantity | None = None
-    source: str = Field(min_length=3, description="the maker's manual, a standard, 'common practice' or 'from memory'")
+    source: str = Field(
+        min_length=3, description="the maker's manual, a standard, 'common practice' or 'from memory'"
+    )
 
     @model_validator(mode="after")
     def _check(self) -> ExpectedRange:
@@ -132,8 +134,12 @@ class Circuit(Strict):
     id: str = Field(pattern=ID_PATTERN, max_length=40)
     name: str
     kind: CircuitKind
-    template: str | None = Field(default=None, description="circuit template in rules/templates this starts from")
-    omit_test_points: list[str] = Field(default_factory=list, description="template test points this machine lacks")
+    template: str | None = Field(
+        default=None, description="circuit template in rules/templates this starts from"
+    )
+    omit_test_points: list[str] = Field(
+        default_factory=list, description="template test points this machine lacks"
+    )
     parameters: dict[str, Any] = Field(default_factory=dict)
     reliefs: list[Relief] = Field(default_factory=list)
     relief_layout: ReliefLayout | None = None
@@ -213,7 +219,9 @@ class MachineProfile(Strict):
         for c in self.circuits:
             for tp in c.test_points:
                 if tp.id in seen:
-                    raise ValueError(f"test point id '{tp.id}' is used in circuits '{seen[tp.id]}' and '{c.id}'")
+                    raise ValueError(
+                        f"test point id '{tp.id}' is used in circuits '{seen[tp.id]}' and '{c.id}'"
+                    )
                 seen[tp.id] = c.id
         cids = [c.id for c in self.circuits]
         if len(set(cids)) != len(cids):

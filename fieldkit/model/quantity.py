@@ -39,7 +39,11 @@ def _spelling_for(units: pint.Unit) -> str | None:
 def quantity_text(q: pint.Quantity) -> str:
     """Exact text for a quantity, in the unit it was entered in when we know a spelling for it."""
     spelling = _spelling_for(q.units)
-    return format_value(q, kind=kind_of(q), spelling=spelling, exact=True) if spelling else format_value(q, exact=True)
+    return (
+        format_value(q, kind=kind_of(q), spelling=spelling, exact=True)
+        if spelling
+        else format_value(q, exact=True)
+    )
 
 
 def _gauge_only(text: str, kind: Kind | None) -> pint.Quantity:
@@ -47,8 +51,10 @@ def _gauge_only(text: str, kind: Kind | None) -> pint.Quantity:
     they are gauge pressures, so '0.8 bar abs' here is refused rather than silently read as gauge."""
     parsed = parse_value(text, kind)
     if parsed.reference is not None and parsed.reference is not PressureReference.GAUGE:
-        raise ValueError(f"'{text}' is an {parsed.reference.value} pressure; write it as gauge pressure here "
-                         f"(absolute minus the standard atmosphere, 1.01325 bar)")
+        raise ValueError(
+            f"'{text}' is an {parsed.reference.value} pressure; write it as gauge pressure here "
+            f"(absolute minus the standard atmosphere, 1.01325 bar)"
+        )
     return parsed.quantity
 
 
@@ -81,7 +87,9 @@ def _typed(kind: Kind) -> Any:
         pint.Quantity,
         BeforeValidator(_parser(kind)),
         PlainSerializer(quantity_text, return_type=str),
-        WithJsonSchema({"type": "string", "description": f"a {kind.value} with its unit, e.g. '{EXAMPLE[kind]}'"}),
+        WithJsonSchema(
+            {"type": "string", "description": f"a {kind.value} with its unit, e.g. '{EXAMPLE[kind]}'"}
+        ),
     ]
 
 
@@ -97,9 +105,16 @@ TimeSpan = _typed(Kind.TIME)
 Ratio = _typed(Kind.RATIO)
 
 TYPED_BY_KIND: dict[Kind, Any] = {
-    Kind.PRESSURE: Pressure, Kind.FLOW: Flow, Kind.TEMPERATURE: Temperature, Kind.SPEED: Speed,
-    Kind.DISPLACEMENT: Displacement, Kind.VELOCITY: Velocity, Kind.VOLUME: Volume, Kind.LENGTH: Length,
-    Kind.TIME: TimeSpan, Kind.RATIO: Ratio,
+    Kind.PRESSURE: Pressure,
+    Kind.FLOW: Flow,
+    Kind.TEMPERATURE: Temperature,
+    Kind.SPEED: Speed,
+    Kind.DISPLACEMENT: Displacement,
+    Kind.VELOCITY: Velocity,
+    Kind.VOLUME: Volume,
+    Kind.LENGTH: Length,
+    Kind.TIME: TimeSpan,
+    Kind.RATIO: Ratio,
 }
 
 

@@ -53,7 +53,9 @@ ROLES: dict[Role, RoleInfo] = {
     Role.LOOP_A_PRESSURE: RoleInfo(Kind.PRESSURE, "loop A pressure", high_pressure=True),
     Role.LOOP_B_PRESSURE: RoleInfo(Kind.PRESSURE, "loop B pressure", high_pressure=True),
     Role.PUMP_OUTLET_PRESSURE: RoleInfo(Kind.PRESSURE, "pump outlet (system) pressure", high_pressure=True),
-    Role.STALL_PRESSURE: RoleInfo(Kind.PRESSURE, "pressure at a stalled function (relief setting)", high_pressure=True),
+    Role.STALL_PRESSURE: RoleInfo(
+        Kind.PRESSURE, "pressure at a stalled function (relief setting)", high_pressure=True
+    ),
     Role.RETURN_PRESSURE: RoleInfo(Kind.PRESSURE, "return line pressure"),
     Role.FILTER_PRESSURE_DROP: RoleInfo(Kind.PRESSURE, "filter pressure drop"),
     Role.SUCTION_PRESSURE: RoleInfo(Kind.PRESSURE, "suction (inlet) pressure"),
@@ -66,5 +68,7 @@ ROLES: dict[Role, RoleInfo] = {
     Role.PUMP_SPEED: RoleInfo(Kind.SPEED, "pump speed"),
     Role.PUMP_FLOW: RoleInfo(Kind.FLOW, "pump flow", high_pressure=True),
     Role.CYLINDER_DRIFT: RoleInfo(Kind.VELOCITY, "cylinder drift rate"),
-    Role.CYLINDER_SEAL_DRIFT: RoleInfo(Kind.VELOCITY, "cylinder drift with the rod side vented (piston seal test)"),
+    Role.CYLINDER_SEAL_DRIFT: RoleInfo(
+        Kind.VELOCITY, "cylinder drift with the rod side vented (piston seal test)"
+    ),
 }

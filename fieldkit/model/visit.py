@@ -19,7 +19,16 @@ from fieldkit.model.gauge import Gauge
 from fieldkit.model.quantity import AnyQuantity, Pressure
 from fieldkit.units import PressureReference
 
-__all__ = ["Condition", "ConditionSpec", "FunctionState", "Gauge", "Reading", "Scenario", "Visit", "VisitStatus"]
+__all__ = [
+    "Condition",
+    "ConditionSpec",
+    "FunctionState",
+    "Gauge",
+    "Reading",
+    "Scenario",
+    "Visit",
+    "VisitStatus",
+]
 
 MAX_TEXT = 4000
 
@@ -126,9 +135,13 @@ class Visit(Strict):
             raise ValueError("reading ids must be unique")
         for i, r in enumerate(self.readings):
             if r.gauge is not None and r.gauge not in gauge_ids:
-                raise ValueError(f"readings[{i}] names gauge '{r.gauge}', which is not in this visit's gauges")
+                raise ValueError(
+                    f"readings[{i}] names gauge '{r.gauge}', which is not in this visit's gauges"
+                )
             if r.replaces is not None and r.replaces not in reading_ids:
-                raise ValueError(f"readings[{i}] replaces '{r.replaces}', which is not a reading of this visit")
+                raise ValueError(
+                    f"readings[{i}] replaces '{r.replaces}', which is not a reading of this visit"
+                )
         return self
 
     def current_readings(self) -> list[Reading]:

@@ -67,15 +67,23 @@ def check_precharge(precharge: pint.Quantity, min_working_pressure: pint.Quantit
     if p0 == 0.0:
         return Check(Level.WARNING, "no gas precharge: suspect a ruptured bladder or a leaking gas valve")
     if p0 >= p_min:
-        return Check(Level.WARNING, f"precharge {shown(precharge)} is not below the minimum working "
-                                    f"pressure {shown(min_working_pressure)}: the accumulator empties before "
-                                    f"the pressure falls that far and delivers less than designed")
+        return Check(
+            Level.WARNING,
+            f"precharge {shown(precharge)} is not below the minimum working "
+            f"pressure {shown(min_working_pressure)}: the accumulator empties before "
+            f"the pressure falls that far and delivers less than designed",
+        )
     return Check(Level.OK, f"precharge is {100.0 * p0 / p_min:.0f} % of the minimum working pressure")
 
 
-def delivered_volume(size: pint.Quantity, precharge: pint.Quantity, min_pressure: pint.Quantity,
-                     max_pressure: pint.Quantity, exponent: float = ISOTHERMAL,
-                     barometric: pint.Quantity | None = None) -> pint.Quantity:
+def delivered_volume(
+    size: pint.Quantity,
+    precharge: pint.Quantity,
+    min_pressure: pint.Quantity,
+    max_pressure: pint.Quantity,
+    exponent: float = ISOTHERMAL,
+    barometric: pint.Quantity | None = None,
+) -> pint.Quantity:
     """Oil an accumulator gives out as the pressure falls from ``max_pressure`` to ``min_pressure``.
 
     Boyle's law, polytropic: p0 · V0ⁿ = p · Vⁿ, so the gas fills V = V0 · (p0 / p)^(1/n) and

@@ -23,8 +23,11 @@ def net_charge_pressure(charge_pressure: pint.Quantity, case_pressure: pint.Quan
     discharges into it, common practice), so makers state charge pressure as net of case
     pressure; two gauge readings are compared after taking one from the other.
     """
-    return out(si(charge_pressure, Kind.PRESSURE, "charge pressure")
-               - si(case_pressure, Kind.PRESSURE, "case pressure"), Kind.PRESSURE)
+    return out(
+        si(charge_pressure, Kind.PRESSURE, "charge pressure")
+        - si(case_pressure, Kind.PRESSURE, "case pressure"),
+        Kind.PRESSURE,
+    )
 
 
 @dataclass(frozen=True, slots=True)
@@ -36,9 +39,11 @@ class ChargePressures:
     in_stroke_governed_by: str  # "flushing relief" or "charge relief"
 
 
-def expected_charge_pressure(charge_relief_setting: pint.Quantity,
-                             flushing_relief_setting: pint.Quantity | None = None,
-                             case_pressure: pint.Quantity | None = None) -> ChargePressures:
+def expected_charge_pressure(
+    charge_relief_setting: pint.Quantity,
+    flushing_relief_setting: pint.Quantity | None = None,
+    case_pressure: pint.Quantity | None = None,
+) -> ChargePressures:
     """Charge pressure a healthy loop should show in neutral and in stroke.
 
     The model, plainly (common practice, from memory):
@@ -80,15 +85,21 @@ class ChargeBudget:
         if self.keeps_loop_full:
             spare = shown(self.surplus)
             return f"charge pump supplies {supply} against {demand} lost: {spare} spare over the relief"
-        return (f"charge pump supplies {supply} but the loop loses {demand}: charge pressure will fall "
-                f"below the relief setting and the pump may cavitate")
+        return (
+            f"charge pump supplies {supply} but the loop loses {demand}: charge pressure will fall "
+            f"below the relief setting and the pump may cavitate"
+        )
 
 
-def charge_flow_budget(charge_displacement: pint.Quantity, speed: pint.Quantity,
-                       charge_volumetric_efficiency: Ratio,
-                       pump_case_drain: pint.Quantity, motor_case_drain: pint.Quantity,
-                       flushing_flow: pint.Quantity | None = None,
-                       flushing_through_motor_case: bool = False) -> ChargeBudget:
+def charge_flow_budget(
+    charge_displacement: pint.Quantity,
+    speed: pint.Quantity,
+    charge_volumetric_efficiency: Ratio,
+    pump_case_drain: pint.Quantity,
+    motor_case_drain: pint.Quantity,
+    flushing_flow: pint.Quantity | None = None,
+    flushing_through_motor_case: bool = False,
+) -> ChargeBudget:
     """Whether the charge pump can keep the loop full: V · n · ηv against the case drains plus flushing.
 
     Everything that leaves the loop must be replaced by charge flow: the pump and motor case
@@ -98,15 +109,20 @@ def charge_flow_budget(charge_displacement: pint.Quantity, speed: pint.Quantity,
     over the charge (or flushing) relief; with none left, the relief closes and charge pressure
     falls, which is the field signature of a worn loop or a tired charge pump.
     """
-    supply = (si(charge_displacement, Kind.DISPLACEMENT, "charge pump displacement", positive=True)
-              * si(speed, Kind.SPEED, "shaft speed", non_negative=True)
-              * fraction(charge_volumetric_efficiency, "charge pump volumetric efficiency"))
-    demand = (si(pump_case_drain, Kind.FLOW, "pump case drain", non_negative=True)
-              + si(motor_case_drain, Kind.FLOW, "motor case drain", non_negative=True))
-    flushing = 0.0 if flushing_flow is None else si(flushing_flow, Kind.FLOW, "flushing flow",
-                                                    non_negative=True)
+    supply = (
+        si(charge_displacement, Kind.DISPLACEMENT, "charge pump displacement", positive=True)
+        * si(speed, Kind.SPEED, "shaft speed", non_negative=True)
+        * fraction(charge_volumetric_efficiency, "charge pump volumetric efficiency")
+    )
+    demand = si(pump_case_drain, Kind.FLOW, "pump case drain", non_negative=True) + si(
+        motor_case_drain, Kind.FLOW, "motor case drain", non_negative=True
+    )
+    flushing = (
+        0.0 if flushing_flow is None else si(flushing_flow, Kind.FLOW, "flushing flow", non_negative=True)
+    )
     if not flushing_through_motor_case:
         demand += flushing
     surplus = supply - demand
-    return ChargeBudget(out(supply, Kind.FLOW), out(demand, Kind.FLOW), out(surplus, Kind.FLOW),
-                        keeps_loop_full=surplus > 0.0)
+    return ChargeBudget(
+        out(supply, Kind.FLOW), out(demand, Kind.FLOW), out(surplus, Kind.FLOW), keeps_loop_full=surplus > 0.0
+    )

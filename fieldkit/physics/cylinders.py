@@ -63,9 +63,13 @@ def annulus_area(bore: pint.Quantity, rod: pint.Quantity) -> pint.Quantity:
     return out(_areas(bore, rod)[1], Kind.AREA)
 
 
-def cylinder_force(pressure: pint.Quantity, bore: pint.Quantity, rod: pint.Quantity,
-                   stroke: Stroke | str = Stroke.EXTEND,
-                   back_pressure: pint.Quantity | None = None) -> pint.Quantity:
+def cylinder_force(
+    pressure: pint.Quantity,
+    bore: pint.Quantity,
+    rod: pint.Quantity,
+    stroke: Stroke | str = Stroke.EXTEND,
+    back_pressure: pint.Quantity | None = None,
+) -> pint.Quantity:
     """Net force from the pressures, F = p · A_driven − p_back · A_other.
 
     ``pressure`` acts on the side being fed; ``back_pressure`` is what the meter-out side holds
@@ -79,24 +83,27 @@ def cylinder_force(pressure: pint.Quantity, bore: pint.Quantity, rod: pint.Quant
     return out(p * driven - back * other, Kind.FORCE)
 
 
-def cylinder_speed(flow: pint.Quantity, bore: pint.Quantity, rod: pint.Quantity,
-                   stroke: Stroke | str = Stroke.EXTEND) -> pint.Quantity:
+def cylinder_speed(
+    flow: pint.Quantity, bore: pint.Quantity, rod: pint.Quantity, stroke: Stroke | str = Stroke.EXTEND
+) -> pint.Quantity:
     """Piston speed for the flow into the fed side, v = Q / A (leak-free seals assumed)."""
     cap, ann = _areas(bore, rod)
     q = si(flow, Kind.FLOW, "flow", non_negative=True)
     return out(q / (cap if _stroke(stroke) is Stroke.EXTEND else ann), Kind.VELOCITY)
 
 
-def flow_for_speed(speed: pint.Quantity, bore: pint.Quantity, rod: pint.Quantity,
-                   stroke: Stroke | str = Stroke.EXTEND) -> pint.Quantity:
+def flow_for_speed(
+    speed: pint.Quantity, bore: pint.Quantity, rod: pint.Quantity, stroke: Stroke | str = Stroke.EXTEND
+) -> pint.Quantity:
     """Flow the fed side needs for a piston speed, Q = v · A."""
     cap, ann = _areas(bore, rod)
     v = si(speed, Kind.VELOCITY, "piston speed", non_negative=True)
     return out(v * (cap if _stroke(stroke) is Stroke.EXTEND else ann), Kind.FLOW)
 
 
-def return_flow(flow: pint.Quantity, bore: pint.Quantity, rod: pint.Quantity,
-                stroke: Stroke | str = Stroke.EXTEND) -> pint.Quantity:
+def return_flow(
+    flow: pint.Quantity, bore: pint.Quantity, rod: pint.Quantity, stroke: Stroke | str = Stroke.EXTEND
+) -> pint.Quantity:
     """Flow leaving the other side, Q_out = Q_in · A_out / A_in.
 
     On retraction the cap side returns more than the pump delivers (by the area ratio), which
@@ -130,8 +137,9 @@ def regenerative_extension(pressure: pint.Quantity, flow: pint.Quantity, rod: pi
     return Motion(out(q / a_rod, Kind.VELOCITY), out(p * a_rod, Kind.FORCE))
 
 
-def leakage_from_drift(drift_rate: pint.Quantity, bore: pint.Quantity, rod: pint.Quantity,
-                       side: Side | str = Side.CAP) -> pint.Quantity:
+def leakage_from_drift(
+    drift_rate: pint.Quantity, bore: pint.Quantity, rod: pint.Quantity, side: Side | str = Side.CAP
+) -> pint.Quantity:
     """Leakage that would let a loaded cylinder drift at the measured rate, Q_leak = v · A.
 
     ``side`` is the side holding the load and losing oil (the cap side of a boom held up, the
@@ -144,8 +152,9 @@ def leakage_from_drift(drift_rate: pint.Quantity, bore: pint.Quantity, rod: pint
     return out(v * (cap if _side(side) is Side.CAP else ann), Kind.FLOW)
 
 
-def intensified_rod_pressure(cap_pressure: pint.Quantity, bore: pint.Quantity,
-                             rod: pint.Quantity) -> pint.Quantity:
+def intensified_rod_pressure(
+    cap_pressure: pint.Quantity, bore: pint.Quantity, rod: pint.Quantity
+) -> pint.Quantity:
     """Rod-side pressure when the cap side is pressurised and the rod side is blocked:
     p_rod = p_cap · A_cap / A_annulus.
 

@@ -71,8 +71,10 @@ def _loglog(nu_cst: float) -> float:
 
 
 def viscosity_curve(
-    viscosity_1: pint.Quantity, temperature_1: pint.Quantity,
-    viscosity_2: pint.Quantity, temperature_2: pint.Quantity,
+    viscosity_1: pint.Quantity,
+    temperature_1: pint.Quantity,
+    viscosity_2: pint.Quantity,
+    temperature_2: pint.Quantity,
 ) -> ViscosityCurve:
     """Fit the ASTM D341 line through two points, usually the data sheet's 40 °C and 100 °C values."""
     t1, t2 = kelvin(temperature_1, "first temperature"), kelvin(temperature_2, "second temperature")
@@ -164,9 +166,15 @@ class ViscosityWindow:
     cold_start_max: pint.Quantity = COLD_START_MAX_VISCOSITY
 
     def __post_init__(self) -> None:
-        bounds = [si(q, Kind.VISCOSITY, name, positive=True) for name, q in (
-            ("minimum viscosity", self.minimum), ("optimum low", self.optimum_low),
-            ("optimum high", self.optimum_high), ("cold-start maximum", self.cold_start_max))]
+        bounds = [
+            si(q, Kind.VISCOSITY, name, positive=True)
+            for name, q in (
+                ("minimum viscosity", self.minimum),
+                ("optimum low", self.optimum_low),
+                ("optimum high", self.optimum_high),
+                ("cold-start maximum", self.cold_start_max),
+            )
+        ]
         if bounds != sorted(bounds):
             raise OutOfRangeError(
                 "viscosity window must run minimum ≤ optimum low ≤ optimum high ≤ cold-start maximum"
@@ -187,23 +195,33 @@ def check_viscosity(viscosity: pint.Quantity, window: ViscosityWindow = DEFAULT_
     nu = si(viscosity, Kind.VISCOSITY, "oil viscosity", positive=True)
     oil = f"oil at {nu / _CST:.3g} cSt"
     if nu < si(window.minimum, Kind.VISCOSITY, "minimum viscosity"):
-        return Check(Level.WARNING, f"{oil} is thinner than the pump's minimum "
-                                    f"{shown(window.minimum)}: film too thin, leakage readings run high")
+        return Check(
+            Level.WARNING,
+            f"{oil} is thinner than the pump's minimum "
+            f"{shown(window.minimum)}: film too thin, leakage readings run high",
+        )
     if nu > si(window.cold_start_max, Kind.VISCOSITY, "cold-start maximum"):
-        return Check(Level.WARNING, f"{oil} is thicker than the pump's cold-start limit "
-                                    f"{shown(window.cold_start_max)}: risk of inlet cavitation; "
-                                    f"warm the oil first")
+        return Check(
+            Level.WARNING,
+            f"{oil} is thicker than the pump's cold-start limit "
+            f"{shown(window.cold_start_max)}: risk of inlet cavitation; "
+            f"warm the oil first",
+        )
     low = si(window.optimum_low, Kind.VISCOSITY, "optimum low")
     high = si(window.optimum_high, Kind.VISCOSITY, "optimum high")
     if not low <= nu <= high:
-        return Check(Level.NOTE, f"{oil} is outside the optimum {shown(window.optimum_low)}–"
-                                 f"{shown(window.optimum_high)}: compare readings with a baseline "
-                                 f"at the same temperature")
+        return Check(
+            Level.NOTE,
+            f"{oil} is outside the optimum {shown(window.optimum_low)}–"
+            f"{shown(window.optimum_high)}: compare readings with a baseline "
+            f"at the same temperature",
+        )
     return Check(Level.OK, f"{oil} is within the optimum viscosity")
 
 
-def check_test_temperature(temperature: pint.Quantity,
-                           minimum: pint.Quantity = MIN_TEST_TEMPERATURE) -> Check:
+def check_test_temperature(
+    temperature: pint.Quantity, minimum: pint.Quantity = MIN_TEST_TEMPERATURE
+) -> Check:
     """Whether the oil is warm enough for a leakage or efficiency test to mean anything.
 
     Cold oil is thick and leaks little, so a worn pump can pass a cold test; readings are
@@ -211,8 +229,11 @@ def check_test_temperature(temperature: pint.Quantity,
     """
     t = kelvin(temperature, "oil temperature")
     if t < kelvin(minimum, "minimum test temperature"):
-        return Check(Level.WARNING, f"oil at {shown(temperature)} is too cold for a valid test: "
-                                    f"run the machine until it reaches at least {shown(minimum)}")
+        return Check(
+            Level.WARNING,
+            f"oil at {shown(temperature)} is too cold for a valid test: "
+            f"run the machine until it reaches at least {shown(minimum)}",
+        )
     return Check(Level.OK, f"oil at {shown(temperature)} is warm enough to test")
 
 

@@ -53,15 +53,20 @@ def _class(accuracy_class: float) -> float:
 
 def _percent_of_span(accuracy_class: float) -> float:
     """An accuracy figure as % of span from any standard (EN 837-1 class, ASME grade…)."""
-    if isinstance(accuracy_class, bool) or not isinstance(accuracy_class, (int, float)) \
-            or not 0 < accuracy_class <= 10:
-        raise OutOfRangeError(f"accuracy class must be a percentage of span above 0 and at most 10; "
-                              f"got {accuracy_class!r}")
+    if (
+        isinstance(accuracy_class, bool)
+        or not isinstance(accuracy_class, (int, float))
+        or not 0 < accuracy_class <= 10
+    ):
+        raise OutOfRangeError(
+            f"accuracy class must be a percentage of span above 0 and at most 10; got {accuracy_class!r}"
+        )
     return float(accuracy_class)
 
 
-def limit_of_error(accuracy_class: float, full_scale: pint.Quantity,
-                   scale_start: pint.Quantity | None = None) -> pint.Quantity:
+def limit_of_error(
+    accuracy_class: float, full_scale: pint.Quantity, scale_start: pint.Quantity | None = None
+) -> pint.Quantity:
     """EN 837-1 limit of error: class % of the span (full scale − scale start).
 
     The span, not the reading, sets the error, so a compound gauge (−1 to +9 bar) has a span
@@ -90,8 +95,9 @@ def combined_uncertainty(*uncertainties: pint.Quantity) -> pint.Quantity:
     return out(math.sqrt(total), Kind.PRESSURE)
 
 
-def probability_beyond(reading: pint.Quantity, limit: pint.Quantity, standard_uncertainty: pint.Quantity,
-                       above: bool = True) -> float:
+def probability_beyond(
+    reading: pint.Quantity, limit: pint.Quantity, standard_uncertainty: pint.Quantity, above: bool = True
+) -> float:
     """Probability that the true pressure lies beyond ``limit`` (above it, or below with
     ``above=False``), given the reading and its standard uncertainty.
 
@@ -109,8 +115,9 @@ def probability_beyond(reading: pint.Quantity, limit: pint.Quantity, standard_un
     return 0.5 * math.erfc(distance / (u * _SQRT2))
 
 
-def _working_and_peak(working_pressure: pint.Quantity,
-                      highest_pressure: pint.Quantity | None) -> tuple[float, float]:
+def _working_and_peak(
+    working_pressure: pint.Quantity, highest_pressure: pint.Quantity | None
+) -> tuple[float, float]:
     """Working and highest gauge pressure in Pa; the highest is never below the working pressure."""
     work = si(working_pressure, Kind.PRESSURE, "working pressure")
     if highest_pressure is None:
@@ -118,9 +125,12 @@ def _working_and_peak(working_pressure: pint.Quantity,
     return work, max(work, si(highest_pressure, Kind.PRESSURE, "highest pressure"))
 
 
-def smallest_gauge(working_pressure: pint.Quantity, highest_pressure: pint.Quantity | None = None,
-                   ranges_bar: tuple[float, ...] = STANDARD_RANGES_BAR,
-                   fluctuating: bool = False) -> pint.Quantity:
+def smallest_gauge(
+    working_pressure: pint.Quantity,
+    highest_pressure: pint.Quantity | None = None,
+    ranges_bar: tuple[float, ...] = STANDARD_RANGES_BAR,
+    fluctuating: bool = False,
+) -> pint.Quantity:
     """The smallest standard 0–X bar gauge that reads ``working_pressure`` within 3/4 of its
     scale (2/3 if it fluctuates) and whose full scale exceeds ``highest_pressure``: the
     smallest suitable range gives the smallest absolute error."""
@@ -135,10 +145,14 @@ def smallest_gauge(working_pressure: pint.Quantity, highest_pressure: pint.Quant
     raise OutOfRangeError(f"no standard gauge up to {max(ranges_bar):g} bar suits {shown(working_pressure)}")
 
 
-def gauge_suitability(full_scale: pint.Quantity, working_pressure: pint.Quantity,
-                      highest_pressure: pint.Quantity | None = None,
-                      scale_start: pint.Quantity | None = None,
-                      accuracy_class: float | None = None, fluctuating: bool = False) -> Check:
+def gauge_suitability(
+    full_scale: pint.Quantity,
+    working_pressure: pint.Quantity,
+    highest_pressure: pint.Quantity | None = None,
+    scale_start: pint.Quantity | None = None,
+    accuracy_class: float | None = None,
+    fluctuating: bool = False,
+) -> Check:
     """Whether a gauge suits a test point.
 
     * ERROR if the point can reach the full scale (or, on a vacuum or compound gauge, go
@@ -167,20 +181,35 @@ def gauge_suitability(full_scale: pint.Quantity, working_pressure: pint.Quantity
             advice = f"; use a 0–{shown(better)} gauge"
         except OutOfRangeError:
             advice = ""
-        found.append(Check(Level.ERROR, f"the point can reach {shown(reach)}, beyond the scale of "
-                                        f"{gauge}: it would be overranged{advice}"))
+        found.append(
+            Check(
+                Level.ERROR,
+                f"the point can reach {shown(reach)}, beyond the scale of "
+                f"{gauge}: it would be overranged{advice}",
+            )
+        )
     share = FLUCTUATING_FRACTION if fluctuating else STEADY_FRACTION
     working_side = top if top > 0 else -start  # how far the scale reaches on the side being read
     if not overranged and abs(work) > share * working_side:
-        found.append(Check(Level.WARNING, f"working pressure {shown(working_pressure)} is beyond "
-                                          f"{'2/3' if fluctuating else '3/4'} of {gauge}'s scale: "
-                                          f"choose a larger range"))
+        found.append(
+            Check(
+                Level.WARNING,
+                f"working pressure {shown(working_pressure)} is beyond "
+                f"{'2/3' if fluctuating else '3/4'} of {gauge}'s scale: "
+                f"choose a larger range",
+            )
+        )
     if abs(work) < LOW_READING_FRACTION * span:
         detail = ""
         if class_error is not None and work != 0:
             share_of_reading = 100.0 * class_error / abs(work)
             detail = f" (±{class_error / 1e5:.3g} bar, {share_of_reading:.0f} % of the reading)"
         advice = "" if overranged else "; a smaller range reads it better"
-        found.append(Check(Level.WARNING, f"working pressure {shown(working_pressure)} is below a quarter of "
-                                          f"{gauge}'s span: the relative error is large{detail}{advice}"))
+        found.append(
+            Check(
+                Level.WARNING,
+                f"working pressure {shown(working_pressure)} is below a quarter of "
+                f"{gauge}'s span: the relative error is large{detail}{advice}",
+            )
+        )
     return Check.combine(found, f"{gauge} suits a working pressure of {shown(working_pressure)}")

@@ -30,9 +30,12 @@ def _area(diameter: pint.Quantity) -> float:
     return math.pi / 4.0 * d * d
 
 
-def orifice_flow(diameter: pint.Quantity, pressure_drop: pint.Quantity,
-                 discharge_coefficient: Ratio = SHARP_EDGED_CD,
-                 density: pint.Quantity = OIL_DENSITY) -> pint.Quantity:
+def orifice_flow(
+    diameter: pint.Quantity,
+    pressure_drop: pint.Quantity,
+    discharge_coefficient: Ratio = SHARP_EDGED_CD,
+    density: pint.Quantity = OIL_DENSITY,
+) -> pint.Quantity:
     """Q = Cd · A · √(2 Δp / ρ): the orifice equation for turbulent flow through a short hole.
 
     Valid when the flow through the hole is turbulent (high pressure drop, short hole); at low
@@ -44,9 +47,12 @@ def orifice_flow(diameter: pint.Quantity, pressure_drop: pint.Quantity,
     return out(cd * _area(diameter) * math.sqrt(2.0 * dp / rho), Kind.FLOW)
 
 
-def orifice_pressure_drop(flow: pint.Quantity, diameter: pint.Quantity,
-                          discharge_coefficient: Ratio = SHARP_EDGED_CD,
-                          density: pint.Quantity = OIL_DENSITY) -> pint.Quantity:
+def orifice_pressure_drop(
+    flow: pint.Quantity,
+    diameter: pint.Quantity,
+    discharge_coefficient: Ratio = SHARP_EDGED_CD,
+    density: pint.Quantity = OIL_DENSITY,
+) -> pint.Quantity:
     """Δp = (ρ / 2) · (Q / (Cd · A))²: the orifice equation solved for the pressure drop."""
     q = si(flow, Kind.FLOW, "flow", non_negative=True)
     rho = si(density, Kind.DENSITY, "oil density", positive=True)
@@ -55,9 +61,12 @@ def orifice_pressure_drop(flow: pint.Quantity, diameter: pint.Quantity,
     return out(rho / 2.0 * velocity * velocity, Kind.PRESSURE)
 
 
-def orifice_diameter(flow: pint.Quantity, pressure_drop: pint.Quantity,
-                     discharge_coefficient: Ratio = SHARP_EDGED_CD,
-                     density: pint.Quantity = OIL_DENSITY) -> pint.Quantity:
+def orifice_diameter(
+    flow: pint.Quantity,
+    pressure_drop: pint.Quantity,
+    discharge_coefficient: Ratio = SHARP_EDGED_CD,
+    density: pint.Quantity = OIL_DENSITY,
+) -> pint.Quantity:
     """Hole diameter that passes a flow at a pressure drop:
     A = Q / (Cd · √(2 Δp / ρ)), d = √(4 A / π).
 
@@ -71,9 +80,12 @@ def orifice_diameter(flow: pint.Quantity, pressure_drop: pint.Quantity,
     return out(math.sqrt(4.0 * area / math.pi), Kind.LENGTH)
 
 
-def restriction_pressure_drop(flow: pint.Quantity, known_flow: pint.Quantity,
-                              known_pressure_drop: pint.Quantity,
-                              exponent: float = TURBULENT_EXPONENT) -> pint.Quantity:
+def restriction_pressure_drop(
+    flow: pint.Quantity,
+    known_flow: pint.Quantity,
+    known_pressure_drop: pint.Quantity,
+    exponent: float = TURBULENT_EXPONENT,
+) -> pint.Quantity:
     """Pressure drop across a filter, line or valve at a flow, scaled from one known point:
     Δp = Δp_known · (Q / Q_known)^n.
 

@@ -27,8 +27,9 @@ def hydraulic_power(pressure: pint.Quantity, flow: pint.Quantity) -> pint.Quanti
     return out(si(pressure, Kind.PRESSURE, "pressure") * si(flow, Kind.FLOW, "flow"), Kind.POWER)
 
 
-def pump_input_power(pressure: pint.Quantity, flow: pint.Quantity,
-                     overall_efficiency: Ratio) -> pint.Quantity:
+def pump_input_power(
+    pressure: pint.Quantity, flow: pint.Quantity, overall_efficiency: Ratio
+) -> pint.Quantity:
     """Shaft power the prime mover must supply, P_in = p · Q / ηt.
 
     ``flow`` is the pump's actual (measured) outlet flow; ηt is the overall efficiency, which
@@ -38,8 +39,9 @@ def pump_input_power(pressure: pint.Quantity, flow: pint.Quantity,
     return out(si(pressure, Kind.PRESSURE, "pressure") * si(flow, Kind.FLOW, "flow") / eta, Kind.POWER)
 
 
-def motor_output_power(pressure_drop: pint.Quantity, flow: pint.Quantity,
-                       overall_efficiency: Ratio) -> pint.Quantity:
+def motor_output_power(
+    pressure_drop: pint.Quantity, flow: pint.Quantity, overall_efficiency: Ratio
+) -> pint.Quantity:
     """Shaft power a hydraulic motor delivers, P_out = Δp · Q · ηt, with Q the flow fed to it."""
     eta = fraction(overall_efficiency, "overall efficiency")
     dp = si(pressure_drop, Kind.PRESSURE, "pressure drop")

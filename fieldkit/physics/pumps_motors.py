@@ -37,8 +37,10 @@ def theoretical_flow(displacement: pint.Quantity, speed: pint.Quantity) -> pint.
 
 # --- efficiencies, pump --------------------------------------------------------------------
 
-def pump_volumetric_efficiency(actual_flow: pint.Quantity, displacement: pint.Quantity,
-                               speed: pint.Quantity) -> pint.Quantity:
+
+def pump_volumetric_efficiency(
+    actual_flow: pint.Quantity, displacement: pint.Quantity, speed: pint.Quantity
+) -> pint.Quantity:
     """ηv = Q_actual / (V · n): the share of the displaced oil that reaches the outlet; the
     rest leaks back inside the pump. Measured data can give slightly over 100 %; it is returned
     as measured so the caller can judge the meters."""
@@ -46,8 +48,9 @@ def pump_volumetric_efficiency(actual_flow: pint.Quantity, displacement: pint.Qu
     return percent(q / (_v(displacement) * _n(speed)))
 
 
-def pump_hydromechanical_efficiency(pressure_difference: pint.Quantity, displacement: pint.Quantity,
-                                    input_torque: pint.Quantity) -> pint.Quantity:
+def pump_hydromechanical_efficiency(
+    pressure_difference: pint.Quantity, displacement: pint.Quantity, input_torque: pint.Quantity
+) -> pint.Quantity:
     """ηhm = (Δp · V / 2π) / T_in: the torque the pressure alone would need over the torque the
     shaft actually takes; friction and churning make up the difference."""
     dp = si(pressure_difference, Kind.PRESSURE, "pressure difference", non_negative=True)
@@ -55,27 +58,35 @@ def pump_hydromechanical_efficiency(pressure_difference: pint.Quantity, displace
     return percent(dp * _v(displacement) / _TWO_PI / torque)
 
 
-def pump_overall_efficiency(pressure_difference: pint.Quantity, actual_flow: pint.Quantity,
-                            input_torque: pint.Quantity, speed: pint.Quantity) -> pint.Quantity:
+def pump_overall_efficiency(
+    pressure_difference: pint.Quantity,
+    actual_flow: pint.Quantity,
+    input_torque: pint.Quantity,
+    speed: pint.Quantity,
+) -> pint.Quantity:
     """ηt = Δp · Q / (T · 2π · n): hydraulic power out over shaft power in (= ηv · ηhm)."""
-    hydraulic = (si(pressure_difference, Kind.PRESSURE, "pressure difference", non_negative=True)
-                 * si(actual_flow, Kind.FLOW, "pump flow", non_negative=True))
+    hydraulic = si(pressure_difference, Kind.PRESSURE, "pressure difference", non_negative=True) * si(
+        actual_flow, Kind.FLOW, "pump flow", non_negative=True
+    )
     shaft = si(input_torque, Kind.TORQUE, "input torque", positive=True) * _TWO_PI * _n(speed)
     return percent(hydraulic / shaft)
 
 
 # --- efficiencies, motor (each ratio the other way up) ------------------------------------
 
-def motor_volumetric_efficiency(input_flow: pint.Quantity, displacement: pint.Quantity,
-                                speed: pint.Quantity) -> pint.Quantity:
+
+def motor_volumetric_efficiency(
+    input_flow: pint.Quantity, displacement: pint.Quantity, speed: pint.Quantity
+) -> pint.Quantity:
     """ηv = V · n / Q_in: the share of the oil fed in that turns the shaft; the rest leaks past
     to the case or the other port."""
     q = si(input_flow, Kind.FLOW, "motor inlet flow", positive=True)
     return percent(_v(displacement) * si(speed, Kind.SPEED, "shaft speed", non_negative=True) / q)
 
 
-def motor_hydromechanical_efficiency(pressure_difference: pint.Quantity, displacement: pint.Quantity,
-                                     output_torque: pint.Quantity) -> pint.Quantity:
+def motor_hydromechanical_efficiency(
+    pressure_difference: pint.Quantity, displacement: pint.Quantity, output_torque: pint.Quantity
+) -> pint.Quantity:
     """ηhm = T_out / (Δp · V / 2π): the torque delivered over the torque the pressure difference
     across the motor could give with no friction."""
     dp = si(pressure_difference, Kind.PRESSURE, "pressure difference", positive=True)
@@ -83,21 +94,33 @@ def motor_hydromechanical_efficiency(pressure_difference: pint.Quantity, displac
     return percent(torque * _TWO_PI / (dp * _v(displacement)))
 
 
-def motor_overall_efficiency(pressure_difference: pint.Quantity, input_flow: pint.Quantity,
-                             output_torque: pint.Quantity, speed: pint.Quantity) -> pint.Quantity:
+def motor_overall_efficiency(
+    pressure_difference: pint.Quantity,
+    input_flow: pint.Quantity,
+    output_torque: pint.Quantity,
+    speed: pint.Quantity,
+) -> pint.Quantity:
     """ηt = T · 2π · n / (Δp · Q): shaft power out over hydraulic power in (= ηv · ηhm)."""
-    hydraulic = (si(pressure_difference, Kind.PRESSURE, "pressure difference", positive=True)
-                 * si(input_flow, Kind.FLOW, "motor inlet flow", positive=True))
-    shaft = (si(output_torque, Kind.TORQUE, "output torque", non_negative=True) * _TWO_PI
-             * si(speed, Kind.SPEED, "shaft speed", non_negative=True))
+    hydraulic = si(pressure_difference, Kind.PRESSURE, "pressure difference", positive=True) * si(
+        input_flow, Kind.FLOW, "motor inlet flow", positive=True
+    )
+    shaft = (
+        si(output_torque, Kind.TORQUE, "output torque", non_negative=True)
+        * _TWO_PI
+        * si(speed, Kind.SPEED, "shaft speed", non_negative=True)
+    )
     return percent(shaft / hydraulic)
 
 
 # --- field tests --------------------------------------------------------------------------
 
-def volumetric_efficiency_from_flow_test(no_load_flow: pint.Quantity, no_load_speed: pint.Quantity,
-                                         loaded_flow: pint.Quantity,
-                                         loaded_speed: pint.Quantity) -> pint.Quantity:
+
+def volumetric_efficiency_from_flow_test(
+    no_load_flow: pint.Quantity,
+    no_load_speed: pint.Quantity,
+    loaded_flow: pint.Quantity,
+    loaded_speed: pint.Quantity,
+) -> pint.Quantity:
     """ηv from a flow meter test: loaded flow per revolution over no-load flow per revolution.
 
     Engines and electric motors slow down under load, so comparing raw flows would blame the
@@ -118,8 +141,12 @@ class Leakage:
     fraction_of_theoretical: pint.Quantity
 
 
-def case_drain_leakage(case_drain_flow: pint.Quantity, displacement: pint.Quantity, speed: pint.Quantity,
-                       other_case_flow: pint.Quantity | None = None) -> Leakage:
+def case_drain_leakage(
+    case_drain_flow: pint.Quantity,
+    displacement: pint.Quantity,
+    speed: pint.Quantity,
+    other_case_flow: pint.Quantity | None = None,
+) -> Leakage:
     """Internal leakage estimated from case drain flow, and as a share of theoretical flow.
 
     Case drain is the leakage that escapes to the housing; leakage straight from the high to the
@@ -138,6 +165,7 @@ def case_drain_leakage(case_drain_flow: pint.Quantity, displacement: pint.Quanti
 
 # --- motor output -------------------------------------------------------------------------
 
+
 @dataclass(frozen=True, slots=True)
 class MotorOutput:
     """Torque and speed a hydraulic motor gives for a pressure difference and an inlet flow."""
@@ -146,8 +174,9 @@ class MotorOutput:
     speed: pint.Quantity
 
 
-def motor_torque(pressure_difference: pint.Quantity, displacement: pint.Quantity,
-                 hydromechanical_efficiency: Ratio = 1.0) -> pint.Quantity:
+def motor_torque(
+    pressure_difference: pint.Quantity, displacement: pint.Quantity, hydromechanical_efficiency: Ratio = 1.0
+) -> pint.Quantity:
     """T = Δp · V / (2π) · ηhm. ``pressure_difference`` is inlet minus outlet; a gauge on the
     inlet alone overstates the torque by the return back pressure."""
     dp = si(pressure_difference, Kind.PRESSURE, "pressure difference")
@@ -155,16 +184,22 @@ def motor_torque(pressure_difference: pint.Quantity, displacement: pint.Quantity
     return out(dp * _v(displacement) / _TWO_PI * eta, Kind.TORQUE)
 
 
-def motor_speed(flow: pint.Quantity, displacement: pint.Quantity,
-                volumetric_efficiency: Ratio = 1.0) -> pint.Quantity:
+def motor_speed(
+    flow: pint.Quantity, displacement: pint.Quantity, volumetric_efficiency: Ratio = 1.0
+) -> pint.Quantity:
     """n = Q · ηv / V: the oil that does not leak past, divided by what one revolution swallows."""
     q = si(flow, Kind.FLOW, "motor inlet flow", non_negative=True)
     eta = fraction(volumetric_efficiency, "volumetric efficiency")
     return out(q * eta / _v(displacement), Kind.SPEED)
 
 
-def motor_output(pressure_difference: pint.Quantity, flow: pint.Quantity, displacement: pint.Quantity,
-                 volumetric_efficiency: Ratio = 1.0, hydromechanical_efficiency: Ratio = 1.0) -> MotorOutput:
+def motor_output(
+    pressure_difference: pint.Quantity,
+    flow: pint.Quantity,
+    displacement: pint.Quantity,
+    volumetric_efficiency: Ratio = 1.0,
+    hydromechanical_efficiency: Ratio = 1.0,
+) -> MotorOutput:
     """Torque and speed together for one displacement."""
     return MotorOutput(
         motor_torque(pressure_difference, displacement, hydromechanical_efficiency),
@@ -172,10 +207,14 @@ def motor_output(pressure_difference: pint.Quantity, flow: pint.Quantity, displa
     )
 
 
-def two_speed_motor_output(pressure_difference: pint.Quantity, flow: pint.Quantity,
-                           full_displacement: pint.Quantity, displacement_ratio: Ratio,
-                           volumetric_efficiency: Ratio = 1.0,
-                           hydromechanical_efficiency: Ratio = 1.0) -> MotorOutput:
+def two_speed_motor_output(
+    pressure_difference: pint.Quantity,
+    flow: pint.Quantity,
+    full_displacement: pint.Quantity,
+    displacement_ratio: Ratio,
+    volumetric_efficiency: Ratio = 1.0,
+    hydromechanical_efficiency: Ratio = 1.0,
+) -> MotorOutput:
     """A two-speed (or variable) motor shifted to a smaller displacement V · r: the same flow
     turns it 1/r times faster and the same pressure gives only r times the torque.
 
@@ -188,5 +227,6 @@ def two_speed_motor_output(pressure_difference: pint.Quantity, flow: pint.Quanti
     q = si(flow, Kind.FLOW, "motor inlet flow", non_negative=True)
     eta_v = fraction(volumetric_efficiency, "volumetric efficiency")
     eta_hm = fraction(hydromechanical_efficiency, "hydromechanical efficiency")
-    return MotorOutput(out(dp * reduced / _TWO_PI * eta_hm, Kind.TORQUE),
-                       out(q * eta_v / reduced, Kind.SPEED))
+    return MotorOutput(
+        out(dp * reduced / _TWO_PI * eta_hm, Kind.TORQUE), out(q * eta_v / reduced, Kind.SPEED)
+    )

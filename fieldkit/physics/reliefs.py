@@ -60,10 +60,12 @@ class ReliefValve:
                 f"relief {self.name!r}: drain must be 'internal' or 'external'; got {self.drain!r}"
             ) from None
         label = f"relief {self.name!r}"
-        object.__setattr__(self, "_setting_pa",
-                           si(self.setting, Kind.PRESSURE, f"{label} setting", positive=True))
-        object.__setattr__(self, "_override_pa",
-                           si(self.override, Kind.PRESSURE, f"{label} override", non_negative=True))
+        object.__setattr__(
+            self, "_setting_pa", si(self.setting, Kind.PRESSURE, f"{label} setting", positive=True)
+        )
+        object.__setattr__(
+            self, "_override_pa", si(self.override, Kind.PRESSURE, f"{label} override", non_negative=True)
+        )
 
     def _opens_at(self, back_pa: float, full_flow: bool) -> float:
         own = self._setting_pa + (self._override_pa if full_flow else 0.0)
@@ -137,8 +139,9 @@ def _opens_at(node: Arrangement, back_pa: float, full_flow: bool) -> float:
     return _opens_at(_lowest(node, back_pa), back_pa, full_flow)
 
 
-def opening_pressure(arrangement: Arrangement, back_pressure: pint.Quantity | None = None,
-                     at_full_flow: bool = False) -> pint.Quantity:
+def opening_pressure(
+    arrangement: Arrangement, back_pressure: pint.Quantity | None = None, at_full_flow: bool = False
+) -> pint.Quantity:
     """Pressure upstream of a relief arrangement when oil starts to pass (or, with
     ``at_full_flow``, when the whole pump flow passes)."""
     return out(_opens_at(arrangement, _back(back_pressure), at_full_flow), Kind.PRESSURE)
@@ -163,8 +166,15 @@ class DeadheadResult:
         return f"pump side reads {shown(self.upstream)}; flow passes {path}"
 
 
-def _solve(node: Arrangement, back_pa: float | None, inlet_pa: float | None, flowing: bool,
-           full_flow: bool, points: dict[str, float | None], path: list[ReliefValve]) -> None:
+def _solve(
+    node: Arrangement,
+    back_pa: float | None,
+    inlet_pa: float | None,
+    flowing: bool,
+    full_flow: bool,
+    points: dict[str, float | None],
+    path: list[ReliefValve],
+) -> None:
     if isinstance(node, ReliefValve):
         points[node.name] = inlet_pa
         if flowing:
@@ -193,8 +203,9 @@ def _valve_names(node: Arrangement) -> list[str]:
     return [name for child in children for name in _valve_names(child)]
 
 
-def deadhead(arrangement: Arrangement, return_pressure: pint.Quantity | None = None,
-             at_full_flow: bool = True) -> DeadheadResult:
+def deadhead(
+    arrangement: Arrangement, return_pressure: pint.Quantity | None = None, at_full_flow: bool = True
+) -> DeadheadResult:
     """Expected readings when the pump is deadheaded and its whole flow goes over the reliefs.
 
     Args:

@@ -51,8 +51,10 @@ from fieldkit.units import DisplaySystem, Kind, format_value, to_canonical
 _FALLBACK_GENERAL = CautionNote(
     id=GENERAL_CAUTION_ID,
     title="The machine's own procedures come first",
-    text=("This card is an aid, not a procedure. The machine maker's service instructions, the site's "
-          "permit and lockout rules and local regulations take precedence over anything printed here."),
+    text=(
+        "This card is an aid, not a procedure. The machine maker's service instructions, the site's "
+        "permit and lockout rules and local regulations take precedence over anything printed here."
+    ),
     severity="notice",
     source="common practice",
     because="always",
@@ -91,12 +93,16 @@ def _check_inputs(visit: Visit, profile: MachineProfile, diagnosis: Diagnosis) -
     if not visit.current_readings():
         raise ReportError(f"{where} has no readings: a job card needs at least one reading")
     if visit.machine != profile.id:
-        raise ReportError(f"{where} is for machine '{visit.machine}', but the profile given is '{profile.id}'")
+        raise ReportError(
+            f"{where} is for machine '{visit.machine}', but the profile given is '{profile.id}'"
+        )
     if diagnosis.visit_id != visit.id:
         raise ReportError(f"{where}: the diagnosis given belongs to visit '{diagnosis.visit_id}'")
     if not diagnosis.checks:
-        raise ReportError(f"{where}: none of its readings is at a test point of machine '{profile.id}'"
-                          + (f" ({'; '.join(diagnosis.notes)})" if diagnosis.notes else ""))
+        raise ReportError(
+            f"{where}: none of its readings is at a test point of machine '{profile.id}'"
+            + (f" ({'; '.join(diagnosis.notes)})" if diagnosis.notes else "")
+        )
 
 
 def _header(visit: Visit, profile: MachineProfile, system: DisplaySystem) -> Header:
@@ -125,7 +131,11 @@ def _hours(value: float | None) -> str:
 
 
 def _oil_temperature(visit: Visit, system: DisplaySystem) -> str:
-    temps = [r.condition.oil_temperature for r in visit.current_readings() if r.condition.oil_temperature is not None]
+    temps = [
+        r.condition.oil_temperature
+        for r in visit.current_readings()
+        if r.condition.oil_temperature is not None
+    ]
     if not temps:
         return "not recorded"
     coolest = min(temps, key=lambda q: to_canonical(q, Kind.TEMPERATURE))
@@ -145,7 +155,9 @@ _VERDICT_TEXT = {
 
 def _readings(visit: Visit, diagnosis: Diagnosis, uses: dict[str, GaugeUse]) -> list[ReadingRow]:
     notes = {r.id: plain(r.note).strip() for r in visit.readings}
-    repeat_advice = {t.test_point: t.gauge_advice for t in diagnosis.next_tests if t.repeat and t.gauge_advice}
+    repeat_advice = {
+        t.test_point: t.gauge_advice for t in diagnosis.next_tests if t.repeat and t.gauge_advice
+    }
     rows = []
     for i, c in enumerate(diagnosis.checks, start=1):
         band = None
@@ -153,14 +165,25 @@ def _readings(visit: Visit, diagnosis: Diagnosis, uses: dict[str, GaugeUse]) -> 
             band = make_band(c.value_num, c.uncertainty_num, c.low_num, c.high_num, c.unit)
         use = uses.get(c.reading_id, GaugeUse())
         share = _low_share(c, use)
-        rows.append(ReadingRow(
-            number=i, reading_id=c.reading_id, test_point=one_line(c.test_point_label), circuit=c.circuit,
-            condition=one_line(c.condition), reading=one_line(c.value), expected=one_line(c.expected),
-            uncertainty=c.uncertainty, gauge=one_line(c.gauge), verdict=c.verdict,
-            verdict_text=_VERDICT_TEXT[c.verdict],
-            remark=_remark(c, repeat_advice.get(c.test_point, ""), use, bool(share)),
-            note=notes.get(c.reading_id, ""), band=band, low_share=share,
-        ))
+        rows.append(
+            ReadingRow(
+                number=i,
+                reading_id=c.reading_id,
+                test_point=one_line(c.test_point_label),
+                circuit=c.circuit,
+                condition=one_line(c.condition),
+                reading=one_line(c.value),
+                expected=one_line(c.expected),
+                uncertainty=c.uncertainty,
+                gauge=one_line(c.gauge),
+                verdict=c.verdict,
+                verdict_text=_VERDICT_TEXT[c.verdict],
+                remark=_remark(c, repeat_advice.get(c.test_point, ""), use, bool(share)),
+                note=notes.get(c.reading_id, ""),
+                band=band,
+                low_share=share,
+            )
+        )
     return rows
 
 
@@ -180,13 +203,20 @@ def _remark(c: ReadingCheck, repeat_advice: str, use: GaugeUse, share_shown: boo
     """
     parts = []
     if c.verdict is Verdict.INCONCLUSIVE:
-        parts.append(f"Inconclusive: within the gauge's error ({c.uncertainty}) of a limit, so it cannot be "
-                     "called in or out of range.")
-        parts.append(plain(repeat_advice) if repeat_advice else
-                     "Repeat it with a gauge of smaller full scale or better accuracy class.")
+        parts.append(
+            f"Inconclusive: within the gauge's error ({c.uncertainty}) of a limit, so it cannot be "
+            "called in or out of range."
+        )
+        parts.append(
+            plain(repeat_advice)
+            if repeat_advice
+            else "Repeat it with a gauge of smaller full scale or better accuracy class."
+        )
     elif c.verdict is Verdict.NOT_MEASURED:
-        parts.append("The machine profile has no expected range for this condition: compare it with the "
-                     "maker's figure by hand.")
+        parts.append(
+            "The machine profile has no expected range for this condition: compare it with the "
+            "maker's figure by hand."
+        )
     if c.gauge_advice and c.gauge_advice not in repeat_advice:
         # Said briefly only when every concern has a brief form; otherwise in the diagnosis's words.
         brief = bool(use.overrange or use.low) and (share_shown or not use.low) and not use.high_on_scale
@@ -207,19 +237,35 @@ def _findings(findings: list[Finding], readings: list[ReadingRow]) -> Findings:
     for f in flagged:
         action = plain(f.action)
         if f.verdict is Verdict.INCONCLUSIVE and not action:
-            action = ("Too close to a limit to call: repeat the readings it uses with a gauge of smaller "
-                      "span or better accuracy class.")
+            action = (
+                "Too close to a limit to call: repeat the readings it uses with a gauge of smaller "
+                "span or better accuracy class."
+            )
         used = [rows[r] for r in f.readings if r in rows]
-        repeats = (f.verdict is Verdict.INCONCLUSIVE and len(f.readings) == 1 and len(used) == 1
-                   and used[0].verdict is Verdict.INCONCLUSIVE)
-        items.append(FindingItem(
-            title=one_line(f.title), circuit=f.circuit or "", verdict=f.verdict,
-            verdict_text=_VERDICT_TEXT[f.verdict], message=plain(f.message), action=action,
-            readings=[r.number for r in used], repeats_reading=repeats,
-        ))
+        repeats = (
+            f.verdict is Verdict.INCONCLUSIVE
+            and len(f.readings) == 1
+            and len(used) == 1
+            and used[0].verdict is Verdict.INCONCLUSIVE
+        )
+        items.append(
+            FindingItem(
+                title=one_line(f.title),
+                circuit=f.circuit or "",
+                verdict=f.verdict,
+                verdict_text=_VERDICT_TEXT[f.verdict],
+                message=plain(f.message),
+                action=action,
+                readings=[r.number for r in used],
+                repeats_reading=repeats,
+            )
+        )
     in_range = [one_line(f.title) for f in findings if f.verdict is Verdict.IN_RANGE]
-    not_checked = [one_line(f.title) + (f" (needs {', '.join(f.missing)})" if f.missing else "")
-                   for f in findings if f.verdict is Verdict.NOT_MEASURED]
+    not_checked = [
+        one_line(f.title) + (f" (needs {', '.join(f.missing)})" if f.missing else "")
+        for f in findings
+        if f.verdict is Verdict.NOT_MEASURED
+    ]
     return Findings(items, in_range, not_checked)
 
 
@@ -239,12 +285,21 @@ def _faults(faults: list[RankedFault]) -> Faults:
     rows = []
     for rank, f in enumerate(faults[:TOP_FAULTS], start=1):
         more = max(0, len(f.supporting) - MAX_SUPPORTING) + max(0, len(f.against) - MAX_AGAINST)
-        rows.append(FaultRow(
-            rank=rank, title=one_line(f.display_title), probability=f.probability,
-            probability_text=percent(f.probability), supporting=_evidence(f.supporting[:MAX_SUPPORTING]),
-            against=_evidence(f.against[:MAX_AGAINST]), more_evidence=more, confirm=plain(f.confirm),
-            fix=plain(f.fix), parts=[one_line(p) for p in f.parts], healthy=f.id == NO_FAULT,
-        ))
+        rows.append(
+            FaultRow(
+                rank=rank,
+                title=one_line(f.display_title),
+                probability=f.probability,
+                probability_text=percent(f.probability),
+                supporting=_evidence(f.supporting[:MAX_SUPPORTING]),
+                against=_evidence(f.against[:MAX_AGAINST]),
+                more_evidence=more,
+                confirm=plain(f.confirm),
+                fix=plain(f.fix),
+                parts=[one_line(p) for p in f.parts],
+                healthy=f.id == NO_FAULT,
+            )
+        )
     rest = faults[TOP_FAULTS:]
     return Faults(rows, len(rest), sum(f.probability for f in rest))
 
@@ -285,9 +340,11 @@ def _actions(leading: list[RankedFault], findings: list[Finding]) -> list[Action
             add(f.action, f"{one_line(f.title)} (inconclusive finding)")
     generic = [one_line(f.title) for f in unsure if not f.action]
     if generic:
-        add("Repeat the readings behind these inconclusive findings with a gauge of smaller span or better "
+        add(
+            "Repeat the readings behind these inconclusive findings with a gauge of smaller span or better "
             "accuracy class, so the gauge's error no longer straddles the limit: " + "; ".join(generic) + ".",
-            "inconclusive findings")
+            "inconclusive findings",
+        )
     return actions
 
 
@@ -305,18 +362,29 @@ def _parts(leading: list[RankedFault]) -> list[Part]:
 
 def _next_step(diagnosis: Diagnosis, settled: bool) -> tuple[NextStep | None, str]:
     if settled:
-        return None, (f"Settled: the leading fault has {percent(diagnosis.top.probability)} "
-                      f"(at least {percent(SETTLED)}); go to its confirm check.")
+        return None, (
+            f"Settled: the leading fault has {percent(diagnosis.top.probability)} "
+            f"(at least {percent(SETTLED)}); go to its confirm check."
+        )
     if not diagnosis.next_tests:
-        return None, ("Not settled, and no further reading in the rule packs separates the leading faults: "
-                      "use the confirm checks under Recommended actions.")
+        return None, (
+            "Not settled, and no further reading in the rule packs separates the leading faults: "
+            "use the confirm checks under Recommended actions."
+        )
     t: NextTest = diagnosis.next_tests[0]
     minutes = f"{t.minutes:.0f} min"
     step = NextStep(
-        test_point=one_line(t.label), condition=one_line(t.condition), minutes=minutes, repeat=t.repeat,
-        why=plain(t.why), outcomes=[(one_line(k), one_line(v)) for k, v in t.outcomes.items()],
+        test_point=one_line(t.label),
+        condition=one_line(t.condition),
+        minutes=minutes,
+        repeat=t.repeat,
+        why=plain(t.why),
+        outcomes=[(one_line(k), one_line(v)) for k, v in t.outcomes.items()],
     )
-    return step, f"Not settled: the leading fault has {percent(diagnosis.top.probability)}, below {percent(SETTLED)}."
+    return (
+        step,
+        f"Not settled: the leading fault has {percent(diagnosis.top.probability)}, below {percent(SETTLED)}.",
+    )
 
 
 def _conclusion(diagnosis: Diagnosis, settled: bool, has_next: bool) -> str:
@@ -324,15 +392,24 @@ def _conclusion(diagnosis: Diagnosis, settled: bool, has_next: bool) -> str:
         return "No fault could be ranked for this visit."
     top = diagnosis.top
     if settled and top.id == NO_FAULT:
-        return (f"No fault found: the readings fit a healthy machine ({percent(top.probability)}). "
-                "Keep them as a baseline for the next visit.")
+        return (
+            f"No fault found: the readings fit a healthy machine ({percent(top.probability)}). "
+            "Keep them as a baseline for the next visit."
+        )
     if settled:
-        return (f"Most likely fault: {one_line(top.display_title)} ({percent(top.probability)}). "
-                "Confirm it before any repair.")
-    lead = ", ".join(f"{one_line(f.display_title)} {percent(f.probability)}"
-                     for f in [top] + [f for f in diagnosis.faults[1:3] if f.probability >= 0.05])
-    tail = " The next test below is chosen to separate them." if has_next else (
-        " No further reading separates them: use the confirm checks.")
+        return (
+            f"Most likely fault: {one_line(top.display_title)} ({percent(top.probability)}). "
+            "Confirm it before any repair."
+        )
+    lead = ", ".join(
+        f"{one_line(f.display_title)} {percent(f.probability)}"
+        for f in [top] + [f for f in diagnosis.faults[1:3] if f.probability >= 0.05]
+    )
+    tail = (
+        " The next test below is chosen to separate them."
+        if has_next
+        else (" No further reading separates them: use the confirm checks.")
+    )
     return f"Not settled yet. Leading: {lead}.{tail}"
 
 
@@ -351,9 +428,14 @@ def _cautions(notes: list[CautionNote]) -> list[Caution]:
     general = [c for c in notes if c.id == GENERAL_CAUTION_ID]
     rest = [c for c in notes if c.id != GENERAL_CAUTION_ID]
     return [
-        Caution(title=one_line(c.title), text=plain(c.text), severity=c.severity,
-                raised_by="always shown" if c.because == "always" else plain(c.because),
-                source=one_line(c.source), general=c.id == GENERAL_CAUTION_ID)
+        Caution(
+            title=one_line(c.title),
+            text=plain(c.text),
+            severity=c.severity,
+            raised_by="always shown" if c.because == "always" else plain(c.because),
+            source=one_line(c.source),
+            general=c.id == GENERAL_CAUTION_ID,
+        )
         for c in general[:1] + rest
     ]
 

@@ -18,15 +18,20 @@ if TYPE_CHECKING:  # the workbench opens the store; the annotation alone needs n
 
 
 def _outputs(args: argparse.Namespace) -> list[tuple[str, Path]]:
-    wanted = [(fmt, Path(path)) for fmt, path in (("pdf", args.pdf), ("text", args.text), ("markdown", args.markdown))
-              if path is not None]
+    wanted = [
+        (fmt, Path(path))
+        for fmt, path in (("pdf", args.pdf), ("text", args.text), ("markdown", args.markdown))
+        if path is not None
+    ]
     if not wanted:
         raise ReportError("say where to write the job card: --pdf FILE, --text FILE and/or --markdown FILE")
     seen: dict[Path, str] = {}
     for fmt, path in wanted:
         key = path.resolve()
         if key in seen:
-            raise ReportError(f"{path}: named for both the {seen[key]} and the {fmt} job card; give each its own file")
+            raise ReportError(
+                f"{path}: named for both the {seen[key]} and the {fmt} job card; give each its own file"
+            )
         seen[key] = fmt
         if path.is_dir():
             raise ReportError(f"{path}: is a folder; give a file name for the {fmt} job card")
@@ -44,8 +49,10 @@ def run_report(bench: Workbench, args: argparse.Namespace) -> int:
     visit, profile = bench.resolve(args.visit)
     diagnosis = bench.diagnose(visit, profile)
     card = build_report(visit, profile, diagnosis, bench.system)
-    rendered = [(fmt, path, render_card(card, fmt, letter=args.letter, fixed_date=fixed_date))
-                for fmt, path in outputs]
+    rendered = [
+        (fmt, path, render_card(card, fmt, letter=args.letter, fixed_date=fixed_date))
+        for fmt, path in outputs
+    ]
     for fmt, path, data in rendered:
         written = write_atomic(path, data)
         print(f"wrote the {fmt} job card to {written}")

@@ -29,7 +29,9 @@ def _t(text: str, style: str = "") -> Text:
     return Text(text, style=style)
 
 
-def print_diagnosis(result: Diagnosis, visit: Visit, profile: MachineProfile, console: Console | None = None) -> None:
+def print_diagnosis(
+    result: Diagnosis, visit: Visit, profile: MachineProfile, console: Console | None = None
+) -> None:
     console = console or Console(no_color=bool(os.environ.get("NO_COLOR")), highlight=False)
     console.print(_t(f"{profile.name} — job {visit.job_number} — {visit.customer}", "bold"))
 
@@ -37,8 +39,14 @@ def print_diagnosis(result: Diagnosis, visit: Visit, profile: MachineProfile, co
     for col in ("test point", "condition", "reading", "expected", "gauge ±", "verdict"):
         readings.add_column(col)
     for c in result.checks:
-        readings.add_row(_t(c.test_point_label), _t(c.condition), _t(c.value), _t(c.expected), _t(c.uncertainty),
-                         _t(c.verdict.label, VERDICT_STYLE[c.verdict]))
+        readings.add_row(
+            _t(c.test_point_label),
+            _t(c.condition),
+            _t(c.value),
+            _t(c.expected),
+            _t(c.uncertainty),
+            _t(c.verdict.label, VERDICT_STYLE[c.verdict]),
+        )
     console.print(readings)
 
     findings = Table(title="Findings", title_justify="left")

@@ -54,23 +54,30 @@ def _use(m: Measured, system: DisplaySystem) -> GaugeUse | None:
     peak = work if highest is None else max(work, highest)
     overrange = ""
     if work < start:
-        overrange = (f"Gauge unsuited: the reading {_bar(work, system)} lies below the start of its scale "
-                     f"({_bar(start, system)}); use a vacuum or compound gauge that covers it.")
+        overrange = (
+            f"Gauge unsuited: the reading {_bar(work, system)} lies below the start of its scale "
+            f"({_bar(start, system)}); use a vacuum or compound gauge that covers it."
+        )
     elif peak >= top:
         reach = highest if highest is not None and peak > work else work
-        overrange = (f"Gauge too small: the point can reach {_bar(reach, system)}, past its "
-                     f"{format_value(g.full_scale, system)} scale")
+        overrange = (
+            f"Gauge too small: the point can reach {_bar(reach, system)}, past its "
+            f"{format_value(g.full_scale, system)} scale"
+        )
         try:
-            better = smallest_gauge(Q_(work, unit("bar")), Q_(highest, unit("bar")) if highest is not None else None)
+            better = smallest_gauge(
+                Q_(work, unit("bar")), Q_(highest, unit("bar")) if highest is not None else None
+            )
             overrange += f"; use a 0–{format_value(better, spelling='bar')} gauge."
         except FieldkitError:
             overrange += "."
     working_side = top if top > 0 else -start
     high = not overrange and abs(work) > STEADY_FRACTION * working_side
-    low = bool(work) and abs(work) < LOW_READING_FRACTION * span  # at zero a share means nothing: advice stays
+    low = (
+        bool(work) and abs(work) < LOW_READING_FRACTION * span
+    )  # at zero a share means nothing: advice stays
     return GaugeUse(overrange, low, high)
 
 
 def _bar(value: float, system: DisplaySystem) -> str:
     return format_value(Q_(value, unit("bar")), system, kind=Kind.PRESSURE)
-

@@ -35,8 +35,10 @@ def parse_fixed_date(value: datetime | str | None) -> datetime | None:
         try:
             stamp = datetime.fromisoformat(value.strip())
         except ValueError:
-            raise ReportError(f"fixed date '{value}' is not an ISO 8601 date or time "
-                              "(for example 2025-05-14 or 2025-05-14T08:30:00Z)") from None
+            raise ReportError(
+                f"fixed date '{value}' is not an ISO 8601 date or time "
+                "(for example 2025-05-14 or 2025-05-14T08:30:00Z)"
+            ) from None
     if stamp is not None and stamp.tzinfo is None:
         stamp = stamp.replace(tzinfo=UTC)
     return stamp
@@ -48,8 +50,9 @@ def _check_format(fmt: str) -> str:
     return FORMATS[fmt]
 
 
-def render_card(card: JobCard, fmt: str, *, letter: bool = False,
-                fixed_date: datetime | str | None = None) -> bytes:
+def render_card(
+    card: JobCard, fmt: str, *, letter: bool = False, fixed_date: datetime | str | None = None
+) -> bytes:
     """The job card as the bytes of one format. The PDF library is imported only for ``pdf``."""
     _check_format(fmt)
     if fmt == "pdf":
@@ -67,8 +70,11 @@ def render_card(card: JobCard, fmt: str, *, letter: bool = False,
 
 def job_card_name(visit: Visit, fmt: str) -> str:
     """A file name (no folder) from the job number, the machine and the date."""
-    return safe_file_name(export_stem(visit.job_number, visit.machine, visit.date.isoformat()) + " job card",
-                          _check_format(fmt), default="job card")
+    return safe_file_name(
+        export_stem(visit.job_number, visit.machine, visit.date.isoformat()) + " job card",
+        _check_format(fmt),
+        default="job card",
+    )
 
 
 def write_atomic(path: Path, data: bytes) -> Path:
@@ -94,9 +100,17 @@ def write_atomic(path: Path, data: bytes) -> Path:
     return path
 
 
-def write_job_card(visit: Visit, profile: MachineProfile, diagnosis: Diagnosis, folder: Path, fmt: str, *,
-                   letter: bool = False, fixed_date: datetime | str | None = None,
-                   system: DisplaySystem | None = None) -> Path:
+def write_job_card(
+    visit: Visit,
+    profile: MachineProfile,
+    diagnosis: Diagnosis,
+    folder: Path,
+    fmt: str,
+    *,
+    letter: bool = False,
+    fixed_date: datetime | str | None = None,
+    system: DisplaySystem | None = None,
+) -> Path:
     """Write the visit's job card into ``folder`` under a name made from job number and machine.
 
     A card already there for the same job, machine and date is replaced (atomically).
@@ -111,9 +125,17 @@ def write_job_card(visit: Visit, profile: MachineProfile, diagnosis: Diagnosis, 
     return write_atomic(target, render_card(card, fmt, letter=letter, fixed_date=fixed_date))
 
 
-def write_report(path: Path, visit: Visit, profile: MachineProfile, diagnosis: Diagnosis, fmt: str | None = None,
-                 *, letter: bool = False, fixed_date: datetime | str | None = None,
-                 system: DisplaySystem | None = None) -> Path:
+def write_report(
+    path: Path,
+    visit: Visit,
+    profile: MachineProfile,
+    diagnosis: Diagnosis,
+    fmt: str | None = None,
+    *,
+    letter: bool = False,
+    fixed_date: datetime | str | None = None,
+    system: DisplaySystem | None = None,
+) -> Path:
     """Write the job card to exactly ``path`` (the command line's ``--pdf FILE``).
 
     ``fmt`` defaults to the one the suffix names (.pdf, .txt, .md).

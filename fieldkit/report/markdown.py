@@ -55,8 +55,10 @@ def table(headings: list[str], rows: list[list[str]], align: str = "") -> list[s
     """A GFM table; cells are escaped here, so callers pass plain text."""
     align = align or "l" * len(headings)
     marks = {"l": "---", "r": "--:", "c": ":-:"}
-    out = ["| " + " | ".join(inline(h) for h in headings) + " |",
-           "|" + "|".join(marks[a] for a in align) + "|"]
+    out = [
+        "| " + " | ".join(inline(h) for h in headings) + " |",
+        "|" + "|".join(marks[a] for a in align) + "|",
+    ]
     for row in rows:
         if len(row) != len(headings):
             raise ValueError(f"a table row has {len(row)} cells for {len(headings)} headings")
@@ -68,13 +70,33 @@ def render_markdown(card: JobCard) -> str:
     h = card.header
     out = [f"# {inline(card.title)}: job {inline(h.job_number)}", ""]
     out += table(["Field", "Value"], [[f.label, f.value] for f in h.fields()])
-    out += ["", f"*{inline(card.units)}*", "", "## Summary", "", inline(card.conclusion), "", inline(card.counts)]
+    out += [
+        "",
+        f"*{inline(card.units)}*",
+        "",
+        "## Summary",
+        "",
+        inline(card.conclusion),
+        "",
+        inline(card.counts),
+    ]
 
     out += ["", "## Readings", ""]
     out += table(
         ["#", "Test point", "Condition", "Reading", "Expected", "Gauge error", "Gauge", "Verdict"],
-        [[str(r.number), r.test_point, r.condition, r.reading, r.expected, r.uncertainty_text, r.gauge,
-          r.verdict_text] for r in card.readings],
+        [
+            [
+                str(r.number),
+                r.test_point,
+                r.condition,
+                r.reading,
+                r.expected,
+                r.uncertainty_text,
+                r.gauge,
+                r.verdict_text,
+            ]
+            for r in card.readings
+        ],
         align="rlllllll",
     )
     if card.low_on_scale_key:
@@ -87,9 +109,13 @@ def render_markdown(card: JobCard) -> str:
 
     out += ["", "## Findings", ""]
     if card.findings.flagged:
-        out += table(["Verdict", "Finding", "What it shows"],
-                     [[f.verdict_text, f.title + (f" ({f.circuit})" if f.circuit else ""), f.message]
-                      for f in card.findings.flagged])
+        out += table(
+            ["Verdict", "Finding", "What it shows"],
+            [
+                [f.verdict_text, f.title + (f" ({f.circuit})" if f.circuit else ""), f.message]
+                for f in card.findings.flagged
+            ],
+        )
     else:
         out.append("No finding out of range or inconclusive.")
     for summary in (card.findings.in_range_summary, card.findings.not_checked_summary):
@@ -97,13 +123,20 @@ def render_markdown(card: JobCard) -> str:
             out += ["", inline(summary)]
 
     out += ["", "## Likely faults", ""]
-    out += table(["#", "Fault", "Probability", "Evidence"],
-                 [[str(f.rank), f.title, f.probability_text, f.evidence_text] for f in card.faults.top],
-                 align="rlrl")
+    out += table(
+        ["#", "Fault", "Probability", "Evidence"],
+        [[str(f.rank), f.title, f.probability_text, f.evidence_text] for f in card.faults.top],
+        align="rlrl",
+    )
     if card.faults.others_text:
         out += ["", inline(card.faults.others_text)]
-    out += ["", inline("×N: a finding is N times as likely with this fault as on a healthy machine; "
-                       "÷N: N times less likely.")]
+    out += [
+        "",
+        inline(
+            "×N: a finding is N times as likely with this fault as on a healthy machine; "
+            "÷N: N times less likely."
+        ),
+    ]
 
     out += ["", "## Recommended actions", ""]
     if not card.actions:

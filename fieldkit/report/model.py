@@ -31,8 +31,10 @@ MAX_AGAINST = 2
 GENERAL_CAUTION_ID = "general"
 
 #: Explains the share printed after a gauge error, once per card.
-LOW_ON_SCALE_KEY = ("A share after a gauge error, as in ±0.35 bar (6 %): read below a quarter of the gauge's "
-                    "span, where its error is that share of the reading; a smaller range reads it better.")
+LOW_ON_SCALE_KEY = (
+    "A share after a gauge error, as in ±0.35 bar (6 %): read below a quarter of the gauge's "
+    "span, where its error is that share of the reading; a smaller range reads it better."
+)
 
 
 class ReportError(FieldkitError):
@@ -216,7 +218,11 @@ class Findings:
     def not_checked_summary(self) -> str:
         if not self.not_checked:
             return ""
-        return f"{len(self.not_checked)} checks not made (readings missing): " + "; ".join(self.not_checked) + "."
+        return (
+            f"{len(self.not_checked)} checks not made (readings missing): "
+            + "; ".join(self.not_checked)
+            + "."
+        )
 
 
 @dataclass(frozen=True, slots=True)
@@ -350,8 +356,9 @@ class JobCard:
         return [r for r in self.readings if r.remark or r.note]
 
 
-def build_report(visit: Visit, profile: MachineProfile, diagnosis: Diagnosis,
-                 system: DisplaySystem | None = None) -> JobCard:
+def build_report(
+    visit: Visit, profile: MachineProfile, diagnosis: Diagnosis, system: DisplaySystem | None = None
+) -> JobCard:
     """Everything the job card says, from the visit, its machine and its diagnosis.
 
     ``system`` should be the display system the diagnosis was made in (its texts already are);

@@ -118,10 +118,27 @@ class JobCardPDF(FPDF):
             return
         self.set_text_color(*MUTED)
         y = self.t_margin
-        fit(self, self.l_margin, y, self.epw * 0.6, 4, f"{self.card.title}, job {self.card.header.job_number} "
-             "(continued)", TINY, floor=4.5)
-        fit(self, self.l_margin + self.epw * 0.6, y, self.epw * 0.4, 4, self.card.header.machine, TINY,
-             align="R", floor=4.5)
+        fit(
+            self,
+            self.l_margin,
+            y,
+            self.epw * 0.6,
+            4,
+            f"{self.card.title}, job {self.card.header.job_number} (continued)",
+            TINY,
+            floor=4.5,
+        )
+        fit(
+            self,
+            self.l_margin + self.epw * 0.6,
+            y,
+            self.epw * 0.4,
+            4,
+            self.card.header.machine,
+            TINY,
+            align="R",
+            floor=4.5,
+        )
         self.set_draw_color(*RULE)
         self.set_line_width(0.2)
         self.line(self.l_margin, self.t_margin + 4.5, self.w - self.r_margin, self.t_margin + 4.5)
@@ -132,8 +149,12 @@ class JobCardPDF(FPDF):
         self.set_y(-(FOOT - 2.5))
         self.set_font(FAMILY, "", TINY)
         self.set_text_color(*MUTED)
-        self.cell(self.epw * 0.75, 4, f"Job {self.card.header.job_number} · {self.card.header.date} · "
-                                      f"page {self.page_no()} of {self.total_pages}")
+        self.cell(
+            self.epw * 0.75,
+            4,
+            f"Job {self.card.header.job_number} · {self.card.header.date} · "
+            f"page {self.page_no()} of {self.total_pages}",
+        )
         self.cell(self.epw * 0.25, 4, self.card.generator, align="R")
         self.set_text_color(*INK)
 
@@ -162,19 +183,35 @@ def render_pdf(card: JobCard, *, letter: bool = False, fixed_date: datetime | No
 
 # --- building blocks -------------------------------------------------------------------------
 
+
 def _header(pdf: FPDF, card: JobCard) -> None:
     h = card.header
     pdf.set_fill_color(*ACCENT)
     pdf.rect(pdf.l_margin, pdf.t_margin, pdf.epw, BAND, style="F")
     pdf.set_text_color(255, 255, 255)
     fit(pdf, pdf.l_margin + 3, pdf.t_margin, pdf.epw * 0.42, BAND, card.title.upper(), 14, bold=True)
-    fit(pdf, pdf.l_margin + pdf.epw * 0.45, pdf.t_margin, pdf.epw * 0.55 - 3, BAND, f"Job {h.job_number}", 12,
-         bold=True, align="R")
+    fit(
+        pdf,
+        pdf.l_margin + pdf.epw * 0.45,
+        pdf.t_margin,
+        pdf.epw * 0.55 - 3,
+        BAND,
+        f"Job {h.job_number}",
+        12,
+        bold=True,
+        align="R",
+    )
     pdf.set_text_color(*INK)
     pdf.set_xy(pdf.l_margin, pdf.t_margin + BAND + 1)
-    rows = [[Cell(a.label, color=MUTED), Cell(a.value, bold=a.label == "Customer"),
-             Cell(b.label, color=MUTED), Cell(b.value, bold=b.label == "Machine")]
-            for a, b in zip(h.visit_fields(), h.machine_fields(), strict=True)]
+    rows = [
+        [
+            Cell(a.label, color=MUTED),
+            Cell(a.value, bold=a.label == "Customer"),
+            Cell(b.label, color=MUTED),
+            Cell(b.value, bold=b.label == "Machine"),
+        ]
+        for a, b in zip(h.visit_fields(), h.machine_fields(), strict=True)
+    ]
     measured_table(pdf, None, rows, [15, 82, 21, 72], size=SMALL + 0.3, padding=TIGHT)
 
 
@@ -206,10 +243,17 @@ def _readings(pdf: JobCardPDF, card: JobCard) -> None:
     for k, r in enumerate(card.readings):
         colour, fill, bold = VERDICT_STYLE[r.verdict]
         stripe = ZEBRA if k % 2 else None
-        rows.append([
-            str(r.number), f"{r.test_point}\n{r.condition}", Cell(r.reading, bold=True), r.expected,
-            f"{r.uncertainty_text}\n{r.gauge}", "", Cell(r.verdict_text, bold=bold, color=colour, fill=fill),
-        ])
+        rows.append(
+            [
+                str(r.number),
+                f"{r.test_point}\n{r.condition}",
+                Cell(r.reading, bold=True),
+                r.expected,
+                f"{r.uncertainty_text}\n{r.gauge}",
+                "",
+                Cell(r.verdict_text, bold=bold, color=colour, fill=fill),
+            ]
+        )
         fills.append(stripe)
         least.append(READING_ROW)
         joined.append(False)
@@ -233,10 +277,28 @@ def _readings(pdf: JobCardPDF, card: JobCard) -> None:
         if k is not None and card.readings[k].band is not None:
             band_picture(pdf, card.readings[k].band, card.readings[k].verdict, x, y, w, h)
 
-    measured_table(pdf, ["#", "Test point and condition", "Reading", "Expected", "Gauge error and gauge",
-                         "Position in range", "Verdict"], rows, READING_COLUMNS,
-                   aligns="RLLLLLL", size=SMALL, draw={5: draw_band}, row_fills=fills, row_heights=least,
-                   continues=joined, padding=TIGHT, title="Readings")
+    measured_table(
+        pdf,
+        [
+            "#",
+            "Test point and condition",
+            "Reading",
+            "Expected",
+            "Gauge error and gauge",
+            "Position in range",
+            "Verdict",
+        ],
+        rows,
+        READING_COLUMNS,
+        aligns="RLLLLLL",
+        size=SMALL,
+        draw={5: draw_band},
+        row_fills=fills,
+        row_heights=least,
+        continues=joined,
+        padding=TIGHT,
+        title="Readings",
+    )
     pdf.ln(0.6)
     with placed(pdf, 4.0) as top:
         band_legend(pdf, pdf.l_margin, top, TINY)
@@ -258,15 +320,24 @@ def _findings(pdf: FPDF, card: JobCard) -> None:
         for f in detailed:
             colour, fill, bold = VERDICT_STYLE[f.verdict]
             title = f.title + (f" ({f.circuit})" if f.circuit else "") + ":"
-            rows.append([Cell(f.verdict_text, bold=bold, color=colour, fill=fill),
-                         Cell(runs=(Run(title, bold=True), Run(f.message)))])
-        measured_table(pdf, ["Verdict", "Finding: what it shows"], rows, FINDING_COLUMNS, size=SMALL,
-                       title="Findings")
+            rows.append(
+                [
+                    Cell(f.verdict_text, bold=bold, color=colour, fill=fill),
+                    Cell(runs=(Run(title, bold=True), Run(f.message))),
+                ]
+            )
+        measured_table(
+            pdf, ["Verdict", "Finding: what it shows"], rows, FINDING_COLUMNS, size=SMALL, title="Findings"
+        )
     else:
         section(pdf, "Findings", keep=8)
         if not card.findings.flagged:
             text_block(pdf, "No finding out of range or inconclusive.")
-    summaries = (card.findings.repeated_summary, card.findings.in_range_summary, card.findings.not_checked_summary)
+    summaries = (
+        card.findings.repeated_summary,
+        card.findings.in_range_summary,
+        card.findings.not_checked_summary,
+    )
     for summary in summaries:
         if summary:
             pdf.ln(0.6)
@@ -274,16 +345,28 @@ def _findings(pdf: FPDF, card: JobCard) -> None:
 
 
 def _faults(pdf: FPDF, card: JobCard) -> None:
-    rows = [[str(f.rank), Cell(f.title, bold=True), Cell(f.probability_text, bold=True), "", f.evidence_text]
-            for f in card.faults.top]
+    rows = [
+        [str(f.rank), Cell(f.title, bold=True), Cell(f.probability_text, bold=True), "", f.evidence_text]
+        for f in card.faults.top
+    ]
 
     def draw_bar(pdf: FPDF, i: int, x: float, y: float, w: float, h: float) -> None:
         probability_bar(pdf, card.faults.top[i].probability, x, y, w, h)
 
-    measured_table(pdf, ["#", "Fault", "%", "Probability", "Evidence"], rows, [5, 52, 11, 20, 94],
-                   aligns="RLRLL", size=SMALL, draw={3: draw_bar}, title="Likely faults")
+    measured_table(
+        pdf,
+        ["#", "Fault", "%", "Probability", "Evidence"],
+        rows,
+        [5, 52, 11, 20, 94],
+        aligns="RLRLL",
+        size=SMALL,
+        draw={3: draw_bar},
+        title="Likely faults",
+    )
     pdf.ln(1)
-    key = ("×N: a finding is N times as likely with this fault as on a healthy machine; ÷N: N times less likely.")
+    key = (
+        "×N: a finding is N times as likely with this fault as on a healthy machine; ÷N: N times less likely."
+    )
     text_block(pdf, " ".join(t for t in (card.faults.others_text, key) if t), TINY + 0.4, color=MUTED)
 
 
@@ -296,8 +379,16 @@ def _actions(pdf: FPDF, card: JobCard) -> None:
             same = i > 1 and card.actions[i - 2].reason == a.reason
             rows.append([str(i), a.text, Cell("" if same else a.reason, color=MUTED, size=REASON)])
             joined.append(same)
-        measured_table(pdf, ["#", "Action", "Because of"], rows, ACTION_COLUMNS, aligns="RLL", size=SMALL,
-                       continues=joined, title=title)
+        measured_table(
+            pdf,
+            ["#", "Action", "Because of"],
+            rows,
+            ACTION_COLUMNS,
+            aligns="RLL",
+            size=SMALL,
+            continues=joined,
+            title=title,
+        )
     else:
         section(pdf, title, keep=8)
         text_block(pdf, "No action recommended.")

@@ -23,7 +23,11 @@ INSET = STRIPE + 0.6  # text starts this far from the box's left edge
 
 def _meta(c: Caution) -> str:
     """Why the caution is on this card and where it comes from, in one muted line."""
-    raised = "always shown" if c.general else "raised by the " + c.raised_by.replace("reading taken at", "reading at")
+    raised = (
+        "always shown"
+        if c.general
+        else "raised by the " + c.raised_by.replace("reading taken at", "reading at")
+    )
     return f"({raised}; source: {c.source})"
 
 
@@ -33,7 +37,9 @@ def _body(c: Caution) -> tuple[Run, ...]:
 
 
 def _caution_height(pdf: FPDF, c: Caution, w: float) -> float:
-    return block_height(pdf, c.title, w - INSET, TITLE, True) + runs_height(pdf, _body(c), w - INSET, TEXT) + 1.0
+    return (
+        block_height(pdf, c.title, w - INSET, TITLE, True) + runs_height(pdf, _body(c), w - INSET, TEXT) + 1.0
+    )
 
 
 def _caution_box(pdf: FPDF, c: Caution, x: float, y: float, w: float, h: float) -> None:
@@ -144,8 +150,11 @@ def _sign_off_boxes(pdf: FPDF, card: JobCard, y: float, height: float) -> None:
         pdf.set_text_color(*MUTED)
         pdf.cell(w - 4 - pdf.get_string_width(s.role) - 2, 4.5, statements.get(s.role, ""))
         name_w = (w - 4) * 0.62
-        fields = [("Name", x + 2, y + 9.5, name_w), ("Date", x + 2 + name_w + 3, y + 9.5, w - 7 - name_w),
-                  ("Signature", x + 2, y + height - 1.5, w - 4)]
+        fields = [
+            ("Name", x + 2, y + 9.5, name_w),
+            ("Date", x + 2 + name_w + 3, y + 9.5, w - 7 - name_w),
+            ("Signature", x + 2, y + height - 1.5, w - 4),
+        ]
         for label, fx, line_y, fw in fields:
             pdf.set_font(FAMILY, "", SMALL)
             pdf.set_text_color(*MUTED)

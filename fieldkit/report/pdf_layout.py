@@ -48,8 +48,18 @@ def section(pdf: FPDF, title: str, keep: float = 12.0) -> None:
     pdf.set_text_color(*INK)
 
 
-def fit(pdf: FPDF, x: float, y: float, w: float, h: float, text: str, size: float, bold: bool = False,
-         align: str = "L", floor: float = 5.5) -> None:
+def fit(
+    pdf: FPDF,
+    x: float,
+    y: float,
+    w: float,
+    h: float,
+    text: str,
+    size: float,
+    bold: bool = False,
+    align: str = "L",
+    floor: float = 5.5,
+) -> None:
     """One line of text in a fixed box, in a smaller font when it is too long; text that does not
     fit even at ``floor`` wraps (in the same box's width) rather than being cut."""
     style = "B" if bold else ""
@@ -69,8 +79,14 @@ def fit(pdf: FPDF, x: float, y: float, w: float, h: float, text: str, size: floa
         pdf.multi_cell(w, lh, text, align=align)
 
 
-def text_block(pdf: FPDF, text: str, size: float = BODY, bold: bool = False, color: tuple[int, int, int] = INK,
-               indent: float = 0.0) -> None:
+def text_block(
+    pdf: FPDF,
+    text: str,
+    size: float = BODY,
+    bold: bool = False,
+    color: tuple[int, int, int] = INK,
+    indent: float = 0.0,
+) -> None:
     """A paragraph across the page that may run onto the next one (unlike a boxed block); each
     line is placed by us, so a line that does not fit at the foot of a page starts the next one."""
     lh = line_height(size)

@@ -71,12 +71,19 @@ def _as_cell(c: Cell | str) -> Cell:
     return c if isinstance(c, Cell) else Cell(c)
 
 
-def _lay_row(pdf: FPDF, row: Sequence[Cell | str], xs: list[float], cols: list[float], aligns: str, size: float,
-             padding: float) -> list[_Laid]:
+def _lay_row(
+    pdf: FPDF,
+    row: Sequence[Cell | str],
+    xs: list[float],
+    cols: list[float],
+    aligns: str,
+    size: float,
+    padding: float,
+) -> list[_Laid]:
     laid, j = [], 0
     for raw in row:
         c = _as_cell(raw)
-        w = sum(cols[j:j + c.span])
+        w = sum(cols[j : j + c.span])
         s = c.size or size
         room = w - 2 * padding
         if c.runs:
@@ -120,16 +127,22 @@ def measured_table(
     cols = [pdf.epw * w / total for w in widths]
     xs = [pdf.l_margin + sum(cols[:j]) for j in range(len(cols))]
     aligns = aligns or "L" * len(cols)
-    head = _lay_row(pdf, [Cell(h, bold=True) for h in headings], xs, cols, "L" * len(cols), size, padding) \
-        if headings else []
+    head = (
+        _lay_row(pdf, [Cell(h, bold=True) for h in headings], xs, cols, "L" * len(cols), size, padding)
+        if headings
+        else []
+    )
     head_h = max((c.height for c in head), default=0.0) + 2 * padding if headings else 0.0
     laid = [_lay_row(pdf, row, xs, cols, aligns, size, padding) for row in rows]
     least = list(row_heights) if row_heights is not None else [min_row] * len(laid)
-    heights = [max(max(min_row, least[i]), max((c.height for c in row), default=0.0) + 2 * padding)
-               for i, row in enumerate(laid)]
+    heights = [
+        max(max(min_row, least[i]), max((c.height for c in row), default=0.0) + 2 * padding)
+        for i, row in enumerate(laid)
+    ]
     joined = list(continues) if continues is not None else [False] * len(laid)
-    fills: list[tuple[int, int, int] | None] = list(row_fills) if row_fills is not None else \
-        [zebra if i % 2 else None for i in range(len(laid))]
+    fills: list[tuple[int, int, int] | None] = (
+        list(row_fills) if row_fills is not None else [zebra if i % 2 else None for i in range(len(laid))]
+    )
 
     if title is not None:
         section(pdf, title, keep=head_h + (_group(heights, joined, 0) if laid else 0.0))
@@ -145,7 +158,9 @@ def measured_table(
             used += sum(heights[end:group_end])
             end = group_end
         end = max(end, _group_end(joined, start))  # a group taller than a page still gets drawn
-        _chunk(pdf, head, head_h, laid, heights, joined, fills, start, end, cols, xs, padding, draw, heading_fill)
+        _chunk(
+            pdf, head, head_h, laid, heights, joined, fills, start, end, cols, xs, padding, draw, heading_fill
+        )
         start = end
 
 
@@ -158,12 +173,25 @@ def _group_end(joined: list[bool], i: int) -> int:
 
 
 def _group(heights: list[float], joined: list[bool], i: int) -> float:
-    return sum(heights[i:_group_end(joined, i)])
+    return sum(heights[i : _group_end(joined, i)])
 
 
-def _chunk(pdf: FPDF, head: list[_Laid], head_h: float, laid: list[list[_Laid]], heights: list[float],
-           joined: list[bool], fills: list[tuple[int, int, int] | None], start: int, end: int, cols: list[float],
-           xs: list[float], padding: float, draw: dict[int, Draw], heading_fill: tuple[int, int, int]) -> None:
+def _chunk(
+    pdf: FPDF,
+    head: list[_Laid],
+    head_h: float,
+    laid: list[list[_Laid]],
+    heights: list[float],
+    joined: list[bool],
+    fills: list[tuple[int, int, int] | None],
+    start: int,
+    end: int,
+    cols: list[float],
+    xs: list[float],
+    padding: float,
+    draw: dict[int, Draw],
+    heading_fill: tuple[int, int, int],
+) -> None:
     breaks, margin = pdf.auto_page_break, pdf.b_margin
     pdf.set_auto_page_break(False)  # rows were fitted to the page above; a line must not start a new one
     try:

@@ -88,8 +88,15 @@ def _cut(word: str, room: float, measure: Callable[[str], float]) -> tuple[str, 
     return word, ""
 
 
-def text_height(pdf: FPDF, text: str, width: float, size: float, bold: bool = False,
-                padding: float = PADDING, lh: float | None = None) -> float:
+def text_height(
+    pdf: FPDF,
+    text: str,
+    width: float,
+    size: float,
+    bold: bool = False,
+    padding: float = PADDING,
+    lh: float | None = None,
+) -> float:
     """Height a table cell ``width`` mm wide needs for ``text``, padding included: exactly what
     :func:`fieldkit.report.pdf_tables.measured_table` draws it at."""
     if not text:
@@ -104,7 +111,9 @@ def wrap_runs(pdf: FPDF, runs: Sequence[Run], room: float, size: float) -> list[
     :func:`wrap_lines`; a word wider than a line is cut between characters. Everything is one
     paragraph: a ``\n`` in a run counts as a space."""
     # One paragraph: a line break inside a run is a space here.
-    words: list[tuple[str, Run]] = [(w, r) for r in runs if r.text for w in r.text.replace("\n", " ").split(" ")]
+    words: list[tuple[str, Run]] = [
+        (w, r) for r in runs if r.text for w in r.text.replace("\n", " ").split(" ")
+    ]
     lines: list[list[tuple[str, Run]]] = []
     line: list[tuple[str, Run]] = []
     used = 0.0
@@ -144,8 +153,9 @@ def runs_height(pdf: FPDF, runs: Sequence[Run], width: float, size: float) -> fl
     return len(wrap_runs(pdf, runs, width - 2 * pdf.c_margin, size)) * line_height(size)
 
 
-def print_runs(pdf: FPDF, x: float, top: float, lh: float, line: Sequence[Run], size: float,
-               colour: tuple[int, int, int]) -> None:
+def print_runs(
+    pdf: FPDF, x: float, top: float, lh: float, line: Sequence[Run], size: float, colour: tuple[int, int, int]
+) -> None:
     """One wrapped line of runs from ``x``; runs are a space apart, as they were measured."""
     for run in line:
         measure = _measurer(pdf, run.bold, size)
@@ -155,8 +165,15 @@ def print_runs(pdf: FPDF, x: float, top: float, lh: float, line: Sequence[Run], 
         x += measure(run.text) + measure(" ")
 
 
-def draw_runs(pdf: FPDF, x: float, y: float, width: float, runs: Sequence[Run], size: float,
-              colour: tuple[int, int, int] = (33, 37, 41)) -> float:
+def draw_runs(
+    pdf: FPDF,
+    x: float,
+    y: float,
+    width: float,
+    runs: Sequence[Run],
+    size: float,
+    colour: tuple[int, int, int] = (33, 37, 41),
+) -> float:
     """Print runs as one paragraph in lines from (x, y), inset like :func:`draw_block`; returns the height."""
     lh = line_height(size)
     lines = wrap_runs(pdf, runs, width - 2 * pdf.c_margin, size)
@@ -199,8 +216,16 @@ def _measurer_now(pdf: FPDF) -> Callable[[str], float]:
     return measure
 
 
-def draw_block(pdf: FPDF, x: float, y: float, width: float, text: str, size: float, bold: bool = False,
-               colour: tuple[int, int, int] = (33, 37, 41)) -> float:
+def draw_block(
+    pdf: FPDF,
+    x: float,
+    y: float,
+    width: float,
+    text: str,
+    size: float,
+    bold: bool = False,
+    colour: tuple[int, int, int] = (33, 37, 41),
+) -> float:
     """Print ``text`` left-aligned in lines from (x, y); returns the height used."""
     if not text:
         return 0.0

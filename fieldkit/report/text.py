@@ -91,8 +91,11 @@ def _faults(out: list[str], card: JobCard) -> None:
     if card.faults.others_text:
         _para(out, card.faults.others_text, hang)
     out.append("")
-    _para(out, "×N: a finding is N times as likely with this fault as on a healthy machine; "
-               "÷N: N times less likely.")
+    _para(
+        out,
+        "×N: a finding is N times as likely with this fault as on a healthy machine; "
+        "÷N: N times less likely.",
+    )
 
 
 def _actions(out: list[str], card: JobCard) -> None:

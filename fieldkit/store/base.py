@@ -15,10 +15,21 @@ from fieldkit.model.visit import Gauge, Reading, Visit, VisitStatus
 
 #: Header fields :meth:`VisitStore.update_visit` may change. The machine, status and readings
 #: are not here: they change through their own operations so history stays consistent.
-EDITABLE_FIELDS: frozenset[str] = frozenset({
-    "job_number", "customer", "site", "machine_serial", "hour_meter", "technician", "date", "oil",
-    "barometric_pressure", "notes", "gauges",
-})
+EDITABLE_FIELDS: frozenset[str] = frozenset(
+    {
+        "job_number",
+        "customer",
+        "site",
+        "machine_serial",
+        "hour_meter",
+        "technician",
+        "date",
+        "oil",
+        "barometric_pressure",
+        "notes",
+        "gauges",
+    }
+)
 
 
 @dataclass(frozen=True, slots=True)
@@ -45,7 +56,9 @@ class VisitStore(Protocol):
 
     def get_visit(self, visit_id: str) -> Visit: ...
 
-    def list_visits(self, status: VisitStatus | str | None = None, machine: str | None = None) -> list[VisitSummary]: ...
+    def list_visits(
+        self, status: VisitStatus | str | None = None, machine: str | None = None
+    ) -> list[VisitSummary]: ...
 
     def update_visit(self, visit_id: str, **fields: Any) -> Visit: ...
 

@@ -109,7 +109,9 @@ def read_readings_csv(path: str | Path, **options: object) -> list[Reading]:
     try:
         size = p.stat().st_size
         if size > MAX_CSV_BYTES:
-            raise DataFileError(str(p), f"the file is {size:,} bytes; a readings CSV is at most {MAX_CSV_BYTES:,}")
+            raise DataFileError(
+                str(p), f"the file is {size:,} bytes; a readings CSV is at most {MAX_CSV_BYTES:,}"
+            )
         raw = p.read_bytes()
     except OSError as exc:
         raise DataFileError(str(p), f"cannot read the file ({exc.strerror or exc})") from None
@@ -137,7 +139,9 @@ def parse_readings_csv(
     text = text.removeprefix("\ufeff")
     first_line = text.split("\n", 1)[0]
     if not first_line.strip():
-        raise DataFileError(name, "the first line must be a header naming the columns (time, test_point, value…)", line=1)
+        raise DataFileError(
+            name, "the first line must be a header naming the columns (time, test_point, value…)", line=1
+        )
     delimiter = ";" if ";" in first_line else "\t" if "\t" in first_line else ","
     reader = csv.reader(io.StringIO(text, newline=""), delimiter=delimiter, strict=True)
     # First pass: split into rows with their starting line (cheap, in C), so the row limit is
@@ -153,7 +157,9 @@ def parse_readings_csv(
                 if len(rows) > MAX_ROWS:
                     raise DataFileError(name, f"more than {MAX_ROWS:,} readings; split the file", line=line)
     except csv.Error as exc:
-        raise DataFileError(name, f"the CSV cannot be read here: {exc}", line=reader.line_num or None) from None
+        raise DataFileError(
+            name, f"the CSV cannot be read here: {exc}", line=reader.line_num or None
+        ) from None
     readings: list[Reading] = []
     problems = _Problems()
     for line, row in rows:
@@ -188,8 +194,11 @@ def _layout(header: list[str], delimiter: str, decimal_comma: bool, name: str) -
         col = re.sub(r"[\s\-]+", "_", match.group("name").strip().lower()) if match else cell
         if not match or col not in REQUIRED + OPTIONAL:
             known = ", ".join(REQUIRED + OPTIONAL)
-            raise DataFileError(name, f"column {index + 1} is called '{cell}', which fieldkit does not know; "
-                                      f"columns are {known}", line=1)
+            raise DataFileError(
+                name,
+                f"column {index + 1} is called '{cell}', which fieldkit does not know; columns are {known}",
+                line=1,
+            )
         if col in columns:
             raise DataFileError(name, f"the column '{col}' appears twice in the header", line=1)
         columns[col] = index
@@ -201,24 +210,37 @@ def _layout(header: list[str], delimiter: str, decimal_comma: bool, name: str) -
             try:
                 parse_value(f"1 {unit}", _UNIT_IN_HEADER[col])
             except FieldkitError as exc:
-                raise DataFileError(name, f"the unit in the header '{cell}' is not usable: {exc}", line=1) from None
+                raise DataFileError(
+                    name, f"the unit in the header '{cell}' is not usable: {exc}", line=1
+                ) from None
             units[col] = unit
     missing = [c for c in REQUIRED if c not in columns]
     if missing:
-        raise DataFileError(name, f"the header lacks the column{'s' if len(missing) > 1 else ''} "
-                                  f"{', '.join(missing)}; it needs time, test_point and value", line=1)
+        raise DataFileError(
+            name,
+            f"the header lacks the column{'s' if len(missing) > 1 else ''} "
+            f"{', '.join(missing)}; it needs time, test_point and value",
+            line=1,
+        )
     if "unit" in columns and "value" in units:
-        raise DataFileError(name, "the value's unit is in the header and there is also a unit column; keep one", line=1)
+        raise DataFileError(
+            name, "the value's unit is in the header and there is also a unit column; keep one", line=1
+        )
     return _Layout(delimiter, columns, units, decimal_comma)
 
 
 def _row(
-    row: list[str], layout: _Layout, test_points: Mapping[str, Kind] | None, gauges: set[str] | None,
+    row: list[str],
+    layout: _Layout,
+    test_points: Mapping[str, Kind] | None,
+    gauges: set[str] | None,
     naive_tz: dt.tzinfo | None,
 ) -> tuple[Reading | None, list[str]]:
     wrong: list[str] = []
     if len(row) > len(layout.columns):
-        hint = " (a decimal comma in a comma-separated file must be quoted)" if layout.delimiter == "," else ""
+        hint = (
+            " (a decimal comma in a comma-separated file must be quoted)" if layout.delimiter == "," else ""
+        )
         return None, [f"{len(row)} cells but the header names {len(layout.columns)}{hint}"]
     cells = {col: (row[i].strip() if i < len(row) else "") for col, i in layout.columns.items()}
     for col, cell in cells.items():
@@ -251,8 +273,14 @@ def _row(
         return None, wrong
     try:
         return Reading(
-            test_point=tp, value=value.quantity, reference=value.reference, entered=value.text, condition=condition,
-            gauge=gauge, taken_at=taken_at, note=cells.get("note", ""),
+            test_point=tp,
+            value=value.quantity,
+            reference=value.reference,
+            entered=value.text,
+            condition=condition,
+            gauge=gauge,
+            taken_at=taken_at,
+            note=cells.get("note", ""),
         ), []
     except ValidationError as exc:
         err = validation_error(exc, "", None)
@@ -285,20 +313,35 @@ def _has_unit(cell: str) -> bool:
 
 
 def _quantity(
-    cell: str, column: str, header_unit: str | None, column_unit: str | None, expect: Kind | None, what: str,
-    decimal_comma: bool, wrong: list[str],
+    cell: str,
+    column: str,
+    header_unit: str | None,
+    column_unit: str | None,
+    expect: Kind | None,
+    what: str,
+    decimal_comma: bool,
+    wrong: list[str],
 ) -> ParsedValue | None:
     """A value whose unit must come from exactly one place: header, unit column, or the cell."""
     if not _STARTS_WITH_NUMBER.match(cell):
         wrong.append(f"{column} '{cell}' is not a number")
         return None
-    ways = [w for w, present in (("in the header", header_unit), ("in the unit column", column_unit),
-                                 ("in the cell", _has_unit(cell))) if present]
+    ways = [
+        w
+        for w, present in (
+            ("in the header", header_unit),
+            ("in the unit column", column_unit),
+            ("in the cell", _has_unit(cell)),
+        )
+        if present
+    ]
     if not ways:
         example = EXAMPLE[expect or _UNIT_IN_HEADER[column] or Kind.PRESSURE]
         unit_column = "a unit column, " if column == "value" else ""
-        wrong.append(f"{column} '{cell}' has no unit: put it in the header ('{column} [{example.split(' ', 1)[1]}]'), "
-                     f"{unit_column}or the cell ('{example}')")
+        wrong.append(
+            f"{column} '{cell}' has no unit: put it in the header ('{column} [{example.split(' ', 1)[1]}]'), "
+            f"{unit_column}or the cell ('{example}')"
+        )
         return None
     if len(ways) > 1:
         wrong.append(f"{column} '{cell}' has its unit given {' and '.join(ways)}; give it one way only")
@@ -311,14 +354,24 @@ def _quantity(
         return None
 
 
-def _value(cells: dict[str, str], layout: _Layout, expect: Kind | None, tp: str, wrong: list[str]) -> ParsedValue | None:
+def _value(
+    cells: dict[str, str], layout: _Layout, expect: Kind | None, tp: str, wrong: list[str]
+) -> ParsedValue | None:
     cell = cells["value"]
     if not cell:
         wrong.append("value is empty")
         return None
     what = f"test point {tp}" if tp else "the value"
-    return _quantity(cell, "value", layout.header_units.get("value"), cells.get("unit") or None, expect, what,
-                     layout.decimal_comma, wrong)
+    return _quantity(
+        cell,
+        "value",
+        layout.header_units.get("value"),
+        cells.get("unit") or None,
+        expect,
+        what,
+        layout.decimal_comma,
+        wrong,
+    )
 
 
 def _condition(cells: dict[str, str], layout: _Layout, wrong: list[str]) -> Condition | None:
@@ -333,10 +386,25 @@ def _condition(cells: dict[str, str], layout: _Layout, wrong: list[str]) -> Cond
     found: dict[str, ParsedValue | None] = {}
     for col, kind in (("speed", Kind.SPEED), ("oil_temperature", Kind.TEMPERATURE)):
         cell = cells.get(col, "")
-        found[col] = _quantity(cell, col, layout.header_units.get(col), None, kind, col.replace("_", " "),
-                               layout.decimal_comma, wrong) if cell else None
+        found[col] = (
+            _quantity(
+                cell,
+                col,
+                layout.header_units.get(col),
+                None,
+                kind,
+                col.replace("_", " "),
+                layout.decimal_comma,
+                wrong,
+            )
+            if cell
+            else None
+        )
     if wrong:
         return None
     speed, oil = found["speed"], found["oil_temperature"]
-    return Condition(function=function, speed=speed.quantity if speed else None,
-                     oil_temperature=oil.quantity if oil else None)
+    return Condition(
+        function=function,
+        speed=speed.quantity if speed else None,
+        oil_temperature=oil.quantity if oil else None,
+    )

@@ -18,7 +18,9 @@ MAX_STEM_BYTES = 180
 # Characters kept besides letters and digits; everything else becomes "_".
 _KEEP = set(" -_.+()#")
 # Names Windows reserves for devices, with or without an extension (CON.json is CON too).
-_RESERVED = {"CON", "PRN", "AUX", "NUL", "CONIN$", "CONOUT$"} | {f"{p}{i}" for p in ("COM", "LPT") for i in range(10)}
+_RESERVED = {"CON", "PRN", "AUX", "NUL", "CONIN$", "CONOUT$"} | {
+    f"{p}{i}" for p in ("COM", "LPT") for i in range(10)
+}
 
 
 def safe_file_name(text: str, suffix: str = ".json", *, default: str = "visit") -> str:

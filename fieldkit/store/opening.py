@@ -49,7 +49,9 @@ def inspect_file(path: Path, migrations: tuple[Migration, ...] = MIGRATIONS) -> 
     except OSError as exc:
         raise StoreError(f"{path}: cannot look at the store file ({exc.strerror or exc})") from None
     if stat.S_ISDIR(info.st_mode):
-        raise StoreError(f"{path} is a folder; give the path of a store file inside it, e.g. {path / 'visits.sqlite3'}")
+        raise StoreError(
+            f"{path} is a folder; give the path of a store file inside it, e.g. {path / 'visits.sqlite3'}"
+        )
     if not stat.S_ISREG(info.st_mode):
         raise _refuse(path, "this is not a regular file")
     if info.st_size == 0:
@@ -62,14 +64,22 @@ def inspect_file(path: Path, migrations: tuple[Migration, ...] = MIGRATIONS) -> 
     if len(header) < HEADER_BYTES:
         if SQLITE_MAGIC.startswith(header[:16]) or header.startswith(SQLITE_MAGIC):
             raise _refuse(path, f"the file is only {len(header)} bytes long: it was cut short (truncated)")
-        raise _refuse(path, f"this is not a fieldkit store (a {len(header)}-byte file that is not an SQLite database)")
+        raise _refuse(
+            path, f"this is not a fieldkit store (a {len(header)}-byte file that is not an SQLite database)"
+        )
     if not header.startswith(SQLITE_MAGIC):
-        raise _refuse(path, "this is not a fieldkit store: it is not an SQLite database (damaged, or another kind of file)")
+        raise _refuse(
+            path,
+            "this is not a fieldkit store: it is not an SQLite database (damaged, or another kind of file)",
+        )
     app_id = int.from_bytes(header[68:72], "big")
     if app_id != APPLICATION_ID:
         if app_id == 0:
             raise _refuse(path, "this is an SQLite database made by another program, not a fieldkit store")
-        raise _refuse(path, f"this is an SQLite database of another program (application id 0x{app_id:08X}), not a fieldkit store")
+        raise _refuse(
+            path,
+            f"this is an SQLite database of another program (application id 0x{app_id:08X}), not a fieldkit store",
+        )
     _check_version(path, int.from_bytes(header[60:64], "big", signed=True), migrations)
     _check_length(path, header, info.st_size)
     return FileState.STORE
@@ -100,7 +110,9 @@ def _check_length(path: Path, header: bytes, size: int) -> None:
     header_valid = header[24:28] == header[92:96] and pages > 0
     if size % page_size or (header_valid and size < pages * page_size):
         expected = f"{pages * page_size:,}" if header_valid else f"a multiple of {page_size:,}"
-        raise _refuse(path, f"the file is {size:,} bytes but should be {expected}: it was cut short (truncated)")
+        raise _refuse(
+            path, f"the file is {size:,} bytes but should be {expected}: it was cut short (truncated)"
+        )
 
 
 def inspect_with_sqlite(path: Path, migrations: tuple[Migration, ...] = MIGRATIONS) -> int:
@@ -124,7 +136,9 @@ def inspect_with_sqlite(path: Path, migrations: tuple[Migration, ...] = MIGRATIO
         raise _refuse(path, "this is not a fieldkit store (its mark is missing)")
     _check_version(path, version, migrations)
     if version >= 1 and not {"visit", "reading"} <= tables:
-        raise _refuse(path, "this file carries fieldkit's mark but lacks a store's tables; it is damaged or foreign")
+        raise _refuse(
+            path, "this file carries fieldkit's mark but lacks a store's tables; it is damaged or foreign"
+        )
     return version
 
 
@@ -177,7 +191,11 @@ def _move_into_place(tmp: Path, path: Path) -> None:
         if path.is_file() and path.stat().st_size == 0:
             os.replace(tmp, path)
     except OSError as exc:
-        if not hasattr(os, "link") or exc.errno in {errno.EPERM, errno.ENOSYS, errno.EOPNOTSUPP}:  # no hard links (FAT sticks)
+        if not hasattr(os, "link") or exc.errno in {
+            errno.EPERM,
+            errno.ENOSYS,
+            errno.EOPNOTSUPP,
+        }:  # no hard links (FAT sticks)
             if not path.exists() or (path.is_file() and path.stat().st_size == 0):
                 os.replace(tmp, path)
         else:

@@ -95,8 +95,11 @@ class SqliteVisitStore:
     def _connect(self) -> sqlite3.Connection:
         try:
             conn = sqlite3.connect(
-                self.path.resolve().as_uri() + "?mode=rw", uri=True, isolation_level=None,
-                check_same_thread=False, timeout=self._busy_timeout_ms / 1000,
+                self.path.resolve().as_uri() + "?mode=rw",
+                uri=True,
+                isolation_level=None,
+                check_same_thread=False,
+                timeout=self._busy_timeout_ms / 1000,
             )
         except sqlite3.Error as exc:
             raise self._error(exc, "open") from None
@@ -126,7 +129,9 @@ class SqliteVisitStore:
         if code == _READONLY:
             return StoreError(f"the store {self.path} cannot be written here (read-only){lost}")
         if code in (_CORRUPT, _NOTADB):
-            return StoreError(f"the store {self.path} is damaged ({exc}); copy it aside before trying to repair it")
+            return StoreError(
+                f"the store {self.path} is damaged ({exc}); copy it aside before trying to repair it"
+            )
         if code == _CANTOPEN:
             return StoreError(f"cannot open the store {self.path} ({exc})")
         if code == _IOERR:
@@ -191,8 +196,17 @@ class SqliteVisitStore:
         """How this connection keeps the file (for a 'store info' command and the tests)."""
         with self._lock:
             conn = self._db
-            return {name: conn.execute(f"PRAGMA {name}").fetchone()[0] for name in (
-                "journal_mode", "synchronous", "foreign_keys", "busy_timeout", "user_version", "application_id")}
+            return {
+                name: conn.execute(f"PRAGMA {name}").fetchone()[0]
+                for name in (
+                    "journal_mode",
+                    "synchronous",
+                    "foreign_keys",
+                    "busy_timeout",
+                    "user_version",
+                    "application_id",
+                )
+            }
 
     def integrity_check(self) -> list[str]:
         """SQLite's own full check; ``["ok"]`` for a healthy file (for a 'check my store' command)."""
@@ -216,7 +230,9 @@ class SqliteVisitStore:
         except (ValueError, ValidationError) as exc:
             raise StoreError(f"visit '{visit_id}' in {self.path} cannot be read: {_why(exc)}") from None
 
-    def _readings(self, conn: sqlite3.Connection, visit_id: str, where: str = "", args: tuple[Any, ...] = ()) -> list[Reading]:
+    def _readings(
+        self, conn: sqlite3.Connection, visit_id: str, where: str = "", args: tuple[Any, ...] = ()
+    ) -> list[Reading]:
         rows = conn.execute(
             f"SELECT id, reading_json, deleted_at FROM reading WHERE visit_id = ? {where} ORDER BY seq",
             (visit_id, *args),
@@ -244,16 +260,23 @@ class SqliteVisitStore:
             raise StoreError(f"visit '{visit_id}' in {self.path} cannot be read: {_why(exc)}") from None
 
     def _current_count(self, conn: sqlite3.Connection, visit_id: str) -> int:
-        return int(conn.execute(
-            """SELECT count(*) FROM reading r WHERE r.visit_id = ? AND r.deleted_at IS NULL
+        return int(
+            conn.execute(
+                """SELECT count(*) FROM reading r WHERE r.visit_id = ? AND r.deleted_at IS NULL
                AND NOT EXISTS (SELECT 1 FROM reading c WHERE c.visit_id = r.visit_id AND c.replaces = r.id)""",
-            (visit_id,),
-        ).fetchone()[0])
+                (visit_id,),
+            ).fetchone()[0]
+        )
 
     def _summary(self, conn: sqlite3.Connection, header: Visit, updated_at: str) -> VisitSummary:
         return VisitSummary(
-            id=header.id, job_number=header.job_number, customer=header.customer, machine=header.machine,
-            date=header.date, status=header.status, reading_count=self._current_count(conn, header.id),
+            id=header.id,
+            job_number=header.job_number,
+            customer=header.customer,
+            machine=header.machine,
+            date=header.date,
+            status=header.status,
+            reading_count=self._current_count(conn, header.id),
             updated_at=dt.datetime.fromisoformat(updated_at),
         )
 
@@ -289,8 +312,13 @@ class SqliteVisitStore:
             "INSERT INTO reading (visit_id, id, test_point, taken_at, replaces, deleted_at, stored_at, reading_json) "
             "VALUES (?, ?, ?, ?, ?, ?, ?, ?)",
             (
-                visit_id, reading.id, reading.test_point, iso(reading.taken_at), reading.replaces,
-                iso(reading.deleted_at) if reading.deleted_at else None, _now(),
+                visit_id,
+                reading.id,
+                reading.test_point,
+                iso(reading.taken_at),
+                reading.replaces,
+                iso(reading.deleted_at) if reading.deleted_at else None,
+                _now(),
                 reading.model_dump_json(exclude={"deleted_at"}),
             ),
         )
@@ -298,17 +326,25 @@ class SqliteVisitStore:
     def _open_header(self, conn: sqlite3.Connection, visit_id: str) -> Visit:
         _, header = self._header(conn, visit_id)
         if header.status is VisitStatus.CLOSED:
-            raise StoreError(f"visit {header.job_number} ('{visit_id}') is closed; reopen it before changing it")
+            raise StoreError(
+                f"visit {header.job_number} ('{visit_id}') is closed; reopen it before changing it"
+            )
         return header
 
-    def _check_new_reading(self, conn: sqlite3.Connection, header: Visit, reading: Reading, taken: set[str]) -> Reading:
+    def _check_new_reading(
+        self, conn: sqlite3.Connection, header: Visit, reading: Reading, taken: set[str]
+    ) -> Reading:
         checked: Reading = self._checked(Reading, reading, f"reading '{getattr(reading, 'id', '?')}'")
         if checked.deleted_at is not None:
             raise StoreError(f"reading '{checked.id}' is marked deleted; add it first, then delete it")
         if checked.gauge is not None and header.gauge(checked.gauge) is None:
             known = ", ".join(g.id for g in header.gauges) or "none yet"
-            raise StoreError(f"reading '{checked.id}' names gauge '{checked.gauge}', which this visit does not have (gauges: {known})")
-        exists = conn.execute("SELECT 1 FROM reading WHERE visit_id = ? AND id = ?", (header.id, checked.id)).fetchone()
+            raise StoreError(
+                f"reading '{checked.id}' names gauge '{checked.gauge}', which this visit does not have (gauges: {known})"
+            )
+        exists = conn.execute(
+            "SELECT 1 FROM reading WHERE visit_id = ? AND id = ?", (header.id, checked.id)
+        ).fetchone()
         if exists or checked.id in taken:
             raise StoreError(f"visit '{header.id}' already has a reading with id '{checked.id}'")
         taken.add(checked.id)
@@ -344,7 +380,9 @@ class SqliteVisitStore:
         with self._read() as conn:
             return self._load(conn, visit_id)
 
-    def list_visits(self, status: VisitStatus | str | None = None, machine: str | None = None) -> list[VisitSummary]:
+    def list_visits(
+        self, status: VisitStatus | str | None = None, machine: str | None = None
+    ) -> list[VisitSummary]:
         """Newest first."""
         clauses, args = [], []
         if status is not None:
@@ -362,7 +400,9 @@ class SqliteVisitStore:
                 f"SELECT id, header_json, updated_at FROM visit {where} ORDER BY visit_date DESC, created_at DESC, id",
                 args,
             ).fetchall()
-            return [self._summary(conn, self._parse_header(vid, text)[1], updated) for vid, text, updated in rows]
+            return [
+                self._summary(conn, self._parse_header(vid, text)[1], updated) for vid, text, updated in rows
+            ]
 
     def update_visit(self, visit_id: str, **fields: Any) -> Visit:
         """Change header fields (job number, customer, gauges…); see ``EDITABLE_FIELDS``."""
@@ -375,8 +415,13 @@ class SqliteVisitStore:
             self._open_header(conn, visit_id)
             current = self._load(conn, visit_id)
             try:
-                changed = Visit.model_validate({**current.model_dump(exclude={"readings"}), **_field_values(fields),
-                                                "readings": current.readings})
+                changed = Visit.model_validate(
+                    {
+                        **current.model_dump(exclude={"readings"}),
+                        **_field_values(fields),
+                        "readings": current.readings,
+                    }
+                )
             except ValidationError as exc:
                 raise StoreError(f"visit {current.job_number} was not changed: {_why(exc)}") from None
             self._write_header(conn, changed, insert=False)
@@ -387,8 +432,12 @@ class SqliteVisitStore:
         with self._write("gauge") as conn:
             header = self._open_header(conn, visit_id)
             if header.gauge(checked.id) is not None:
-                raise StoreError(f"visit {header.job_number} already has a gauge '{checked.id}'; give this one another id")
-            self._write_header(conn, header.model_copy(update={"gauges": [*header.gauges, checked]}), insert=False)
+                raise StoreError(
+                    f"visit {header.job_number} already has a gauge '{checked.id}'; give this one another id"
+                )
+            self._write_header(
+                conn, header.model_copy(update={"gauges": [*header.gauges, checked]}), insert=False
+            )
             return self._load(conn, visit_id)
 
     def close_visit(self, visit_id: str, summary: str) -> Visit:
@@ -427,7 +476,9 @@ class SqliteVisitStore:
             for reading in readings:
                 checked = self._check_new_reading(conn, header, reading, taken)
                 if checked.replaces is not None:
-                    raise StoreError(f"reading '{checked.id}' says it replaces '{checked.replaces}'; use a correction for that")
+                    raise StoreError(
+                        f"reading '{checked.id}' says it replaces '{checked.replaces}'; use a correction for that"
+                    )
                 self._insert_reading(conn, visit_id, checked)
                 saved.append(checked)
             self._touch(conn, visit_id)
@@ -443,7 +494,9 @@ class SqliteVisitStore:
                 new_reading = new_reading.model_copy(update={"id": new_id()})
             checked = self._check_new_reading(conn, header, new_reading, set())
             if checked.replaces not in (None, old_id):
-                raise StoreError(f"reading '{checked.id}' says it replaces '{checked.replaces}', not '{old_id}'")
+                raise StoreError(
+                    f"reading '{checked.id}' says it replaces '{checked.replaces}', not '{old_id}'"
+                )
             if checked.test_point != old.test_point:
                 raise StoreError(
                     f"a correction of reading '{old_id}' must be for the same test point ({old.test_point}); "
@@ -459,7 +512,10 @@ class SqliteVisitStore:
         with self._write("deletion") as conn:
             self._open_header(conn, visit_id)
             self._standing(conn, visit_id, reading_id)
-            conn.execute("UPDATE reading SET deleted_at = ? WHERE visit_id = ? AND id = ?", (_now(), visit_id, reading_id))
+            conn.execute(
+                "UPDATE reading SET deleted_at = ? WHERE visit_id = ? AND id = ?",
+                (_now(), visit_id, reading_id),
+            )
             self._touch(conn, visit_id)
             return self._readings(conn, visit_id, "AND id = ?", (reading_id,))[0]
 
@@ -469,9 +525,13 @@ class SqliteVisitStore:
             raise StoreError(f"visit '{visit_id}' has no reading with id '{reading_id}'")
         if found[0].deleted_at is not None:
             raise StoreError(f"reading '{reading_id}' was deleted; it cannot be changed any more")
-        newer = conn.execute("SELECT id FROM reading WHERE visit_id = ? AND replaces = ?", (visit_id, reading_id)).fetchone()
+        newer = conn.execute(
+            "SELECT id FROM reading WHERE visit_id = ? AND replaces = ?", (visit_id, reading_id)
+        ).fetchone()
         if newer:
-            raise StoreError(f"reading '{reading_id}' was already corrected by '{newer[0]}'; change that one instead")
+            raise StoreError(
+                f"reading '{reading_id}' was already corrected by '{newer[0]}'; change that one instead"
+            )
         return found[0]
 
     def reading_history(self, visit_id: str, test_point: str) -> list[Reading]:
@@ -489,7 +549,8 @@ class SqliteVisitStore:
         out: list[tuple[VisitSummary, list[Reading]]] = []
         with self._read() as conn:
             rows = conn.execute(
-                "SELECT id, updated_at FROM visit WHERE machine = ? ORDER BY visit_date, created_at, id", (machine_id,)
+                "SELECT id, updated_at FROM visit WHERE machine = ? ORDER BY visit_date, created_at, id",
+                (machine_id,),
             ).fetchall()
             for vid, updated in rows:
                 visit = self._load(conn, vid)

@@ -64,7 +64,9 @@ def export_visit_json(visit: Visit, profile: MachineProfile | None = None) -> st
         FORMAT_KEY: FORMAT_VERSION,
         "exported_at": dt.datetime.now(UTC).isoformat(timespec="seconds").replace("+00:00", "Z"),
         "visit": json.loads(visit.model_dump_json()),
-        "profile": json.loads(json.dumps(profile.model_dump(), default=_plain)) if profile is not None else None,
+        "profile": json.loads(json.dumps(profile.model_dump(), default=_plain))
+        if profile is not None
+        else None,
     }
     return json.dumps(envelope, ensure_ascii=False, indent=2) + "\n"
 
@@ -76,6 +78,7 @@ def export_file_name(visit: Visit) -> str:
 
 # --- reading -------------------------------------------------------------------------------
 
+
 def _source_text(source: str | bytes | os.PathLike[str], name: str | None) -> tuple[str, str]:
     if isinstance(source, os.PathLike):
         path = Path(source)
@@ -83,7 +86,9 @@ def _source_text(source: str | bytes | os.PathLike[str], name: str | None) -> tu
         try:
             size = path.stat().st_size
             if size > MAX_EXPORT_BYTES:
-                raise DataFileError(label, f"the file is {size:,} bytes; a visit export is at most {MAX_EXPORT_BYTES:,}")
+                raise DataFileError(
+                    label, f"the file is {size:,} bytes; a visit export is at most {MAX_EXPORT_BYTES:,}"
+                )
             raw = path.read_bytes()
         except OSError as exc:
             raise DataFileError(label, f"cannot read the file ({exc.strerror or exc})") from None
@@ -92,12 +97,18 @@ def _source_text(source: str | bytes | os.PathLike[str], name: str | None) -> tu
     elif isinstance(source, str):
         label = name or _TEXT_NAME
         if len(source) > MAX_EXPORT_BYTES or len(source.encode("utf-8", "surrogatepass")) > MAX_EXPORT_BYTES:
-            raise DataFileError(label, f"the text is over {MAX_EXPORT_BYTES:,} bytes; a visit export is smaller")
+            raise DataFileError(
+                label, f"the text is over {MAX_EXPORT_BYTES:,} bytes; a visit export is smaller"
+            )
         return label, source.removeprefix("\ufeff")
     else:
-        raise DataFileError(name or _TEXT_NAME, f"expected JSON text or a file path, got {type(source).__name__}")
+        raise DataFileError(
+            name or _TEXT_NAME, f"expected JSON text or a file path, got {type(source).__name__}"
+        )
     if len(raw) > MAX_EXPORT_BYTES:
-        raise DataFileError(label, f"the file is {len(raw):,} bytes; a visit export is at most {MAX_EXPORT_BYTES:,}")
+        raise DataFileError(
+            label, f"the file is {len(raw):,} bytes; a visit export is at most {MAX_EXPORT_BYTES:,}"
+        )
     try:
         return label, raw.decode("utf-8").removeprefix("\ufeff")
     except UnicodeDecodeError as exc:
@@ -123,8 +134,12 @@ def _parse(text: str, label: str) -> Any:
     try:
         return json.loads(text, object_pairs_hook=_no_duplicates, parse_constant=_no_constants)
     except json.JSONDecodeError as exc:
-        raise DataFileError(label, f"not valid JSON: {exc.msg} (line {exc.lineno}, column {exc.colno}); "
-                                   "was the file cut short or edited by hand?", line=exc.lineno) from None
+        raise DataFileError(
+            label,
+            f"not valid JSON: {exc.msg} (line {exc.lineno}, column {exc.colno}); "
+            "was the file cut short or edited by hand?",
+            line=exc.lineno,
+        ) from None
     except RecursionError:
         raise DataFileError(label, "the JSON is nested far too deeply to be a visit export") from None
     except ValueError as exc:
@@ -138,15 +153,22 @@ def _check_versions(data: Any, label: str) -> None:
     if not isinstance(version, int) or isinstance(version, bool) or version < 1:
         raise DataFileError(label, f"'{FORMAT_KEY}' must be a whole number such as 1", key=FORMAT_KEY)
     if version > FORMAT_VERSION:
-        raise DataFileError(label, f"this export was made by a newer fieldkit (format {version}; this program "
-                                   f"reads format {FORMAT_VERSION}); update fieldkit to read it", key=FORMAT_KEY)
+        raise DataFileError(
+            label,
+            f"this export was made by a newer fieldkit (format {version}; this program "
+            f"reads format {FORMAT_VERSION}); update fieldkit to read it",
+            key=FORMAT_KEY,
+        )
     for part in ("visit", "profile"):
         inner = data.get(part)
         if isinstance(inner, dict) and isinstance(inner.get("schema_version"), int):
             if inner["schema_version"] > SCHEMA_VERSION:
-                raise DataFileError(label, f"the {part} was written by a newer fieldkit (schema {inner['schema_version']}; "
-                                           f"this program knows {SCHEMA_VERSION}); update fieldkit to read it",
-                                    key=f"{part}.schema_version")
+                raise DataFileError(
+                    label,
+                    f"the {part} was written by a newer fieldkit (schema {inner['schema_version']}; "
+                    f"this program knows {SCHEMA_VERSION}); update fieldkit to read it",
+                    key=f"{part}.schema_version",
+                )
 
 
 def read_visit_json(
@@ -165,6 +187,7 @@ def read_visit_json(
 
 
 # --- writing -------------------------------------------------------------------------------
+
 
 def write_export(text: str, folder: str | os.PathLike[str], name: str, *, overwrite: bool = False) -> Path:
     """Write an export into ``folder`` (which must exist) under a sanitised ``name``.

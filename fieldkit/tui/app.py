@@ -128,8 +128,12 @@ class FieldkitApp(App[None]):
         from fieldkit.session import demo_store_path, seed_demo
         from fieldkit.tui.screens.start import StartScreen
 
-        bench = Workbench(store=_open_store(demo_store_path()), library=self.bench.library,
-                          settings=self.bench.settings, rules_folder=self.bench.rules_folder)
+        bench = Workbench(
+            store=_open_store(demo_store_path()),
+            library=self.bench.library,
+            settings=self.bench.settings,
+            rules_folder=self.bench.rules_folder,
+        )
         seed_demo(bench.store)
         self._own_benches.append(bench)
         self.push_screen(StartScreen(bench, demo=True))
@@ -153,19 +157,32 @@ class FieldkitApp(App[None]):
         if callable(reload):
             reload()
         s = self.bench.settings
-        self.notify(f"values shown in {self.bench.system.pressure}, {self.bench.system.flow}, "
-                    f"{self.bench.system.temperature}; '2,500' reads as {'2.5' if s.decimal_comma else '2500'}",
-                    markup=False)
+        self.notify(
+            f"values shown in {self.bench.system.pressure}, {self.bench.system.flow}, "
+            f"{self.bench.system.temperature}; '2,500' reads as {'2.5' if s.decimal_comma else '2500'}",
+            markup=False,
+        )
 
     def palette_commands(self) -> Iterable[tuple[str, str, Callable[[], object]]]:
-        yield "General caution (procedures first)", "the machine's own procedures come first", self.action_general_caution
+        yield (
+            "General caution (procedures first)",
+            "the machine's own procedures come first",
+            self.action_general_caution,
+        )
         yield "Units: bar, L/min, °C", "metric display", lambda: self.set_units(display="metric")
         yield "Units: MPa, L/min, °C", "SI display", lambda: self.set_units(display="si")
         yield "Units: psi, gpm, °F", "US display", lambda: self.set_units(display="us")
         comma = self.bench.settings.decimal_comma
-        yield (f"Decimal comma {'off' if comma else 'on'}", "how '2,500' is read when it could be either",
-               lambda: self.set_units(decimal_comma=not comma))
-        yield "Daylight / workshop colours", "light colours for a laptop in the sun", self.action_toggle_daylight
+        yield (
+            f"Decimal comma {'off' if comma else 'on'}",
+            "how '2,500' is read when it could be either",
+            lambda: self.set_units(decimal_comma=not comma),
+        )
+        yield (
+            "Daylight / workshop colours",
+            "light colours for a laptop in the sun",
+            self.action_toggle_daylight,
+        )
         yield "Keys", "show or hide every key of this screen", self.action_toggle_keys
         yield "Quit fieldkit", "saved readings are already on disk", self.action_request_quit
 

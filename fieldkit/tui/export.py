@@ -27,8 +27,14 @@ def jobcard_available() -> bool:
         return False
 
 
-def export_job_card(visit: Visit, profile: MachineProfile, diagnosis: Diagnosis, folder: Path,
-                    fmt: str, system: DisplaySystem | None = None) -> tuple[Path, str]:
+def export_job_card(
+    visit: Visit,
+    profile: MachineProfile,
+    diagnosis: Diagnosis,
+    folder: Path,
+    fmt: str,
+    system: DisplaySystem | None = None,
+) -> tuple[Path, str]:
     """The file written and a sentence saying what it is. The folder is created if needed."""
     folder = Path(folder).expanduser()
     folder.mkdir(parents=True, exist_ok=True)

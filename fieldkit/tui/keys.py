@@ -12,10 +12,23 @@ from textual.binding import Binding, BindingType
 APP: list[BindingType] = [
     Binding("ctrl+q", "request_quit", "Quit", id="fieldkit.quit", priority=True),
     Binding("f1", "toggle_keys", "Keys", id="fieldkit.keys", priority=True),
-    Binding("f2", "general_caution", "Safety", id="fieldkit.general_caution", priority=True,
-            tooltip="The general caution: the machine's own procedures, local codes and licensed practice come first"),
-    Binding("f3", "command_palette", "Find", id="fieldkit.commands", priority=True, show=False,
-            tooltip="Search every command by name"),
+    Binding(
+        "f2",
+        "general_caution",
+        "Safety",
+        id="fieldkit.general_caution",
+        priority=True,
+        tooltip="The general caution: the machine's own procedures, local codes and licensed practice come first",
+    ),
+    Binding(
+        "f3",
+        "command_palette",
+        "Find",
+        id="fieldkit.commands",
+        priority=True,
+        show=False,
+        tooltip="Search every command by name",
+    ),
 ]
 
 START: list[BindingType] = [
@@ -31,10 +44,21 @@ START: list[BindingType] = [
 VISIT: list[BindingType] = [
     Binding("ctrl+n", "go_next_test", "Next test", id="visit.next"),
     Binding("ctrl+f", "show_faults", "Faults", id="visit.faults"),
-    Binding("ctrl+r", "point_readings", "Readings", id="visit.readings",
-            tooltip="Every reading at this point, with corrections and deletions; correct or delete one"),
+    Binding(
+        "ctrl+r",
+        "point_readings",
+        "Readings",
+        id="visit.readings",
+        tooltip="Every reading at this point, with corrections and deletions; correct or delete one",
+    ),
     Binding("ctrl+g", "add_gauge", "Gauge+", id="visit.add_gauge"),
-    Binding("ctrl+s", "skip_point", "Skip", id="visit.skip", tooltip="Mark this test point skipped (written to the notes)"),
+    Binding(
+        "ctrl+s",
+        "skip_point",
+        "Skip",
+        id="visit.skip",
+        tooltip="Mark this test point skipped (written to the notes)",
+    ),
     Binding("ctrl+l", "machine_history", "History", id="visit.history"),
     Binding("ctrl+t", "edit_notes", "Notes", id="visit.notes"),
     Binding("ctrl+o", "finish_visit", "Finish", id="visit.finish"),

@@ -19,25 +19,39 @@ WIDTH = 78
 
 def summary_text(visit: Visit, profile: MachineProfile, diagnosis: Diagnosis) -> str:
     def wrap(text: str, indent: str = "") -> str:
-        return "\n".join(textwrap.fill(visible(part), WIDTH, initial_indent=indent, subsequent_indent=indent)
-                         for part in str(text).splitlines() or [""])
+        return "\n".join(
+            textwrap.fill(visible(part), WIDTH, initial_indent=indent, subsequent_indent=indent)
+            for part in str(text).splitlines() or [""]
+        )
 
     lines: list[str] = []
     title = f"FINDINGS SUMMARY — job {visible(visit.job_number)}"
     lines += [title, "=" * len(title)]
-    lines.append(wrap(f"Machine: {profile.name} ({profile.id})"
-                      + (f", serial {visit.machine_serial}" if visit.machine_serial else "")
-                      + (f", {visit.hour_meter:g} h" if visit.hour_meter is not None else "")))
+    lines.append(
+        wrap(
+            f"Machine: {profile.name} ({profile.id})"
+            + (f", serial {visit.machine_serial}" if visit.machine_serial else "")
+            + (f", {visit.hour_meter:g} h" if visit.hour_meter is not None else "")
+        )
+    )
     lines.append(wrap(f"Customer: {visit.customer or '—'}   Site: {visit.site or '—'}"))
-    lines.append(wrap(f"Technician: {visit.technician or '—'}   Date: {visit.date.isoformat()}   "
-                      f"Oil: {visit.oil or '—'}   Status: {visit.status.value}"))
+    lines.append(
+        wrap(
+            f"Technician: {visit.technician or '—'}   Date: {visit.date.isoformat()}   "
+            f"Oil: {visit.oil or '—'}   Status: {visit.status.value}"
+        )
+    )
     lines += ["", "READINGS", "--------"]
     if not diagnosis.checks:
         lines.append("No readings.")
     for c in diagnosis.checks:
         flag = "" if c.verdict in (Verdict.IN_RANGE,) else "  <--"
-        lines.append(wrap(f"{c.test_point_label} ({c.condition}): {c.value} {c.uncertainty}; expected {c.expected}; "
-                          f"{c.verdict.label}{' (not counted: ' + c.discounted + ')' if c.discounted else ''}{flag}"))
+        lines.append(
+            wrap(
+                f"{c.test_point_label} ({c.condition}): {c.value} {c.uncertainty}; expected {c.expected}; "
+                f"{c.verdict.label}{' (not counted: ' + c.discounted + ')' if c.discounted else ''}{flag}"
+            )
+        )
     lines += ["", "FINDINGS", "--------"]
     measured = [f for f in diagnosis.findings if f.verdict is not Verdict.NOT_MEASURED]
     for f in measured:
@@ -59,8 +73,13 @@ def summary_text(visit: Visit, profile: MachineProfile, diagnosis: Diagnosis) ->
     lines += ["", "CAUTIONS", "--------"]
     for c in diagnosis.cautions:
         lines.append(wrap(f"* {c.title}: {c.text}"))
-    lines += ["", wrap("This summary was written by fieldkit's terminal UI because the job card writer "
-                       "(fieldkit.report.jobcard) is not installed.")]
+    lines += [
+        "",
+        wrap(
+            "This summary was written by fieldkit's terminal UI because the job card writer "
+            "(fieldkit.report.jobcard) is not installed."
+        ),
+    ]
     return "\n".join(lines) + "\n"
 
 

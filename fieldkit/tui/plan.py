@@ -16,7 +16,9 @@ from fieldkit.diagnosis.results import Diagnosis, ReadingCheck, Verdict
 from fieldkit.model.profile import Circuit, MachineProfile, TestPoint
 
 SKIP_PREFIX = "Skipped test point"
-_SKIP_LINE = re.compile(rf"^{SKIP_PREFIX} (?P<id>[a-z0-9][a-z0-9_\-]*\.[a-z0-9][a-z0-9_\-]*)\b[^:\n]*: ?(?P<reason>.*)$")
+_SKIP_LINE = re.compile(
+    rf"^{SKIP_PREFIX} (?P<id>[a-z0-9][a-z0-9_\-]*\.[a-z0-9][a-z0-9_\-]*)\b[^:\n]*: ?(?P<reason>.*)$"
+)
 
 
 class PointState(StrEnum):
@@ -80,8 +82,11 @@ def notes_with_skip(notes: str, point: TestPoint, reason: str) -> str:
 
 
 def notes_without_skip(notes: str, point_id: str) -> str:
-    lines = [ln for ln in notes.splitlines()
-             if not ((m := _SKIP_LINE.match(ln.strip())) and m.group("id") == point_id)]
+    lines = [
+        ln
+        for ln in notes.splitlines()
+        if not ((m := _SKIP_LINE.match(ln.strip())) and m.group("id") == point_id)
+    ]
     return "\n".join(lines)
 
 

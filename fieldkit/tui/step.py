@@ -91,33 +91,52 @@ class GaugeFit:
         return self.level in (Level.OK, Level.NOTE)
 
 
-def gauge_fit(point: TestPoint, gauge: Gauge | None, function: FunctionState,
-              system: DisplaySystem) -> GaugeFit:
+def gauge_fit(
+    point: TestPoint, gauge: Gauge | None, function: FunctionState, system: DisplaySystem
+) -> GaugeFit:
     """Whether a gauge suits the point in this condition. For pressure points this is
     physics.gauges.gauge_suitability against the point's highest pressure (overrange is an
     error: do not connect)."""
     if gauge is None:
-        return GaugeFit(Level.WARNING, "no gauge chosen: the reading will be judged as if taken with an assumed "
-                                       f"class 2.5 gauge{_gauge_to_add(point, function)}")
+        return GaugeFit(
+            Level.WARNING,
+            "no gauge chosen: the reading will be judged as if taken with an assumed "
+            f"class 2.5 gauge{_gauge_to_add(point, function)}",
+        )
     if gauge.kind is not point.kind:
-        return GaugeFit(Level.ERROR, f"{gauge.id} measures {gauge.kind.value}; this point needs a {point.kind.value} reading")
+        return GaugeFit(
+            Level.ERROR,
+            f"{gauge.id} measures {gauge.kind.value}; this point needs a {point.kind.value} reading",
+        )
     work = working_value(point, function)
     if point.kind is Kind.PRESSURE:
         from fieldkit.physics.gauges import gauge_suitability
 
         if work is None and point.max_pressure is None:
-            return GaugeFit(Level.NOTE, "no expected range or highest pressure for this point: check the gauge range yourself")
+            return GaugeFit(
+                Level.NOTE,
+                "no expected range or highest pressure for this point: check the gauge range yourself",
+            )
         try:
-            check = gauge_suitability(gauge.full_scale, work if work is not None else point.max_pressure,
-                                      point.max_pressure, gauge.scale_start,
-                                      gauge.accuracy_class if gauge.standard == "EN 837-1" else None)
+            check = gauge_suitability(
+                gauge.full_scale,
+                work if work is not None else point.max_pressure,
+                point.max_pressure,
+                gauge.scale_start,
+                gauge.accuracy_class if gauge.standard == "EN 837-1" else None,
+            )
         except FieldkitError as exc:
             return GaugeFit(Level.WARNING, f"cannot judge {gauge.id}: {exc}")
         return GaugeFit(check.level, f"{gauge.id}: {check.message}")
     if work is not None and to_canonical(work, point.kind) >= to_canonical(gauge.full_scale, point.kind):
-        return GaugeFit(Level.ERROR, f"{gauge.id} ends at {format_value(gauge.full_scale, system)}, "
-                                     f"below the expected {format_value(work, system)}")
-    return GaugeFit(Level.OK, f"{gauge.id} (0–{format_value(gauge.full_scale, system)}) covers the expected reading")
+        return GaugeFit(
+            Level.ERROR,
+            f"{gauge.id} ends at {format_value(gauge.full_scale, system)}, "
+            f"below the expected {format_value(work, system)}",
+        )
+    return GaugeFit(
+        Level.OK, f"{gauge.id} (0–{format_value(gauge.full_scale, system)}) covers the expected reading"
+    )
 
 
 def _gauge_to_add(point: TestPoint, function: FunctionState) -> str:
@@ -137,8 +156,9 @@ def _gauge_to_add(point: TestPoint, function: FunctionState) -> str:
     return f"; add a 0–{format_value(size)} gauge with ^g"
 
 
-def suggest_gauge(point: TestPoint, gauges: list[Gauge], function: FunctionState,
-                  system: DisplaySystem) -> Gauge | None:
+def suggest_gauge(
+    point: TestPoint, gauges: list[Gauge], function: FunctionState, system: DisplaySystem
+) -> Gauge | None:
     """The visit's gauge that suits best: no overrange, fewest warnings, smallest span."""
     ranked: list[tuple[int, float, Gauge]] = []
     order = {Level.OK: 0, Level.NOTE: 0, Level.WARNING: 1, Level.ERROR: 9}
@@ -146,15 +166,18 @@ def suggest_gauge(point: TestPoint, gauges: list[Gauge], function: FunctionState
         if g.kind is not point.kind:
             continue
         fit = gauge_fit(point, g, function, system)
-        ranked.append((order[fit.level], to_canonical(g.span, g.kind) if g.kind is not Kind.TEMPERATURE else 0.0, g))
+        ranked.append(
+            (order[fit.level], to_canonical(g.span, g.kind) if g.kind is not Kind.TEMPERATURE else 0.0, g)
+        )
     ranked.sort(key=lambda t: (t[0], t[1]))
     if not ranked or ranked[0][0] >= 9:
         return None
     return ranked[0][2]
 
 
-def step_cautions(knowledge: Knowledge, point: TestPoint, function: FunctionState,
-                  *, include_general: bool = False) -> list[Caution]:
+def step_cautions(
+    knowledge: Knowledge, point: TestPoint, function: FunctionState, *, include_general: bool = False
+) -> list[Caution]:
     """The cautions for taking this reading: named by the point, raised by its role, or by the
     function state (a stall over relief). Worst first."""
     found: dict[str, Caution] = {}
@@ -172,7 +195,9 @@ def general_caution(knowledge: Knowledge) -> Caution:
     return next(c for c in knowledge.cautions.values() if c.always)
 
 
-def last_condition_values(visit: Visit, profile: MachineProfile) -> tuple[pint.Quantity | None, pint.Quantity | None]:
+def last_condition_values(
+    visit: Visit, profile: MachineProfile
+) -> tuple[pint.Quantity | None, pint.Quantity | None]:
     """Speed and oil temperature to offer for the next reading: what the last reading stated
     (or the last oil temperature reading), else the rated speed and nothing."""
     from fieldkit.model.roles import Role

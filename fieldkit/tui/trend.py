@@ -25,7 +25,6 @@ NORMALISED_ROLES = {Role.PUMP_CASE_DRAIN_FLOW, Role.MOTOR_CASE_DRAIN_FLOW}
 SPARKS = "▁▂▃▄▅▆▇█"
 
 
-
 @dataclass(slots=True)
 class HistoryRow:
     point: TestPoint
@@ -86,13 +85,16 @@ def _normalised(reading: Reading, oil: pint.Quantity | None, profile: MachinePro
     from fieldkit.physics.fluid import grade, normalised_leakage
 
     try:
-        return normalised_leakage(reading.value, oil, profile.reference_oil_temperature, grade(profile.oil_grade).curve)
+        return normalised_leakage(
+            reading.value, oil, profile.reference_oil_temperature, grade(profile.oil_grade).curve
+        )
     except FieldkitError:
         return None
 
 
-def history_table(store: SqliteVisitStore, profile: MachineProfile, system: DisplaySystem,
-                  *, serial: str = "") -> HistoryTable:
+def history_table(
+    store: SqliteVisitStore, profile: MachineProfile, system: DisplaySystem, *, serial: str = ""
+) -> HistoryTable:
     """Readings of every test point over the visits to this machine model, oldest visit first;
     with ``serial``, only the visits to that one machine."""
     points = {tp.id: tp for _c, tp in profile.all_test_points()}
@@ -106,7 +108,11 @@ def history_table(store: SqliteVisitStore, profile: MachineProfile, system: Disp
     by_key: dict[tuple[str, FunctionState], HistoryRow] = {}
     order = {tp_id: i for i, tp_id in enumerate(points)}
     for col, (_summary, readings) in enumerate(found):
-        oil = [r for r in readings if r.test_point in points and points[r.test_point].role is Role.OIL_TEMPERATURE]
+        oil = [
+            r
+            for r in readings
+            if r.test_point in points and points[r.test_point].role is Role.OIL_TEMPERATURE
+        ]
         for r in sorted(readings, key=lambda r: r.taken_at):
             tp = points.get(r.test_point)
             if tp is None:
@@ -116,8 +122,14 @@ def history_table(store: SqliteVisitStore, profile: MachineProfile, system: Disp
             if row is None:
                 norm = tp.role in NORMALISED_ROLES
                 ref = f" at {format_value(profile.reference_oil_temperature, system)}" if norm else ""
-                row = HistoryRow(tp, r.condition.function, f"{tp.label}{ref} · {SHORT_STATE[r.condition.function]}",
-                                 [""] * len(visits), [None] * len(visits), norm)
+                row = HistoryRow(
+                    tp,
+                    r.condition.function,
+                    f"{tp.label}{ref} · {SHORT_STATE[r.condition.function]}",
+                    [""] * len(visits),
+                    [None] * len(visits),
+                    norm,
+                )
                 by_key[key] = row
             shown = r.value
             if row.normalised:
@@ -128,5 +140,7 @@ def history_table(store: SqliteVisitStore, profile: MachineProfile, system: Disp
                 shown = at_ref
             row.cells[col] = format_value(shown, system)
             row.values[col] = to_canonical(shown, tp.kind)
-    table.rows = sorted(by_key.values(), key=lambda row: (order[row.point.id], list(FunctionState).index(row.function)))
+    table.rows = sorted(
+        by_key.values(), key=lambda row: (order[row.point.id], list(FunctionState).index(row.function))
+    )
     return table

@@ -1,4 +1,4 @@
-"""How long one diagnosis takes: a 40-reading visit on the TD9 drill rig, judged with the bundled
+"""How long one diagnosis takes: a 40-reading visit on the Fellborer drill rig, judged with the bundled
 rule packs, and with the packs replicated ten times (every rule copied under a new id) to see how
 the cost grows with the number of rules.
 
@@ -33,7 +33,7 @@ from fieldkit.model.visit import Visit
 
 ROOT = Path(__file__).resolve().parents[2]
 RULES = ROOT / "rules"
-SOURCE_VISIT = ROOT / "sample_readings" / "visits" / "td9-charge-pump-worn.json"
+SOURCE_VISIT = ROOT / "sample_readings" / "visits" / "fellborer-charge-pump-worn.json"
 READINGS = 40
 COPIES = 10
 _RULE_ID = re.compile(r'^(id\s*=\s*")([a-z][a-z0-9\-]*)(")', re.MULTILINE)
@@ -47,7 +47,8 @@ def forty_reading_visit() -> tuple[Visit, MachineProfile]:
     start = min(r.taken_at for r in visit.readings)
     readings = [
         visit.readings[i % len(visit.readings)].model_copy(
-            update={"id": f"b{i:02d}", "taken_at": start + timedelta(minutes=3 * i), "replaces": None})
+            update={"id": f"b{i:02d}", "taken_at": start + timedelta(minutes=3 * i), "replaces": None}
+        )
         for i in range(READINGS)
     ]
     return visit.model_copy(update={"readings": readings}), profile
@@ -105,10 +106,16 @@ def main(argv: list[str] | None = None) -> int:
     t_base, fast_base = timings_ms(visit, profile, base, args.runs)
     t_many, fast_many = timings_ms(visit, profile, many, max(10, args.runs // 3))
     print(f"visit: {READINGS} readings on {profile.id}")
-    print(f"bundled packs   : {len(base.rules):4d} rules  median {t_base:7.2f} ms  (fastest {fast_base:7.2f} ms)")
-    print(f"replicated x{COPIES:<3d}: {len(many.rules):4d} rules  median {t_many:7.2f} ms  (fastest {fast_many:7.2f} ms)")
-    print(f"ratio of medians {t_many / t_base:.2f} (fastest {fast_many / fast_base:.2f}) "
-          f"for {len(many.rules) / len(base.rules):.0f}x the rules")
+    print(
+        f"bundled packs   : {len(base.rules):4d} rules  median {t_base:7.2f} ms  (fastest {fast_base:7.2f} ms)"
+    )
+    print(
+        f"replicated x{COPIES:<3d}: {len(many.rules):4d} rules  median {t_many:7.2f} ms  (fastest {fast_many:7.2f} ms)"
+    )
+    print(
+        f"ratio of medians {t_many / t_base:.2f} (fastest {fast_many / fast_base:.2f}) "
+        f"for {len(many.rules) / len(base.rules):.0f}x the rules"
+    )
     if args.profile:
         print("\n--- hot spots, bundled packs ---")
         print(hot_spots(visit, profile, base, 30))

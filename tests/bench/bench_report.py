@@ -60,9 +60,13 @@ def main() -> int:
         finally:
             bench.close()
 
-    print(f"{args.format} job card, {READINGS} readings ({size:,} bytes{pages}); diagnosis once: {diagnose_s * 1000:.0f} ms")
-    print(f"write_job_card over {len(times)} warm runs: median {statistics.median(times) * 1000:.0f} ms, "
-          f"min {min(times) * 1000:.0f} ms, max {max(times) * 1000:.0f} ms")
+    print(
+        f"{args.format} job card, {READINGS} readings ({size:,} bytes{pages}); diagnosis once: {diagnose_s * 1000:.0f} ms"
+    )
+    print(
+        f"write_job_card over {len(times)} warm runs: median {statistics.median(times) * 1000:.0f} ms, "
+        f"min {min(times) * 1000:.0f} ms, max {max(times) * 1000:.0f} ms"
+    )
     return 0
 
 

@@ -77,7 +77,9 @@ if TYPE_CHECKING:
 
     from fieldkit.diagnosis.results import Diagnosis
 
-_ESCAPE = re.compile(r"\x1b\[(?P<params>[0-9;:?<=>]*)(?P<final>[@-~])|\x1b\][^\x07\x1b]*(?:\x07|\x1b\\)|\x1b[()][0-9A-Za-z]|\x1b.")
+_ESCAPE = re.compile(
+    r"\x1b\[(?P<params>[0-9;:?<=>]*)(?P<final>[@-~])|\x1b\][^\x07\x1b]*(?:\x07|\x1b\\)|\x1b[()][0-9A-Za-z]|\x1b."
+)
 SCREEN_WAIT = 10.0  # seconds before a round is declared lost
 DEMO_JOB = "RHS-25-0301"  # the demo's open visit, first row of the start screen
 
@@ -94,7 +96,7 @@ class Terminal:
     def feed(self, data: str) -> None:
         pos = 0
         for m in _ESCAPE.finditer(data):
-            self._text(data[pos:m.start()])
+            self._text(data[pos : m.start()])
             pos = m.end()
             if m.group("final") == "H":
                 parts = (m.group("params") or "1;1").split(";")
@@ -188,7 +190,10 @@ def _ranking_shown(diagnosis: Diagnosis, wide: bool) -> Callable[[list[str]], bo
 
     def shows(lines: list[str]) -> bool:
         line = next((ln.strip() for ln in lines if ln.strip().startswith("LIKELY ▸")), "")
-        if not (line.startswith(likely) or (line.endswith("…") and likely.startswith(line[:-1]) and len(line) > 24)):
+        if not (
+            line.startswith(likely)
+            or (line.endswith("…") and likely.startswith(line[:-1]) and len(line) > 24)
+        ):
             return False
         return not wide or any(row in ln for ln in lines)
 
@@ -199,7 +204,9 @@ def _saved_shown(entered: str) -> Callable[[list[str]], bool]:
     return lambda lines: any(f"✓ saved {entered}" in ln for ln in lines)
 
 
-async def in_process(store: Path, rounds: int, size: tuple[int, int], profile: bool) -> dict[str, list[float]]:
+async def in_process(
+    store: Path, rounds: int, size: tuple[int, int], profile: bool
+) -> dict[str, list[float]]:
     from textual import events
 
     from fieldkit.model.condition import Condition
@@ -209,8 +216,14 @@ async def in_process(store: Path, rounds: int, size: tuple[int, int], profile: b
 
     bench = Workbench.open(store)
     seed_demo(bench.store)
-    times: dict[str, list[float]] = {"enter_to_faults": [], "enter_to_settled": [], "handler": [], "open_visit": [],
-                                     "diagnose_only": [], "record_only": []}
+    times: dict[str, list[float]] = {
+        "enter_to_faults": [],
+        "enter_to_settled": [],
+        "handler": [],
+        "open_visit": [],
+        "diagnose_only": [],
+        "record_only": [],
+    }
     app = make_app(bench, demo=True)
     clock = FrameClock(app)
     wide = size[0] >= WIDE_FROM
@@ -232,8 +245,11 @@ async def in_process(store: Path, rounds: int, size: tuple[int, int], profile: b
         latest_open = next(v for v in bench.store.list_visits() if v.status is VisitStatus.OPEN)
         visit = bench.store.get_visit(latest_open.id)
         t0 = key("r", "r")
-        times["open_visit"].append(await clock.wait_for(t0, _ranking_shown(bench.diagnose(visit), wide),
-                                                        "the opened visit's ranking"))
+        times["open_visit"].append(
+            await clock.wait_for(
+                t0, _ranking_shown(bench.diagnose(visit), wide), "the opened visit's ranking"
+            )
+        )
         await _quiet(clock, lambda: True)
         screen = app.screen
         assert isinstance(screen, VisitScreen) and screen.visit_id == visit.id
@@ -267,9 +283,13 @@ async def in_process(store: Path, rounds: int, size: tuple[int, int], profile: b
             stored = bench.store.get_visit(visit.id)
             expected = bench.diagnose(stored)  # independent of what the screen holds
             saved, ranked = _saved_shown(entered), _ranking_shown(expected, wide)
-            times["enter_to_faults"].append(await clock.wait_for(
-                t0, lambda lines, saved=saved, ranked=ranked: saved(lines) and ranked(lines),
-                f"{entered} saved with the new ranking"))
+            times["enter_to_faults"].append(
+                await clock.wait_for(
+                    t0,
+                    lambda lines, saved=saved, ranked=ranked: saved(lines) and ranked(lines),
+                    f"{entered} saved with the new ranking",
+                )
+            )
             await _quiet(clock, lambda: True)
             times["enter_to_settled"].append(clock.frames[-1][0] - t0)
             if profiler:
@@ -303,8 +323,14 @@ def cold_start(home: Path, runs: int, env: dict[str, str]) -> list[float]:
     out: list[float] = []
     for i in range(runs + 1):
         t0 = time.perf_counter()
-        child = pexpect.spawn(sys.executable, ["-m", "fieldkit", "demo"], env=env, dimensions=(24, 80),
-                              encoding="utf-8", timeout=30)
+        child = pexpect.spawn(
+            sys.executable,
+            ["-m", "fieldkit", "demo"],
+            env=env,
+            dimensions=(24, 80),
+            encoding="utf-8",
+            timeout=30,
+        )
         seen = ""
         while DEMO_JOB not in _ESCAPE.sub("", seen):
             seen += child.read_nonblocking(65536, timeout=30)
@@ -317,10 +343,23 @@ def cold_start(home: Path, runs: int, env: dict[str, str]) -> list[float]:
     return out
 
 
-def session(store: Path, size: tuple[int, int], rounds: int, env: dict[str, str], profile: bool = False) -> dict[str, list[float]]:
+def session(
+    store: Path, size: tuple[int, int], rounds: int, env: dict[str, str], profile: bool = False
+) -> dict[str, list[float]]:
     """One in-process run (open the visit, then ``rounds`` readings) in a fresh interpreter."""
-    args = [sys.executable, __file__, "--session", f"{size[0]}x{size[1]}", "--store", str(store), "--rounds", str(rounds)]
-    done = subprocess.run(args + (["--profile"] if profile else []), env=env, capture_output=True, text=True, check=False)
+    args = [
+        sys.executable,
+        __file__,
+        "--session",
+        f"{size[0]}x{size[1]}",
+        "--store",
+        str(store),
+        "--rounds",
+        str(rounds),
+    ]
+    done = subprocess.run(
+        args + (["--profile"] if profile else []), env=env, capture_output=True, text=True, check=False
+    )
     if done.returncode:
         raise RuntimeError(f"the {size} session failed:\n{done.stderr[-3000:]}")
     *before, last = done.stdout.strip().splitlines()
@@ -333,44 +372,67 @@ def main() -> int:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--rounds", type=int, default=15)
     parser.add_argument("--cold-runs", type=int, default=5)
-    parser.add_argument("--open-runs", type=int, default=3, help="fresh processes per size that time opening the visit")
+    parser.add_argument(
+        "--open-runs", type=int, default=3, help="fresh processes per size that time opening the visit"
+    )
     parser.add_argument("--profile", action="store_true", help="cProfile the Enter rounds at 80x24")
     parser.add_argument("--session", help=argparse.SUPPRESS)
     parser.add_argument("--store", help=argparse.SUPPRESS)
     args = parser.parse_args()
     if args.session:  # the child of session()
         width, height = (int(n) for n in args.session.split("x"))
-        print(json.dumps(asyncio.run(in_process(Path(args.store), args.rounds, (width, height), args.profile))))
+        print(
+            json.dumps(asyncio.run(in_process(Path(args.store), args.rounds, (width, height), args.profile)))
+        )
         return 0
     with tempfile.TemporaryDirectory() as tmp:
         root = Path(tmp)
         # As installed by pip: bytecode compiled once and reused (kept in a scratch folder here).
-        cached = {**os.environ, "PYTHONPYCACHEPREFIX": str(root / "pycache"), "FIELDKIT_HOME": str(root / "home")}
+        cached = {
+            **os.environ,
+            "PYTHONPYCACHEPREFIX": str(root / "pycache"),
+            "FIELDKIT_HOME": str(root / "home"),
+        }
         cached.pop("PYTHONDONTWRITEBYTECODE", None)
         # As this sandbox runs an editable install: every fieldkit module compiled at each start.
         sources = {**os.environ, "PYTHONDONTWRITEBYTECODE": "1", "FIELDKIT_HOME": str(root / "home")}
         sources.pop("PYTHONPYCACHEPREFIX", None)
         cold = cold_start(root / "cold-home", args.cold_runs, cached)
         cold_sources = cold_start(root / "cold-home", args.cold_runs, sources)
-        session(root / "warm-up.sqlite3", (150, 40), 1, cached)  # fills the bytecode cache for the visit screen
+        session(
+            root / "warm-up.sqlite3", (150, 40), 1, cached
+        )  # fills the bytecode cache for the visit screen
         results: dict[str, dict[str, list[float]]] = {}
         for size in ((80, 24), (150, 40)):
             label = f"{size[0]}x{size[1]}"
-            results[label] = session(root / f"{label}.sqlite3", size, args.rounds, cached, args.profile and size == (80, 24))
+            results[label] = session(
+                root / f"{label}.sqlite3", size, args.rounds, cached, args.profile and size == (80, 24)
+            )
             for i in range(1, args.open_runs):
-                results[label]["open_visit"] += session(root / f"{label}-{i}.sqlite3", size, 0, cached)["open_visit"]
-    rows = [("cold: fieldkit demo → start screen drawn", cold),
-            ("  the same, sources compiled at each start", cold_sources)]
+                results[label]["open_visit"] += session(root / f"{label}-{i}.sqlite3", size, 0, cached)[
+                    "open_visit"
+                ]
+    rows = [
+        ("cold: fieldkit demo → start screen drawn", cold),
+        ("  the same, sources compiled at each start", cold_sources),
+    ]
     for label, res in results.items():
-        rows += [(f"enter → faults on screen ({label})", res["enter_to_faults"]),
-                 (f"  of which the Enter handler ({label})", res["handler"]),
-                 (f"enter → last frame of the round ({label})", res["enter_to_settled"]),
-                 (f"open visit: r → visit screen drawn ({label})", res["open_visit"])]
-    rows += [("diagnose only", results["80x24"]["diagnose_only"]), ("record only", results["80x24"]["record_only"])]
+        rows += [
+            (f"enter → faults on screen ({label})", res["enter_to_faults"]),
+            (f"  of which the Enter handler ({label})", res["handler"]),
+            (f"enter → last frame of the round ({label})", res["enter_to_settled"]),
+            (f"open visit: r → visit screen drawn ({label})", res["open_visit"]),
+        ]
+    rows += [
+        ("diagnose only", results["80x24"]["diagnose_only"]),
+        ("record only", results["80x24"]["record_only"]),
+    ]
     print(f"{'measure':<48}{'n':>4}{'median ms':>11}{'max ms':>9}")
     for name, values in rows:
         if values:
-            print(f"{name:<48}{len(values):>4}{statistics.median(values) * 1000:>11.1f}{max(values) * 1000:>9.1f}")
+            print(
+                f"{name:<48}{len(values):>4}{statistics.median(values) * 1000:>11.1f}{max(values) * 1000:>9.1f}"
+            )
     return 0
 
 

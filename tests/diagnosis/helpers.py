@@ -52,6 +52,7 @@ PRECISE_CLASS = 0.1
 
 # --- sample data ----------------------------------------------------------------------------
 
+
 @lru_cache(maxsize=1)
 def library() -> ProfileLibrary:
     """The demo profiles only (never the user's folder: this runs at collection time too)."""
@@ -121,6 +122,7 @@ def scene_profiles() -> list[MachineProfile]:
 
 # --- visits -----------------------------------------------------------------------------------
 
+
 def canonical_unit(kind: Kind) -> pint.Unit:
     return unit(CANONICAL_UNIT[kind])
 
@@ -134,9 +136,14 @@ def precise_gauge(gid: str, kind: Kind, canonical: float, accuracy_class: float 
     top = max(2.0 * abs(canonical), 1.0)
     start = -top if canonical < 0 else None
     standard = "EN 837-1" if kind is Kind.PRESSURE else "test instrument, % of span"
-    return Gauge(id=gid, label=f"test gauge {gid}", full_scale=quantity(kind, top),
-                 scale_start=None if start is None else quantity(kind, start),
-                 accuracy_class=accuracy_class, standard=standard)
+    return Gauge(
+        id=gid,
+        label=f"test gauge {gid}",
+        full_scale=quantity(kind, top),
+        scale_start=None if start is None else quantity(kind, start),
+        accuracy_class=accuracy_class,
+        standard=standard,
+    )
 
 
 @dataclass
@@ -154,8 +161,15 @@ class VisitBuilder:
             return self.oil_c
         return to_canonical(self.profile.reference_oil_temperature, Kind.TEMPERATURE)
 
-    def add(self, point_id: str, canonical: float, state: FunctionState = FunctionState.NEUTRAL, *,
-            gauge: Gauge | None = None, oil_c: float | None = None) -> Reading:
+    def add(
+        self,
+        point_id: str,
+        canonical: float,
+        state: FunctionState = FunctionState.NEUTRAL,
+        *,
+        gauge: Gauge | None = None,
+        oil_c: float | None = None,
+    ) -> Reading:
         _circuit, point = self.profile.test_point(point_id)
         n = len(self.readings) + 1
         if gauge is None:
@@ -166,27 +180,40 @@ class VisitBuilder:
         if point.role is Role.OIL_TEMPERATURE:
             oil = canonical
         reading = Reading(
-            id=f"r{n:02d}", test_point=point.id, value=quantity(point.kind, canonical),
+            id=f"r{n:02d}",
+            test_point=point.id,
+            value=quantity(point.kind, canonical),
             reference="gauge" if point.kind is Kind.PRESSURE else None,
-            condition=Condition(function=state, speed=self.profile.rated_speed,
-                                oil_temperature=quantity(Kind.TEMPERATURE, oil)),
-            gauge=gauge.id, taken_at=T0 + timedelta(minutes=5 * n),
+            condition=Condition(
+                function=state,
+                speed=self.profile.rated_speed,
+                oil_temperature=quantity(Kind.TEMPERATURE, oil),
+            ),
+            gauge=gauge.id,
+            taken_at=T0 + timedelta(minutes=5 * n),
         )
         self.readings.append(reading)
         return reading
 
     def build(self) -> Visit:
-        return Visit(id=self.visit_id, job_number="TEST-0001", machine=self.profile.id,
-                     gauges=list(self.gauges), readings=list(self.readings))
+        return Visit(
+            id=self.visit_id,
+            job_number="TEST-0001",
+            machine=self.profile.id,
+            gauges=list(self.gauges),
+            readings=list(self.readings),
+        )
 
 
 def with_readings(visit: Visit, extra: Iterable[Reading], gauges: Iterable[Gauge] = ()) -> Visit:
     """The visit with more readings (and gauges) appended: a technician carrying on."""
     have = {g.id for g in visit.gauges}
-    return visit.model_copy(update={
-        "readings": [*visit.readings, *extra],
-        "gauges": [*visit.gauges, *(g for g in gauges if g.id not in have)],
-    })
+    return visit.model_copy(
+        update={
+            "readings": [*visit.readings, *extra],
+            "gauges": [*visit.gauges, *(g for g in gauges if g.id not in have)],
+        }
+    )
 
 
 def chilled(visit: Visit, profile: MachineProfile, oil_c: float) -> Visit:
@@ -210,6 +237,7 @@ def finding(d: Diagnosis, rule_id: str, circuit: str | None) -> Finding:
 
 
 # --- hypotheses, written apart from the engine ---------------------------------------------------
+
 
 def hypothesis_keys(profile: MachineProfile, faults: dict[str, Fault]) -> dict[str, float]:
     """Single-fault hypotheses and normalised priors, as the ranking's docstring states them:
@@ -251,6 +279,7 @@ def likelihood_for(rule: Rule, finding_circuit: str | None, key: str) -> tuple[f
 
 
 # --- scenes: one rule, one machine, readings that make it speak --------------------------------
+
 
 class NoScene(Exception):
     """No machine here has what the rule reads."""
@@ -330,7 +359,8 @@ class Scene:
             if slope != 0 and math.isclose(f2 - f1, f1 - f0, rel_tol=1e-6, abs_tol=1e-12):
                 break
         assert slope != 0 and math.isclose(f2 - f1, f1 - f0, rel_tol=1e-6, abs_tol=1e-12), (
-            f"{self.rule.id}: value is not linear in {self.free}; extend the scene builder")
+            f"{self.rule.id}: value is not linear in {self.free}; extend the scene builder"
+        )
         x = x0 + (self.target(side) - f0) / slope
         out = dict(self.nominal)
         out[self.free] = canonical_of(free_need.point.kind, x)
@@ -397,9 +427,11 @@ def _layout_bar(layout: ReliefLayout | str, settings: dict[str, float]) -> float
 def deadhead_bar(circuit: Circuit) -> float:
     """What a deadheaded pump reads with no return back pressure: each valve at full flow
     (setting + override, the profile's definition of override), through the layout."""
-    settings = {r.id: to_canonical(r.setting, Kind.PRESSURE)
-                + (to_canonical(r.override, Kind.PRESSURE) if r.override is not None else 0.0)
-                for r in circuit.reliefs}
+    settings = {
+        r.id: to_canonical(r.setting, Kind.PRESSURE)
+        + (to_canonical(r.override, Kind.PRESSURE) if r.override is not None else 0.0)
+        for r in circuit.reliefs
+    }
     if circuit.relief_layout is not None:
         return _layout_bar(circuit.relief_layout, settings)
     return min(settings.values())
@@ -413,12 +445,16 @@ def _figure(name: str, profile: MachineProfile, circuits: list[Circuit]) -> floa
         raise NoScene(f"no circuit has '{name}'")
     if name in MACHINE_FIGURES:
         w = profile.test_window
-        return si_value({
-            "rated_speed": profile.rated_speed, "rated_max_pressure": profile.rated_max_pressure,
-            "reference_oil_temperature": profile.reference_oil_temperature,
-            "test_oil_min": w.oil_min, "test_oil_max": w.oil_max,
-            "speed_tolerance": Q_(w.speed_tolerance_pct, "percent"),
-        }[name])
+        return si_value(
+            {
+                "rated_speed": profile.rated_speed,
+                "rated_max_pressure": profile.rated_max_pressure,
+                "reference_oil_temperature": profile.reference_oil_temperature,
+                "test_oil_min": w.oil_min,
+                "test_oil_max": w.oil_max,
+                "speed_tolerance": Q_(w.speed_tolerance_pct, "percent"),
+            }[name]
+        )
     if name == "relief_deadhead":
         if len(circuits) != 1 or not circuits[0].reliefs:
             raise NoScene("no relief layout")
@@ -470,8 +506,9 @@ def _try_scene(rule: Rule, profile: MachineProfile, circuit: Circuit | None) -> 
         high = float(rule.high.evaluate(env)) if rule.high is not None else None
     hyps = hypothesis_keys(profile, knowledge().faults)
     listed = set(spec.if_low) | set(spec.if_high)
-    keys = tuple(k for k in hyps if fault_of(k) in listed
-                 and (circuit is None or circuit_of(k) in (None, circuit.id)))
+    keys = tuple(
+        k for k in hyps if fault_of(k) in listed and (circuit is None or circuit_of(k) in (None, circuit.id))
+    )
     return Scene(rule, profile, circuit, tuple(needs), free, nominal, figures, low, high, keys)
 
 
@@ -481,8 +518,11 @@ def scene_for(rule: Rule) -> Scene:
     best: Scene | None = None
     reasons: list[str] = []
     for profile in scene_profiles():
-        scopes: list[Circuit | None] = [None] if rule.spec.machine_wide else [
-            c for c in profile.circuits if c.kind.value in rule.spec.circuits]
+        scopes: list[Circuit | None] = (
+            [None]
+            if rule.spec.machine_wide
+            else [c for c in profile.circuits if c.kind.value in rule.spec.circuits]
+        )
         for circuit in scopes:
             try:
                 scene = _try_scene(rule, profile, circuit)

@@ -88,7 +88,7 @@ def test_general_caution_comes_first_on_every_sample_visit(path: Path) -> None:
 
 
 def test_visit_with_no_readings_shows_the_general_caution_and_the_priors() -> None:
-    profile = library().get("oskerfield-wl14")
+    profile = library().get("oskerfield-loamshifter")
     visit = Visit(id="empty", job_number="TEST-0002", machine=profile.id)
     d = diagnose(visit, profile, knowledge())
     assert [c.id for c in d.cautions][:1] == ["general"]

@@ -2,7 +2,7 @@
 their findings are tempered (likelihood ratio raised to the power 0.35, DEVELOPERS.md "How the
 diagnosis works") and say why, and the ranking gives weight to 'test not valid'.
 
-The test windows are the demo profiles' (fictional maker's figures): TD9 oil 45-70 °C, rated
+The test windows are the demo profiles' (fictional maker's figures): Fellborer oil 45-70 °C, rated
 2200 rpm ± 5 %.
 """
 
@@ -45,7 +45,7 @@ def _fault(d: Diagnosis, fault_id: str):
 
 
 def test_findings_from_cold_oil_readings_are_discounted_with_a_reason() -> None:
-    _warm, cold = _warm_and_cold("td9-charge-pump-worn")
+    _warm, cold = _warm_and_cold("fellborer-charge-pump-worn")
     judged = [f for f in cold.findings if f.verdict is not Verdict.NOT_MEASURED]
     for f in judged:
         if f.rule_id in WINDOW_RULES:
@@ -55,7 +55,7 @@ def test_findings_from_cold_oil_readings_are_discounted_with_a_reason() -> None:
             assert "oil at 30 °C, below the test window (45–70 °C)" in f.discount_reason
             assert "reduced weight" in f.message
     assert sum(f.discount < 1 for f in judged) >= 8
-    profile = library().get("tarnhollow-td9")
+    profile = library().get("tarnhollow-fellborer")
     for check in cold.checks:
         role = profile.test_point(check.test_point)[1].role
         judges_the_window = role in (Role.OIL_TEMPERATURE, Role.PUMP_SPEED)
@@ -65,7 +65,7 @@ def test_findings_from_cold_oil_readings_are_discounted_with_a_reason() -> None:
 def test_cold_evidence_is_the_warm_evidence_raised_to_the_tempering_power() -> None:
     """Charge pressure does not depend on the oil temperature here, so the same outcome probabilities
     give log-likelihood ratios scaled by exactly 0.35."""
-    warm, cold = _warm_and_cold("td9-charge-pump-worn")
+    warm, cold = _warm_and_cold("fellborer-charge-pump-worn")
     for rule_id in ("charge-in-neutral", "charge-in-stroke", "charge-drop-in-stroke"):
         w, c = finding(warm, rule_id, "travel"), finding(cold, rule_id, "travel")
         assert (c.p_low, c.p_in_range, c.p_high) == (w.p_low, w.p_in_range, w.p_high)
@@ -75,7 +75,7 @@ def test_cold_evidence_is_the_warm_evidence_raised_to_the_tempering_power() -> N
 
 
 def test_cold_readings_make_the_diagnosis_less_sure() -> None:
-    warm, cold = _warm_and_cold("td9-charge-pump-worn")
+    warm, cold = _warm_and_cold("fellborer-charge-pump-worn")
     assert warm.top.id == "charge_pump_worn"
     assert cold.top.probability < warm.top.probability
     assert cold.entropy_bits > warm.entropy_bits
@@ -84,7 +84,7 @@ def test_cold_readings_make_the_diagnosis_less_sure() -> None:
 
 
 def test_healthy_machine_read_with_cold_oil_puts_weight_on_an_invalid_test() -> None:
-    warm, cold = _warm_and_cold("td9-no-fault")
+    warm, cold = _warm_and_cold("fellborer-no-fault")
     oil = finding(cold, "oil-in-test-window", None)
     assert oil.verdict is Verdict.LOW
     assert oil.evidence["invalid_test_conditions"] > 0
@@ -96,12 +96,12 @@ def test_healthy_machine_read_with_cold_oil_puts_weight_on_an_invalid_test() -> 
 
 
 def test_healthy_machine_read_with_cold_oil_ranks_an_invalid_test_first() -> None:
-    _warm, cold = _warm_and_cold("td9-no-fault")
+    _warm, cold = _warm_and_cold("fellborer-no-fault")
     assert cold.top.id == "invalid_test_conditions"
 
 
 def test_reading_off_rated_speed_is_discounted_with_the_speed_named() -> None:
-    profile = library().get("tarnhollow-td9")
+    profile = library().get("tarnhollow-fellborer")
     b = VisitBuilder(profile)
     r = b.add("travel.charge", 27.0, FunctionState.NEUTRAL)
     slow = r.model_copy(update={"condition": r.condition.model_copy(update={"speed": Q_(1500.0, "rpm")})})

@@ -34,27 +34,40 @@ from fieldkit.model.gauge import Gauge
 from fieldkit.model.visit import Reading, Visit
 from fieldkit.units import Q_, Kind, to_canonical
 
-CASE_LIMIT_BAR = 2.0  # the TD9 profile's max_case_pressure and its case point's range (fictional demo figure)
+CASE_LIMIT_BAR = (
+    2.0  # the Fellborer profile's max_case_pressure and its case point's range (fictional demo figure)
+)
 #: 0.3 bar above the limit: within one standard uncertainty of a 0-60 bar class 1 gauge (0.35 bar).
 READING_BAR = 2.3
 
 
-def _td9_with_case_reading(gauge: Gauge, bar: float = READING_BAR) -> tuple[Visit, Diagnosis]:
-    """The healthy TD9 visit, plus a last case pressure reading of ``bar`` on ``gauge``."""
-    path = next(p for p in sample_visit_paths() if p.stem == "td9-no-fault")
+def _fellborer_with_case_reading(gauge: Gauge, bar: float = READING_BAR) -> tuple[Visit, Diagnosis]:
+    """The healthy Fellborer visit, plus a last case pressure reading of ``bar`` on ``gauge``."""
+    path = next(p for p in sample_visit_paths() if p.stem == "fellborer-no-fault")
     visit, profile, _ = diagnose_sample(path)
     last = max(r.taken_at for r in visit.readings)
-    extra = Reading(id="r90", test_point="travel.case", value=Q_(bar, "bar"), reference="gauge",
-                    condition=Condition(function=FunctionState.FULL_STROKE, speed=Q_(2200.0, "rpm"),
-                                        oil_temperature=Q_(57.0, "degC")),
-                    gauge=gauge.id, taken_at=last + timedelta(minutes=5))
+    extra = Reading(
+        id="r90",
+        test_point="travel.case",
+        value=Q_(bar, "bar"),
+        reference="gauge",
+        condition=Condition(
+            function=FunctionState.FULL_STROKE, speed=Q_(2200.0, "rpm"), oil_temperature=Q_(57.0, "degC")
+        ),
+        gauge=gauge.id,
+        taken_at=last + timedelta(minutes=5),
+    )
     visit = with_readings(visit, [extra], [gauge])
     return visit, diagnose(visit, profile, knowledge())
 
 
 def _gauge(visit_gauge_id: str, full_scale_bar: float, accuracy_class: float) -> Gauge:
-    return Gauge(id=visit_gauge_id, label=f"0-{full_scale_bar:g} bar class {accuracy_class:g}",
-                 full_scale=Q_(full_scale_bar, "bar"), accuracy_class=accuracy_class)
+    return Gauge(
+        id=visit_gauge_id,
+        label=f"0-{full_scale_bar:g} bar class {accuracy_class:g}",
+        full_scale=Q_(full_scale_bar, "bar"),
+        accuracy_class=accuracy_class,
+    )
 
 
 def _u(gauge: Gauge) -> float:
@@ -66,7 +79,7 @@ BIG = _gauge("G60", 60.0, 1.0)  # the visit's own 0-60 bar class 1 gauge
 
 @pytest.mark.parametrize("bar", [1.6, READING_BAR])
 def test_case_pressure_within_the_gauge_error_of_its_limit_is_inconclusive(bar: float) -> None:
-    _visit, d = _td9_with_case_reading(BIG, bar)
+    _visit, d = _fellborer_with_case_reading(BIG, bar)
     f = finding(d, "case-pressure", "travel")
     assert f.readings == ["r90"]
     assert f.verdict is Verdict.INCONCLUSIVE
@@ -81,7 +94,7 @@ def test_case_pressure_within_the_gauge_error_of_its_limit_is_inconclusive(bar: 
 
 
 def test_inconclusive_case_pressure_asks_for_a_repeat_on_a_smaller_gauge() -> None:
-    visit, d = _td9_with_case_reading(BIG)
+    visit, d = _fellborer_with_case_reading(BIG)
     repeat = [t for t in d.next_tests if t.test_point == "travel.case"]
     assert repeat, [(t.test_point, t.condition) for t in d.next_tests]
     t = repeat[0]
@@ -100,27 +113,33 @@ def test_inconclusive_case_pressure_asks_for_a_repeat_on_a_smaller_gauge() -> No
 def test_the_same_reading_on_the_advised_smaller_gauge_is_a_confident_fail() -> None:
     """Same value, same accuracy class, on the full scale the advice names: u shrinks from 0.35 to
     0.09 bar and the reading is more than 3 standard uncertainties above the limit."""
-    _visit, d = _td9_with_case_reading(BIG)
+    _visit, d = _fellborer_with_case_reading(BIG)
     advice = next(t for t in d.next_tests if t.test_point == "travel.case").gauge_advice
     size = float(re.search(r"0–(\d+(?:\.\d+)?) bar", advice).group(1))  # type: ignore[union-attr]
     small = _gauge("G-small", size, BIG.accuracy_class)
-    _visit, d2 = _td9_with_case_reading(small)
+    _visit, d2 = _fellborer_with_case_reading(small)
     f = finding(d2, "case-pressure", "travel")
     assert f.verdict is Verdict.HIGH
     assert f.p_high == pytest.approx(norm.sf(CASE_LIMIT_BAR, loc=READING_BAR, scale=_u(small)), abs=1e-9)
     assert not [t for t in d2.next_tests if t.test_point == "travel.case" and t.repeat]
 
 
-@pytest.mark.parametrize(("p_high", "verdict"), [
-    (0.04, Verdict.IN_RANGE), (0.06, Verdict.INCONCLUSIVE),
-    (0.94, Verdict.INCONCLUSIVE), (0.96, Verdict.HIGH),
-])
-def test_a_verdict_is_stated_only_when_one_outcome_reaches_95_percent(p_high: float,
-                                                                       verdict: Verdict) -> None:
+@pytest.mark.parametrize(
+    ("p_high", "verdict"),
+    [
+        (0.04, Verdict.IN_RANGE),
+        (0.06, Verdict.INCONCLUSIVE),
+        (0.94, Verdict.INCONCLUSIVE),
+        (0.96, Verdict.HIGH),
+    ],
+)
+def test_a_verdict_is_stated_only_when_one_outcome_reaches_95_percent(
+    p_high: float, verdict: Verdict
+) -> None:
     """DEVELOPERS.md: a verdict needs one outcome at 95 % or more. The reading is placed where
     P(true value above 2 bar) = p_high: x = 2 bar + u · Φ⁻¹(p_high) (scipy.stats.norm.ppf)."""
     bar = CASE_LIMIT_BAR + _u(BIG) * norm.ppf(p_high)
-    _visit, d = _td9_with_case_reading(BIG, bar)
+    _visit, d = _fellborer_with_case_reading(BIG, bar)
     f = finding(d, "case-pressure", "travel")
     assert f.p_high == pytest.approx(p_high, abs=1e-9)
     assert f.verdict is verdict
@@ -130,7 +149,7 @@ def test_a_verdict_is_stated_only_when_one_outcome_reaches_95_percent(p_high: fl
 def test_a_reading_many_uncertainties_from_the_limit_is_called_with_confidence(side: str) -> None:
     """The normal model at work: the same 0.4 bar from the limit on a class 0.1 0–4 bar gauge
     (u = 0.0023 bar) is a confident pass or fail, never 'inconclusive'."""
-    profile = library().get("tarnhollow-td9")
+    profile = library().get("tarnhollow-fellborer")
     value = CASE_LIMIT_BAR - 0.4 if side == "below" else CASE_LIMIT_BAR + 0.4
     b = VisitBuilder(profile)
     b.add("travel.case", value, FunctionState.NEUTRAL, gauge=precise_gauge("G4", Kind.PRESSURE, 2.0))
@@ -171,14 +190,14 @@ def _exact_repeat_gain(d: Diagnosis) -> float:
 
 
 def test_inconclusive_reading_on_the_safe_side_of_its_limit_still_gets_a_repeat() -> None:
-    _visit, d = _td9_with_case_reading(BIG, 1.6)
+    _visit, d = _fellborer_with_case_reading(BIG, 1.6)
     assert finding(d, "case-pressure", "travel").verdict is Verdict.INCONCLUSIVE
     assert [t for t in d.next_tests if t.test_point == "travel.case" and t.repeat]
 
 
 @pytest.mark.parametrize("bar", [1.6, READING_BAR])
 def test_repeat_gain_is_the_exact_expected_information_gain(bar: float) -> None:
-    _visit, d = _td9_with_case_reading(BIG, bar)
+    _visit, d = _fellborer_with_case_reading(BIG, bar)
     exact = _exact_repeat_gain(d)
     assert exact > 1e-3
     repeat = [t for t in d.next_tests if t.test_point == "travel.case" and t.repeat]

@@ -1,4 +1,4 @@
-"""The next test on the open demo visit (four readings on the TD9 drill rig): the engine proposes a
+"""The next test on the open demo visit (four readings on the Fellborer drill rig): the engine proposes a
 reading not yet taken, says why in a sentence, and says what each outcome would do to the
 ranking; taking that reading then moves the ranking the way it said.
 
@@ -88,11 +88,15 @@ def test_taking_the_proposed_reading_moves_the_ranking_as_its_outcomes_said(outc
     gauge = precise_gauge("next", Kind.PRESSURE, to_canonical(point.max_pressure, Kind.PRESSURE))
     last = max(r.taken_at for r in visit.readings)
     reading = Reading(
-        id="r-next", test_point=t.test_point, value=Q_(_value_for(profile, t, outcome), "bar"),
+        id="r-next",
+        test_point=t.test_point,
+        value=Q_(_value_for(profile, t, outcome), "bar"),
         reference="gauge",
-        condition=Condition(function=STATE_BY_LABEL[t.condition], speed=profile.rated_speed,
-                            oil_temperature=Q_(55.0, "degC")),
-        gauge=gauge.id, taken_at=last + timedelta(minutes=10),
+        condition=Condition(
+            function=STATE_BY_LABEL[t.condition], speed=profile.rated_speed, oil_temperature=Q_(55.0, "degC")
+        ),
+        gauge=gauge.id,
+        taken_at=last + timedelta(minutes=10),
     )
     after = diagnose(with_readings(visit, [reading], [gauge]), profile, knowledge())
 

@@ -44,7 +44,11 @@ from fieldkit.units import Kind, PressureReference, to_canonical
 TEMPER = 0.35
 ALL_VISITS = [pytest.param(p, id=p.stem) for p in sample_visit_paths(with_scenario=False)]
 #: One visit per machine, with soft (inconclusive) findings among them, for the pgmpy check.
-PGMPY_VISITS = ["td9-charge-pump-worn", "wl14-ls-setting-wrong", "sc30-parallel-relief-governing"]
+PGMPY_VISITS = [
+    "fellborer-charge-pump-worn",
+    "loamshifter-ls-setting-wrong",
+    "pebblerun-parallel-relief-governing",
+]
 _EXEMPT = (Role.OIL_TEMPERATURE, Role.PUMP_SPEED)  # measure.py: these readings define the window
 
 
@@ -68,7 +72,8 @@ def _outside_test_window(visit: Visit, profile: MachineProfile, reading_ids: lis
         if oil is not None and not lo <= oil <= hi:
             return True
         if r.condition.speed is not None and abs(to_canonical(r.condition.speed, Kind.SPEED) - rated) > (
-                window.speed_tolerance_pct / 100 * rated):
+            window.speed_tolerance_pct / 100 * rated
+        ):
             return True
     return False
 
@@ -112,7 +117,7 @@ def test_posterior_matches_exact_enumeration_on_sample_visit(path: Path) -> None
 
 
 def test_posterior_matches_exact_enumeration_with_tempered_cold_oil_findings() -> None:
-    path = next(p for p in sample_visit_paths() if p.stem == "td9-charge-pump-worn")
+    path = next(p for p in sample_visit_paths() if p.stem == "fellborer-charge-pump-worn")
     visit = load_visit(path)
     profile = library().get(visit.machine)
     cold = chilled(visit, profile, 30.0)
@@ -144,8 +149,16 @@ def test_posterior_matches_pgmpy_variable_elimination_with_virtual_evidence(name
     virtual = []
     for f in findings:
         columns = [likelihood_for(rules[f.rule_id], f.circuit, s) for s in states]
-        cpds.append(TabularCPD(f.key, 3, [[col[o] for col in columns] for o in range(3)], evidence=["Fault"],
-                               evidence_card=[len(states)], state_names={f.key: outcomes, "Fault": states}))
+        cpds.append(
+            TabularCPD(
+                f.key,
+                3,
+                [[col[o] for col in columns] for o in range(3)],
+                evidence=["Fault"],
+                evidence_card=[len(states)],
+                state_names={f.key: outcomes, "Fault": states},
+            )
+        )
         soft = [f.p_low, f.p_in_range, f.p_high]
         assert all(0.0 <= x <= 1.0 for x in soft)
         virtual.append(TabularCPD(f.key, 3, [[x] for x in soft], state_names={f.key: outcomes}))
@@ -154,7 +167,7 @@ def test_posterior_matches_pgmpy_variable_elimination_with_virtual_evidence(name
     result = VariableElimination(model).query(["Fault"], virtual_evidence=virtual, show_progress=False)
     reference = dict(zip(result.state_names["Fault"], result.values))
 
-    assert any(f.verdict is Verdict.INCONCLUSIVE for f in findings) or name != "td9-charge-pump-worn"
+    assert any(f.verdict is Verdict.INCONCLUSIVE for f in findings) or name != "fellborer-charge-pump-worn"
     got = engine_posterior(d)
     for key, p in reference.items():
         assert got[key] == pytest.approx(p, abs=1e-6), key
@@ -170,8 +183,11 @@ def test_soft_outcomes_follow_the_gauge_class_with_a_normal_model(path: Path) ->
     checked = 0
     for f in _evaluated(d):
         rule = rules[f.rule_id]
-        if rule.spec.limits != "expected" or len(f.readings) != 1 or rule.value.names & {
-                "pump_case_drain_flow_at_ref", "motor_case_drain_flow_at_ref"}:
+        if (
+            rule.spec.limits != "expected"
+            or len(f.readings) != 1
+            or rule.value.names & {"pump_case_drain_flow_at_ref", "motor_case_drain_flow_at_ref"}
+        ):
             continue
         r = readings[f.readings[0]]
         gauge = visit.gauge(r.gauge)

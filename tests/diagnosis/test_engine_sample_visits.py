@@ -42,7 +42,7 @@ def test_healthy_sample_visit_ranks_no_fault_first(path: Path) -> None:
 
 
 def test_worn_charge_pump_visit_ranks_charge_pump_first_in_the_travel_loop() -> None:
-    path = next(p for p in SCENARIOS if p.stem == "td9-charge-pump-worn")
+    path = next(p for p in SCENARIOS if p.stem == "fellborer-charge-pump-worn")
     _visit, _profile, d = diagnose_sample(path)
     assert (d.top.id, d.top.circuit) == ("charge_pump_worn", "travel")
     # The charge relief is the close rival (low charge in neutral points at both).
@@ -51,18 +51,58 @@ def test_worn_charge_pump_visit_ranks_charge_pump_first_in_the_travel_loop() -> 
 
 
 #: Top-level keys of `fieldkit diagnose --json`, as the README documents them (format version 1).
-JSON_KEYS = {"format", "version", "visit", "machine", "readings", "findings", "faults", "next_tests",
-             "cautions", "uncertainty_bits", "notes"}
+JSON_KEYS = {
+    "format",
+    "version",
+    "visit",
+    "machine",
+    "readings",
+    "findings",
+    "faults",
+    "next_tests",
+    "cautions",
+    "uncertainty_bits",
+    "notes",
+}
 FAULT_KEYS = {"id", "circuit", "title", "probability", "prior", "for", "against", "confirm", "fix", "parts"}
-FINDING_KEYS = {"id", "rule_id", "circuit", "title", "verdict", "message", "value", "uncertainty", "low",
-                "high", "p_low", "p_in_range", "p_high", "readings", "missing", "discount", "discount_reason",
-                "action", "cautions", "source"}
-NEXT_TEST_KEYS = {"test_point", "label", "circuit", "condition", "minutes", "gain_bits", "why", "repeat",
-                  "gauge_advice", "outcomes"}
+FINDING_KEYS = {
+    "id",
+    "rule_id",
+    "circuit",
+    "title",
+    "verdict",
+    "message",
+    "value",
+    "uncertainty",
+    "low",
+    "high",
+    "p_low",
+    "p_in_range",
+    "p_high",
+    "readings",
+    "missing",
+    "discount",
+    "discount_reason",
+    "action",
+    "cautions",
+    "source",
+}
+NEXT_TEST_KEYS = {
+    "test_point",
+    "label",
+    "circuit",
+    "condition",
+    "minutes",
+    "gain_bits",
+    "why",
+    "repeat",
+    "gauge_advice",
+    "outcomes",
+}
 CAUTION_KEYS = {"id", "title", "text", "severity", "source", "because"}
 
 
-@pytest.mark.parametrize("name", ["td9-charge-pump-worn", "demo-open-visit"])
+@pytest.mark.parametrize("name", ["fellborer-charge-pump-worn", "demo-open-visit"])
 def test_diagnose_json_has_the_documented_shape(name: str, capsys: pytest.CaptureFixture[str]) -> None:
     path = next(p for p in sample_visit_paths(with_scenario=False) if p.stem == name)
     assert main(["diagnose", str(path), "--json"]) == 0

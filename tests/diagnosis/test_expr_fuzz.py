@@ -15,7 +15,12 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 from fieldkit.diagnosis.expr import (
-    BOOLEAN, BUILTIN_FUNCTIONS, MAX_DEPTH, ExprError, Compiled, compile_expression,
+    BOOLEAN,
+    BUILTIN_FUNCTIONS,
+    MAX_DEPTH,
+    ExprError,
+    Compiled,
+    compile_expression,
 )
 from fieldkit.units import SPELLINGS, Kind
 
@@ -68,6 +73,7 @@ def environments(draw: st.DrawFn) -> dict[str, Any]:
 
 # --- raw text ---------------------------------------------------------------------------------
 
+
 @FUZZ
 @given(st.text(max_size=300))
 def test_any_text_compiles_or_is_refused(source: str) -> None:
@@ -88,7 +94,9 @@ def test_text_from_the_language_alphabet_compiles_or_is_refused(source: str, env
 # --- token soup --------------------------------------------------------------------------------
 
 TOKENS = (
-    NAMES + sorted(BUILTIN_FUNCTIONS) + ["and", "or", "not", "when", "then", "else", "true", "false"]
+    NAMES
+    + sorted(BUILTIN_FUNCTIONS)
+    + ["and", "or", "not", "when", "then", "else", "true", "false"]
     + ["+", "-", "*", "/", "^", "<", "<=", ">", ">=", "=", "!=", "(", ")", "(", ")", ","]
     + ["0", "1", "2", "0.5", ".5", "17", "4", "-4", "1000"]
     + [f"3 {spelling}" for spelling in ("bar", "psi", "L/min", "°C", "K", "rpm", "%", "cSt", "min", "s")]
@@ -111,13 +119,19 @@ unit_literal = st.builds(
     st.sampled_from(sorted(SPELLINGS)),
 )
 atoms = st.one_of(
-    st.sampled_from(NAMES), st.sampled_from(["0", "1", "2", "0.5", "true", "false"]), unit_literal,
+    st.sampled_from(NAMES),
+    st.sampled_from(["0", "1", "2", "0.5", "true", "false"]),
+    unit_literal,
 )
 
 
 def _extend(inner: st.SearchStrategy[str]) -> st.SearchStrategy[str]:
-    binary = st.builds(lambda a, op, b: f"{a} {op} {b}", inner,
-                       st.sampled_from(["+", "-", "*", "/", "<", "<=", ">", ">=", "=", "!=", "and", "or"]), inner)
+    binary = st.builds(
+        lambda a, op, b: f"{a} {op} {b}",
+        inner,
+        st.sampled_from(["+", "-", "*", "/", "<", "<=", ">", ">=", "=", "!=", "and", "or"]),
+        inner,
+    )
     return st.one_of(
         binary,
         inner.map(lambda a: f"({a})"),
@@ -125,8 +139,11 @@ def _extend(inner: st.SearchStrategy[str]) -> st.SearchStrategy[str]:
         inner.map(lambda a: f"not {a}"),
         st.builds(lambda a, n: f"{a} ^ {n}", inner, st.integers(-6, 6)),
         st.builds(lambda c, a, b: f"(when {c} then {a} else {b})", inner, inner, inner),
-        st.builds(lambda f, args: f"{f}({', '.join(args)})",
-                  st.sampled_from(sorted(BUILTIN_FUNCTIONS)), st.lists(inner, max_size=4)),
+        st.builds(
+            lambda f, args: f"{f}({', '.join(args)})",
+            st.sampled_from(sorted(BUILTIN_FUNCTIONS)),
+            st.lists(inner, max_size=4),
+        ),
     )
 
 
@@ -151,9 +168,9 @@ def test_mutated_expressions_compile_or_are_refused(source: str, data: st.DataOb
     if edit == "insert":
         source = source[:position] + char + source[position:]
     elif edit == "delete":
-        source = source[:position] + source[position + 1:]
+        source = source[:position] + source[position + 1 :]
     else:
-        source = source[:position] + char + source[position + 1:]
+        source = source[:position] + char + source[position + 1 :]
     compile_or_refuse(source)
 
 
@@ -187,8 +204,11 @@ def arithmetic(draw: st.DrawFn, levels: int = 5, env: dict[str, float] | None = 
         return f"({left_text}) ^ {n}", _power(left, n, strict), left_depth + 1
     op = draw(st.sampled_from("+-*/"))
     right_text, right, right_depth = draw(arithmetic(levels - 1, env))
-    return (f"({left_text}) {op} ({right_text})", _apply(op, left, right, strict),
-            max(left_depth, right_depth) + 1)
+    return (
+        f"({left_text}) {op} ({right_text})",
+        _apply(op, left, right, strict),
+        max(left_depth, right_depth) + 1,
+    )
 
 
 def _power(x: float | None, n: int, strict: bool) -> float | None:
@@ -197,7 +217,7 @@ def _power(x: float | None, n: int, strict: bool) -> float | None:
     if n == 0:
         return 1.0
     try:
-        return _checked(x ** n, strict)
+        return _checked(x**n, strict)
     except (ZeroDivisionError, OverflowError):
         return None
 
@@ -230,8 +250,10 @@ def test_constant_arithmetic_matches_python_floats(built: Built) -> None:
 
 @st.composite
 def arithmetic_with_names(draw: st.DrawFn) -> tuple[Built, dict[str, float]]:
-    env = {name: draw(st.one_of(st.floats(-1e6, 1e6), st.sampled_from([0.0, 1e300, -1e-300])))
-           for name in ("a", "b", "c")}
+    env = {
+        name: draw(st.one_of(st.floats(-1e6, 1e6), st.sampled_from([0.0, 1e300, -1e-300])))
+        for name in ("a", "b", "c")
+    }
     return draw(arithmetic(4, env)), env
 
 

@@ -9,7 +9,13 @@ import math
 import pytest
 
 from fieldkit.diagnosis.expr import (
-    MAX_CHARS, MAX_DEPTH, MAX_TOKENS, ExprError, FunctionSpec, compile_expression, function_table,
+    MAX_CHARS,
+    MAX_DEPTH,
+    MAX_TOKENS,
+    ExprError,
+    FunctionSpec,
+    compile_expression,
+    function_table,
 )
 from fieldkit.errors import FieldkitError
 from fieldkit.units import Kind
@@ -33,36 +39,39 @@ def test_expr_error_is_a_fieldkit_error() -> None:
     assert issubclass(ExprError, FieldkitError)
 
 
-@pytest.mark.parametrize(("source", "says"), [
-    ("__import__('os')", "'__'"),
-    ("().__class__", "'__'"),
-    ("charge_pressure.__dict__", "'__'"),
-    ("charge_pressure.real", "attribute access"),
-    ("(charge_pressure).real", "decimal point"),
-    ('open("x")', "not part of the rule language"),
-    ("open(x)", "not part of the rule language"),
-    ("exec", "not part of the rule language"),
-    ("eval(x)", "not part of the rule language"),
-    ("getattr(x, x)", "not part of the rule language"),
-    ("lambda: 1", "not part of the rule language"),
-    ("import os", "not part of the rule language"),
-    ("'bar'", "quotes"),
-    ('"17 bar"', "quotes"),
-    ("`x`", "quotes"),
-    ("x[0]", "square brackets"),
-    ("{x}", "braces"),
-    ("x; x", "one expression"),
-    ("x if true else 1", "when"),
-    ("system(x)", "unknown function"),
-    ("x == 1", "write '='"),
-    ("x ** 2", "'^'"),
-    ("x && true", "and"),
-    ("!x", "not"),
-    ("x # comment", "comments"),
-    ("x\\\n+1", "backslash"),
-    ("x\u200b< 1", "invisible"),
-    ("X < 1", "lower-case"),
-])
+@pytest.mark.parametrize(
+    ("source", "says"),
+    [
+        ("__import__('os')", "'__'"),
+        ("().__class__", "'__'"),
+        ("charge_pressure.__dict__", "'__'"),
+        ("charge_pressure.real", "attribute access"),
+        ("(charge_pressure).real", "decimal point"),
+        ('open("x")', "not part of the rule language"),
+        ("open(x)", "not part of the rule language"),
+        ("exec", "not part of the rule language"),
+        ("eval(x)", "not part of the rule language"),
+        ("getattr(x, x)", "not part of the rule language"),
+        ("lambda: 1", "not part of the rule language"),
+        ("import os", "not part of the rule language"),
+        ("'bar'", "quotes"),
+        ('"17 bar"', "quotes"),
+        ("`x`", "quotes"),
+        ("x[0]", "square brackets"),
+        ("{x}", "braces"),
+        ("x; x", "one expression"),
+        ("x if true else 1", "when"),
+        ("system(x)", "unknown function"),
+        ("x == 1", "write '='"),
+        ("x ** 2", "'^'"),
+        ("x && true", "and"),
+        ("!x", "not"),
+        ("x # comment", "comments"),
+        ("x\\\n+1", "backslash"),
+        ("x\u200b< 1", "invisible"),
+        ("X < 1", "lower-case"),
+    ],
+)
 def test_code_execution_attempts_are_refused(source: str, says: str) -> None:
     error = refused(source)
     assert says in error.message
@@ -75,13 +84,16 @@ def test_the_language_never_reaches_python_eval(monkeypatch: pytest.MonkeyPatch)
 
     for name in ("eval", "exec", "compile"):
         monkeypatch.setattr(builtins, name, forbidden)
-    rule = compile_expression("when gain > 0.5 then max(charge_pressure - case_pressure, 0 bar) else 1 bar ^ 1",
-                              SYMBOLS)
+    rule = compile_expression(
+        "when gain > 0.5 then max(charge_pressure - case_pressure, 0 bar) else 1 bar ^ 1", SYMBOLS
+    )
     assert rule.evaluate({"gain": 0.9, "charge_pressure": 2e6, "case_pressure": 1e5}) == 1.9e6
 
 
-@pytest.mark.parametrize("source", ["2 ^ 100000", "9^9^9", "x ^ x", "2 ^ 5", "2 ^ -5", "2 ^ 2.5",
-                                    "2 ^ (2)", "2 ^ 1 bar", "x ^ 2 ^ 2"])
+@pytest.mark.parametrize(
+    "source",
+    ["2 ^ 100000", "9^9^9", "x ^ x", "2 ^ 5", "2 ^ -5", "2 ^ 2.5", "2 ^ (2)", "2 ^ 1 bar", "x ^ 2 ^ 2"],
+)
 def test_exponent_bombs_are_refused_at_compile_time(source: str) -> None:
     error = refused(source)
     assert "power" in error.message or "exponent" in error.message
@@ -96,23 +108,29 @@ def test_stacked_powers_overflow_into_a_clear_error() -> None:
         bomb.evaluate({"x": 2.0})
 
 
-@pytest.mark.parametrize("source", [
-    "(" * 10_000 + "x" + ")" * 10_000,
-    "-" * 10_000 + "x",
-    "not " * 5_000 + "true",
-    "x+" * 10_000 + "x",
-])
+@pytest.mark.parametrize(
+    "source",
+    [
+        "(" * 10_000 + "x" + ")" * 10_000,
+        "-" * 10_000 + "x",
+        "not " * 5_000 + "true",
+        "x+" * 10_000 + "x",
+    ],
+)
 def test_huge_hostile_input_is_refused_by_size(source: str) -> None:
     assert str(MAX_CHARS) in refused(source).message
 
 
-@pytest.mark.parametrize("source", [
-    "(" * (MAX_DEPTH + 1) + "x" + ")" * (MAX_DEPTH + 1),
-    "-" * (MAX_DEPTH + 1) + "x",
-    "not " * (MAX_DEPTH + 1) + "true",
-    "abs(" * (MAX_DEPTH + 1) + "x" + ")" * (MAX_DEPTH + 1),
-    "when true then x else " * (MAX_DEPTH + 1) + "x",
-])
+@pytest.mark.parametrize(
+    "source",
+    [
+        "(" * (MAX_DEPTH + 1) + "x" + ")" * (MAX_DEPTH + 1),
+        "-" * (MAX_DEPTH + 1) + "x",
+        "not " * (MAX_DEPTH + 1) + "true",
+        "abs(" * (MAX_DEPTH + 1) + "x" + ")" * (MAX_DEPTH + 1),
+        "when true then x else " * (MAX_DEPTH + 1) + "x",
+    ],
+)
 def test_nesting_deeper_than_the_limit_is_refused(source: str) -> None:
     assert "nested" in refused(source).message
 
@@ -149,6 +167,7 @@ def test_empty_expression_is_refused(source: str) -> None:
 
 # --- wrong units and kinds --------------------------------------------------------------------
 
+
 def test_pressure_compared_with_flow_names_both_kinds() -> None:
     error = refused("charge_pressure < 5 L/min")
     assert "a pressure" in error.message and "a flow" in error.message
@@ -157,36 +176,39 @@ def test_pressure_compared_with_flow_names_both_kinds() -> None:
     assert source_line[caret_line.index("^")] == "<"
 
 
-@pytest.mark.parametrize(("source", "says"), [
-    ("charge_pressure + pump_flow", "adds"),
-    ("charge_pressure - 2 L/min", "subtracts"),
-    ("when charge_pressure then 1 else 2", "true or false"),
-    ("when x > 1 then 1 bar else 2 L/min", "'then' gives"),
-    ("charge_pressure and true", "true/false"),
-    ("not charge_pressure", "true/false"),
-    ("(x < 1) + 1", "true/false"),
-    ("(x < 1) < (x < 2)", "true/false"),
-    ("charge_pressure < 5 bars", "not a unit"),
-    ("charge_pressure < 5 barx", "not a unit"),
-    ("charge_pressure < 5e3 Pa", "exponent notation"),
-    ("bar < 5 bar", "unit word"),
-    ("x < 1 < 2", "do not chain"),
-    ("charge_pressure(1)", "not a function"),
-    ("max < 1", "is a function"),
-    ("x <", "ends too early"),
-    ("17.", "decimal point"),
-    ("1.2.3", "two decimal points"),
-    ("x +* 2", "expected a number"),
-    ("(x + 1", "expected ')'"),
-    ("max(x, 1", "expected ')'"),
-    ("when x > 1 then 2", "else"),
-    ("1 / 0", "division by zero"),
-    ("°C", "unexpected character"),
-    ("x < .²", "decimal point"),           # '²' and '٣' pass str.isdigit() but are not digits here
-    ("x < 2²", "unexpected character"),
-    ("x < \u0663", "unexpected character"),
-    ("x <\u00a05", "invisible"),
-])
+@pytest.mark.parametrize(
+    ("source", "says"),
+    [
+        ("charge_pressure + pump_flow", "adds"),
+        ("charge_pressure - 2 L/min", "subtracts"),
+        ("when charge_pressure then 1 else 2", "true or false"),
+        ("when x > 1 then 1 bar else 2 L/min", "'then' gives"),
+        ("charge_pressure and true", "true/false"),
+        ("not charge_pressure", "true/false"),
+        ("(x < 1) + 1", "true/false"),
+        ("(x < 1) < (x < 2)", "true/false"),
+        ("charge_pressure < 5 bars", "not a unit"),
+        ("charge_pressure < 5 barx", "not a unit"),
+        ("charge_pressure < 5e3 Pa", "exponent notation"),
+        ("bar < 5 bar", "unit word"),
+        ("x < 1 < 2", "do not chain"),
+        ("charge_pressure(1)", "not a function"),
+        ("max < 1", "is a function"),
+        ("x <", "ends too early"),
+        ("17.", "decimal point"),
+        ("1.2.3", "two decimal points"),
+        ("x +* 2", "expected a number"),
+        ("(x + 1", "expected ')'"),
+        ("max(x, 1", "expected ')'"),
+        ("when x > 1 then 2", "else"),
+        ("1 / 0", "division by zero"),
+        ("°C", "unexpected character"),
+        ("x < .²", "decimal point"),  # '²' and '٣' pass str.isdigit() but are not digits here
+        ("x < 2²", "unexpected character"),
+        ("x < \u0663", "unexpected character"),
+        ("x <\u00a05", "invisible"),
+    ],
+)
 def test_mistakes_get_a_clear_message(source: str, says: str) -> None:
     error = refused(source)
     assert says in error.message
@@ -194,6 +216,7 @@ def test_mistakes_get_a_clear_message(source: str, says: str) -> None:
 
 
 # --- evaluation-time failures ------------------------------------------------------------------
+
 
 def test_division_by_zero_at_evaluation_points_at_the_slash() -> None:
     ratio = compile_expression("pump_flow / pump_flow * 2", SYMBOLS)

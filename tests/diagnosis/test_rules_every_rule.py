@@ -44,8 +44,12 @@ def _scene_or_none(rule: Rule) -> Scene | None:
 
 
 SCENES = {rule.id: _scene_or_none(rule) for rule in RULES}
-CASES = [pytest.param(scene, side, id=f"{rule_id}-{side}")
-         for rule_id, scene in SCENES.items() if scene is not None for side in scene.sides]
+CASES = [
+    pytest.param(scene, side, id=f"{rule_id}-{side}")
+    for rule_id, scene in SCENES.items()
+    if scene is not None
+    for side in scene.sides
+]
 VERDICT = {"low": Verdict.LOW, "in_range": Verdict.IN_RANGE, "high": Verdict.HIGH}
 OUTCOME_INDEX = {"low": 0, "in_range": 1, "high": 2}
 
@@ -96,7 +100,8 @@ def test_rule_gives_its_verdict_and_the_evidence_its_tables_say(scene: Scene, si
         lik = likelihood_for(rule, scene.circuit_id, key)
         # Virtual evidence: P(finding | h) = Σ_o P(o observed) · P(o | h), as a ratio to healthy.
         expected = math.log(sum(o * p for o, p in zip(outcome, lik))) - math.log(
-            sum(o * p for o, p in zip(outcome, healthy)))
+            sum(o * p for o, p in zip(outcome, healthy))
+        )
         assert f.evidence.get(key, 0.0) == pytest.approx(expected, abs=1e-9), key
         # With a hard outcome the sign is the table's: more likely under the fault than healthy → for it.
         table = lik[OUTCOME_INDEX[side]] - healthy[OUTCOME_INDEX[side]]
@@ -125,7 +130,7 @@ def test_a_firing_rule_raises_the_faults_it_lists_for_that_side(scene: Scene, si
 
 def test_a_rule_that_cannot_apply_to_a_circuit_says_nothing_about_it() -> None:
     """The pilot-supply rule reads a circuit kind the drill rig does not have: no finding at all."""
-    path = next(p for p in sample_visit_paths() if p.name.startswith("td9-no-fault"))
+    path = next(p for p in sample_visit_paths() if p.name.startswith("fellborer-no-fault"))
     _visit, profile, d = diagnose_sample(path)
     assert all(c.kind.value != "pilot_supply" for c in profile.circuits)
     assert not [f for f in d.findings if f.rule_id == "pilot-supply"]

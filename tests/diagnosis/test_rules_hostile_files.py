@@ -22,7 +22,7 @@ from fieldkit.errors import DataFileError, FieldkitError
 from fieldkit.model.condition import FunctionState
 from fieldkit.tomlfile import MAX_FILE_BYTES
 
-PROBE = '''# A one-rule pack written by a test.
+PROBE = """# A one-rule pack written by a test.
 [[rule]]
 id = "probe"
 title = "Probe charge pressure"
@@ -35,7 +35,7 @@ source = "test pack"
 say_low = "Charge reads {value}, below {low}."
   [rule.if_low]
   charge_relief_low = 0.9
-'''
+"""
 
 RulesFolder = Callable[[str], Path]
 
@@ -82,14 +82,18 @@ HOSTILE_VALUES = [
     pytest.param("(" * 5000 + "charge_pressure" + ")" * 5000, ("limit",), id="5000-parentheses"),
     pytest.param("charge_pressure < 5 L/min", ("pressure", "flow"), id="pressure-against-flow"),
     pytest.param("charge_presure", ("unknown name 'charge_presure'", "charge_pressure"), id="misspelt-role"),
-    pytest.param("charge_pressure - min_net_charj", ("unknown name 'min_net_charj'", "min_net_charge"),
-                 id="misspelt-parameter"),
+    pytest.param(
+        "charge_pressure - min_net_charj",
+        ("unknown name 'min_net_charj'", "min_net_charge"),
+        id="misspelt-parameter",
+    ),
 ]
 
 
 @pytest.mark.parametrize(("value", "says"), HOSTILE_VALUES)
-def test_hostile_rule_expression_is_refused_at_its_line(rules_folder: RulesFolder, value: str,
-                                                        says: tuple[str, ...]) -> None:
+def test_hostile_rule_expression_is_refused_at_its_line(
+    rules_folder: RulesFolder, value: str, says: tuple[str, ...]
+) -> None:
     toml_value = value.replace("\\", "\\\\").replace('"', '\\"')
     pack = PROBE.replace('value = "charge_pressure"', f'value = "{toml_value}"')
     folder = rules_folder(pack)
@@ -100,8 +104,9 @@ def test_hostile_rule_expression_is_refused_at_its_line(rules_folder: RulesFolde
 
 
 def test_hostile_expression_makes_rules_check_fail_with_the_file_and_line(
-        rules_folder: RulesFolder, capsys: pytest.CaptureFixture[str]) -> None:
-    pack = PROBE.replace('value = "charge_pressure"', 'value = "__import__(\'os\').system(\'x\')"')
+    rules_folder: RulesFolder, capsys: pytest.CaptureFixture[str]
+) -> None:
+    pack = PROBE.replace('value = "charge_pressure"', "value = \"__import__('os').system('x')\"")
     folder = rules_folder(pack)
     code = main(["rules", "check", str(folder)])
     err = capsys.readouterr().err
@@ -156,15 +161,26 @@ def test_unknown_caution_is_refused_naming_the_rule_and_its_line(rules_folder: R
     assert "unknown caution 'wear-a-hat'" in str(err)
 
 
-@pytest.mark.parametrize(("old", "new", "says"), [
-    pytest.param("charge_relief_low = 0.9", "charge_releif_low = 0.9", "unknown fault 'charge_releif_low'",
-                 id="unknown-fault"),
-    pytest.param('source = "test pack"', 'source = "test pack"\ncautions = ["wear-a-hat"]',
-                 "unknown caution 'wear-a-hat'", id="unknown-caution"),
-])
-def test_rules_check_exits_1_on_unknown_references(rules_folder: RulesFolder,
-                                                   capsys: pytest.CaptureFixture[str],
-                                                   old: str, new: str, says: str) -> None:
+@pytest.mark.parametrize(
+    ("old", "new", "says"),
+    [
+        pytest.param(
+            "charge_relief_low = 0.9",
+            "charge_releif_low = 0.9",
+            "unknown fault 'charge_releif_low'",
+            id="unknown-fault",
+        ),
+        pytest.param(
+            'source = "test pack"',
+            'source = "test pack"\ncautions = ["wear-a-hat"]',
+            "unknown caution 'wear-a-hat'",
+            id="unknown-caution",
+        ),
+    ],
+)
+def test_rules_check_exits_1_on_unknown_references(
+    rules_folder: RulesFolder, capsys: pytest.CaptureFixture[str], old: str, new: str, says: str
+) -> None:
     pack = PROBE.replace(old, new)
     folder = rules_folder(pack)
     code = main(["rules", "check", str(folder)])
@@ -189,7 +205,7 @@ def test_message_placeholders_fill_only_plain_names(rules_folder: RulesFolder) -
     hostile = "{value.__class__} {0} {value!r} {low.__init__.__globals__} {value:>99999} and {value}"
     pack = PROBE.replace('say_low = "Charge reads {value}, below {low}."', f'say_low = "{hostile}"')
     knowledge = Knowledge.load(rules_folder(pack))
-    profile = library().get("tarnhollow-td9")
+    profile = library().get("tarnhollow-fellborer")
     b = VisitBuilder(profile)
     b.add("travel.charge", 12.0, FunctionState.NEUTRAL)
     f = finding(diagnose(b.build(), profile, knowledge), "probe", "travel")

@@ -16,7 +16,7 @@ from fieldkit.diagnosis.engine import Knowledge
 from fieldkit.diagnosis.lint import problems
 from fieldkit.diagnosis.rulepack import load_packs
 
-PROBE = '''[[rule]]
+PROBE = """[[rule]]
 id = "probe"
 title = "Probe charge pressure"
 circuits = ["closed_loop_drive"]
@@ -26,7 +26,7 @@ high = "30 bar"
 source = "test pack"
   [rule.if_low]
   charge_relief_low = 0.9
-'''
+"""
 
 
 def _folder(tmp_path: Path, pack: str) -> Path:
@@ -40,11 +40,17 @@ def _folder(tmp_path: Path, pack: str) -> Path:
 
 def _knowledge(folder: Path) -> Knowledge:
     """Loaded without the reference check, as the lint command does, so every problem is listed."""
-    return Knowledge(load_packs(folder), load_faults(folder / "faults.toml"),
-                     load_cautions(folder / "cautions.toml"), folder)
+    return Knowledge(
+        load_packs(folder),
+        load_faults(folder / "faults.toml"),
+        load_cautions(folder / "cautions.toml"),
+        folder,
+    )
 
 
-@pytest.mark.parametrize("args", [["rules", "check"], ["rules", "check", str(RULES)]], ids=["bundled", "by-path"])
+@pytest.mark.parametrize(
+    "args", [["rules", "check"], ["rules", "check", str(RULES)]], ids=["bundled", "by-path"]
+)
 def test_bundled_rules_pass_the_check(args: list[str], capsys: pytest.CaptureFixture[str]) -> None:
     assert main(args) == 0
     out = capsys.readouterr().out
@@ -59,21 +65,38 @@ def test_bundled_rules_have_no_lint_errors() -> None:
 
 MISTAKES = [
     pytest.param('low = "20 bar"\n', "", "has if_low but no low limit", id="if-low-without-low-limit"),
-    pytest.param("  [rule.if_low]\n  charge_relief_low = 0.9\n", "", "names no fault in if_low or if_high",
-                 id="rule-naming-no-fault"),
-    pytest.param('source = "test pack"\n', 'source = "test pack"\ncautions = ["wear-a-hat"]\n',
-                 "raises unknown caution 'wear-a-hat'", id="unknown-caution"),
-    pytest.param("charge_relief_low = 0.9", "charge_releif_low = 0.9",
-                 "names unknown fault 'charge_releif_low'", id="unknown-fault"),
-    pytest.param("charge_relief_low = 0.9", "pilot_supply_low = 0.9",
-                 "which cannot occur in closed_loop_drive", id="fault-of-another-circuit-kind"),
+    pytest.param(
+        "  [rule.if_low]\n  charge_relief_low = 0.9\n",
+        "",
+        "names no fault in if_low or if_high",
+        id="rule-naming-no-fault",
+    ),
+    pytest.param(
+        'source = "test pack"\n',
+        'source = "test pack"\ncautions = ["wear-a-hat"]\n',
+        "raises unknown caution 'wear-a-hat'",
+        id="unknown-caution",
+    ),
+    pytest.param(
+        "charge_relief_low = 0.9",
+        "charge_releif_low = 0.9",
+        "names unknown fault 'charge_releif_low'",
+        id="unknown-fault",
+    ),
+    pytest.param(
+        "charge_relief_low = 0.9",
+        "pilot_supply_low = 0.9",
+        "which cannot occur in closed_loop_drive",
+        id="fault-of-another-circuit-kind",
+    ),
     pytest.param('high = "30 bar"', 'high = "15 bar"', "low limit is not below high limit", id="empty-band"),
 ]
 
 
 @pytest.mark.parametrize(("old", "new", "says"), MISTAKES)
-def test_rule_mistake_is_a_lint_error_at_the_rule(tmp_path: Path, capsys: pytest.CaptureFixture[str],
-                                                  old: str, new: str, says: str) -> None:
+def test_rule_mistake_is_a_lint_error_at_the_rule(
+    tmp_path: Path, capsys: pytest.CaptureFixture[str], old: str, new: str, says: str
+) -> None:
     assert old in PROBE
     folder = _folder(tmp_path, PROBE.replace(old, new))
     pack = folder / "packs" / "probe.toml"

@@ -19,7 +19,9 @@ def test_model_knows_exactly_the_en_837_1_classes() -> None:
 
 @pytest.mark.parametrize("accuracy_class", EN837_1_CLASSES)
 def test_pressure_gauge_accepts_every_en_837_1_class(accuracy_class: float) -> None:
-    assert Gauge(id="G60", full_scale="60 bar", accuracy_class=accuracy_class).accuracy_class == accuracy_class
+    assert (
+        Gauge(id="G60", full_scale="60 bar", accuracy_class=accuracy_class).accuracy_class == accuracy_class
+    )
 
 
 @pytest.mark.parametrize("accuracy_class", [0.5, 1.5, 2.0, 3.0])
@@ -33,7 +35,12 @@ def test_pressure_gauge_refuses_a_class_en_837_1_does_not_have(accuracy_class: f
 
 def test_gauge_to_another_standard_keeps_its_own_grade() -> None:
     # ASME B40.100 grade 2A is 0.5 % of span (field notes, from memory): not an EN 837-1 class, still valid.
-    assert Gauge(id="P5K", full_scale="5000 psi", accuracy_class=0.5, standard="ASME B40.100 grade 2A").accuracy_class == 0.5
+    assert (
+        Gauge(
+            id="P5K", full_scale="5000 psi", accuracy_class=0.5, standard="ASME B40.100 grade 2A"
+        ).accuracy_class
+        == 0.5
+    )
 
 
 def test_flow_meter_is_not_held_to_pressure_gauge_classes() -> None:

@@ -14,7 +14,7 @@ from fieldkit.errors import DataFileError
 from fieldkit.model.loading import CircuitTemplate, load_profile, load_templates
 from fieldkit.resources import rules_dir
 
-GOOD_PROFILE = textwrap.dedent('''\
+GOOD_PROFILE = textwrap.dedent("""\
     # A small invented rig for tests.
     id = "test-rig"
     name = "Test rig"
@@ -47,7 +47,7 @@ GOOD_PROFILE = textwrap.dedent('''\
         low = "180 bar"
         high = "200 bar"
         source = "common practice"
-    ''')
+    """)
 
 
 @pytest.fixture(scope="module")
@@ -114,7 +114,10 @@ def test_missing_required_key_points_at_its_table(tmp_path: Path, templates: Any
     # and the message goes on to name the misspelt key on its own line.
     assert_points_at(error, path, line_of(text, 'low = "180 bar"') - 1)
     assert error.key == "circuits.1.test_points.0.expected.0.source"
-    assert f"line {line_of(text, 'sorce =')}, circuits.1.test_points.0.expected.0.sorce: unknown key" in error.detail
+    assert (
+        f"line {line_of(text, 'sorce =')}, circuits.1.test_points.0.expected.0.sorce: unknown key"
+        in error.detail
+    )
 
 
 def test_wrong_unit_kind_for_a_top_level_value(tmp_path: Path, templates: Any) -> None:
@@ -134,7 +137,9 @@ def test_wrong_unit_kind_for_a_test_point_limit(tmp_path: Path, templates: Any) 
 
 
 def test_expected_range_of_the_wrong_kind_for_its_role(tmp_path: Path, templates: Any) -> None:
-    text = GOOD_PROFILE.replace('low = "180 bar"', 'low = "180 L/min"').replace('high = "200 bar"', 'high = "200 L/min"')
+    text = GOOD_PROFILE.replace('low = "180 bar"', 'low = "180 L/min"').replace(
+        'high = "200 bar"', 'high = "200 L/min"'
+    )
     path = write(tmp_path, text)
     error = load_error(path, templates)
     assert error.path == str(path)
@@ -175,8 +180,9 @@ def test_unknown_parameter_points_at_its_own_line(tmp_path: Path, templates: Any
 
 
 def test_omitting_a_test_point_the_template_lacks_is_refused(tmp_path: Path, templates: Any) -> None:
-    text = GOOD_PROFILE.replace('template = "closed_loop_drive"',
-                                'template = "closed_loop_drive"\nomit_test_points = ["winch"]')
+    text = GOOD_PROFILE.replace(
+        'template = "closed_loop_drive"', 'template = "closed_loop_drive"\nomit_test_points = ["winch"]'
+    )
     path = write(tmp_path, text)
     error = load_error(path, templates)
     assert_points_at(error, path, line_of(text, "omit_test_points ="))
@@ -187,11 +193,13 @@ def test_broken_template_names_its_own_file_and_line(tmp_path: Path) -> None:
     folder = tmp_path / "templates"
     shutil.copytree(rules_dir() / "templates", folder)
     path = folder / "closed_loop_drive.toml"
-    text = path.read_text(encoding="utf-8").replace('fitting = "test coupling"', 'fiting = "test coupling"', 1)
+    text = path.read_text(encoding="utf-8").replace(
+        'fitting = "test coupling"', 'fiting = "test coupling"', 1
+    )
     path.write_text(text, encoding="utf-8")
     with pytest.raises(DataFileError) as caught:
         load_templates(folder)
     error = caught.value
     assert error.path == str(path)
-    assert error.line == line_of(text, 'fiting =')
+    assert error.line == line_of(text, "fiting =")
     assert str(error).startswith(f"{path}:{error.line}")

@@ -27,22 +27,58 @@ def at(hour: int, minute: int = 0) -> datetime:
 def awkward_visit() -> Visit:
     """A visit whose values are hard to write exactly: thousands commas, thirds, °F, inHg, tiny flows."""
     return Visit(
-        id="rt-001", job_number="RT-001", machine="tarnhollow-td9", technician="Test Fitter",
+        id="rt-001",
+        job_number="RT-001",
+        machine="tarnhollow-fellborer",
+        technician="Test Fitter",
         barometric_pressure="29.92 inHg",
-        gauges=[Gauge(id="G600", full_scale="600 bar", accuracy_class=1.0),
-                Gauge(id="C3", full_scale="3 bar", scale_start="-1 bar", accuracy_class=1.6)],
+        gauges=[
+            Gauge(id="G600", full_scale="600 bar", accuracy_class=1.0),
+            Gauge(id="C3", full_scale="3 bar", scale_start="-1 bar", accuracy_class=1.6),
+        ],
         readings=[
-            Reading(id="r1", test_point="travel.loop_a", value="3,500 psi", entered="3,500 psi", gauge="G600",
-                    condition=Condition(function=FunctionState.STALLED, speed="2200 rpm", oil_temperature="131 F"),
-                    taken_at=at(9, 15)),
-            Reading(id="r2", test_point="travel.charge", value=Q_(1 / 3, unit("bar")),
-                    reference=PressureReference.GAUGE, taken_at=at(9, 20)),
-            Reading(id="r3", test_point="travel.charge_inlet", value="0.75 bar abs", gauge="C3", taken_at=at(9, 25)),
-            Reading(id="r4", test_point="travel.pump_drain", value=Q_(0.1 + 0.2, unit("gallon / minute")),
-                    taken_at=at(9, 30), note="meter [FM20] read twice; \"steady\""),
-            Reading(id="r5", test_point="travel.loop_a", value="241.3 bar", replaces="r1", taken_at=at(9, 40)),
-            Reading(id="r6", test_point="travel.oil_temp", value=Q_(-160 / 9, unit("degC")),  # 0 °F
-                    taken_at=at(9, 45), deleted_at=at(9, 50)),
+            Reading(
+                id="r1",
+                test_point="travel.loop_a",
+                value="3,500 psi",
+                entered="3,500 psi",
+                gauge="G600",
+                condition=Condition(
+                    function=FunctionState.STALLED, speed="2200 rpm", oil_temperature="131 F"
+                ),
+                taken_at=at(9, 15),
+            ),
+            Reading(
+                id="r2",
+                test_point="travel.charge",
+                value=Q_(1 / 3, unit("bar")),
+                reference=PressureReference.GAUGE,
+                taken_at=at(9, 20),
+            ),
+            Reading(
+                id="r3",
+                test_point="travel.charge_inlet",
+                value="0.75 bar abs",
+                gauge="C3",
+                taken_at=at(9, 25),
+            ),
+            Reading(
+                id="r4",
+                test_point="travel.pump_drain",
+                value=Q_(0.1 + 0.2, unit("gallon / minute")),
+                taken_at=at(9, 30),
+                note='meter [FM20] read twice; "steady"',
+            ),
+            Reading(
+                id="r5", test_point="travel.loop_a", value="241.3 bar", replaces="r1", taken_at=at(9, 40)
+            ),
+            Reading(
+                id="r6",
+                test_point="travel.oil_temp",
+                value=Q_(-160 / 9, unit("degC")),  # 0 °F
+                taken_at=at(9, 45),
+                deleted_at=at(9, 50),
+            ),
         ],
         notes="Ünïcode notes, a tab\tand a newline\nare kept.",
     )
@@ -87,6 +123,7 @@ def test_pressure_reading_built_in_code_without_a_reference_round_trips() -> Non
 
 # --- pressure reference ----------------------------------------------------------------------
 
+
 def test_reading_typed_as_bar_abs_keeps_its_absolute_reference() -> None:
     reading = Reading(test_point="travel.charge_inlet", value="0.75 bar abs")
     assert reading.reference is PressureReference.ABSOLUTE
@@ -95,7 +132,9 @@ def test_reading_typed_as_bar_abs_keeps_its_absolute_reference() -> None:
 
 
 def test_reading_typed_as_psia_keeps_its_absolute_reference() -> None:
-    assert Reading(test_point="travel.charge_inlet", value="11.2 psia").reference is PressureReference.ABSOLUTE
+    assert (
+        Reading(test_point="travel.charge_inlet", value="11.2 psia").reference is PressureReference.ABSOLUTE
+    )
 
 
 def test_plain_pressure_text_is_a_gauge_reading_and_a_flow_has_no_reference() -> None:
@@ -114,6 +153,7 @@ def test_reading_value_without_a_unit_is_refused() -> None:
 
 
 # --- strict keys ------------------------------------------------------------------------------
+
 
 def test_reading_with_an_unknown_key_names_the_key() -> None:
     with pytest.raises(ValidationError) as caught:
@@ -142,6 +182,7 @@ def test_misspelt_key_inside_a_reading_names_its_path() -> None:
 
 # --- corrections and deletions ---------------------------------------------------------------
 
+
 def test_current_readings_hide_deleted_and_replaced_readings() -> None:
     visit = awkward_visit()
     assert [r.id for r in visit.current_readings()] == ["r2", "r3", "r4", "r5"]
@@ -149,21 +190,31 @@ def test_current_readings_hide_deleted_and_replaced_readings() -> None:
 
 
 def test_a_correction_of_a_correction_leaves_only_the_last() -> None:
-    visit = Visit(job_number="RT-002", machine="tarnhollow-td9", readings=[
-        Reading(id="a", test_point="travel.charge", value="2,5 bar", taken_at=at(10)),
-        Reading(id="b", test_point="travel.charge", value="25 bar", replaces="a", taken_at=at(10, 1)),
-        Reading(id="c", test_point="travel.charge", value="24.5 bar", replaces="b", taken_at=at(10, 2)),
-    ])
+    visit = Visit(
+        job_number="RT-002",
+        machine="tarnhollow-fellborer",
+        readings=[
+            Reading(id="a", test_point="travel.charge", value="2,5 bar", taken_at=at(10)),
+            Reading(id="b", test_point="travel.charge", value="25 bar", replaces="a", taken_at=at(10, 1)),
+            Reading(id="c", test_point="travel.charge", value="24.5 bar", replaces="b", taken_at=at(10, 2)),
+        ],
+    )
     assert [r.id for r in visit.current_readings()] == ["c"]
 
 
 def test_a_correction_must_replace_a_reading_of_the_same_visit() -> None:
     with pytest.raises(ValidationError, match="replaces 'ghost'"):
-        Visit(job_number="RT-003", machine="tarnhollow-td9", readings=[
-            Reading(id="a", test_point="travel.charge", value="24 bar", replaces="ghost")])
+        Visit(
+            job_number="RT-003",
+            machine="tarnhollow-fellborer",
+            readings=[Reading(id="a", test_point="travel.charge", value="24 bar", replaces="ghost")],
+        )
 
 
 def test_a_reading_must_name_a_gauge_of_the_visit() -> None:
     with pytest.raises(ValidationError, match="names gauge 'G999'"):
-        Visit(job_number="RT-004", machine="tarnhollow-td9", readings=[
-            Reading(id="a", test_point="travel.charge", value="24 bar", gauge="G999")])
+        Visit(
+            job_number="RT-004",
+            machine="tarnhollow-fellborer",
+            readings=[Reading(id="a", test_point="travel.charge", value="24 bar", gauge="G999")],
+        )

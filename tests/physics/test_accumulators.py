@@ -36,7 +36,9 @@ def test_adiabatic_delivery_is_smaller_than_isothermal():
     # ΔV = V0·(p0/p1)^(1/n) − V0·(p0/p2)^(1/n), n = 1.4 for nitrogen [calc]
     p0, p1, p2 = 90 + ATM, 100 + ATM, 200 + ATM
     expected = 10 * (p0 / p1) ** (1 / 1.4) - 10 * (p0 / p2) ** (1 / 1.4)
-    got = delivered_volume(q("10 L"), q("90 bar"), q("100 bar"), q("200 bar"), exponent=ADIABATIC_NITROGEN).m_as("L")
+    got = delivered_volume(
+        q("10 L"), q("90 bar"), q("100 bar"), q("200 bar"), exponent=ADIABATIC_NITROGEN
+    ).m_as("L")
     assert got == pytest.approx(expected)
     assert got < delivered_volume(q("10 L"), q("90 bar"), q("100 bar"), q("200 bar")).m_as("L")
 
@@ -45,7 +47,9 @@ def test_local_barometric_pressure_is_used_when_given():
     # At 0.9 bar barometric the absolute pressures shift by 0.9 instead of 1.01325 [calc]
     b = 0.9
     expected = 10 * (90 + b) / (100 + b) - 10 * (90 + b) / (200 + b)
-    got = delivered_volume(q("10 L"), q("90 bar"), q("100 bar"), q("200 bar"), barometric=q("0.9 bar")).m_as("L")
+    got = delivered_volume(q("10 L"), q("90 bar"), q("100 bar"), q("200 bar"), barometric=q("0.9 bar")).m_as(
+        "L"
+    )
     assert got == pytest.approx(expected)
 
 

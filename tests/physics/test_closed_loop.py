@@ -45,7 +45,9 @@ def test_charge_pump_keeps_the_loop_full_with_flow_to_spare():
 
 def test_worn_loop_outruns_the_charge_pump():
     # Demand 12 + 9 + 10 = 31 L/min > 25.2 L/min supply: a 5.8 L/min deficit [calc]
-    budget = charge_flow_budget(q("14 cc/rev"), q("2000 rpm"), 0.9, q("12 L/min"), q("9 L/min"), q("10 L/min"))
+    budget = charge_flow_budget(
+        q("14 cc/rev"), q("2000 rpm"), 0.9, q("12 L/min"), q("9 L/min"), q("10 L/min")
+    )
     assert budget.surplus.m_as("L/min") == pytest.approx(-5.8)
     assert not budget.keeps_loop_full
     assert "charge pressure will fall" in budget.message
@@ -53,6 +55,13 @@ def test_worn_loop_outruns_the_charge_pump():
 
 def test_flushing_through_the_motor_case_is_not_counted_twice():
     # The motor case drain reading (12 L/min) already includes the 10 L/min flushing flow [calc]
-    budget = charge_flow_budget(q("14 cc/rev"), q("2000 rpm"), 0.9, q("3 L/min"), q("12 L/min"), q("10 L/min"),
-                                flushing_through_motor_case=True)
+    budget = charge_flow_budget(
+        q("14 cc/rev"),
+        q("2000 rpm"),
+        0.9,
+        q("3 L/min"),
+        q("12 L/min"),
+        q("10 L/min"),
+        flushing_through_motor_case=True,
+    )
     assert budget.demand.m_as("L/min") == pytest.approx(15.0)

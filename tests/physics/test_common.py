@@ -15,7 +15,9 @@ def test_displacement_written_without_per_rev_is_still_per_revolution():
     # pint alone turns 100 cm³ into 628 cm³/rev (a revolution is 2π rad); the trade means 100 cm³/rev.
     # 100 cm³/rev at 1000 rpm → 100 L/min (Hydraulics & Pneumatics, pump efficiency article, 2023).
     assert theoretical_flow(q("100 cc"), q("1000 rpm")).m_as("L/min") == pytest.approx(100.0)
-    assert motor_torque(q("250 bar"), q("100 cc")).m_as("N*m") == pytest.approx(motor_torque(q("250 bar"), q("100 cc/rev")).m_as("N*m"))
+    assert motor_torque(q("250 bar"), q("100 cc")).m_as("N*m") == pytest.approx(
+        motor_torque(q("250 bar"), q("100 cc/rev")).m_as("N*m")
+    )
 
 
 def test_speed_per_minute_without_revolutions_is_rpm():
@@ -70,7 +72,9 @@ def test_efficiency_of_ninety_is_refused_not_read_as_percent():
 
 
 def test_combined_check_takes_the_worst_level_and_keeps_every_message():
-    result = Check.combine([Check(Level.NOTE, "a"), Check(Level.ERROR, "b"), Check(Level.OK, "fine")], "all fine")
+    result = Check.combine(
+        [Check(Level.NOTE, "a"), Check(Level.ERROR, "b"), Check(Level.OK, "fine")], "all fine"
+    )
     assert result.level is Level.ERROR
     assert result.message == "b; a"
     assert Check.combine([Check(Level.OK, "x")], "all fine") == Check(Level.OK, "all fine")

@@ -44,8 +44,12 @@ def test_force_in_newtons_is_bar_times_square_millimetres_over_ten():
 def test_retracting_pushes_on_the_annulus_and_runs_faster():
     # v[m/s] = Q[L/min] / (6 · A[cm²]) (field notes) [calc]; retract: A = 40.06 cm²
     annulus_cm2 = math.pi * (10**2 - 7**2) / 4
-    assert cylinder_force(q("200 bar"), BORE, ROD, "retract").m_as("kN") == pytest.approx(200e5 * annulus_cm2 * 1e-4 / 1e3)
-    assert cylinder_speed(q("40 L/min"), BORE, ROD, "retract").m_as("m/s") == pytest.approx(40 / (6 * annulus_cm2))
+    assert cylinder_force(q("200 bar"), BORE, ROD, "retract").m_as("kN") == pytest.approx(
+        200e5 * annulus_cm2 * 1e-4 / 1e3
+    )
+    assert cylinder_speed(q("40 L/min"), BORE, ROD, "retract").m_as("m/s") == pytest.approx(
+        40 / (6 * annulus_cm2)
+    )
 
 
 def test_retracting_returns_more_oil_than_the_pump_gives():
@@ -76,14 +80,20 @@ def test_regenerative_force_is_extend_force_less_retract_force():
     # p·A_cap − p·A_annulus = p·A_rod [calc]
     extend = cylinder_force(q("200 bar"), BORE, ROD, "extend").m_as("kN")
     retract = cylinder_force(q("200 bar"), BORE, ROD, "retract").m_as("kN")
-    assert regenerative_extension(q("200 bar"), q("40 L/min"), ROD).force.m_as("kN") == pytest.approx(extend - retract)
+    assert regenerative_extension(q("200 bar"), q("40 L/min"), ROD).force.m_as("kN") == pytest.approx(
+        extend - retract
+    )
 
 
 def test_drift_of_a_held_boom_gives_the_leak_from_the_cap_side():
     # Q_leak = v · A [calc]: 12 mm/min · 78.54 cm² = 94.2 cm³/min
-    assert leakage_from_drift(q("12 mm/min"), BORE, ROD).m_as("cm**3/min") == pytest.approx(1.2 * 78.54, abs=0.01)
+    assert leakage_from_drift(q("12 mm/min"), BORE, ROD).m_as("cm**3/min") == pytest.approx(
+        1.2 * 78.54, abs=0.01
+    )
     # A load hanging from the rod loses oil from the annulus: 12 mm/min · 40.06 cm²
-    assert leakage_from_drift(q("12 mm/min"), BORE, ROD, "rod").m_as("cm**3/min") == pytest.approx(1.2 * 40.06, abs=0.01)
+    assert leakage_from_drift(q("12 mm/min"), BORE, ROD, "rod").m_as("cm**3/min") == pytest.approx(
+        1.2 * 40.06, abs=0.01
+    )
 
 
 def test_blocked_rod_side_is_intensified_above_system_pressure():

@@ -49,7 +49,11 @@ def test_vg_midpoints_at_40_c_are_the_grade_numbers():
 
 def test_vg_100_c_values_match_the_field_notes():
     # Field notes (from memory, VI ≈ 100): VG32 ≈ 5.4, VG46 ≈ 6.8, VG68 ≈ 8.7 cSt at 100 °C
-    assert {n: VG_GRADES[n].at_100c.m_as("cSt") for n in ("VG32", "VG46", "VG68")} == {"VG32": 5.4, "VG46": 6.8, "VG68": 8.7}
+    assert {n: VG_GRADES[n].at_100c.m_as("cSt") for n in ("VG32", "VG46", "VG68")} == {
+        "VG32": 5.4,
+        "VG46": 6.8,
+        "VG68": 8.7,
+    }
 
 
 def test_filled_grades_keep_the_walther_slope_falling_with_grade():
@@ -92,8 +96,9 @@ def test_viscosity_window_levels():
 
 
 def test_machine_own_viscosity_window_overrides_the_defaults():
-    window = ViscosityWindow(optimum_low=q("20 cSt"), optimum_high=q("30 cSt"), minimum=q("12 cSt"),
-                             cold_start_max=q("800 cSt"))
+    window = ViscosityWindow(
+        optimum_low=q("20 cSt"), optimum_high=q("30 cSt"), minimum=q("12 cSt"), cold_start_max=q("800 cSt")
+    )
     assert check_viscosity(q("11 cSt"), window).level is Level.WARNING
     assert check_viscosity(q("900 cSt"), window).level is Level.WARNING
     with pytest.raises(OutOfRangeError, match="minimum ≤ optimum low"):

@@ -42,7 +42,9 @@ def test_uncertainties_of_a_difference_add_root_sum_square():
     assert combined_uncertainty(q("0.3 bar"), q("0.4 bar")).m_as("bar") == pytest.approx(0.5)
 
 
-@pytest.mark.parametrize(("reading", "limit", "u"), [(205, 210, 2.0), (212, 210, 1.5), (210, 210, 0.5), (180, 210, 10.0)])
+@pytest.mark.parametrize(
+    ("reading", "limit", "u"), [(205, 210, 2.0), (212, 210, 1.5), (210, 210, 0.5), (180, 210, 10.0)]
+)
 def test_probability_beyond_a_limit_follows_the_normal_model(reading, limit, u):
     # scipy.stats.norm as oracle: P(true > limit) = sf(limit; reading, u); below: cdf
     above = probability_beyond(q(f"{reading} bar"), q(f"{limit} bar"), q(f"{u} bar"))
@@ -97,7 +99,6 @@ def test_smallest_gauge_reads_working_pressure_within_three_quarters():
 def test_no_standard_gauge_for_an_impossible_pressure():
     with pytest.raises(OutOfRangeError, match="no standard gauge"):
         smallest_gauge(q("1000 bar"))
-
 
 
 def test_vacuum_gauge_reads_vacuum_without_being_called_overranged():

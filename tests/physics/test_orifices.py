@@ -47,12 +47,16 @@ def test_diameter_for_a_flow_matches_a_root_finder():
 
 def test_turbulent_restriction_drop_grows_with_the_square_of_flow():
     # Δp = Δp_known · (Q / Q_known)^2 [calc]: 2 bar at 50 L/min → 8 bar at 100 L/min
-    assert restriction_pressure_drop(q("100 L/min"), q("50 L/min"), q("2 bar")).m_as("bar") == pytest.approx(8.0)
+    assert restriction_pressure_drop(q("100 L/min"), q("50 L/min"), q("2 bar")).m_as("bar") == pytest.approx(
+        8.0
+    )
 
 
 def test_laminar_restriction_drop_grows_in_step_with_flow():
     # n = 1 [calc]: 2 bar at 50 L/min → 4 bar at 100 L/min
-    assert restriction_pressure_drop(q("100 L/min"), q("50 L/min"), q("2 bar"), exponent=1).m_as("bar") == pytest.approx(4.0)
+    assert restriction_pressure_drop(q("100 L/min"), q("50 L/min"), q("2 bar"), exponent=1).m_as(
+        "bar"
+    ) == pytest.approx(4.0)
 
 
 def test_absurd_flow_exponent_is_refused():

@@ -35,7 +35,9 @@ def test_us_units_follow_the_scipy_psi_and_gallon():
 def test_pump_needs_more_shaft_power_than_it_delivers():
     # P_in = p · Q / ηt [calc, definition of overall efficiency]: 20 kW hydraulic at 85 % → 23.53 kW
     assert pump_input_power(q("200 bar"), q("60 L/min"), 0.85).m_as("kW") == pytest.approx(20 / 0.85)
-    assert pump_input_power(q("200 bar"), q("60 L/min"), Q_(85, "percent")).m_as("kW") == pytest.approx(20 / 0.85)
+    assert pump_input_power(q("200 bar"), q("60 L/min"), Q_(85, "percent")).m_as("kW") == pytest.approx(
+        20 / 0.85
+    )
 
 
 def test_motor_delivers_less_shaft_power_than_it_takes():

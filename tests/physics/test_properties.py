@@ -18,7 +18,16 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from fieldkit.errors import DimensionError
-from fieldkit.physics import accumulators, closed_loop, cylinders, fluid, gauges, orifices, power, pumps_motors
+from fieldkit.physics import (
+    accumulators,
+    closed_loop,
+    cylinders,
+    fluid,
+    gauges,
+    orifices,
+    power,
+    pumps_motors,
+)
 from fieldkit.physics.reliefs import Arrangement, Parallel, ReliefValve, Series, deadhead, opening_pressure
 from fieldkit.units import Q_
 
@@ -44,7 +53,12 @@ def lpm(x: float) -> pint.Quantity:
 
 
 def pressure_in_every_unit(p_bar: float) -> list[pint.Quantity]:
-    return [bar(p_bar), Q_(p_bar * PSI_PER_BAR, "psi"), Q_(p_bar / 10.0, "megapascal"), Q_(p_bar * 100.0, "kilopascal")]
+    return [
+        bar(p_bar),
+        Q_(p_bar * PSI_PER_BAR, "psi"),
+        Q_(p_bar / 10.0, "megapascal"),
+        Q_(p_bar * 100.0, "kilopascal"),
+    ]
 
 
 def flow_in_every_unit(q_lpm: float) -> list[pint.Quantity]:
@@ -52,6 +66,7 @@ def flow_in_every_unit(q_lpm: float) -> list[pint.Quantity]:
 
 
 # --- the answer does not depend on the units -------------------------------------------------
+
 
 @FAST
 @given(pressures, flows)
@@ -64,11 +79,19 @@ def test_power_is_the_same_in_bar_psi_or_mpa_and_lpm_or_gpm(p_bar: float, q_lpm:
 
 @FAST
 @given(pressures, diameters, st.floats(min_value=0.1, max_value=0.9))
-def test_cylinder_force_is_the_same_in_metric_or_inch_sizes(p_bar: float, bore_mm: float, rod_share: float) -> None:
+def test_cylinder_force_is_the_same_in_metric_or_inch_sizes(
+    p_bar: float, bore_mm: float, rod_share: float
+) -> None:
     rod_mm = bore_mm * rod_share
-    reference = cylinders.cylinder_force(bar(p_bar), Q_(bore_mm, "mm"), Q_(rod_mm, "mm"), "retract").m_as("kN")
-    in_us = cylinders.cylinder_force(Q_(p_bar * PSI_PER_BAR, "psi"), Q_(bore_mm * INCH_PER_MM, "inch"),
-                                     Q_(rod_mm * INCH_PER_MM, "inch"), "retract")
+    reference = cylinders.cylinder_force(bar(p_bar), Q_(bore_mm, "mm"), Q_(rod_mm, "mm"), "retract").m_as(
+        "kN"
+    )
+    in_us = cylinders.cylinder_force(
+        Q_(p_bar * PSI_PER_BAR, "psi"),
+        Q_(bore_mm * INCH_PER_MM, "inch"),
+        Q_(rod_mm * INCH_PER_MM, "inch"),
+        "retract",
+    )
     assert in_us.m_as("kN") == pytest.approx(reference, rel=TOL)
 
 
@@ -100,8 +123,11 @@ def test_motor_torque_is_the_same_for_cc_or_cubic_inch_per_rev(p_bar: float, cc:
 
 
 @FAST
-@given(st.floats(min_value=10.0, max_value=100.0), st.floats(min_value=0.3, max_value=0.95),
-       st.floats(min_value=1.05, max_value=3.0))
+@given(
+    st.floats(min_value=10.0, max_value=100.0),
+    st.floats(min_value=0.3, max_value=0.95),
+    st.floats(min_value=1.05, max_value=3.0),
+)
 def test_accumulator_delivery_is_the_same_in_bar_or_psi(p_min: float, share: float, rise: float) -> None:
     args_bar = (bar(p_min * share), bar(p_min), bar(p_min * rise))
     reference = accumulators.delivered_volume(Q_(20, "liter"), *args_bar).m_as("L")
@@ -111,6 +137,7 @@ def test_accumulator_delivery_is_the_same_in_bar_or_psi(p_min: float, share: flo
 
 
 # --- monotonic where physics says so ------------------------------------------------------
+
 
 @FAST
 @given(pressures, flows, flows)
@@ -144,28 +171,38 @@ def test_same_leakage_read_on_hotter_oil_normalises_lower(q_lpm: float, t1: floa
 valves = st.builds(
     lambda setting, override, drain: ReliefValve("v", bar(setting), bar(override), drain),
     st.floats(min_value=5.0, max_value=400.0),
-    st.floats(min_value=0.0, max_value=20.0), st.sampled_from(["internal", "external"]),
+    st.floats(min_value=0.0, max_value=20.0),
+    st.sampled_from(["internal", "external"]),
 )
 arrangements: st.SearchStrategy[Arrangement] = st.recursive(
     valves,
-    lambda children: st.one_of(st.lists(children, min_size=1, max_size=3).map(Series),
-                               st.lists(children, min_size=1, max_size=3).map(Parallel)),
+    lambda children: st.one_of(
+        st.lists(children, min_size=1, max_size=3).map(Series),
+        st.lists(children, min_size=1, max_size=3).map(Parallel),
+    ),
     max_leaves=6,
 )
 
 
 @FAST
 @given(arrangements, st.floats(min_value=0.0, max_value=30.0), st.floats(min_value=0.0, max_value=30.0))
-def test_more_back_pressure_never_lowers_relief_opening(arrangement: Arrangement, b1: float, b2: float) -> None:
+def test_more_back_pressure_never_lowers_relief_opening(
+    arrangement: Arrangement, b1: float, b2: float
+) -> None:
     low, high = sorted((b1, b2))
     assert opening_pressure(arrangement, bar(low)) <= opening_pressure(arrangement, bar(high))
     assert opening_pressure(arrangement, bar(low), True) <= opening_pressure(arrangement, bar(high), True)
 
 
 @FAST
-@given(st.floats(min_value=5.0, max_value=400.0), st.floats(min_value=0.0, max_value=30.0),
-       st.floats(min_value=0.1, max_value=30.0))
-def test_back_pressure_raises_an_internally_drained_relief_one_for_one(setting: float, b: float, extra: float) -> None:
+@given(
+    st.floats(min_value=5.0, max_value=400.0),
+    st.floats(min_value=0.0, max_value=30.0),
+    st.floats(min_value=0.1, max_value=30.0),
+)
+def test_back_pressure_raises_an_internally_drained_relief_one_for_one(
+    setting: float, b: float, extra: float
+) -> None:
     relief = ReliefValve("main", bar(setting))
     rise = relief.cracking_pressure(bar(b + extra)).m_as("bar") - relief.cracking_pressure(bar(b)).m_as("bar")
     assert rise == pytest.approx(extra, abs=1e-9)
@@ -186,15 +223,20 @@ def _renamed(node: Arrangement, counter: list[int]) -> Arrangement:
 def test_deadhead_upstream_is_the_full_flow_opening_pressure(generated: Arrangement, b: float) -> None:
     arrangement = _renamed(generated, [0])
     result = deadhead(arrangement, bar(b))
-    assert result.upstream.m_as("bar") == pytest.approx(opening_pressure(arrangement, bar(b), True).m_as("bar"))
+    assert result.upstream.m_as("bar") == pytest.approx(
+        opening_pressure(arrangement, bar(b), True).m_as("bar")
+    )
     assert result.governing, "some valve must carry the deadheaded pump's flow"
     first = result.points[result.governing[0].name]
     assert first is not None and first.m_as("bar") == pytest.approx(result.upstream.m_as("bar"))
 
 
 @FAST
-@given(st.floats(min_value=100.0, max_value=300.0), st.floats(min_value=100.0, max_value=300.0),
-       st.floats(min_value=0.1, max_value=10.0))
+@given(
+    st.floats(min_value=100.0, max_value=300.0),
+    st.floats(min_value=100.0, max_value=300.0),
+    st.floats(min_value=0.1, max_value=10.0),
+)
 def test_higher_reading_makes_exceeding_a_limit_more_likely(r1: float, r2: float, u: float) -> None:
     low, high = sorted((r1, r2))
     p_low = gauges.probability_beyond(bar(low), bar(210.0), bar(u))
@@ -207,10 +249,13 @@ def test_higher_reading_makes_exceeding_a_limit_more_likely(r1: float, r2: float
 def test_orifice_passes_more_at_a_higher_pressure_drop(d_mm: float, dp1: float, dp2: float) -> None:
     low, high = sorted((dp1, dp2))
     if low < high:
-        assert orifices.orifice_flow(Q_(d_mm, "mm"), bar(low)) < orifices.orifice_flow(Q_(d_mm, "mm"), bar(high))
+        assert orifices.orifice_flow(Q_(d_mm, "mm"), bar(low)) < orifices.orifice_flow(
+            Q_(d_mm, "mm"), bar(high)
+        )
 
 
 # --- round trips --------------------------------------------------------------------------
+
 
 @FAST
 @given(st.floats(min_value=0.3, max_value=5.0), pressures)
@@ -222,7 +267,9 @@ def test_orifice_inverses_return_what_went_in(d_mm: float, p_bar: float) -> None
 
 @FAST
 @given(flows, diameters, st.floats(min_value=0.1, max_value=0.9), st.sampled_from(["extend", "retract"]))
-def test_flow_for_speed_undoes_speed_for_flow(q_lpm: float, bore_mm: float, share: float, stroke: str) -> None:
+def test_flow_for_speed_undoes_speed_for_flow(
+    q_lpm: float, bore_mm: float, share: float, stroke: str
+) -> None:
     bore, rod = Q_(bore_mm, "mm"), Q_(bore_mm * share, "mm")
     v = cylinders.cylinder_speed(lpm(q_lpm), bore, rod, stroke)
     assert cylinders.flow_for_speed(v, bore, rod, stroke).m_as("L/min") == pytest.approx(q_lpm, rel=TOL)
@@ -237,60 +284,171 @@ def test_temperature_for_a_viscosity_undoes_viscosity_at_a_temperature(name: str
 
 # --- a wrong dimension is refused, never turned into a number --------------------------------
 
+
 def _calls() -> list[tuple[str, Callable[..., Any], dict[str, Any]]]:
     p, q, cc, rpm = bar(200), lpm(60), Q_(100, "cm**3/revolution"), Q_(1500, "revolution/minute")
     bore, rod, t = Q_(100, "mm"), Q_(70, "mm"), Q_(50, "degC")
     curve = fluid.grade("VG46").curve
     return [
         ("hydraulic_power", power.hydraulic_power, {"pressure": p, "flow": q}),
-        ("pump_input_power", power.pump_input_power, {"pressure": p, "flow": q, "overall_efficiency": Q_(85, "percent")}),
+        (
+            "pump_input_power",
+            power.pump_input_power,
+            {"pressure": p, "flow": q, "overall_efficiency": Q_(85, "percent")},
+        ),
         ("throttling_heat", power.throttling_heat, {"pressure_drop": p, "flow": q}),
-        ("oil_heating_rate", power.oil_heating_rate, {"heat": Q_(10, "kW"), "oil_volume": Q_(100, "L"),
-                                                      "density": Q_(870, "kg/m**3"), "specific_heat": Q_(2000, "J/kg/K")}),
+        (
+            "oil_heating_rate",
+            power.oil_heating_rate,
+            {
+                "heat": Q_(10, "kW"),
+                "oil_volume": Q_(100, "L"),
+                "density": Q_(870, "kg/m**3"),
+                "specific_heat": Q_(2000, "J/kg/K"),
+            },
+        ),
         ("throttling_temperature_rise", power.throttling_temperature_rise, {"pressure_drop": p}),
         ("theoretical_flow", pumps_motors.theoretical_flow, {"displacement": cc, "speed": rpm}),
-        ("pump_overall_efficiency", pumps_motors.pump_overall_efficiency,
-         {"pressure_difference": p, "actual_flow": q, "input_torque": Q_(300, "N*m"), "speed": rpm}),
-        ("motor_hydromechanical_efficiency", pumps_motors.motor_hydromechanical_efficiency,
-         {"pressure_difference": p, "displacement": cc, "output_torque": Q_(300, "N*m")}),
-        ("volumetric_efficiency_from_flow_test", pumps_motors.volumetric_efficiency_from_flow_test,
-         {"no_load_flow": q, "no_load_speed": rpm, "loaded_flow": q, "loaded_speed": rpm}),
-        ("case_drain_leakage", pumps_motors.case_drain_leakage,
-         {"case_drain_flow": lpm(3), "displacement": cc, "speed": rpm, "other_case_flow": lpm(1)}),
-        ("two_speed_motor_output", pumps_motors.two_speed_motor_output,
-         {"pressure_difference": p, "flow": q, "full_displacement": cc, "displacement_ratio": Q_(50, "percent")}),
-        ("cylinder_force", cylinders.cylinder_force, {"pressure": p, "bore": bore, "rod": rod, "back_pressure": bar(5)}),
+        (
+            "pump_overall_efficiency",
+            pumps_motors.pump_overall_efficiency,
+            {"pressure_difference": p, "actual_flow": q, "input_torque": Q_(300, "N*m"), "speed": rpm},
+        ),
+        (
+            "motor_hydromechanical_efficiency",
+            pumps_motors.motor_hydromechanical_efficiency,
+            {"pressure_difference": p, "displacement": cc, "output_torque": Q_(300, "N*m")},
+        ),
+        (
+            "volumetric_efficiency_from_flow_test",
+            pumps_motors.volumetric_efficiency_from_flow_test,
+            {"no_load_flow": q, "no_load_speed": rpm, "loaded_flow": q, "loaded_speed": rpm},
+        ),
+        (
+            "case_drain_leakage",
+            pumps_motors.case_drain_leakage,
+            {"case_drain_flow": lpm(3), "displacement": cc, "speed": rpm, "other_case_flow": lpm(1)},
+        ),
+        (
+            "two_speed_motor_output",
+            pumps_motors.two_speed_motor_output,
+            {
+                "pressure_difference": p,
+                "flow": q,
+                "full_displacement": cc,
+                "displacement_ratio": Q_(50, "percent"),
+            },
+        ),
+        (
+            "cylinder_force",
+            cylinders.cylinder_force,
+            {"pressure": p, "bore": bore, "rod": rod, "back_pressure": bar(5)},
+        ),
         ("return_flow", cylinders.return_flow, {"flow": q, "bore": bore, "rod": rod}),
         ("regenerative_extension", cylinders.regenerative_extension, {"pressure": p, "flow": q, "rod": rod}),
-        ("leakage_from_drift", cylinders.leakage_from_drift, {"drift_rate": Q_(12, "mm/minute"), "bore": bore, "rod": rod}),
-        ("intensified_rod_pressure", cylinders.intensified_rod_pressure, {"cap_pressure": p, "bore": bore, "rod": rod}),
+        (
+            "leakage_from_drift",
+            cylinders.leakage_from_drift,
+            {"drift_rate": Q_(12, "mm/minute"), "bore": bore, "rod": rod},
+        ),
+        (
+            "intensified_rod_pressure",
+            cylinders.intensified_rod_pressure,
+            {"cap_pressure": p, "bore": bore, "rod": rod},
+        ),
         ("ReliefValve", ReliefValve, {"name": "main", "setting": p, "override": bar(10)}),
-        ("net_charge_pressure", closed_loop.net_charge_pressure, {"charge_pressure": bar(25), "case_pressure": bar(2)}),
-        ("expected_charge_pressure", closed_loop.expected_charge_pressure,
-         {"charge_relief_setting": bar(25), "flushing_relief_setting": bar(18), "case_pressure": bar(1)}),
-        ("charge_flow_budget", closed_loop.charge_flow_budget,
-         {"charge_displacement": Q_(14, "cm**3/revolution"), "speed": rpm, "charge_volumetric_efficiency": 0.9,
-          "pump_case_drain": lpm(3), "motor_case_drain": lpm(2), "flushing_flow": lpm(10)}),
-        ("viscosity_curve", fluid.viscosity_curve, {"viscosity_1": Q_(46, "cSt"), "temperature_1": Q_(40, "degC"),
-                                                    "viscosity_2": Q_(6.8, "cSt"), "temperature_2": Q_(100, "degC")}),
-        ("normalised_leakage", fluid.normalised_leakage,
-         {"measured": lpm(3), "oil_temperature": t, "reference_temperature": Q_(40, "degC"), "curve": curve}),
+        (
+            "net_charge_pressure",
+            closed_loop.net_charge_pressure,
+            {"charge_pressure": bar(25), "case_pressure": bar(2)},
+        ),
+        (
+            "expected_charge_pressure",
+            closed_loop.expected_charge_pressure,
+            {"charge_relief_setting": bar(25), "flushing_relief_setting": bar(18), "case_pressure": bar(1)},
+        ),
+        (
+            "charge_flow_budget",
+            closed_loop.charge_flow_budget,
+            {
+                "charge_displacement": Q_(14, "cm**3/revolution"),
+                "speed": rpm,
+                "charge_volumetric_efficiency": 0.9,
+                "pump_case_drain": lpm(3),
+                "motor_case_drain": lpm(2),
+                "flushing_flow": lpm(10),
+            },
+        ),
+        (
+            "viscosity_curve",
+            fluid.viscosity_curve,
+            {
+                "viscosity_1": Q_(46, "cSt"),
+                "temperature_1": Q_(40, "degC"),
+                "viscosity_2": Q_(6.8, "cSt"),
+                "temperature_2": Q_(100, "degC"),
+            },
+        ),
+        (
+            "normalised_leakage",
+            fluid.normalised_leakage,
+            {
+                "measured": lpm(3),
+                "oil_temperature": t,
+                "reference_temperature": Q_(40, "degC"),
+                "curve": curve,
+            },
+        ),
         ("check_viscosity", fluid.check_viscosity, {"viscosity": Q_(30, "cSt")}),
-        ("check_test_temperature", fluid.check_test_temperature, {"temperature": t, "minimum": Q_(38, "degC")}),
-        ("orifice_flow", orifices.orifice_flow, {"diameter": Q_(1, "mm"), "pressure_drop": p, "density": Q_(870, "kg/m**3")}),
+        (
+            "check_test_temperature",
+            fluid.check_test_temperature,
+            {"temperature": t, "minimum": Q_(38, "degC")},
+        ),
+        (
+            "orifice_flow",
+            orifices.orifice_flow,
+            {"diameter": Q_(1, "mm"), "pressure_drop": p, "density": Q_(870, "kg/m**3")},
+        ),
         ("orifice_diameter", orifices.orifice_diameter, {"flow": lpm(4), "pressure_drop": p}),
-        ("restriction_pressure_drop", orifices.restriction_pressure_drop,
-         {"flow": q, "known_flow": lpm(50), "known_pressure_drop": bar(2)}),
-        ("limit_of_error", gauges.limit_of_error, {"accuracy_class": 1.6, "full_scale": bar(10), "scale_start": bar(-1)}),
-        ("combined_uncertainty", lambda a, b: gauges.combined_uncertainty(a, b), {"a": bar(0.1), "b": bar(0.2)}),
-        ("probability_beyond", gauges.probability_beyond, {"reading": p, "limit": bar(210), "standard_uncertainty": bar(2)}),
-        ("gauge_suitability", gauges.gauge_suitability,
-         {"full_scale": bar(250), "working_pressure": p, "highest_pressure": bar(220)}),
+        (
+            "restriction_pressure_drop",
+            orifices.restriction_pressure_drop,
+            {"flow": q, "known_flow": lpm(50), "known_pressure_drop": bar(2)},
+        ),
+        (
+            "limit_of_error",
+            gauges.limit_of_error,
+            {"accuracy_class": 1.6, "full_scale": bar(10), "scale_start": bar(-1)},
+        ),
+        (
+            "combined_uncertainty",
+            lambda a, b: gauges.combined_uncertainty(a, b),
+            {"a": bar(0.1), "b": bar(0.2)},
+        ),
+        (
+            "probability_beyond",
+            gauges.probability_beyond,
+            {"reading": p, "limit": bar(210), "standard_uncertainty": bar(2)},
+        ),
+        (
+            "gauge_suitability",
+            gauges.gauge_suitability,
+            {"full_scale": bar(250), "working_pressure": p, "highest_pressure": bar(220)},
+        ),
         ("smallest_gauge", gauges.smallest_gauge, {"working_pressure": p, "highest_pressure": bar(220)}),
         ("expected_precharge", accumulators.expected_precharge, {"min_working_pressure": bar(100)}),
-        ("delivered_volume", accumulators.delivered_volume,
-         {"size": Q_(10, "L"), "precharge": bar(90), "min_pressure": bar(100), "max_pressure": p,
-          "barometric": Q_(1, "bar")}),
+        (
+            "delivered_volume",
+            accumulators.delivered_volume,
+            {
+                "size": Q_(10, "L"),
+                "precharge": bar(90),
+                "min_pressure": bar(100),
+                "max_pressure": p,
+                "barometric": Q_(1, "bar"),
+            },
+        ),
     ]
 
 
@@ -304,12 +462,16 @@ WRONG_CASES = [
 
 
 @pytest.mark.parametrize(("label", "fn", "kwargs"), CALLS, ids=[c[0] for c in CALLS])
-def test_every_call_in_the_table_works_with_the_right_kinds(label: str, fn: Callable[..., Any], kwargs: dict[str, Any]) -> None:
+def test_every_call_in_the_table_works_with_the_right_kinds(
+    label: str, fn: Callable[..., Any], kwargs: dict[str, Any]
+) -> None:
     assert fn(**kwargs) is not None
 
 
 @pytest.mark.parametrize(("fn", "kwargs", "name"), WRONG_CASES)
-def test_a_wrong_kind_raises_dimension_error_naming_the_value(fn: Callable[..., Any], kwargs: dict[str, Any], name: str) -> None:
+def test_a_wrong_kind_raises_dimension_error_naming_the_value(
+    fn: Callable[..., Any], kwargs: dict[str, Any], name: str
+) -> None:
     # Swap one input for a quantity of another kind: a flow where anything else was, else a pressure.
     good = kwargs[name]
     wrong = lpm(60) if good.dimensionality != lpm(60).dimensionality else bar(200)
@@ -324,6 +486,8 @@ BARE_CASES = [case for case in WRONG_CASES if not case.values[1][case.values[2]]
 
 
 @pytest.mark.parametrize(("fn", "kwargs", "name"), BARE_CASES)
-def test_a_bare_number_raises_dimension_error(fn: Callable[..., Any], kwargs: dict[str, Any], name: str) -> None:
+def test_a_bare_number_raises_dimension_error(
+    fn: Callable[..., Any], kwargs: dict[str, Any], name: str
+) -> None:
     with pytest.raises(DimensionError, match="must be"):
         fn(**{**kwargs, name: 200.0})

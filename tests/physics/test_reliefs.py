@@ -20,7 +20,11 @@ def test_series_reliefs_add_their_settings():
 
 def test_lowest_parallel_relief_governs():
     # Field notes: in parallel, the lowest setting governs [calc]
-    main, secondary, port = ReliefValve("main", q("210 bar")), ReliefValve("secondary", q("180 bar")), ReliefValve("port", q("250 bar"))
+    main, secondary, port = (
+        ReliefValve("main", q("210 bar")),
+        ReliefValve("secondary", q("180 bar")),
+        ReliefValve("port", q("250 bar")),
+    )
     group = Parallel([main, secondary, port])
     assert group.governing() is secondary
     result = deadhead(group)
@@ -68,7 +72,11 @@ def test_gauge_points_along_a_series_chain_with_return_back_pressure():
 
 def test_series_branch_in_parallel_with_the_main_relief():
     # Branch a+b opens at 100 + 50 + 3 = 153 bar, below the 210 bar main relief, so it takes the flow [calc]
-    main, a, b = ReliefValve("main", q("210 bar")), ReliefValve("a", q("100 bar")), ReliefValve("b", q("50 bar"))
+    main, a, b = (
+        ReliefValve("main", q("210 bar")),
+        ReliefValve("a", q("100 bar")),
+        ReliefValve("b", q("50 bar")),
+    )
     result = deadhead(Parallel([main, Series([a, b])]), return_pressure=q("3 bar"))
     assert result.governing == (a, b)
     assert {n: bar(p) for n, p in result.points.items()} == {"main": 153.0, "a": 153.0, "b": 53.0}
@@ -77,7 +85,11 @@ def test_series_branch_in_parallel_with_the_main_relief():
 def test_points_inside_a_branch_without_flow_are_not_guessed():
     # Main 150 bar governs; the x+y branch (180 bar) carries no flow: x sees the shared inlet,
     # the pressure between x and y depends on leakage, so it is left open.
-    main, x, y = ReliefValve("main", q("150 bar")), ReliefValve("x", q("100 bar")), ReliefValve("y", q("80 bar"))
+    main, x, y = (
+        ReliefValve("main", q("150 bar")),
+        ReliefValve("x", q("100 bar")),
+        ReliefValve("y", q("80 bar")),
+    )
     result = deadhead(Parallel([main, Series([x, y])]))
     assert result.governing == (main,)
     assert result.points == {"main": result.upstream, "x": result.upstream, "y": None}
@@ -86,7 +98,9 @@ def test_points_inside_a_branch_without_flow_are_not_guessed():
 def test_external_drains_in_series_do_not_add():
     # Pilot stages vented to tank hold their own setting (from memory / common practice): the chain reads
     # the highest setting, not the sum [calc]
-    chain = Series([ReliefValve("A", q("100 bar"), drain="external"), ReliefValve("B", q("50 bar"), drain="external")])
+    chain = Series(
+        [ReliefValve("A", q("100 bar"), drain="external"), ReliefValve("B", q("50 bar"), drain="external")]
+    )
     assert opening_pressure(chain).m_as("bar") == pytest.approx(100.0)
 
 

@@ -25,6 +25,6 @@ def bench(tmp_path: Path) -> Iterator[Workbench]:
 
 @pytest.fixture
 def worn(bench: Workbench) -> tuple[Visit, MachineProfile, Diagnosis]:
-    """The demo visit where the TD9's charge pump is worn: low, high and inconclusive readings."""
+    """The demo visit where the Fellborer's charge pump is worn: low, high and inconclusive readings."""
     visit, profile = load(bench)
     return visit, profile, bench.diagnose(visit, profile)

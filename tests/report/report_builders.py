@@ -18,7 +18,7 @@ from fieldkit.units import Kind, kind_of
 ROOT = Path(__file__).resolve().parents[2]
 VISITS = ROOT / "sample_readings" / "visits"
 SAMPLE_VISITS = sorted(VISITS.glob("*.json"))
-WORN_CHARGE_PUMP = VISITS / "td9-charge-pump-worn.json"
+WORN_CHARGE_PUMP = VISITS / "fellborer-charge-pump-worn.json"
 
 #: A note a technician might type on a tablet: symbols the PDF core fonts cannot print.
 UNICODE_NOTE = "Δp ≥ 3 bar ± 0.2 °C µm"
@@ -62,7 +62,14 @@ def many_readings(visit: Visit, count: int = 40) -> Visit:
         value = base.value
         if kind_of(value) not in (Kind.TEMPERATURE, Kind.SPEED):
             value = value * factor
-        readings.append(base.model_copy(update={
-            "id": f"m{i:03d}", "value": value, "taken_at": start + timedelta(minutes=2 * i), "replaces": None,
-        }))
+        readings.append(
+            base.model_copy(
+                update={
+                    "id": f"m{i:03d}",
+                    "value": value,
+                    "taken_at": start + timedelta(minutes=2 * i),
+                    "replaces": None,
+                }
+            )
+        )
     return visit.model_copy(update={"readings": readings, "id": f"{visit.id}-x{count}"})

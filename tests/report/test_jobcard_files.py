@@ -19,7 +19,9 @@ def _files(folder: Path) -> list[str]:
     return sorted(p.name for p in folder.iterdir() if p.is_file())
 
 
-@pytest.mark.parametrize("job", ["../../etc/x", "..\\..\\boot", "/abs/path", "CON", "a\x00b", "J/2024/17", "  ..  "])
+@pytest.mark.parametrize(
+    "job", ["../../etc/x", "..\\..\\boot", "/abs/path", "CON", "a\x00b", "J/2024/17", "  ..  "]
+)
 def test_a_job_number_never_takes_the_file_out_of_the_folder(worn, tmp_path: Path, job: str) -> None:
     visit, profile, diagnosis = worn
     folder = tmp_path / "out"
@@ -32,9 +34,17 @@ def test_a_job_number_never_takes_the_file_out_of_the_folder(worn, tmp_path: Pat
     assert not (tmp_path / "etc").exists()
 
 
-@pytest.mark.parametrize(("fmt", "suffix", "magic"), [("pdf", ".pdf", b"%PDF-"), ("text", ".txt", b"SERVICE JOB CARD"),
-                                                     ("markdown", ".md", b"# Service job card")])
-def test_each_format_gets_its_suffix_and_content(worn, tmp_path: Path, fmt: str, suffix: str, magic: bytes) -> None:
+@pytest.mark.parametrize(
+    ("fmt", "suffix", "magic"),
+    [
+        ("pdf", ".pdf", b"%PDF-"),
+        ("text", ".txt", b"SERVICE JOB CARD"),
+        ("markdown", ".md", b"# Service job card"),
+    ],
+)
+def test_each_format_gets_its_suffix_and_content(
+    worn, tmp_path: Path, fmt: str, suffix: str, magic: bytes
+) -> None:
     visit, profile, diagnosis = worn
     path = write_job_card(visit, profile, diagnosis, tmp_path, fmt, fixed_date="2025-05-14")
     assert path.suffix == suffix
@@ -42,7 +52,9 @@ def test_each_format_gets_its_suffix_and_content(worn, tmp_path: Path, fmt: str,
     assert path.read_bytes().startswith(magic)
 
 
-def test_a_writer_that_fails_leaves_no_file_at_all(worn, tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+def test_a_writer_that_fails_leaves_no_file_at_all(
+    worn, tmp_path: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
     visit, profile, diagnosis = worn
 
     def broken(*_args: object, **_kwargs: object) -> str:
@@ -55,7 +67,8 @@ def test_a_writer_that_fails_leaves_no_file_at_all(worn, tmp_path: Path, monkeyp
 
 
 def test_a_disk_error_while_writing_keeps_the_old_card_and_leaves_no_temporary(
-        worn, tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    worn, tmp_path: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
     visit, profile, diagnosis = worn
     path = write_job_card(visit, profile, diagnosis, tmp_path, "markdown")
     before = path.read_bytes()

@@ -18,12 +18,20 @@ def _run(tmp_path: Path, *args: str) -> int:
 
 
 def _outputs(folder: Path) -> list[str]:
-    return ["--pdf", str(folder / "card.pdf"), "--text", str(folder / "card.txt"), "--markdown", str(folder / "card.md")]
+    return [
+        "--pdf",
+        str(folder / "card.pdf"),
+        "--text",
+        str(folder / "card.txt"),
+        "--markdown",
+        str(folder / "card.md"),
+    ]
 
 
 @pytest.mark.parametrize("path", SAMPLE_VISITS, ids=lambda p: p.stem)
-def test_report_writes_all_three_formats_for_every_demo_visit(tmp_path: Path, path: Path,
-                                                              capsys: pytest.CaptureFixture[str]) -> None:
+def test_report_writes_all_three_formats_for_every_demo_visit(
+    tmp_path: Path, path: Path, capsys: pytest.CaptureFixture[str]
+) -> None:
     out = tmp_path / "out"
     out.mkdir()
     assert _run(tmp_path, str(path), *_outputs(out), "--fixed-date", "2025-05-14") == 0
@@ -48,8 +56,9 @@ def test_at_least_one_output_is_required(tmp_path: Path, capsys: pytest.CaptureF
     assert "--pdf FILE, --text FILE and/or --markdown FILE" in capsys.readouterr().err
 
 
-def test_a_visit_without_readings_is_refused_and_nothing_is_written(tmp_path: Path,
-                                                                   capsys: pytest.CaptureFixture[str]) -> None:
+def test_a_visit_without_readings_is_refused_and_nothing_is_written(
+    tmp_path: Path, capsys: pytest.CaptureFixture[str]
+) -> None:
     data = json.loads(WORN_CHARGE_PUMP.read_text(encoding="utf-8"))
     data["readings"] = []
     empty = tmp_path / "empty-visit.json"
@@ -62,7 +71,8 @@ def test_a_visit_without_readings_is_refused_and_nothing_is_written(tmp_path: Pa
 
 
 def test_a_visit_for_an_unknown_machine_is_refused_and_nothing_is_written(
-        tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    tmp_path: Path, capsys: pytest.CaptureFixture[str]
+) -> None:
     data = json.loads(WORN_CHARGE_PUMP.read_text(encoding="utf-8"))
     data["machine"] = "no-such-machine"
     odd = tmp_path / "odd-visit.json"
@@ -75,16 +85,21 @@ def test_a_visit_for_an_unknown_machine_is_refused_and_nothing_is_written(
     assert list(out.iterdir()) == []
 
 
-def test_a_bad_fixed_date_or_missing_folder_is_named(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
-    assert _run(tmp_path, str(WORN_CHARGE_PUMP), "--pdf", str(tmp_path / "c.pdf"), "--fixed-date", "soon") == 2
+def test_a_bad_fixed_date_or_missing_folder_is_named(
+    tmp_path: Path, capsys: pytest.CaptureFixture[str]
+) -> None:
+    assert (
+        _run(tmp_path, str(WORN_CHARGE_PUMP), "--pdf", str(tmp_path / "c.pdf"), "--fixed-date", "soon") == 2
+    )
     assert "fixed date 'soon'" in capsys.readouterr().err
     assert _run(tmp_path, str(WORN_CHARGE_PUMP), "--text", str(tmp_path / "nope" / "c.txt")) == 2
     assert "no such folder" in capsys.readouterr().err
     assert list(tmp_path.glob("*.pdf")) == []
 
 
-def test_two_formats_to_one_file_or_over_the_visit_itself_are_refused(tmp_path: Path,
-                                                                      capsys: pytest.CaptureFixture[str]) -> None:
+def test_two_formats_to_one_file_or_over_the_visit_itself_are_refused(
+    tmp_path: Path, capsys: pytest.CaptureFixture[str]
+) -> None:
     same = str(tmp_path / "card.out")
     assert _run(tmp_path, str(WORN_CHARGE_PUMP), "--pdf", same, "--text", same) == 2
     assert "both the pdf and the text job card" in capsys.readouterr().err

@@ -30,7 +30,9 @@ def _text(inline_token: Token) -> str:
     for child in inline_token.children or []:
         if child.type in ("text", "code_inline"):
             out.append(child.content)
-        elif child.type in ("softbreak", "hardbreak") or (child.type == "html_inline" and child.content in OUR_TAGS):
+        elif child.type in ("softbreak", "hardbreak") or (
+            child.type == "html_inline" and child.content in OUR_TAGS
+        ):
             out.append("\n")
     return "".join(out)
 
@@ -63,10 +65,17 @@ def _unescaped_pipes(line: str) -> int:
 def _hostile_card(bench: Workbench) -> JobCard:
     visit, profile = load(bench)
     diagnosis = bench.diagnose(visit, profile)
-    odd = with_text(visit, job_number="J|17 *x* [x](y)", customer=HOSTILE, site="<script>x</script> | &amp;",
-                    notes=f"# not a heading\n- not a list\n1. not a list\n---\n{HOSTILE}\n> not a quote",
-                    technician="Ann_e **B**")
-    return build_report(with_reading_note(odd, 0, "seal | weeping *badly* [see](http://x)"), profile, diagnosis)
+    odd = with_text(
+        visit,
+        job_number="J|17 *x* [x](y)",
+        customer=HOSTILE,
+        site="<script>x</script> | &amp;",
+        notes=f"# not a heading\n- not a list\n1. not a list\n---\n{HOSTILE}\n> not a quote",
+        technician="Ann_e **B**",
+    )
+    return build_report(
+        with_reading_note(odd, 0, "seal | weeping *badly* [see](http://x)"), profile, diagnosis
+    )
 
 
 def test_readings_table_keeps_its_shape_when_user_text_has_pipes_and_markup(bench) -> None:
@@ -138,8 +147,8 @@ def test_user_text_never_becomes_a_link_html_emphasis_or_a_block(bench) -> None:
     assert not emphasised & {"urgent", "badly", "under", "bold", "B", "x", "z"}, emphasised
     # The visit notes stay one paragraph: no heading, list, rule or quote made from their lines.
     notes_at = next(i for i, t in enumerate(tokens) if t.type == "inline" and t.content == "Notes")
-    notes = tokens[notes_at + 2:]
-    notes = notes[:next(i for i, t in enumerate(notes) if t.type == "heading_open")]
+    notes = tokens[notes_at + 2 :]
+    notes = notes[: next(i for i, t in enumerate(notes) if t.type == "heading_open")]
     assert {t.type for t in notes} <= {"paragraph_open", "inline", "paragraph_close"}
 
 
@@ -160,14 +169,18 @@ def test_a_row_with_the_wrong_number_of_cells_is_a_bug_caught_at_once() -> None:
         table(["a", "b"], [["only one"]])
 
 
-@pytest.mark.parametrize("text", ["a|b", "*x*", "[x](y)", "<b>", "\\", "`c`", "_u_", "&amp;", "~~s~~", "$x$", ":smile:"])
+@pytest.mark.parametrize(
+    "text", ["a|b", "*x*", "[x](y)", "<b>", "\\", "`c`", "_u_", "&amp;", "~~s~~", "$x$", ":smile:"]
+)
 def test_inline_escaping_round_trips_through_the_parser(text: str) -> None:
     tokens = PARSER.parse(f"| h |\n|---|\n| {inline(text)} |\n\n{inline(text)}\n")
     texts = [_text(t) for t in tokens if t.type == "inline"]
     assert texts[1:] == [text, text]
 
 
-@pytest.mark.parametrize("line", ["# h", "- l", "+ l", "* l", "1. n", "12) n", "> q", "===", "---", "    code", "```"])
+@pytest.mark.parametrize(
+    "line", ["# h", "- l", "+ l", "* l", "1. n", "12) n", "> q", "===", "---", "    code", "```"]
+)
 def test_a_line_that_would_start_a_block_stays_a_paragraph(line: str) -> None:
     tokens = PARSER.parse("\n".join(paragraph(f"first\n{line}")) + "\n")
     assert [t.type for t in tokens] == ["paragraph_open", "inline", "paragraph_close"]

@@ -154,6 +154,7 @@ def test_control_characters_are_shown_but_inert() -> None:
 
 # --- band pictures: positions on a linear axis, position = (x - min) / (max - min) by definition ---
 
+
 def test_a_low_reading_sits_left_of_its_band() -> None:
     band = make_band(18.4, 0.35, 25.0, 29.0, "bar")
     assert band.value_at < band.band_from < band.band_to < 1.0

@@ -84,7 +84,9 @@ def test_every_sample_visit_fits_on_two_pages_of_a4_and_of_letter(bench, path: P
     card = build_report(visit, profile, bench.diagnose(visit, profile))
     for letter, size in ((False, A4), (True, LETTER)):
         reader, text = _read(render_pdf(card, letter=letter, fixed_date=FIXED))
-        assert len(reader.pages) <= 2, f"{path.stem} takes {len(reader.pages)} {'Letter' if letter else 'A4'} pages"
+        assert len(reader.pages) <= 2, (
+            f"{path.stem} takes {len(reader.pages)} {'Letter' if letter else 'A4'} pages"
+        )
         for page in reader.pages:
             assert (float(page.mediabox.width), float(page.mediabox.height)) == pytest.approx(size, abs=0.01)
         assert f"page {len(reader.pages)} of {len(reader.pages)}" in text
@@ -95,7 +97,7 @@ def test_cautions_are_printed_in_the_order_the_card_gives_them(worn) -> None:
     # (general caution first, then by severity) in the page's own text order too.
     card = build_report(*worn)
     _reader, text = _read(render_pdf(card, fixed_date=FIXED))
-    section = text[text.index("Safety cautions"):]
+    section = text[text.index("Safety cautions") :]
     places = [section.index(_flat(c.title)) for c in card.cautions]
     assert places == sorted(places)
     assert card.cautions[0].general
@@ -197,7 +199,9 @@ def test_importing_the_report_package_does_not_load_the_pdf_library() -> None:
     import subprocess
     import sys
 
-    code = ("import sys, fieldkit.report, fieldkit.report.model, fieldkit.report.jobcard, "
-            "fieldkit.report.command, fieldkit.report.text, fieldkit.report.markdown; print('fpdf' in sys.modules)")
+    code = (
+        "import sys, fieldkit.report, fieldkit.report.model, fieldkit.report.jobcard, "
+        "fieldkit.report.command, fieldkit.report.text, fieldkit.report.markdown; print('fpdf' in sys.modules)"
+    )
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert out.stdout.strip() == "False"

@@ -44,7 +44,9 @@ def test_long_words_wide_scripts_and_tabs_still_fit(worn) -> None:
         notes="https://example.invalid/" + "a" * 300 + "\n中文的注释" * 40 + "\n" + UNICODE_NOTE,
         job_number="J" * 40,
     )
-    text = render_text(build_report(with_reading_note(odd, 1, "\u00e9\u0301" * 100 + " end"), profile, diagnosis))
+    text = render_text(
+        build_report(with_reading_note(odd, 1, "\u00e9\u0301" * 100 + " end"), profile, diagnosis)
+    )
     _assert_fits(text)
     assert UNICODE_NOTE in text
     assert "\t" not in text

@@ -14,9 +14,9 @@ from fieldkit.simulate.evaluate import Case, EvaluationReport
 
 
 def test_simulate_prints_a_visit_by_profile_id(capsys):
-    assert main(["simulate", "tarnhollow-td9", "--fault", "charge_relief_low", "--seed", "4"]) == 0
+    assert main(["simulate", "tarnhollow-fellborer", "--fault", "charge_relief_low", "--seed", "4"]) == 0
     visit = Visit.model_validate_json(capsys.readouterr().out)
-    assert visit.machine == "tarnhollow-td9"
+    assert visit.machine == "tarnhollow-fellborer"
     assert visit.scenario is not None and visit.scenario.fault == "charge_relief_low"
 
 
@@ -24,7 +24,7 @@ def test_simulate_writes_to_a_file_from_a_profile_path(tmp_path: Path, capsys):
     from fieldkit.resources import samples_dir
 
     out = tmp_path / "visit.json"
-    profile = samples_dir() / "profiles" / "oskerfield-wl14.toml"
+    profile = samples_dir() / "profiles" / "oskerfield-loamshifter.toml"
     assert (
         main(["simulate", str(profile), "--fault", "ls_signal_leak", "--severity", "0.8", "--out", str(out)])
         == 0
@@ -32,15 +32,15 @@ def test_simulate_writes_to_a_file_from_a_profile_path(tmp_path: Path, capsys):
     said = capsys.readouterr().out
     assert "ls_signal_leak in circuit 'work'" in said
     visit = Visit.model_validate_json(out.read_text(encoding="utf-8"))
-    assert visit.machine == "oskerfield-wl14" and len(visit.readings) > 10
+    assert visit.machine == "oskerfield-loamshifter" and len(visit.readings) > 10
 
 
 def test_simulate_refuses_what_it_cannot_do(capsys):
     assert main(["simulate", "no-such-machine"]) == 2
     assert "no machine profile" in capsys.readouterr().err
-    assert main(["simulate", "brindlecombe-sc30", "--fault", "hp_relief_low"]) == 2
-    assert "cannot show on machine 'brindlecombe-sc30'" in capsys.readouterr().err
-    assert main(["simulate", "brindlecombe-sc30", "--severity", "9"]) == 2
+    assert main(["simulate", "brindlecombe-pebblerun", "--fault", "hp_relief_low"]) == 2
+    assert "cannot show on machine 'brindlecombe-pebblerun'" in capsys.readouterr().err
+    assert main(["simulate", "brindlecombe-pebblerun", "--severity", "9"]) == 2
     assert "severity" in capsys.readouterr().err
 
 

@@ -29,7 +29,7 @@ def pair(sim, fault, severity=1.0, seed=SEED):
 def test_lower_main_relief_lowers_the_stall_reading_by_the_setting_difference(simulators, true_at):
     # Field notes [calc]: in parallel the lowest setting governs, so the stall reading follows the
     # main relief one for one (the luff port relief above it stays shut).
-    sim = simulators["brindlecombe-sc30"]
+    sim = simulators["brindlecombe-pebblerun"]
     healthy, faulty, _ = pair(sim, "main_relief_low")
     rid = main_relief_id(healthy.circuits["main"])
     drop = healthy.circuits["main"].reliefs[rid].setting - faulty.circuits["main"].reliefs[rid].setting
@@ -43,7 +43,7 @@ def test_lower_main_relief_lowers_the_stall_reading_by_the_setting_difference(si
 def test_series_return_check_and_return_line_add_to_the_stall_reading(simulators, true_at):
     # Field notes [calc]: in series the settings add; back pressure on an internally drained
     # relief adds one for one: stall = main relief + return check + return line.
-    sim = simulators["brindlecombe-sc30"]
+    sim = simulators["brindlecombe-pebblerun"]
     healthy, _ = sim.machine(None, 1.0, SEED)
     main = healthy.circuits["main"]
     expected = (
@@ -57,7 +57,7 @@ def test_series_return_check_and_return_line_add_to_the_stall_reading(simulators
 def test_return_back_pressure_adds_one_for_one_to_an_internally_drained_relief(simulators, true_at):
     # Field notes (from memory / common practice): back pressure on the outlet of an internally
     # drained relief adds to its opening pressure about one for one.
-    sim = simulators["brindlecombe-sc30"]
+    sim = simulators["brindlecombe-pebblerun"]
     healthy, faulty, _ = pair(sim, "return_back_pressure")
     rise_return = true_at(sim, faulty, "main.return", S.STALLED) - true_at(
         sim, healthy, "main.return", S.STALLED
@@ -77,7 +77,7 @@ def test_return_back_pressure_adds_one_for_one_to_an_internally_drained_relief(s
 def test_a_lower_relief_joined_in_parallel_governs_the_stall(simulators, true_at):
     # Field notes [calc]: in parallel the lowest setting governs; the series return check and
     # return line still add on top of it.
-    sim = simulators["brindlecombe-sc30"]
+    sim = simulators["brindlecombe-pebblerun"]
     healthy, faulty, injected = pair(sim, "parallel_relief_governing")
     main = faulty.circuits["main"]
     assert injected.circuit == "main" and main.parallel_extra == ["aux"]
@@ -93,13 +93,13 @@ def test_a_lower_relief_joined_in_parallel_governs_the_stall(simulators, true_at
 def test_a_relief_set_above_the_pump_cut_off_cannot_show(simulators):
     # Common practice: a load-sensing pump destrokes at its cut-off, so a relief above it never
     # opens and setting it higher changes no reading; the simulator says so and skips it.
-    sim = simulators["oskerfield-wl14"]
+    sim = simulators["oskerfield-loamshifter"]
     assert sim.targets("main_relief_high") == []
     assert "limit of error" in sim.skipped()["main_relief_high"]
 
 
 def test_hp_relief_low_lowers_one_loop_side_only(simulators, true_at):
-    sim = simulators["tarnhollow-td9"]
+    sim = simulators["tarnhollow-fellborer"]
     healthy, faulty, injected = pair(sim, "hp_relief_low")
     side = "loop_a" if "loop A" in injected.change else "loop_b"
     other = "loop_b" if side == "loop_a" else "loop_a"
@@ -118,7 +118,7 @@ def test_charge_reads_the_charge_relief_in_neutral_and_the_flushing_relief_in_st
     # physics.closed_loop.expected_charge_pressure (common practice, from memory): charge relief
     # in neutral, the lower flushing relief in stroke, both plus case pressure; the simulator
     # adds a small override for the oil passing (at most 0.5 bar here).
-    sim = simulators["tarnhollow-td9"]
+    sim = simulators["tarnhollow-fellborer"]
     m, _ = sim.machine(None, 1.0, SEED)
     p = m.circuits["travel"].p
     neutral = true_at(sim, m, "travel.charge", S.NEUTRAL) - true_at(sim, m, "travel.case", S.NEUTRAL)
@@ -128,7 +128,7 @@ def test_charge_reads_the_charge_relief_in_neutral_and_the_flushing_relief_in_st
 
 
 def test_flushing_fault_pulls_charge_down_in_stroke_but_not_in_neutral(simulators, true_at):
-    sim = simulators["tarnhollow-td9"]
+    sim = simulators["tarnhollow-fellborer"]
     healthy, faulty, _ = pair(sim, "flushing_valve_fault")
     assert true_at(sim, faulty, "travel.charge", S.NEUTRAL) == pytest.approx(
         true_at(sim, healthy, "travel.charge", S.NEUTRAL)
@@ -145,7 +145,7 @@ def test_flushing_fault_pulls_charge_down_in_stroke_but_not_in_neutral(simulator
 
 
 def test_low_charge_relief_lowers_neutral_charge_and_keeps_net_charge_referenced_to_case(simulators, true_at):
-    sim = simulators["tarnhollow-td9"]
+    sim = simulators["tarnhollow-fellborer"]
     healthy, faulty, _ = pair(sim, "charge_relief_low")
     drop = true_at(sim, healthy, "travel.charge", S.NEUTRAL) - true_at(
         sim, faulty, "travel.charge", S.NEUTRAL
@@ -157,7 +157,7 @@ def test_restricted_case_drain_raises_case_pressure_not_drain_flow(simulators, t
     # Catalogue and common practice: a restricted drain shows as high case pressure with normal
     # drain flow. The charge relief vents into the case, so the charge gauge rises with it
     # (physics.closed_loop: reliefs work against the case).
-    sim = simulators["tarnhollow-td9"]
+    sim = simulators["tarnhollow-fellborer"]
     healthy, faulty, _ = pair(sim, "case_drain_restricted")
     assert true_at(sim, faulty, "travel.pump_drain", S.STALLED) == pytest.approx(
         true_at(sim, healthy, "travel.pump_drain", S.STALLED)
@@ -172,7 +172,7 @@ def test_restricted_case_drain_raises_case_pressure_not_drain_flow(simulators, t
 
 def test_restricted_charge_inlet_pulls_a_deep_vacuum(simulators, true_at):
     # Field notes (from memory): gear pump inlet no more than ~0.17 bar vacuum.
-    sim = simulators["tarnhollow-td9"]
+    sim = simulators["tarnhollow-fellborer"]
     healthy, faulty, _ = pair(sim, "charge_suction_restricted")
     assert true_at(sim, healthy, "travel.charge_inlet", S.FULL_STROKE) > -0.17
     assert true_at(sim, faulty, "travel.charge_inlet", S.FULL_STROKE) < -0.3
@@ -185,8 +185,8 @@ def test_worn_pump_raises_normalised_case_drain(simulators, profiles, true_at):
     # Field notes: worn piston pumps leak above ~5 % of max flow (from memory); the fault adds
     # 10 %·s of theoretical flow at the stall pressure. Normalised to the reference temperature
     # by physics.fluid.normalised_leakage (ASTM D341 viscosity, laminar leakage ∝ 1/ν).
-    sim = simulators["tarnhollow-td9"]
-    profile = profiles["tarnhollow-td9"]
+    sim = simulators["tarnhollow-fellborer"]
+    profile = profiles["tarnhollow-fellborer"]
     healthy, faulty, _ = pair(sim, "pump_worn")
     curve = grade(profile.oil_grade).curve
     oil = Q_(healthy.oil_at(0.5), "degC")
@@ -206,8 +206,8 @@ def test_worn_pump_raises_normalised_case_drain(simulators, profiles, true_at):
 def test_leakage_readings_scale_with_inverse_viscosity(simulators, profiles):
     # Field notes [calc]: laminar leakage scales with 1/viscosity at the same pressure difference
     # (Hagen–Poiseuille / slot flow); viscosities from ASTM D341 through physics.fluid.
-    sim = simulators["tarnhollow-td9"]
-    profile = profiles["tarnhollow-td9"]
+    sim = simulators["tarnhollow-fellborer"]
+    profile = profiles["tarnhollow-fellborer"]
     machine, _ = sim.machine(None, 1.0, SEED)
     _c, tp = profile.test_point("travel.motor_drain")
     cool = machine.true_value("travel", tp, S.STALLED, machine.env(45.0))
@@ -219,7 +219,7 @@ def test_leakage_readings_scale_with_inverse_viscosity(simulators, profiles):
 def test_worn_gear_pump_delivers_less_under_load(simulators, true_at):
     # Field notes: Q = V · n · ηv. The fault adds leakage of 10 % of V · n at the flow test
     # pressure (at the reference oil temperature; 50 cc/rev × 1800 rpm = 90 L/min → 9 L/min).
-    sim = simulators["brindlecombe-sc30"]
+    sim = simulators["brindlecombe-pebblerun"]
     healthy, faulty, _ = pair(sim, "pump_worn")
     loss = true_at(sim, healthy, "main.pump_flow", S.UNDER_LOAD) - true_at(
         sim, faulty, "main.pump_flow", S.UNDER_LOAD
@@ -229,7 +229,7 @@ def test_worn_gear_pump_delivers_less_under_load(simulators, true_at):
 
 
 def test_suction_restriction_starves_the_pump(simulators, true_at):
-    sim = simulators["brindlecombe-sc30"]
+    sim = simulators["brindlecombe-pebblerun"]
     healthy, faulty, _ = pair(sim, "suction_cavitation")
     assert true_at(sim, faulty, "main.suction", S.FULL_STROKE) < -0.3
     assert true_at(sim, faulty, "main.pump_flow", S.UNDER_LOAD) < 0.95 * true_at(
@@ -242,7 +242,7 @@ def test_suction_restriction_starves_the_pump(simulators, true_at):
 
 def test_ls_spring_moves_standby_and_margin_together(simulators, true_at):
     # Margin = pump outlet - LS signal (definition; field notes); one spring sets standby and margin.
-    sim = simulators["oskerfield-wl14"]
+    sim = simulators["oskerfield-loamshifter"]
     healthy, faulty, _ = pair(sim, "ls_setting_wrong")
 
     def margin(m):
@@ -259,7 +259,7 @@ def test_ls_spring_moves_standby_and_margin_together(simulators, true_at):
 
 def test_leaking_ls_signal_trails_the_work_port_at_stall(simulators, true_at):
     # A stalled function passes no flow, so a sound LS signal equals the work port (common practice).
-    sim = simulators["oskerfield-wl14"]
+    sim = simulators["oskerfield-loamshifter"]
     healthy, faulty, _ = pair(sim, "ls_signal_leak")
     gap = true_at(sim, faulty, "work.stall", S.STALLED) - true_at(sim, faulty, "work.ls_signal", S.STALLED)
     assert true_at(sim, healthy, "work.stall", S.STALLED) == pytest.approx(
@@ -269,7 +269,7 @@ def test_leaking_ls_signal_trails_the_work_port_at_stall(simulators, true_at):
 
 
 def test_low_cut_off_lowers_every_stall_reading(simulators, true_at):
-    sim = simulators["oskerfield-wl14"]
+    sim = simulators["oskerfield-loamshifter"]
     for seed in range(20):  # the direction is drawn from the seed: find one of each
         healthy, faulty, injected = pair(sim, "compensator_misset", seed=seed)
         if (
@@ -289,7 +289,7 @@ def test_low_cut_off_lowers_every_stall_reading(simulators, true_at):
 
 def test_drift_is_the_leak_over_the_cap_area(simulators, true_at):
     # Q = v · A (physics.cylinders.leakage_from_drift, field notes [calc]).
-    sim = simulators["oskerfield-wl14"]
+    sim = simulators["oskerfield-loamshifter"]
     m, _ = sim.machine(None, 1.0, SEED)
     p = m.circuits["lift"].p
     assert p["cap_area"] == pytest.approx(math.pi / 4 * 140.0**2)
@@ -301,7 +301,7 @@ def test_drift_is_the_leak_over_the_cap_area(simulators, true_at):
 def test_bypassing_piston_seal_drifts_only_with_the_rod_side_vented(simulators, true_at):
     # Field notes (trade article, second-hand): with both ports blocked a double-acting cylinder
     # locks even if its piston seal bypasses.
-    sim = simulators["oskerfield-wl14"]
+    sim = simulators["oskerfield-loamshifter"]
     healthy, faulty, _ = pair(sim, "cylinder_seal_bypass")
     assert true_at(sim, faulty, "lift.drift", S.NEUTRAL) == pytest.approx(
         true_at(sim, healthy, "lift.drift", S.NEUTRAL)
@@ -310,7 +310,7 @@ def test_bypassing_piston_seal_drifts_only_with_the_rod_side_vented(simulators, 
 
 
 def test_leaking_holding_valve_drifts_in_both_tests(simulators, true_at):
-    sim = simulators["oskerfield-wl14"]
+    sim = simulators["oskerfield-loamshifter"]
     _healthy, faulty, _ = pair(sim, "load_holding_valve_leak")
     assert true_at(sim, faulty, "lift.drift", S.NEUTRAL) > 12.0
     assert true_at(sim, faulty, "lift.drift_rod_vented", S.NEUTRAL) >= true_at(
@@ -321,7 +321,7 @@ def test_leaking_holding_valve_drifts_in_both_tests(simulators, true_at):
 def test_lost_precharge_lowers_the_precharge_reading(simulators, true_at):
     # Ideal gas at constant volume and temperature: absolute pressure ∝ amount of gas; gauge
     # readings converted with the standard atmosphere (SI Brochure, 101 325 Pa).
-    sim = simulators["oskerfield-wl14"]
+    sim = simulators["oskerfield-loamshifter"]
     healthy, faulty, _ = pair(sim, "accumulator_precharge_lost", severity=0.5)
     before = true_at(sim, healthy, "brake_acc.precharge", S.NEUTRAL)
     after = true_at(sim, faulty, "brake_acc.precharge", S.NEUTRAL)
@@ -336,7 +336,7 @@ def test_warm_gas_reads_a_higher_precharge(simulators):
     # Gay-Lussac (ideal gas, constant volume): p_abs ∝ T_abs; 81 bar set at 20 °C read at 35 °C.
     from fieldkit.simulate.actuators import precharge_reading
 
-    sim = simulators["oskerfield-wl14"]
+    sim = simulators["oskerfield-loamshifter"]
     m, _ = sim.machine(None, 1.0, SEED)
     model = m.circuits["brake_acc"]
     model.p["precharge"] = 81.0
@@ -344,7 +344,7 @@ def test_warm_gas_reads_a_higher_precharge(simulators):
 
 
 def test_dragging_brake_reads_low_while_travelling(simulators, true_at):
-    sim = simulators["tarnhollow-td9"]
+    sim = simulators["tarnhollow-fellborer"]
     healthy, faulty, _ = pair(sim, "brake_not_releasing")
     assert true_at(sim, healthy, "brake.release", S.FULL_STROKE) > 16.0
     assert true_at(sim, faulty, "brake.release", S.FULL_STROKE) < 16.0
@@ -354,12 +354,12 @@ def test_dragging_brake_reads_low_while_travelling(simulators, true_at):
 
 
 def test_invalid_conditions_mean_cold_oil_or_low_speed(simulators, profiles):
-    profile = profiles["brindlecombe-sc30"]
+    profile = profiles["brindlecombe-pebblerun"]
     window_min = to_canonical(profile.test_window.oil_min, Kind.TEMPERATURE)
     rated = to_canonical(profile.rated_speed, Kind.SPEED)
     kinds = set()
     for seed in range(12):
-        m, injected = simulators["brindlecombe-sc30"].machine("invalid_test_conditions", 1.0, seed)
+        m, injected = simulators["brindlecombe-pebblerun"].machine("invalid_test_conditions", 1.0, seed)
         cold = m.setting.oil_end_c < window_min
         slow = m.setting.speed_rpm < 0.95 * rated
         assert cold != slow, injected.change
@@ -368,15 +368,15 @@ def test_invalid_conditions_mean_cold_oil_or_low_speed(simulators, profiles):
 
 
 def test_overheating_puts_the_oil_above_the_test_window(simulators, profiles):
-    profile = profiles["tarnhollow-td9"]
-    m, _ = simulators["tarnhollow-td9"].machine("relief_overheating", 1.0, SEED)
+    profile = profiles["tarnhollow-fellborer"]
+    m, _ = simulators["tarnhollow-fellborer"].machine("relief_overheating", 1.0, SEED)
     assert m.setting.oil_start_c > to_canonical(profile.test_window.oil_max, Kind.TEMPERATURE) + 10.0
 
 
 def test_gauge_error_spoils_exactly_one_pressure_reading(simulators):
     from fieldkit.simulate import gauges as kit
 
-    sim = simulators["oskerfield-wl14"]
+    sim = simulators["oskerfield-loamshifter"]
     seen = set()
     for seed in range(16):
         healthy = sim.simulate(None, 1.0, seed).visit.readings

@@ -34,12 +34,12 @@ def test_every_fault_model_says_what_breaks():
 def test_faults_skipped_on_each_demo_machine_say_why(simulators):
     skipped = {pid: sim.skipped() for pid, sim in simulators.items()}
     # A fixed gear pump machine has no closed loop, no load sensing, no cylinder or accumulator.
-    assert "charge_pump_worn" in skipped["brindlecombe-sc30"]
-    assert "no circuit of a kind" in skipped["brindlecombe-sc30"]["cylinder_seal_bypass"]
+    assert "charge_pump_worn" in skipped["brindlecombe-pebblerun"]
+    assert "no circuit of a kind" in skipped["brindlecombe-pebblerun"]["cylinder_seal_bypass"]
     # Relief faults that a pump cut-off below the relief hides, on the load-sensing loader.
-    assert set(skipped["oskerfield-wl14"]) >= {"main_relief_high", "parallel_relief_governing"}
+    assert set(skipped["oskerfield-loamshifter"]) >= {"main_relief_high", "parallel_relief_governing"}
     # The drill rig's brake accumulator has no precharge point.
-    assert "accumulator_precharge_lost" in skipped["tarnhollow-td9"]
+    assert "accumulator_precharge_lost" in skipped["tarnhollow-fellborer"]
     # Nothing is both injectable and skipped; together they cover the table.
     for pid, sim in simulators.items():
         assert set(sim.injectable()).isdisjoint(skipped[pid])

@@ -29,7 +29,7 @@ def test_same_seed_writes_the_same_visit(profiles):
 
 def test_same_seed_with_a_fault_is_the_same_machine_read_with_the_same_luck(simulators):
     # A reading the fault cannot reach (oil temperature, pump speed) is identical in both visits.
-    sim = simulators["brindlecombe-sc30"]
+    sim = simulators["brindlecombe-pebblerun"]
     healthy = sim.simulate(None, 1.0, 3).visit
     faulty = sim.simulate("main_relief_low", 1.0, 3).visit
     untouched = [
@@ -41,7 +41,7 @@ def test_same_seed_with_a_fault_is_the_same_machine_read_with_the_same_luck(simu
 
 
 def test_simulated_visit_round_trips_through_json(profiles):
-    visit = simulate_visit(profiles["tarnhollow-td9"], "charge_relief_low", 1.0, 2)
+    visit = simulate_visit(profiles["tarnhollow-fellborer"], "charge_relief_low", 1.0, 2)
     again = Visit.model_validate_json(visit.model_dump_json())
     assert again.model_dump() == visit.model_dump()
     assert visit.scenario is not None and visit.scenario.fault == "charge_relief_low"
@@ -179,10 +179,10 @@ def test_a_needle_stops_at_full_scale():
 
 
 def test_bad_severity_and_unknown_fault_are_refused(profiles):
-    sim = Simulator(profiles["oskerfield-wl14"])
+    sim = Simulator(profiles["oskerfield-loamshifter"])
     with pytest.raises(FieldkitError, match="severity"):
         sim.simulate("pump_worn", 0.0, 1)
     with pytest.raises(FieldkitError, match="cannot inject 'not_a_fault'"):
         sim.simulate("not_a_fault", 1.0, 1)
-    with pytest.raises(FieldkitError, match="cannot show on machine 'oskerfield-wl14'"):
+    with pytest.raises(FieldkitError, match="cannot show on machine 'oskerfield-loamshifter'"):
         sim.simulate("hp_relief_low", 1.0, 1)

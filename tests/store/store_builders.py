@@ -28,8 +28,12 @@ def gauge(gauge_id: str = "g60", full_scale: str = "60 bar", accuracy_class: flo
 
 
 def reading(test_point: str = CHARGE, value: str = "24.5 bar", minute: int = 0, **extra: Any) -> Reading:
-    extra.setdefault("condition", Condition(function=FunctionState.NEUTRAL, speed="1800 rpm", oil_temperature="52 °C"))
-    return Reading(test_point=test_point, value=value, entered=value, taken_at=T0 + dt.timedelta(minutes=minute), **extra)
+    extra.setdefault(
+        "condition", Condition(function=FunctionState.NEUTRAL, speed="1800 rpm", oil_temperature="52 °C")
+    )
+    return Reading(
+        test_point=test_point, value=value, entered=value, taken_at=T0 + dt.timedelta(minutes=minute), **extra
+    )
 
 
 def visit(**extra: Any) -> Visit:
@@ -52,24 +56,33 @@ def visit_with_readings(count: int = 12, **extra: Any) -> Visit:
 
 
 def profile() -> MachineProfile:
-    return MachineProfile.model_validate({
-        "id": MACHINE,
-        "name": "Demo crawler 7 (invented)",
-        "rated_speed": "2200 rpm",
-        "rated_max_pressure": "350 bar",
-        "circuits": [{
-            "id": "drive",
-            "name": "Travel drive",
-            "kind": "closed_loop_drive",
-            "parameters": {"charge_relief_setting": "24 bar", "pump_displacement": "71 cc/rev"},
-            "test_points": [
-                {"id": "charge", "role": "charge_pressure",
-                 "expected": [{"low": "20 bar", "high": "28 bar", "source": "invented demo figure"}]},
-                {"id": "case_drain", "role": "pump_case_drain_flow"},
-                {"id": "loop_a", "role": "loop_a_pressure"},
+    return MachineProfile.model_validate(
+        {
+            "id": MACHINE,
+            "name": "Demo crawler 7 (invented)",
+            "rated_speed": "2200 rpm",
+            "rated_max_pressure": "350 bar",
+            "circuits": [
+                {
+                    "id": "drive",
+                    "name": "Travel drive",
+                    "kind": "closed_loop_drive",
+                    "parameters": {"charge_relief_setting": "24 bar", "pump_displacement": "71 cc/rev"},
+                    "test_points": [
+                        {
+                            "id": "charge",
+                            "role": "charge_pressure",
+                            "expected": [
+                                {"low": "20 bar", "high": "28 bar", "source": "invented demo figure"}
+                            ],
+                        },
+                        {"id": "case_drain", "role": "pump_case_drain_flow"},
+                        {"id": "loop_a", "role": "loop_a_pressure"},
+                    ],
+                }
             ],
-        }],
-    })
+        }
+    )
 
 
 def digest(path: Path) -> str:
@@ -81,8 +94,10 @@ def raw_rows(path: Path) -> tuple[int, int]:
     """Visit and reading rows counted with plain sqlite3, independent of the store's own code."""
     conn = sqlite3.connect(path.resolve().as_uri() + "?mode=ro", uri=True)
     try:
-        return (conn.execute("SELECT count(*) FROM visit").fetchone()[0],
-                conn.execute("SELECT count(*) FROM reading").fetchone()[0])
+        return (
+            conn.execute("SELECT count(*) FROM visit").fetchone()[0],
+            conn.execute("SELECT count(*) FROM reading").fetchone()[0],
+        )
     finally:
         conn.close()
 

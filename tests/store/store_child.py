@@ -38,8 +38,10 @@ def _log_forever(path: str, visit_id: str, limit: int | None = None) -> None:
     n = 0
     while limit is None or n < limit:
         n += 1
-        saved = store.add_reading(visit_id, Reading(test_point="drive.charge", value=f"{20 + n % 9}.5 bar",
-                                                    note=f"child reading {n}"))
+        saved = store.add_reading(
+            visit_id,
+            Reading(test_point="drive.charge", value=f"{20 + n % 9}.5 bar", note=f"child reading {n}"),
+        )
         _say(saved.id)
     store.close()
 
@@ -49,9 +51,14 @@ def _import(path: str, count: int) -> None:
     from fieldkit.store.sqlite import SqliteVisitStore
 
     store = SqliteVisitStore(path)
-    big = Visit(job_number="BPH-0999", machine="demo-crawler-7", readings=[
-        Reading(test_point="drive.charge", value=f"{20 + n % 9}.5 bar", note="logger batch " * 20) for n in range(count)
-    ])
+    big = Visit(
+        job_number="BPH-0999",
+        machine="demo-crawler-7",
+        readings=[
+            Reading(test_point="drive.charge", value=f"{20 + n % 9}.5 bar", note="logger batch " * 20)
+            for n in range(count)
+        ],
+    )
     _say(f"start {os.getpid()}")
     store.import_visit(big)
     _say("done")

@@ -32,8 +32,9 @@ import pytest
 from fieldkit.store.sqlite import SqliteVisitStore
 from store_builders import MACHINE, integrity, visit
 
-pytestmark = pytest.mark.skipif(not hasattr(os, "fork") or not hasattr(signal, "SIGKILL"),
-                                reason="needs POSIX fork and SIGKILL")
+pytestmark = pytest.mark.skipif(
+    not hasattr(os, "fork") or not hasattr(signal, "SIGKILL"), reason="needs POSIX fork and SIGKILL"
+)
 
 CHILD = Path(__file__).with_name("store_child.py")
 SEEDS = range(20)
@@ -45,8 +46,13 @@ class Zygote:
     def __init__(self, home: Path) -> None:
         env = {**os.environ, "FIELDKIT_HOME": str(home), "FIELDKIT_STORE": str(home / "unused.sqlite3")}
         self.proc = subprocess.Popen(
-            [sys.executable, str(CHILD), "zygote"], stdin=subprocess.PIPE, stdout=subprocess.PIPE,
-            stderr=subprocess.PIPE, text=True, bufsize=1, env=env,
+            [sys.executable, str(CHILD), "zygote"],
+            stdin=subprocess.PIPE,
+            stdout=subprocess.PIPE,
+            stderr=subprocess.PIPE,
+            text=True,
+            bufsize=1,
+            env=env,
         )
         assert self.line() == "warm", self.proc.communicate()[1]
 

@@ -11,7 +11,12 @@ import pytest
 from fieldkit.errors import DataFileError
 from fieldkit.model.visit import FunctionState
 from fieldkit.store.csv_import import (
-    MAX_CELL_CHARS, MAX_CSV_BYTES, MAX_ROWS, kinds_by_test_point, parse_readings_csv, read_readings_csv,
+    MAX_CELL_CHARS,
+    MAX_CSV_BYTES,
+    MAX_ROWS,
+    kinds_by_test_point,
+    parse_readings_csv,
+    read_readings_csv,
 )
 from fieldkit.store.sqlite import SqliteVisitStore
 from fieldkit.units import Q_, Kind, PressureReference
@@ -33,7 +38,12 @@ def test_a_logger_file_with_every_column_reads_as_it_was_meant() -> None:
         '2024-05-14T10:31:00+02:00,drive.case_drain,3.2,L/min,full stroke,2200 rpm,55 °C,,"drain, after warm-up"\n'
     )
     first, second = parse_readings_csv(text, test_points=POINTS, gauges={"g60"})
-    assert (first.test_point, first.value, first.reference, first.gauge) == (CHARGE, Q_(24.5, "bar"), PressureReference.GAUGE, "g60")
+    assert (first.test_point, first.value, first.reference, first.gauge) == (
+        CHARGE,
+        Q_(24.5, "bar"),
+        PressureReference.GAUGE,
+        "g60",
+    )
     assert first.condition.function is FunctionState.NEUTRAL
     assert (first.condition.speed, first.condition.oil_temperature) == (Q_(1800.0, "rpm"), Q_(52.0, "degC"))
     assert first.taken_at == dt.datetime(2024, 5, 14, 8, 30, tzinfo=UTC) and first.note == "warm idle"
@@ -52,8 +62,10 @@ def test_the_unit_may_sit_in_the_header_the_unit_column_or_the_cell() -> None:
 
 
 def test_a_semicolon_file_reads_commas_as_decimal_points() -> None:
-    text = "Time;Test point;Value [bar];Oil temperature [°C]\n2024-05-14T08:30:00Z;drive.charge;24,5;52,5\n" \
-           "2024-05-14T08:31:00Z;drive.charge;2,500;53\n"
+    text = (
+        "Time;Test point;Value [bar];Oil temperature [°C]\n2024-05-14T08:30:00Z;drive.charge;24,5;52,5\n"
+        "2024-05-14T08:31:00Z;drive.charge;2,500;53\n"
+    )
     first, second = parse_readings_csv(text, test_points=POINTS)
     assert first.value == Q_(24.5, "bar") and first.condition.oil_temperature == Q_(52.5, "degC")
     assert second.value == Q_(2.5, "bar")  # never 25 bar or 2500 bar
@@ -90,15 +102,15 @@ def test_the_unit_given_twice_or_not_at_all_is_a_row_error() -> None:
 def test_every_wrong_row_is_listed_with_its_line_and_nothing_is_returned() -> None:
     text = (
         "time,test_point,value,function,gauge\n"
-        "2024-05-14T08:30:00Z,drive.charge,24.5 bar,neutral,g60\n"      # line 2: fine
-        "2024-05-14T08:31:00Z,drive.chrage,24.5 bar,neutral,\n"         # line 3: unknown test point
-        "2024-05-14T08:32:00Z,drive.charge,62 L/min,neutral,\n"         # line 4: a flow on a pressure point
-        "2024-05-14T08:33:00Z,drive.case_drain,lots,neutral,\n"         # line 5: not a number
-        "14/05/2024 08:34,drive.charge,24 bar,neutral,\n"               # line 6: not ISO 8601
-        "2024-05-14T08:35:00,drive.charge,24 bar,neutral,\n"            # line 7: no time zone
-        "2024-05-14T08:36:00Z,drive.charge,24 bar,idling,\n"            # line 8: unknown function
-        "2024-05-14T08:37:00Z,drive.charge,24 bra,neutral,\n"           # line 9: unknown unit
-        "2024-05-14T08:38:00Z,drive.charge,24 bar,neutral,g600\n"       # line 10: unknown gauge
+        "2024-05-14T08:30:00Z,drive.charge,24.5 bar,neutral,g60\n"  # line 2: fine
+        "2024-05-14T08:31:00Z,drive.chrage,24.5 bar,neutral,\n"  # line 3: unknown test point
+        "2024-05-14T08:32:00Z,drive.charge,62 L/min,neutral,\n"  # line 4: a flow on a pressure point
+        "2024-05-14T08:33:00Z,drive.case_drain,lots,neutral,\n"  # line 5: not a number
+        "14/05/2024 08:34,drive.charge,24 bar,neutral,\n"  # line 6: not ISO 8601
+        "2024-05-14T08:35:00,drive.charge,24 bar,neutral,\n"  # line 7: no time zone
+        "2024-05-14T08:36:00Z,drive.charge,24 bar,idling,\n"  # line 8: unknown function
+        "2024-05-14T08:37:00Z,drive.charge,24 bra,neutral,\n"  # line 9: unknown unit
+        "2024-05-14T08:38:00Z,drive.charge,24 bar,neutral,g600\n"  # line 10: unknown gauge
     )
     with pytest.raises(DataFileError) as caught:
         parse_readings_csv(text, test_points=POINTS, gauges={"g60"}, name="logger-0514.csv")
@@ -131,40 +143,51 @@ def test_a_long_list_of_wrong_rows_stops_at_twenty_and_counts_the_rest() -> None
 def test_a_time_without_zone_is_taken_in_the_zone_the_caller_names() -> None:
     text = "time,test_point,value\n2024-05-14 10:30:00,drive.charge,24.5 bar\n"
     summer = timezone(timedelta(hours=2))
-    assert parse_readings_csv(text, naive_tz=summer)[0].taken_at == dt.datetime(2024, 5, 14, 8, 30, tzinfo=UTC)
+    assert parse_readings_csv(text, naive_tz=summer)[0].taken_at == dt.datetime(
+        2024, 5, 14, 8, 30, tzinfo=UTC
+    )
     assert "has no time of day" in str(_error("time,test_point,value\n2024-05-14,drive.charge,24.5 bar\n"))
 
 
 def test_speed_and_temperature_must_be_of_their_own_kind() -> None:
-    err = _error("time,test_point,value,speed,oil_temperature\n"
-                 "2024-05-14T08:30:00Z,drive.charge,24 bar,52 °C,1800 rpm\n")
+    err = _error(
+        "time,test_point,value,speed,oil_temperature\n"
+        "2024-05-14T08:30:00Z,drive.charge,24 bar,52 °C,1800 rpm\n"
+    )
     assert "'52 °C' is a temperature; speed needs a rotational speed" in str(err)
     assert "'1800 rpm' is a rotational speed; oil temperature needs a temperature" in str(err)
 
 
 def test_an_unquoted_decimal_comma_in_a_comma_file_is_explained() -> None:
     err = _error("time,test_point,value\n2024-05-14T08:30:00Z,drive.charge,24,5 bar\n")
-    assert "4 cells but the header names 3 (a decimal comma in a comma-separated file must be quoted)" in str(err)
+    assert "4 cells but the header names 3 (a decimal comma in a comma-separated file must be quoted)" in str(
+        err
+    )
 
 
-@pytest.mark.parametrize(("header", "words"), [
-    ("time,test_point", "lacks the column value"),
-    ("time,test_point,value,reading", "column 4 is called 'reading'"),
-    ("time,test_point,value,value", "'value' appears twice"),
-    ("time,test_point,value [bra]", "'bra' is not a unit"),
-    ("time,test_point,value [L/min],speed [°C]", "is a temperature; this needs a rotational speed"),
-    ("time,test_point,value [bar],unit", "unit column; keep one"),
-    ("time,test_point,value,gauge [bar]", "cannot carry a unit"),
-])
+@pytest.mark.parametrize(
+    ("header", "words"),
+    [
+        ("time,test_point", "lacks the column value"),
+        ("time,test_point,value,reading", "column 4 is called 'reading'"),
+        ("time,test_point,value,value", "'value' appears twice"),
+        ("time,test_point,value [bra]", "'bra' is not a unit"),
+        ("time,test_point,value [L/min],speed [°C]", "is a temperature; this needs a rotational speed"),
+        ("time,test_point,value [bar],unit", "unit column; keep one"),
+        ("time,test_point,value,gauge [bar]", "cannot carry a unit"),
+    ],
+)
 def test_a_wrong_header_is_refused_at_line_one(header: str, words: str) -> None:
     err = _error(header + "\n2024-05-14T08:30:00Z,drive.charge,24\n")
     assert err.line == 1 and words in str(err)
 
 
 def test_a_quoted_note_over_several_lines_keeps_later_line_numbers_right() -> None:
-    text = ('time,test_point,value,note\n'
-            '2024-05-14T08:30:00Z,drive.charge,24 bar,"first line\nsecond line"\n'
-            '2024-05-14T08:31:00Z,drive.charge,24 bra,\n')
+    text = (
+        "time,test_point,value,note\n"
+        '2024-05-14T08:30:00Z,drive.charge,24 bar,"first line\nsecond line"\n'
+        "2024-05-14T08:31:00Z,drive.charge,24 bra,\n"
+    )
     err = _error(text)
     assert "line 4: 'bra' is not a unit" in str(err)
     assert err.line == 4
@@ -175,11 +198,14 @@ def test_empty_lines_and_a_byte_order_mark_are_harmless() -> None:
     assert len(parse_readings_csv(text)) == 1
 
 
-@pytest.mark.parametrize(("text", "words"), [
-    ("", "must be a header"),
-    ("time,test_point,value\n", "has a header but no readings"),
-    ('time,test_point,value\n2024-05-14T08:30:00Z,drive.charge,"24.5 bar\n', "cannot be read"),
-])
+@pytest.mark.parametrize(
+    ("text", "words"),
+    [
+        ("", "must be a header"),
+        ("time,test_point,value\n", "has a header but no readings"),
+        ('time,test_point,value\n2024-05-14T08:30:00Z,drive.charge,"24.5 bar\n', "cannot be read"),
+    ],
+)
 def test_an_empty_or_broken_file_says_what_is_wrong(text: str, words: str) -> None:
     assert words in str(_error(text))
 
@@ -196,7 +222,11 @@ def test_the_size_row_and_cell_limits_hold() -> None:
     with pytest.raises(DataFileError, match="more than 50,000 readings") as caught:
         parse_readings_csv(many)
     assert caught.value.line == MAX_ROWS + 2
-    long_note = "time,test_point,value,note\n2024-05-14T08:30:00Z,drive.charge,24 bar," + "n" * (MAX_CELL_CHARS + 1) + "\n"
+    long_note = (
+        "time,test_point,value,note\n2024-05-14T08:30:00Z,drive.charge,24 bar,"
+        + "n" * (MAX_CELL_CHARS + 1)
+        + "\n"
+    )
     assert "the note cell is 4,001 characters" in str(_error(long_note))
 
 
@@ -205,7 +235,9 @@ def test_a_file_is_read_from_disk_with_its_name_in_messages(tmp_path: Path) -> N
     good.write_text("time;test_point;value\n2024-05-14T08:30:00Z;drive.charge;24,5 bar\n", encoding="utf-8")
     assert read_readings_csv(good, test_points=kinds_by_test_point(profile()))[0].value == Q_(24.5, "bar")
     bad = tmp_path / "latin1.csv"
-    bad.write_bytes("time;test_point;value;note\n2024-05-14T08:30:00Z;drive.charge;24 bar;Öl\n".encode("latin-1"))
+    bad.write_bytes(
+        "time;test_point;value;note\n2024-05-14T08:30:00Z;drive.charge;24 bar;Öl\n".encode("latin-1")
+    )
     with pytest.raises(DataFileError, match=r"latin1.csv: not UTF-8 text"):
         read_readings_csv(bad)
 
@@ -216,7 +248,8 @@ def test_the_test_points_of_a_profile_give_their_kinds() -> None:
 
 def test_an_imported_csv_goes_into_a_visit_whole(tmp_path: Path) -> None:
     text = "time,test_point,value,gauge\n" + "".join(
-        f"2024-05-14T08:{i:02d}:00Z,drive.charge,2{i % 10}.5 bar,g60\n" for i in range(30))
+        f"2024-05-14T08:{i:02d}:00Z,drive.charge,2{i % 10}.5 bar,g60\n" for i in range(30)
+    )
     with SqliteVisitStore(tmp_path / "visits.sqlite3") as store:
         v = store.create_visit(visit())
         readings = parse_readings_csv(text, test_points=POINTS, gauges={g.id for g in v.gauges})

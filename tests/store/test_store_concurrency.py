@@ -21,8 +21,12 @@ CHILD = Path(__file__).with_name("store_child.py")
 
 def _start(*args: str) -> subprocess.Popen[str]:
     return subprocess.Popen(
-        [sys.executable, str(CHILD), *args], stdin=subprocess.PIPE, stdout=subprocess.PIPE,
-        stderr=subprocess.PIPE, text=True, env=os.environ.copy(),
+        [sys.executable, str(CHILD), *args],
+        stdin=subprocess.PIPE,
+        stdout=subprocess.PIPE,
+        stderr=subprocess.PIPE,
+        text=True,
+        env=os.environ.copy(),
     )
 
 
@@ -68,7 +72,9 @@ def test_a_store_held_by_another_writer_says_it_is_busy(store_path: Path) -> Non
         try:
             _expect(holder, "locked")
             started = time.monotonic()
-            with pytest.raises(StoreError, match="the store is busy: another fieldkit is writing to .*visits.sqlite3"):
+            with pytest.raises(
+                StoreError, match="the store is busy: another fieldkit is writing to .*visits.sqlite3"
+            ):
                 store.add_reading(v.id, reading())
             assert time.monotonic() - started >= 0.25, "gave up without waiting for the other writer"
             assert store.get_visit(v.id).readings == []  # reading still works while the other one writes

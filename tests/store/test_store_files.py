@@ -23,7 +23,9 @@ from store_builders import CHARGE, digest, raw_rows, reading, visit
 def _store_with_readings(path: Path, count: int = 60) -> str:
     with SqliteVisitStore(path) as store:
         v = store.create_visit(visit())
-        store.add_readings(v.id, [reading(CHARGE, f"2{i % 10}.5 bar", minute=i, note="x" * 200) for i in range(count)])
+        store.add_readings(
+            v.id, [reading(CHARGE, f"2{i % 10}.5 bar", minute=i, note="x" * 200) for i in range(count)]
+        )
         return v.id
 
 
@@ -34,7 +36,9 @@ def _refused(path: Path, pattern: str) -> None:
         SqliteVisitStore(path)
     assert str(path) in str(caught.value)
     assert digest(path) == before, "a refused file was modified"
-    assert sorted(p.name for p in path.parent.iterdir()) == neighbours, "files were left beside a refused file"
+    assert sorted(p.name for p in path.parent.iterdir()) == neighbours, (
+        "files were left beside a refused file"
+    )
 
 
 def test_a_new_store_is_marked_as_fieldkits(store_path: Path) -> None:
@@ -163,7 +167,10 @@ def test_a_store_made_at_the_same_moment_by_another_fieldkit_is_kept(store_path:
 
 def test_an_older_store_is_upgraded_in_one_step_and_keeps_its_readings(store_path: Path) -> None:
     visit_id = _store_with_readings(store_path, 4)
-    later = (*MIGRATIONS, Migration(2, "test: an extra index", ("CREATE INDEX reading_by_stored ON reading (stored_at)",)))
+    later = (
+        *MIGRATIONS,
+        Migration(2, "test: an extra index", ("CREATE INDEX reading_by_stored ON reading (stored_at)",)),
+    )
     with SqliteVisitStore(store_path, migrations=later) as store:
         assert len(store.get_visit(visit_id).readings) == 4
     conn = sqlite3.connect(store_path)
@@ -180,10 +187,17 @@ def test_an_older_store_is_upgraded_in_one_step_and_keeps_its_readings(store_pat
 def test_a_failing_upgrade_leaves_the_store_as_it_was(store_path: Path) -> None:
     _store_with_readings(store_path, 4)
     before = digest(store_path)
-    broken = (*MIGRATIONS, Migration(2, "test: good then bad", (
-        "CREATE TABLE photo (id TEXT)",
-        "CREATE INDEX nonsense ON no_such_table (x)",
-    )))
+    broken = (
+        *MIGRATIONS,
+        Migration(
+            2,
+            "test: good then bad",
+            (
+                "CREATE TABLE photo (id TEXT)",
+                "CREATE INDEX nonsense ON no_such_table (x)",
+            ),
+        ),
+    )
     with pytest.raises(StoreError, match="no_such_table"):
         SqliteVisitStore(store_path, migrations=broken)
     assert digest(store_path) == before

@@ -15,7 +15,17 @@ from fieldkit.model.visit import Reading, VisitStatus
 from fieldkit.store import SqliteVisitStore, VisitStore, open_store
 from fieldkit.store.migrations import APPLICATION_ID
 from fieldkit.units import Q_
-from store_builders import CASE_DRAIN, CHARGE, LOOP_A, MACHINE, gauge, raw_rows, reading, visit, visit_with_readings
+from store_builders import (
+    CASE_DRAIN,
+    CHARGE,
+    LOOP_A,
+    MACHINE,
+    gauge,
+    raw_rows,
+    reading,
+    visit,
+    visit_with_readings,
+)
 
 
 def test_the_sqlite_store_offers_every_operation_the_screens_use(store: SqliteVisitStore) -> None:
@@ -26,8 +36,12 @@ def test_every_connection_is_set_up_to_survive_a_power_cut(store: SqliteVisitSto
     # WAL with synchronous=FULL (2) keeps each commit through power loss; see the sqlite3 notes in
     # /work/shared/style.md (SQLite documentation, "PRAGMA synchronous").
     assert store.connection_settings() == {
-        "journal_mode": "wal", "synchronous": 2, "foreign_keys": 1, "busy_timeout": 5000,
-        "user_version": 1, "application_id": APPLICATION_ID,
+        "journal_mode": "wal",
+        "synchronous": 2,
+        "foreign_keys": 1,
+        "busy_timeout": 5000,
+        "user_version": 1,
+        "application_id": APPLICATION_ID,
     }
 
 
@@ -48,8 +62,9 @@ def test_two_screens_sharing_one_store_object_lose_nothing(store: SqliteVisitSto
 
 
 def test_a_visit_comes_back_exactly_as_it_was_saved(store: SqliteVisitStore, store_path: Path) -> None:
-    original = visit_with_readings(5, notes="Customer reports slow travel when warm.", hour_meter=6120.5,
-                                   barometric_pressure="1008 mbar")
+    original = visit_with_readings(
+        5, notes="Customer reports slow travel when warm.", hour_meter=6120.5, barometric_pressure="1008 mbar"
+    )
     saved = store.create_visit(original)
     assert saved == original
     store.close()
@@ -57,7 +72,9 @@ def test_a_visit_comes_back_exactly_as_it_was_saved(store: SqliteVisitStore, sto
         assert reopened.get_visit(original.id) == original
 
 
-def test_every_reading_reported_saved_is_there_after_reopening(store: SqliteVisitStore, store_path: Path) -> None:
+def test_every_reading_reported_saved_is_there_after_reopening(
+    store: SqliteVisitStore, store_path: Path
+) -> None:
     v = store.create_visit(visit())
     ids = [store.add_reading(v.id, reading(CHARGE, f"2{i}.0 bar", minute=i)).id for i in range(10)]
     store.close()
@@ -75,7 +92,9 @@ def test_an_unknown_visit_is_named_in_the_message(store: SqliteVisitStore) -> No
 def test_visit_list_shows_newest_first_and_filters_by_status_and_machine(store: SqliteVisitStore) -> None:
     older = store.create_visit(visit(job_number="BPH-0301", date=dt.date(2024, 3, 1)))
     newer = store.create_visit(visit(job_number="BPH-0417", date=dt.date(2024, 4, 17)))
-    other = store.create_visit(visit(job_number="BPH-0420", machine="demo-loader-2", date=dt.date(2024, 4, 20)))
+    other = store.create_visit(
+        visit(job_number="BPH-0420", machine="demo-loader-2", date=dt.date(2024, 4, 20))
+    )
     store.add_reading(newer.id, reading())
     store.add_reading(newer.id, reading(CASE_DRAIN, "3.1 L/min"))
     store.close_visit(older.id, "Charge relief reset; all readings in range.")
@@ -84,7 +103,11 @@ def test_visit_list_shows_newest_first_and_filters_by_status_and_machine(store: 
     assert [s.job_number for s in everything] == ["BPH-0420", "BPH-0417", "BPH-0301"]
     summary = next(s for s in everything if s.id == newer.id)
     assert (summary.customer, summary.machine, summary.reading_count, summary.status) == (
-        "Brackenfield Plant Hire", MACHINE, 2, VisitStatus.OPEN)
+        "Brackenfield Plant Hire",
+        MACHINE,
+        2,
+        VisitStatus.OPEN,
+    )
     assert summary.updated_at.tzinfo is not None
     assert [s.id for s in store.list_visits(status="closed")] == [older.id]
     assert [s.id for s in store.list_visits(status=VisitStatus.OPEN, machine=MACHINE)] == [newer.id]
@@ -144,7 +167,9 @@ def test_a_deleted_reading_stays_in_the_record(store: SqliteVisitStore, store_pa
     assert raw_rows(store_path) == (1, 2)
 
 
-def test_the_database_itself_refuses_to_rewrite_or_drop_a_reading(store: SqliteVisitStore, store_path: Path) -> None:
+def test_the_database_itself_refuses_to_rewrite_or_drop_a_reading(
+    store: SqliteVisitStore, store_path: Path
+) -> None:
     v = store.create_visit(visit())
     r = store.add_reading(v.id, reading())
     conn = sqlite3.connect(store_path)
@@ -187,11 +212,17 @@ def test_an_invalid_reading_built_behind_the_models_back_never_reaches_the_disk(
 
 def test_header_edits_are_validated_and_saved(store: SqliteVisitStore, store_path: Path) -> None:
     v = store.create_visit(visit())
-    store.update_visit(v.id, hour_meter=6120.5, barometric_pressure="0.98 bar", notes="Hoses chafed at the boom pivot.")
+    store.update_visit(
+        v.id, hour_meter=6120.5, barometric_pressure="0.98 bar", notes="Hoses chafed at the boom pivot."
+    )
     store.close()
     with SqliteVisitStore(store_path) as again:
         got = again.get_visit(v.id)
-        assert (got.hour_meter, got.barometric_pressure, got.notes) == (6120.5, Q_(0.98, "bar"), "Hoses chafed at the boom pivot.")
+        assert (got.hour_meter, got.barometric_pressure, got.notes) == (
+            6120.5,
+            Q_(0.98, "bar"),
+            "Hoses chafed at the boom pivot.",
+        )
         with pytest.raises(StoreError, match="hour_meter"):
             again.update_visit(v.id, hour_meter=-5)
         with pytest.raises(StoreError, match="cannot change machine"):
@@ -231,7 +262,9 @@ def test_a_closed_visit_is_read_only_until_reopened(store: SqliteVisitStore) -> 
 def test_machine_history_gives_earlier_visits_current_readings_oldest_first(store: SqliteVisitStore) -> None:
     spring = store.create_visit(visit(job_number="BPH-0301", date=dt.date(2024, 3, 1)))
     autumn = store.create_visit(visit(job_number="BPH-0917", date=dt.date(2024, 9, 17)))
-    elsewhere = store.create_visit(visit(job_number="BPH-0500", machine="demo-loader-2", date=dt.date(2024, 5, 1)))
+    elsewhere = store.create_visit(
+        visit(job_number="BPH-0500", machine="demo-loader-2", date=dt.date(2024, 5, 1))
+    )
     slip = store.add_reading(spring.id, reading(CASE_DRAIN, "31 L/min"))
     fixed = store.correct_reading(spring.id, slip.id, reading(CASE_DRAIN, "3.1 L/min"))
     store.add_reading(spring.id, reading(CHARGE, "24 bar"))
@@ -240,7 +273,9 @@ def test_machine_history_gives_earlier_visits_current_readings_oldest_first(stor
 
     history = store.machine_history(MACHINE, [CASE_DRAIN])
     assert [(s.job_number, [r.id for r in rs]) for s, rs in history] == [
-        ("BPH-0301", [fixed.id]), ("BPH-0917", [autumn_drain.id])]
+        ("BPH-0301", [fixed.id]),
+        ("BPH-0917", [autumn_drain.id]),
+    ]
     assert len(store.machine_history(MACHINE)[0][1]) == 2
     assert store.machine_history("no-such-machine") == []
 
@@ -251,13 +286,21 @@ def test_a_damaged_row_is_named_instead_of_a_traceback(store: SqliteVisitStore, 
     try:
         conn.execute(
             "INSERT INTO reading (visit_id, id, test_point, taken_at, stored_at, reading_json) VALUES (?, ?, ?, ?, ?, ?)",
-            (v.id, "hand-edit", CHARGE, "2024-05-14T08:30:00Z", "2024-05-14T08:30:00Z",
-             json.dumps({"id": "hand-edit", "test_point": CHARGE, "value": "24.5 bra"})),
+            (
+                v.id,
+                "hand-edit",
+                CHARGE,
+                "2024-05-14T08:30:00Z",
+                "2024-05-14T08:30:00Z",
+                json.dumps({"id": "hand-edit", "test_point": CHARGE, "value": "24.5 bra"}),
+            ),
         )
         conn.commit()
-        with pytest.raises(StoreError, match=r"reading 'hand-edit' of visit '\w+' .* cannot be read: .*'bra'"):
+        with pytest.raises(
+            StoreError, match=r"reading 'hand-edit' of visit '\w+' .* cannot be read: .*'bra'"
+        ):
             store.get_visit(v.id)
-        conn.execute("UPDATE visit SET header_json = '{\"job_number\": \"\"}' WHERE id = ?", (v.id,))
+        conn.execute('UPDATE visit SET header_json = \'{"job_number": ""}\' WHERE id = ?', (v.id,))
         conn.commit()
         with pytest.raises(StoreError, match=f"visit '{v.id}' in .* cannot be read: .*job_number"):
             store.list_visits()

@@ -15,7 +15,11 @@ from fieldkit.store import transfer
 from fieldkit.store.sqlite import SqliteVisitStore
 from fieldkit.store.filenames import MAX_STEM_BYTES, MAX_STEM_CHARS, safe_file_name
 from fieldkit.store.transfer import (
-    MAX_EXPORT_BYTES, export_file_name, export_visit_json, read_visit_json, write_export,
+    MAX_EXPORT_BYTES,
+    export_file_name,
+    export_visit_json,
+    read_visit_json,
+    write_export,
 )
 from store_builders import profile, visit, visit_with_readings
 from visit_strategies import visits
@@ -26,6 +30,7 @@ def _tree(root: Path) -> set[str]:
 
 
 # --- round trip ------------------------------------------------------------------------------
+
 
 def test_a_visit_and_its_profile_come_back_equal() -> None:
     original, machine = visit_with_readings(6, barometric_pressure="1008 mbar"), profile()
@@ -67,6 +72,7 @@ def test_an_export_file_can_be_read_back_from_its_path(tmp_path: Path) -> None:
 
 # --- refusals --------------------------------------------------------------------------------
 
+
 def test_a_file_cut_short_names_the_line_where_it_stops() -> None:
     text = export_visit_json(visit_with_readings(4))
     lines = text.splitlines(keepends=True)
@@ -101,16 +107,32 @@ def test_an_unknown_key_is_refused_by_name() -> None:
     assert caught.value.key == "visit.tecnician"
 
 
-@pytest.mark.parametrize(("text", "pattern"), [
-    ("", "the file is empty"),
-    ("[1, 2]", "not a fieldkit visit export"),
-    ('{"visit": {}}', "not a fieldkit visit export"),
-    ('{"fieldkit_visit": true}', "must be a whole number"),
-    ('{"fieldkit_visit": 2, "visit": {}}', r"made by a newer fieldkit \(format 2"),
-    ('{"fieldkit_visit": 1, "fieldkit_visit": 1}', "appears twice"),
-    ('{"fieldkit_visit": 1, "exported_at": "2024-05-14T08:30:00Z", "visit": {"hour_meter": NaN}}', "not a number JSON allows"),
-    ("[" * 100_000, "nested far too deeply"),
-], ids=["empty", "a-list", "no-mark", "bool-version", "newer-format", "duplicate-key", "nan", "deep-nesting"])
+@pytest.mark.parametrize(
+    ("text", "pattern"),
+    [
+        ("", "the file is empty"),
+        ("[1, 2]", "not a fieldkit visit export"),
+        ('{"visit": {}}', "not a fieldkit visit export"),
+        ('{"fieldkit_visit": true}', "must be a whole number"),
+        ('{"fieldkit_visit": 2, "visit": {}}', r"made by a newer fieldkit \(format 2"),
+        ('{"fieldkit_visit": 1, "fieldkit_visit": 1}', "appears twice"),
+        (
+            '{"fieldkit_visit": 1, "exported_at": "2024-05-14T08:30:00Z", "visit": {"hour_meter": NaN}}',
+            "not a number JSON allows",
+        ),
+        ("[" * 100_000, "nested far too deeply"),
+    ],
+    ids=[
+        "empty",
+        "a-list",
+        "no-mark",
+        "bool-version",
+        "newer-format",
+        "duplicate-key",
+        "nan",
+        "deep-nesting",
+    ],
+)
 def test_files_that_are_not_a_readable_export_are_refused_plainly(text: str, pattern: str) -> None:
     with pytest.raises(DataFileError, match=pattern):
         read_visit_json(text)
@@ -148,11 +170,34 @@ def test_a_file_that_is_not_utf8_is_refused(tmp_path: Path) -> None:
 
 # --- writing the file ------------------------------------------------------------------------
 
-@pytest.mark.parametrize("name", [
-    "../../etc/passwd", "/abs/olute", "a/b", "a\\b", "..", ".", "CON", "con.json", "LPT1", "nul.txt",
-    "job\x00number", "line\nbreak", "tab\there", "   ", "", "J/2024/17", "\u202e.exe", "／etc／passwd",
-    "~/.bashrc", "C:\\Windows\\system32", "x" * 500, "é" * 400,
-])
+
+@pytest.mark.parametrize(
+    "name",
+    [
+        "../../etc/passwd",
+        "/abs/olute",
+        "a/b",
+        "a\\b",
+        "..",
+        ".",
+        "CON",
+        "con.json",
+        "LPT1",
+        "nul.txt",
+        "job\x00number",
+        "line\nbreak",
+        "tab\there",
+        "   ",
+        "",
+        "J/2024/17",
+        "\u202e.exe",
+        "／etc／passwd",
+        "~/.bashrc",
+        "C:\\Windows\\system32",
+        "x" * 500,
+        "é" * 400,
+    ],
+)
 def test_a_hostile_name_still_writes_one_plain_file_in_the_chosen_folder(tmp_path: Path, name: str) -> None:
     folder = tmp_path / "exports"
     folder.mkdir()
@@ -185,7 +230,9 @@ def test_an_earlier_export_is_never_overwritten_unless_asked(tmp_path: Path) -> 
     assert again == first and first.read_text(encoding="utf-8") == "three"
 
 
-def test_a_failed_write_leaves_the_old_file_and_no_scraps(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+def test_a_failed_write_leaves_the_old_file_and_no_scraps(
+    tmp_path: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
     target = write_export("old", tmp_path, "BPH-0417")
 
     def disk_full(_fd: int) -> None:

@@ -22,11 +22,10 @@ magnitudes = st.one_of(
     st.floats(min_value=0.001, max_value=1e6, allow_nan=False, allow_infinity=False),
     st.integers(min_value=0, max_value=100_000).map(float),
 )
-plain_text = st.text(
-    alphabet=st.characters(blacklist_categories=("Cs", "Cc")), max_size=60
-).map(str.strip)
-moments = st.datetimes(min_value=dt.datetime(2000, 1, 1), max_value=dt.datetime(2099, 12, 31),
-                       timezones=st.just(UTC))
+plain_text = st.text(alphabet=st.characters(blacklist_categories=("Cs", "Cc")), max_size=60).map(str.strip)
+moments = st.datetimes(
+    min_value=dt.datetime(2000, 1, 1), max_value=dt.datetime(2099, 12, 31), timezones=st.just(UTC)
+)
 
 
 @st.composite
@@ -41,11 +40,24 @@ def readings(draw: st.DrawFn) -> Reading:
     condition = Condition(
         function=draw(st.sampled_from(tuple(FunctionState))),
         speed=draw(st.none() | magnitudes.map(lambda m: Q_(m, unit("revolution / minute")))),
-        oil_temperature=draw(st.none() | st.builds(lambda m, s: Q_(s * m, unit("degC")),
-                                                   st.floats(min_value=0.001, max_value=150), st.sampled_from((1.0, -1.0)))),
+        oil_temperature=draw(
+            st.none()
+            | st.builds(
+                lambda m, s: Q_(s * m, unit("degC")),
+                st.floats(min_value=0.001, max_value=150),
+                st.sampled_from((1.0, -1.0)),
+            )
+        ),
     )
-    return Reading(test_point=point, value=value, reference=reference, condition=condition,
-                   gauge=draw(st.none() | st.just("g60")), taken_at=draw(moments), note=draw(plain_text))
+    return Reading(
+        test_point=point,
+        value=value,
+        reference=reference,
+        condition=condition,
+        gauge=draw(st.none() | st.just("g60")),
+        taken_at=draw(moments),
+        note=draw(plain_text),
+    )
 
 
 @st.composite
@@ -62,8 +74,14 @@ def visits(draw: st.DrawFn, max_readings: int = 12) -> Visit:
         final.append(Reading.model_validate({**r.model_dump(), **update}) if update else r)
     return Visit(
         job_number=draw(st.text(alphabet="ABCDEFGHJKLMNPQRSTUVWXYZ0123456789-/", min_size=1, max_size=20)),
-        customer=draw(plain_text), machine=MACHINE, technician=draw(plain_text),
+        customer=draw(plain_text),
+        machine=MACHINE,
+        technician=draw(plain_text),
         hour_meter=draw(st.none() | st.floats(min_value=0, max_value=100_000)),
-        barometric_pressure=draw(st.none() | st.floats(min_value=900, max_value=1100).map(lambda m: Q_(m, unit("millibar")))),
-        gauges=[gauge()], readings=final, notes=draw(plain_text),
+        barometric_pressure=draw(
+            st.none() | st.floats(min_value=900, max_value=1100).map(lambda m: Q_(m, unit("millibar")))
+        ),
+        gauges=[gauge()],
+        readings=final,
+        notes=draw(plain_text),
     )

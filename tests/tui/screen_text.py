@@ -9,8 +9,10 @@ import re
 
 from textual.app import App
 
-_TEXT = re.compile(r'<text class="[^"]*" x="(?P<x>[\d.]+)" y="[\d.]+" textLength="[\d.]+" '
-                   r'clip-path="url\(#[^)]*-line-(?P<line>\d+)\)">(?P<text>[^<]*)</text>')
+_TEXT = re.compile(
+    r'<text class="[^"]*" x="(?P<x>[\d.]+)" y="[\d.]+" textLength="[\d.]+" '
+    r'clip-path="url\(#[^)]*-line-(?P<line>\d+)\)">(?P<text>[^<]*)</text>'
+)
 CHAR_WIDTH = 12.2  # Rich's SVG export: 0.61 × the 20 px font
 
 

@@ -25,14 +25,26 @@ from fieldkit.tui.screens.visit import VisitScreen
 from .conftest import type_text, wait_until
 from .screen_text import screen_text
 
-MODULES = [fieldkit.tui.screens.diagnosis, fieldkit.tui.screens.dialogs, fieldkit.tui.screens.finish,
-           fieldkit.tui.screens.gauge, fieldkit.tui.screens.history, fieldkit.tui.screens.new_visit,
-           fieldkit.tui.screens.readings, fieldkit.tui.screens.start, fieldkit.tui.screens.visit]
+MODULES = [
+    fieldkit.tui.screens.diagnosis,
+    fieldkit.tui.screens.dialogs,
+    fieldkit.tui.screens.finish,
+    fieldkit.tui.screens.gauge,
+    fieldkit.tui.screens.history,
+    fieldkit.tui.screens.new_visit,
+    fieldkit.tui.screens.readings,
+    fieldkit.tui.screens.start,
+    fieldkit.tui.screens.visit,
+]
 
 
 def test_every_binding_of_every_screen_and_the_app_has_its_own_id() -> None:
-    owners = [FieldkitApp] + [cls for m in MODULES for _, cls in inspect.getmembers(m, inspect.isclass)
-                              if issubclass(cls, Screen) and cls.__module__ == m.__name__]
+    owners = [FieldkitApp] + [
+        cls
+        for m in MODULES
+        for _, cls in inspect.getmembers(m, inspect.isclass)
+        if issubclass(cls, Screen) and cls.__module__ == m.__name__
+    ]
     seen: dict[str, Binding] = {}
     for owner in owners:
         for binding in owner.__dict__.get("BINDINGS", []):
@@ -104,5 +116,7 @@ async def test_switching_to_psi_redraws_the_visit_and_is_remembered(demo_app) ->
         await wait_until(pilot, lambda: isinstance(app.screen, VisitScreen))
         app.set_units(display="us")
         await pilot.pause()
-        assert "380 psi" in screen_text(app)  # 26.2 bar charge reading = 380 psi (NIST SP 811 B.8: 1 psi = 6894.757 Pa)
+        assert "380 psi" in screen_text(
+            app
+        )  # 26.2 bar charge reading = 380 psi (NIST SP 811 B.8: 1 psi = 6894.757 Pa)
     assert Settings.load().display == "us"

@@ -26,9 +26,14 @@ CONTROL = "\x1b[2J\x1b]0;pwned\x07"
 def _hostile_visit(store_path: Path) -> Visit:
     bench = Workbench.open(store_path)
     try:
-        visit = Visit(job_number=HOSTILE, customer=f"{HOSTILE} [link=https://example.invalid]l[/link]{CONTROL}",
-                      machine="tarnhollow-td9", machine_serial="[/]", technician="[red]Tam[/red]",
-                      notes=f"Customer said: {HOSTILE}\nsecond line [0] {CONTROL}")
+        visit = Visit(
+            job_number=HOSTILE,
+            customer=f"{HOSTILE} [link=https://example.invalid]l[/link]{CONTROL}",
+            machine="tarnhollow-fellborer",
+            machine_serial="[/]",
+            technician="[red]Tam[/red]",
+            notes=f"Customer said: {HOSTILE}\nsecond line [0] {CONTROL}",
+        )
         return bench.store.create_visit(visit)
     finally:
         bench.close()
@@ -45,7 +50,8 @@ def test_literal_shows_markup_and_control_characters_as_written() -> None:
 
 
 async def test_hostile_job_number_customer_and_notes_render_literally_and_the_app_keeps_running(
-        demo_app, store_path: Path) -> None:
+    demo_app, store_path: Path
+) -> None:
     visit = _hostile_visit(store_path)
     app = demo_app()
     async with app.run_test(size=(160, 40)) as pilot:
@@ -69,7 +75,9 @@ async def test_hostile_job_number_customer_and_notes_render_literally_and_the_ap
         assert screen.visit_id == visit.id
         top = screen_lines(app)[0]
         assert HOSTILE in top and " [link=https://exam" in top  # the rest is cut with an ellipsis
-        assert "[link=https://example.invalid]l[/link]␛[2J␛]0;pwned␇" in static_text(screen.query_one("#topbar"))
+        assert "[link=https://example.invalid]l[/link]␛[2J␛]0;pwned␇" in static_text(
+            screen.query_one("#topbar")
+        )
 
         # Clicking where '[@click=app.quit]' would be a live link does nothing.
         column = top.index("q[/]")
@@ -94,7 +102,8 @@ async def test_hostile_job_number_customer_and_notes_render_literally_and_the_ap
 
 
 def test_the_plain_summary_keeps_a_hostile_job_number_out_of_the_file_name(
-        open_bench, store_path: Path, tmp_path: Path) -> None:
+    open_bench, store_path: Path, tmp_path: Path
+) -> None:
     visit = _hostile_visit(store_path)
     bench = open_bench()
     visit = bench.store.get_visit(visit.id)

@@ -12,7 +12,8 @@ from .screen_text import screen_text
 
 
 async def test_no_color_engages_textuals_monochrome_filter_and_every_state_still_reads(
-        demo_app, monkeypatch: pytest.MonkeyPatch) -> None:
+    demo_app, monkeypatch: pytest.MonkeyPatch
+) -> None:
     monkeypatch.setenv("NO_COLOR", "1")
     app = demo_app()
     async with app.run_test() as pilot:
@@ -28,7 +29,9 @@ async def test_no_color_engages_textuals_monochrome_filter_and_every_state_still
         assert "in range" in text and "●" in text and "[" in text
 
 
-async def test_without_no_color_the_screen_keeps_its_colours(demo_app, monkeypatch: pytest.MonkeyPatch) -> None:
+async def test_without_no_color_the_screen_keeps_its_colours(
+    demo_app, monkeypatch: pytest.MonkeyPatch
+) -> None:
     monkeypatch.delenv("NO_COLOR", raising=False)
     app = demo_app()
     async with app.run_test() as pilot:

@@ -28,7 +28,9 @@ async def _typed(app, pilot, text: str) -> VisitScreen:
     return app.screen
 
 
-async def test_a_half_typed_value_is_asked_about_and_thrown_away_only_when_told(demo_app, store_path: Path) -> None:
+async def test_a_half_typed_value_is_asked_about_and_thrown_away_only_when_told(
+    demo_app, store_path: Path
+) -> None:
     count = len(_readings(store_path))
     app = demo_app()
     async with app.run_test() as pilot:

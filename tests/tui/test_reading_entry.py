@@ -51,7 +51,9 @@ async def _go_to(app, pilot, screen: VisitScreen, label: str, point_id: str) -> 
     await wait_until(pilot, lambda: screen.point_id == point_id)
 
 
-async def test_a_value_that_reads_two_ways_is_asked_about_and_the_choice_is_saved(demo_app, store_path: Path) -> None:
+async def test_a_value_that_reads_two_ways_is_asked_about_and_the_choice_is_saved(
+    demo_app, store_path: Path
+) -> None:
     app = demo_app()
     async with app.run_test() as pilot:
         screen = await _visit_screen(app, pilot)
@@ -89,7 +91,8 @@ async def test_an_overranging_gauge_is_flagged_before_connecting(demo_app) -> No
 
 
 async def test_skipping_a_point_writes_the_reason_into_the_notes_and_a_reading_clears_it(
-        demo_app, store_path: Path) -> None:
+    demo_app, store_path: Path
+) -> None:
     app = demo_app()
     async with app.run_test() as pilot:
         screen = await _visit_screen(app, pilot)

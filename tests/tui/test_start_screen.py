@@ -28,7 +28,8 @@ def _bench_visits(store_path: Path) -> list:
 
 
 async def test_a_new_visit_starts_with_the_last_gauges_and_remembers_the_technician(
-        demo_app, store_path: Path) -> None:
+    demo_app, store_path: Path
+) -> None:
     app = demo_app()
     async with app.run_test(size=(100, 34)) as pilot:
         await pilot.pause()
@@ -39,7 +40,7 @@ async def test_a_new_visit_starts_with_the_last_gauges_and_remembers_the_technic
         await pilot.pause()
         assert "job number is needed" in static_text(form.query_one("#new-error"))
         await type_text(pilot, "RHS-25-0400")
-        form.query_one("#machine").value = "oskerfield-wl14"
+        form.query_one("#machine").value = "oskerfield-loamshifter"
         form.query_one("#customer").value = "Hollin Brook Timber & Haulage"
         form.query_one("#hours").value = "6 412,5"
         form.query_one("#technician").value = "Priya Lannock"
@@ -47,7 +48,7 @@ async def test_a_new_visit_starts_with_the_last_gauges_and_remembers_the_technic
         await pilot.press("ctrl+s")
         await wait_until(pilot, lambda: isinstance(app.screen, VisitScreen))
         visit = app.screen.visit
-        assert visit.job_number == "RHS-25-0400" and visit.machine == "oskerfield-wl14"
+        assert visit.job_number == "RHS-25-0400" and visit.machine == "oskerfield-loamshifter"
         assert visit.hour_meter == 6412.5 and visit.technician == "Priya Lannock"
         assert visit.gauges, "the gauges of the last visit came along"
     saved = json.loads((data_home() / "settings.json").read_text(encoding="utf-8"))
@@ -63,14 +64,16 @@ def test_hour_meter_reads_as_written_on_a_job_sheet() -> None:
     assert parse_hours("") is None
 
 
-async def test_importing_a_visit_already_in_the_store_asks_then_adds_a_copy(demo_app, store_path: Path) -> None:
+async def test_importing_a_visit_already_in_the_store_asks_then_adds_a_copy(
+    demo_app, store_path: Path
+) -> None:
     before = len(_bench_visits(store_path))
     app = demo_app()
     async with app.run_test() as pilot:
         await pilot.pause()
         await pilot.press("i")
         await wait_until(pilot, lambda: isinstance(app.screen, LinePrompt))
-        await type_text(pilot, str(samples_dir() / "visits" / "td9-no-fault.json"))
+        await type_text(pilot, str(samples_dir() / "visits" / "fellborer-no-fault.json"))
         await pilot.press("enter")
         await wait_until(pilot, lambda: isinstance(app.screen, ConfirmDialog))
         await pilot.press("y")
@@ -80,11 +83,16 @@ async def test_importing_a_visit_already_in_the_store_asks_then_adds_a_copy(demo
     assert len(_bench_visits(store_path)) == before + 1
 
 
-async def test_a_csv_of_readings_goes_into_the_highlighted_open_visit(demo_app, store_path: Path, tmp_path: Path) -> None:
+async def test_a_csv_of_readings_goes_into_the_highlighted_open_visit(
+    demo_app, store_path: Path, tmp_path: Path
+) -> None:
     csv = tmp_path / "logger.csv"
-    csv.write_text("time,test_point,value,function,gauge\n"
-                   "2025-08-19T08:10:00Z,travel.loop_a,401 bar,stalled,G600\n"
-                   "2025-08-19T08:12:00Z,travel.loop_b,\"398,5 bar\",stalled,G600\n", encoding="utf-8")
+    csv.write_text(
+        "time,test_point,value,function,gauge\n"
+        "2025-08-19T08:10:00Z,travel.loop_a,401 bar,stalled,G600\n"
+        '2025-08-19T08:12:00Z,travel.loop_b,"398,5 bar",stalled,G600\n',
+        encoding="utf-8",
+    )
     app = demo_app()
     async with app.run_test() as pilot:
         await pilot.pause()
@@ -101,7 +109,9 @@ async def test_a_csv_of_readings_goes_into_the_highlighted_open_visit(demo_app, 
     assert points[-2:] == ["travel.loop_a", "travel.loop_b"]
 
 
-async def test_a_bad_csv_imports_nothing_and_names_the_line(demo_app, store_path: Path, tmp_path: Path) -> None:
+async def test_a_bad_csv_imports_nothing_and_names_the_line(
+    demo_app, store_path: Path, tmp_path: Path
+) -> None:
     csv = tmp_path / "bad.csv"
     csv.write_text("time,test_point,value\n2025-08-19T08:10:00Z,travel.loop_a,401 bra\n", encoding="utf-8")
     app = demo_app()
@@ -115,7 +125,9 @@ async def test_a_bad_csv_imports_nothing_and_names_the_line(demo_app, store_path
         assert "line 2" in static_text(app.screen.query_one("#start-msg"))
 
 
-async def test_the_demo_visit_comes_back_as_a_fresh_copy_once_it_was_closed(demo_app, store_path: Path) -> None:
+async def test_the_demo_visit_comes_back_as_a_fresh_copy_once_it_was_closed(
+    demo_app, store_path: Path
+) -> None:
     bench = Workbench.open(store_path)
     bench.store.close_visit(DEMO_OPEN_VISIT, "practised")
     bench.close()

@@ -29,6 +29,7 @@ def _chars(cells) -> str:
 
 # --- band picture (our own drawing convention: a linear scale, band, reading, ±u) -------------
 
+
 def test_a_reading_inside_its_band_is_drawn_between_the_band_edges() -> None:
     line = _chars(draw_band(26.2, 0.35, 25.0, 29.0, 40))
     assert len(line) == 40
@@ -55,6 +56,7 @@ def test_a_narrow_band_still_fits_the_width_asked_for() -> None:
 
 # --- probability bar ------------------------------------------------------------------------
 
+
 def test_the_probability_bar_is_always_its_width_and_grows_with_probability() -> None:
     filled = []
     for p in (0.0, 0.004, 0.125, 0.5, 0.83, 1.0):
@@ -71,9 +73,21 @@ def test_per_cent_never_rounds_a_live_fault_to_zero_or_a_doubt_to_certainty() ->
 
 # --- plan states and skip sentences ---------------------------------------------------------
 
+
 def _check(verdict: Verdict, discounted: str = "") -> ReadingCheck:
-    return ReadingCheck("r1", "travel.charge", "charge pressure", "travel", "function in neutral", "18.4 bar",
-                        "25–29 bar", "±0.35 bar", verdict, "G60", discounted=discounted)
+    return ReadingCheck(
+        "r1",
+        "travel.charge",
+        "charge pressure",
+        "travel",
+        "function in neutral",
+        "18.4 bar",
+        "25–29 bar",
+        "±0.35 bar",
+        verdict,
+        "G60",
+        discounted=discounted,
+    )
 
 
 def test_one_reading_out_of_range_marks_the_point_out_of_range() -> None:
@@ -93,7 +107,7 @@ def test_a_point_without_readings_is_skipped_only_when_the_notes_say_so() -> Non
 
 def test_skip_sentences_round_trip_through_the_notes_and_leave_the_rest_alone(open_bench) -> None:
     bench = open_bench()
-    profile = bench.library.get("tarnhollow-td9")
+    profile = bench.library.get("tarnhollow-fellborer")
     _c, loop_b = profile.test_point("travel.loop_b")
     notes = "Started on the left track loop."
     skipped = notes_with_skip(notes, loop_b, "  port seized \n no coupling ")
@@ -104,6 +118,7 @@ def test_skip_sentences_round_trip_through_the_notes_and_leave_the_rest_alone(op
 
 
 # --- gauge check before connecting ------------------------------------------------------------
+
 
 def test_gauge_fit_refuses_an_overranged_gauge_and_a_meter_of_the_wrong_kind(open_bench) -> None:
     bench = open_bench()
@@ -121,15 +136,16 @@ def test_gauge_fit_refuses_an_overranged_gauge_and_a_meter_of_the_wrong_kind(ope
 
 def test_a_stall_over_relief_adds_the_stall_caution_to_the_step(open_bench) -> None:
     bench = open_bench()
-    _c, loop_a = bench.library.get("tarnhollow-td9").test_point("travel.loop_a")
+    _c, loop_a = bench.library.get("tarnhollow-fellborer").test_point("travel.loop_a")
     stalled = {c.id for c in step_cautions(bench.knowledge, loop_a, FunctionState.STALLED)}
     assert "stall-duration" in stalled and "fluid-injection" in stalled
-    _c, charge = bench.library.get("tarnhollow-td9").test_point("travel.charge")
+    _c, charge = bench.library.get("tarnhollow-fellborer").test_point("travel.charge")
     neutral = {c.id for c in step_cautions(bench.knowledge, charge, FunctionState.NEUTRAL)}
     assert "stall-duration" not in neutral
 
 
 # --- adding a gauge -----------------------------------------------------------------------------
+
 
 def test_a_gauge_from_the_form_checks_its_en837_class() -> None:
     gauge = build_gauge("G16", "16 bar", "", "1", "EN 837-1", "")
@@ -144,11 +160,12 @@ def test_a_gauge_from_the_form_checks_its_en837_class() -> None:
 
 # --- machine history --------------------------------------------------------------------------
 
+
 def test_history_case_drain_at_reference_temperature_agrees_with_the_engine(open_bench) -> None:
     """Two code paths, one number: the history trend and the rule engine's finding both bring
     the pump case drain to the reference oil temperature (laminar leakage ∝ 1/ν, ASTM D341)."""
     bench = open_bench()
-    earlier = bench.store.get_visit("rhs-25-0187")  # TD9-0417, before the charge pump change
+    earlier = bench.store.get_visit("rhs-25-0187")  # FELL-0417, before the charge pump change
     current = bench.store.get_visit(DEMO_OPEN_VISIT)
     profile = bench.profile_for(current)
     table = history_table(bench.store, profile, bench.system, serial=current.machine_serial)
@@ -167,8 +184,10 @@ def test_sparkline_marks_each_visit_from_low_to_high() -> None:
 
 # --- job card ---------------------------------------------------------------------------------
 
+
 def test_without_the_report_writers_a_plain_summary_is_written_and_said_so(
-        open_bench, tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    open_bench, tmp_path: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
     monkeypatch.setitem(sys.modules, "fieldkit.report.jobcard", None)  # as if not installed
     bench = open_bench()
     visit = bench.store.get_visit("rhs-25-0187")

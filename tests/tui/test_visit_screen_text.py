@@ -32,15 +32,19 @@ async def test_visit_screen_at_80_by_24_shows_plan_step_entry_cautions_and_every
         nxt = screen.diagnosis.next_tests[0]
         assert lines[1].startswith(f" NEXT ▸ {nxt.label}")
         top = screen.diagnosis.faults[0]
-        assert lines[2].startswith(" LIKELY ▸") and f"{percent(top.probability)} {top.display_title}" in lines[2]
+        assert (
+            lines[2].startswith(" LIKELY ▸") and f"{percent(top.probability)} {top.display_title}" in lines[2]
+        )
 
         # The plan: circuits as headings, a state glyph per point, the recommended one marked.
         assert "Track drive" in text and "Track parking brakes" in text
-        assert "✓ charge pressure" in text and "· loop A pressure" in text and "· brake release pressure" in text
+        assert (
+            "✓ charge pressure" in text and "· loop A pressure" in text and "· brake release pressure" in text
+        )
         assert f"▸✓ {nxt.label}" in text or f"▸· {nxt.label}" in text
 
         # The step: where the point is, the gauge check, the band of the reading already taken.
-        assert "Where   port M3 on the travel pump end cover" in text
+        assert "Where   charge gauge port, left pump end cover" in text
         assert "in range" in text and "[" in text and "●" in text
 
         # Entry row: value field, gauge suggested for the point, condition, speed and oil.
@@ -51,8 +55,17 @@ async def test_visit_screen_at_80_by_24_shows_plan_step_entry_cautions_and_every
         assert "Bleed pressure before breaking a connection" in text and "F2" in text
 
         # Every key hint fits: none falls off the right edge at 80 columns.
-        for hint in ("^n Next test", "^f Faults", "^r Readings", "^o Finish", "esc Visits",
-                     "^q Quit", "f1 Keys", "f2 Safety", "f3 Find"):
+        for hint in (
+            "^n Next test",
+            "^f Faults",
+            "^r Readings",
+            "^o Finish",
+            "esc Visits",
+            "^q Quit",
+            "f1 Keys",
+            "f2 Safety",
+            "f3 Find",
+        ):
             assert hint in text, hint
 
 

@@ -61,9 +61,13 @@ async def test_a_demo_visit_from_resume_to_closed_job_card(demo_app, store_path:
         await pilot.press("ctrl+u", "tab", "tab")
         assert app.focused is screen.query_one("#function")
         states = list(FunctionState)
-        steps = states.index(FunctionState.FULL_STROKE) - states.index(screen.query_one("#function", Select).value)
+        steps = states.index(FunctionState.FULL_STROKE) - states.index(
+            screen.query_one("#function", Select).value
+        )
         await pilot.press("enter", *(["down"] * steps if steps >= 0 else ["up"] * -steps), "enter")
-        await wait_until(pilot, lambda: screen.query_one("#function", Select).value is FunctionState.FULL_STROKE)
+        await wait_until(
+            pilot, lambda: screen.query_one("#function", Select).value is FunctionState.FULL_STROKE
+        )
         await pilot.press("shift+tab", "shift+tab")
         assert app.focused is screen.query_one("#value")
 
@@ -76,7 +80,9 @@ async def test_a_demo_visit_from_resume_to_closed_job_card(demo_app, store_path:
         saved = _stored(store_path).current_readings()[-1]
         assert saved.test_point == "travel.charge" and saved.entered == "160 psi"
         assert saved.condition.function is FunctionState.FULL_STROKE
-        assert abs(to_canonical(saved.value, Kind.PRESSURE) - 11.03) < 0.01  # 160 psi = 11.03 bar (NIST SP 811 B.8)
+        assert (
+            abs(to_canonical(saved.value, Kind.PRESSURE) - 11.03) < 0.01
+        )  # 160 psi = 11.03 bar (NIST SP 811 B.8)
         assert "✓ saved 160 psi" in screen_text(app)
 
         # The ranking moved: a charge pressure that sags in stroke is no healthy machine.

@@ -102,9 +102,13 @@ from fieldkit.diagnosis.expr.parser import MAX_ARGS, MAX_DEPTH, MAX_EXPONENT, pa
 _NAME = re.compile(r"[a-z][a-z0-9_]*")
 
 
-def compile_expression(source: str, symbols: Mapping[str, TypeSpec],
-                       functions: Mapping[str, FunctionSpec] | None = None, *,
-                       expect: TypeSpec | None = None) -> Compiled:
+def compile_expression(
+    source: str,
+    symbols: Mapping[str, TypeSpec],
+    functions: Mapping[str, FunctionSpec] | None = None,
+    *,
+    expect: TypeSpec | None = None,
+) -> Compiled:
     """Parse and check ``source`` once; evaluate the result many times.
 
     Args:
@@ -123,18 +127,30 @@ def compile_expression(source: str, symbols: Mapping[str, TypeSpec],
     if expect is not None:
         wanted = to_type(expect, "expect")
         if not same_type(wanted, typed.type):
-            raise ExprError(f"this expression must give {describe(wanted)}, but it gives {describe(typed.type)}",
-                            source, 0)
-    return Compiled(source, typed.type, typed.fn, compiler.name_types, compiler.first_use,
-                    frozenset(compiler.calls), typed.tag)
+            raise ExprError(
+                f"this expression must give {describe(wanted)}, but it gives {describe(typed.type)}",
+                source,
+                0,
+            )
+    return Compiled(
+        source,
+        typed.type,
+        typed.fn,
+        compiler.name_types,
+        compiler.first_use,
+        frozenset(compiler.calls),
+        typed.tag,
+    )
 
 
 def check_name(name: str) -> str:
     """``name`` if a rule could use it as a symbol, else ExprError saying why (for profiles
     and rule packs that define names, so a bad one is reported where it is defined)."""
     if not isinstance(name, str) or not _NAME.fullmatch(name) or "__" in name:
-        raise ExprError(f"{name!r} cannot be a name: use lower-case letters, digits and single '_', "
-                        "starting with a letter")
+        raise ExprError(
+            f"{name!r} cannot be a name: use lower-case letters, digits and single '_', "
+            "starting with a letter"
+        )
     if name in KEYWORDS or name in FORBIDDEN_WORDS:
         raise ExprError(f"{name!r} cannot be a name: it is a reserved word")
     if name in UNIT_WORDS:
@@ -143,7 +159,25 @@ def check_name(name: str) -> str:
 
 
 __all__ = [
-    "ANY", "BOOLEAN", "BUILTIN_FUNCTIONS", "DIMENSIONLESS", "MAX_ARGS", "MAX_CHARS", "MAX_DEPTH",
-    "MAX_EXPONENT", "MAX_TOKENS", "REL_TOLERANCE", "SAME", "Compiled", "Dim", "ExprError", "FunctionSpec",
-    "check_name", "compile_expression", "function_table", "kind_dimension", "si_value", "to_quantity",
+    "ANY",
+    "BOOLEAN",
+    "BUILTIN_FUNCTIONS",
+    "DIMENSIONLESS",
+    "MAX_ARGS",
+    "MAX_CHARS",
+    "MAX_DEPTH",
+    "MAX_EXPONENT",
+    "MAX_TOKENS",
+    "REL_TOLERANCE",
+    "SAME",
+    "Compiled",
+    "Dim",
+    "ExprError",
+    "FunctionSpec",
+    "check_name",
+    "compile_expression",
+    "function_table",
+    "kind_dimension",
+    "si_value",
+    "to_quantity",
 ]

@@ -32,11 +32,29 @@ class Compiled:
         temperature_difference: the result is a temperature difference (kelvin), not a temperature.
     """
 
-    __slots__ = ("source", "result", "names", "name_types", "calls", "temperature_difference",
-                 "_fn", "_first_use", "_numbers", "_truths")
+    __slots__ = (
+        "source",
+        "result",
+        "names",
+        "name_types",
+        "calls",
+        "temperature_difference",
+        "_fn",
+        "_first_use",
+        "_numbers",
+        "_truths",
+    )
 
-    def __init__(self, source: str, result: ValueType, fn: Fn, name_types: Mapping[str, ValueType],
-                 first_use: Mapping[str, int], calls: frozenset[str], tag: TempTag | None) -> None:
+    def __init__(
+        self,
+        source: str,
+        result: ValueType,
+        fn: Fn,
+        name_types: Mapping[str, ValueType],
+        first_use: Mapping[str, int],
+        calls: frozenset[str],
+        tag: TempTag | None,
+    ) -> None:
         self.source = source
         self.result = result
         self.names = frozenset(name_types)
@@ -74,8 +92,9 @@ class Compiled:
             raise ExprError("the result is not a finite number (overflow)", self.source, 0)
         return float(value)
 
-    def evaluate_with_uncertainty(self, values: Mapping[str, Any],
-                                  std_uncertainties: Mapping[str, float]) -> tuple[float, float]:
+    def evaluate_with_uncertainty(
+        self, values: Mapping[str, Any], std_uncertainties: Mapping[str, float]
+    ) -> tuple[float, float]:
         """Value and combined standard uncertainty, uncorrelated inputs (JCGM 100:2008 GUM 5.1.2).
 
         u_c² = Σ (∂f/∂x_i)² u²(x_i), first order; each sensitivity coefficient ∂f/∂x_i is a
@@ -84,16 +103,20 @@ class Compiled:
         side the step lands on.
         """
         if self.result is BOOLEAN:
-            raise ExprError("uncertainty is propagated for numeric results; this expression is true/false",
-                            self.source, 0)
+            raise ExprError(
+                "uncertainty is propagated for numeric results; this expression is true/false", self.source, 0
+            )
         value = self.evaluate(values)
         work = dict(values)
         variance = 0.0
         for name in self._numbers:
             u = std_uncertainties.get(name, 0.0)
             if isinstance(u, bool) or not isinstance(u, Real) or not math.isfinite(u) or u < 0:
-                raise ExprError(f"the standard uncertainty of '{name}' must be a finite number ≥ 0, got {u!r}",
-                                self.source, self._first_use[name])
+                raise ExprError(
+                    f"the standard uncertainty of '{name}' must be a finite number ≥ 0, got {u!r}",
+                    self.source,
+                    self._first_use[name],
+                )
             if u == 0:
                 continue
             x = float(work[name])
@@ -124,16 +147,25 @@ class Compiled:
             except KeyError:
                 raise ExprError(f"no value for '{name}'", self.source, self._first_use[name]) from None
             if type(v) is not float and (isinstance(v, bool) or not isinstance(v, Real)):
-                raise ExprError(f"the value of '{name}' must be a number in SI base units, got {v!r}",
-                                self.source, self._first_use[name])
+                raise ExprError(
+                    f"the value of '{name}' must be a number in SI base units, got {v!r}",
+                    self.source,
+                    self._first_use[name],
+                )
             if not math.isfinite(v):
-                raise ExprError(f"the value of '{name}' is {v}; it must be a finite number",
-                                self.source, self._first_use[name])
+                raise ExprError(
+                    f"the value of '{name}' is {v}; it must be a finite number",
+                    self.source,
+                    self._first_use[name],
+                )
         for name in self._truths:
             try:
                 v = env[name]
             except KeyError:
                 raise ExprError(f"no value for '{name}'", self.source, self._first_use[name]) from None
             if not isinstance(v, bool):
-                raise ExprError(f"the value of '{name}' must be true or false, got {v!r}",
-                                self.source, self._first_use[name])
+                raise ExprError(
+                    f"the value of '{name}' must be true or false, got {v!r}",
+                    self.source,
+                    self._first_use[name],
+                )

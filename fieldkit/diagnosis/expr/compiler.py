@@ -79,6 +79,7 @@ def is_temperature(t: ValueType) -> bool:
 def _constant(value: float | bool) -> Fn:
     def constant(env: Env) -> float | bool:
         return value
+
     return constant
 
 
@@ -91,15 +92,21 @@ def _is_unequal(x: float, y: float) -> bool:
 
 
 _COMPARE: dict[str, Callable[[float, float], bool]] = {
-    "<": operator.lt, "<=": operator.le, ">": operator.gt, ">=": operator.ge,
-    "=": _is_equal, "!=": _is_unequal,
+    "<": operator.lt,
+    "<=": operator.le,
+    ">": operator.gt,
+    ">=": operator.ge,
+    "=": _is_equal,
+    "!=": _is_unequal,
 }
 
 
 class Compiler:
     """Compiles one expression; remembers which names and functions it used."""
 
-    def __init__(self, source: str, symbols: Mapping[str, object], functions: Mapping[str, FunctionSpec]) -> None:
+    def __init__(
+        self, source: str, symbols: Mapping[str, object], functions: Mapping[str, FunctionSpec]
+    ) -> None:
         if not isinstance(symbols, Mapping):
             raise TypeError(f"symbols must be a mapping of name to Kind or dimensionality, got {symbols!r}")
         if not isinstance(functions, Mapping):
@@ -127,11 +134,15 @@ class Compiler:
 
     def need_number(self, node: Node, typed: Typed, role: str) -> None:
         if typed.type is BOOLEAN:
-            raise self.error(f"{role} needs numbers, but {self.quote(node)} is a true/false value", node.start)
+            raise self.error(
+                f"{role} needs numbers, but {self.quote(node)} is a true/false value", node.start
+            )
 
     def need_truth(self, node: Node, typed: Typed, role: str) -> None:
         if typed.type is not BOOLEAN:
-            raise self.error(f"{role} needs true/false values, but {self.what(node, typed)} is not one", node.start)
+            raise self.error(
+                f"{role} needs true/false values, but {self.what(node, typed)} is not one", node.start
+            )
 
     def fold(self, parts: list[Typed], result: Typed, at: int) -> Typed:
         """Compute ``result`` now when all ``parts`` are constants."""
@@ -183,7 +194,9 @@ class Compiler:
         name = node.name
         if name not in self.symbols:
             if name in self.functions:
-                raise self.error(f"'{name}' is a function; call it with arguments, e.g. {name}(…)", node.start)
+                raise self.error(
+                    f"'{name}' is a function; call it with arguments, e.g. {name}(…)", node.start
+                )
             close = difflib.get_close_matches(name, list(self.symbols), n=4, cutoff=0.6)
             if close:
                 hint = "; did you mean " + ", ".join(close) + "?"
@@ -233,7 +246,7 @@ class Compiler:
                 raise ExprError("the power is too large to compute", source, at) from None
 
         tag = base.tag if n == 1 else None
-        return self.fold([base], Typed(normalise(base.type ** n), power, tag), node.op_at)
+        return self.fold([base], Typed(normalise(base.type**n), power, tag), node.op_at)
 
     def additive(self, node: Chain) -> Typed:
         first = self.compile(node.first)
@@ -245,10 +258,16 @@ class Compiler:
             self.need_number(step.operand, right, f"'{step.op}'")
             left_text = self.quote_span(node.start, end)
             if not same_type(first.type, right.type):
-                verb = f"adds {self.what(step.operand, right)} to" if step.op == "+" else \
-                    f"subtracts {self.what(step.operand, right)} from"
-                raise self.error(f"'{step.op}' {verb} {left_text} ({describe(first.type)}); both must be the "
-                                 "same kind of quantity", step.at)
+                verb = (
+                    f"adds {self.what(step.operand, right)} to"
+                    if step.op == "+"
+                    else f"subtracts {self.what(step.operand, right)} from"
+                )
+                raise self.error(
+                    f"'{step.op}' {verb} {left_text} ({describe(first.type)}); both must be the "
+                    "same kind of quantity",
+                    step.at,
+                )
             if tag is not None and right.tag is not None:
                 tag, problem = after_add(step.op, tag, right.tag)
                 if problem:
@@ -284,11 +303,17 @@ class Compiler:
         role = f"'{node.op}'"
         for side, typed in ((node.left, left), (node.right, right)):
             if typed.type is BOOLEAN:
-                raise self.error(f"{role} compares numbers, but {self.quote(side)} is a true/false value; "
-                                 "combine true/false values with and, or, not", side.start)
+                raise self.error(
+                    f"{role} compares numbers, but {self.quote(side)} is a true/false value; "
+                    "combine true/false values with and, or, not",
+                    side.start,
+                )
         if not same_type(left.type, right.type):
-            raise self.error(f"{role} compares {self.what(node.left, left)} with {self.what(node.right, right)}; "
-                             "both sides must be the same kind of quantity", node.op_at)
+            raise self.error(
+                f"{role} compares {self.what(node.left, left)} with {self.what(node.right, right)}; "
+                "both sides must be the same kind of quantity",
+                node.op_at,
+            )
         if left.tag is not None and right.tag is not None:
             problem = check_alike([left.tag, right.tag])
             if problem:
@@ -312,22 +337,31 @@ class Compiler:
             a, b = fns
             fn: Fn = (lambda env: a(env) and b(env)) if node.op == "and" else (lambda env: a(env) or b(env))
         elif node.op == "and":
+
             def fn(env: Env) -> bool:
                 return all(f(env) for f in fns)
         else:
+
             def fn(env: Env) -> bool:
                 return any(f(env) for f in fns)
+
         return self.fold(parts, Typed(BOOLEAN, fn), node.start)
 
     def when(self, node: When) -> Typed:
         condition = self.compile(node.condition)
         if condition.type is not BOOLEAN:
-            raise self.error("the condition after 'when' must be true or false (a comparison such as "
-                             f"x < 5 bar), but {self.what(node.condition, condition)} is not", node.condition.start)
+            raise self.error(
+                "the condition after 'when' must be true or false (a comparison such as "
+                f"x < 5 bar), but {self.what(node.condition, condition)} is not",
+                node.condition.start,
+            )
         then, otherwise = self.compile(node.then), self.compile(node.otherwise)
         if not same_type(then.type, otherwise.type):
-            raise self.error(f"'then' gives {self.what(node.then, then)} but 'else' gives "
-                             f"{self.what(node.otherwise, otherwise)}; both must be the same kind", node.else_at)
+            raise self.error(
+                f"'then' gives {self.what(node.then, then)} but 'else' gives "
+                f"{self.what(node.otherwise, otherwise)}; both must be the same kind",
+                node.else_at,
+            )
         tag = None
         if then.tag is not None and otherwise.tag is not None:
             problem = check_alike([then.tag, otherwise.tag])
@@ -343,11 +377,18 @@ class Compiler:
         spec = self.functions.get(node.name)
         if spec is None:
             if node.name in self.symbols:
-                raise self.error(f"'{node.name}' is a value, not a function; remove the parentheses", node.start)
+                raise self.error(
+                    f"'{node.name}' is a value, not a function; remove the parentheses", node.start
+                )
             known = sorted(self.functions)
             close = difflib.get_close_matches(node.name, known, n=4, cutoff=0.6)
-            hint = (f"; did you mean {', '.join(close)}?" if close else
-                    f"; available: {', '.join(known)}" if known else "; no functions are available here")
+            hint = (
+                f"; did you mean {', '.join(close)}?"
+                if close
+                else f"; available: {', '.join(known)}"
+                if known
+                else "; no functions are available here"
+            )
             raise self.error(f"unknown function '{node.name}'{hint}", node.start)
         if not spec.accepts(len(node.args)):
             raise self.error(f"{node.name}() takes {spec.arity_text()}, got {len(node.args)}", node.start)
@@ -362,14 +403,19 @@ class Compiler:
                 if is_marker(param, SAME):
                     if alike and not same_type(alike[0][1].type, typed.type):
                         first_arg, first_typed = alike[0]
-                        raise self.error(f"the arguments of {node.name}() must be the same kind of quantity: "
-                                         f"{self.quote(first_arg)} is {describe(first_typed.type)} but "
-                                         f"{self.quote(arg)} is {describe(typed.type)}", arg.start)
+                        raise self.error(
+                            f"the arguments of {node.name}() must be the same kind of quantity: "
+                            f"{self.quote(first_arg)} is {describe(first_typed.type)} but "
+                            f"{self.quote(arg)} is {describe(typed.type)}",
+                            arg.start,
+                        )
                     alike.append((arg, typed))
                 continue
             want = to_type(param, f"function {node.name!r}")
             if not same_type(want, typed.type):
-                raise self.error(f"{label} must be {describe(want)}, but {self.what(arg, typed)} is not", arg.start)
+                raise self.error(
+                    f"{label} must be {describe(want)}, but {self.what(arg, typed)} is not", arg.start
+                )
         same = alike[0][1].type if alike else None
         tags = [t.tag for _, t in alike if t.tag is not None]
         if tags and (problem := check_alike(tags)):
@@ -377,8 +423,9 @@ class Compiler:
         result, tag = self.call_result(node, spec, args, same, tags)
         return Typed(result, _call(spec, args, result, node, self.source), tag)
 
-    def call_result(self, node: Call, spec: FunctionSpec, args: list[Typed], same: ValueType | None,
-                    tags: list[TempTag]) -> tuple[ValueType, TempTag | None]:
+    def call_result(
+        self, node: Call, spec: FunctionSpec, args: list[Typed], same: ValueType | None, tags: list[TempTag]
+    ) -> tuple[ValueType, TempTag | None]:
         if is_marker(spec.result, SAME):
             assert same is not None
             return same, (merge(tags) if tags and is_temperature(same) else None)
@@ -396,6 +443,7 @@ def _one_after(f: Fn) -> Fn:
     def one(env: Env) -> float:
         f(env)
         return 1.0
+
     return one
 
 

@@ -133,8 +133,13 @@ def literal_si(magnitude: float, spelling: str | None) -> float:
 
 
 _BASE_UNITS = {
-    "[length]": "meter", "[mass]": "kilogram", "[time]": "second", "[temperature]": "kelvin",
-    "[current]": "ampere", "[substance]": "mole", "[luminosity]": "candela",
+    "[length]": "meter",
+    "[mass]": "kilogram",
+    "[time]": "second",
+    "[temperature]": "kelvin",
+    "[current]": "ampere",
+    "[substance]": "mole",
+    "[luminosity]": "candela",
 }
 
 

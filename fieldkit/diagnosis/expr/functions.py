@@ -126,20 +126,44 @@ def _sqrt_result(types: tuple[ValueType, ...]) -> Dim:
     return Dim({name: power // 2 for name, power in dim.items()})
 
 
-BUILTIN_FUNCTIONS: Mapping[str, FunctionSpec] = MappingProxyType({
-    spec.name: spec
-    for spec in (
-        FunctionSpec("min", (SAME, SAME), SAME, min, "The smallest of two or more values of one kind.",
-                     repeat_last=True),
-        FunctionSpec("max", (SAME, SAME), SAME, max, "The largest of two or more values of one kind.",
-                     repeat_last=True),
-        FunctionSpec("abs", (SAME,), SAME, abs, "The size of a value without its sign."),
-        FunctionSpec("clamp", (SAME, SAME, SAME), SAME, _clamp,
-                     "clamp(x, low, high): x held between the two limits."),
-        FunctionSpec("sqrt", (ANY,), _sqrt_result, _sqrt,
-                     "Square root; the dimension must have even powers (e.g. sqrt of an area)."),
-    )
-})
+BUILTIN_FUNCTIONS: Mapping[str, FunctionSpec] = MappingProxyType(
+    {
+        spec.name: spec
+        for spec in (
+            FunctionSpec(
+                "min",
+                (SAME, SAME),
+                SAME,
+                min,
+                "The smallest of two or more values of one kind.",
+                repeat_last=True,
+            ),
+            FunctionSpec(
+                "max",
+                (SAME, SAME),
+                SAME,
+                max,
+                "The largest of two or more values of one kind.",
+                repeat_last=True,
+            ),
+            FunctionSpec("abs", (SAME,), SAME, abs, "The size of a value without its sign."),
+            FunctionSpec(
+                "clamp",
+                (SAME, SAME, SAME),
+                SAME,
+                _clamp,
+                "clamp(x, low, high): x held between the two limits.",
+            ),
+            FunctionSpec(
+                "sqrt",
+                (ANY,),
+                _sqrt_result,
+                _sqrt,
+                "Square root; the dimension must have even powers (e.g. sqrt of an area).",
+            ),
+        )
+    }
+)
 
 
 def function_table(*specs: FunctionSpec, builtins: bool = True) -> Mapping[str, FunctionSpec]:

@@ -21,10 +21,30 @@ MAX_TOKENS = 400
 
 KEYWORDS = frozenset({"and", "or", "not", "when", "then", "else", "true", "false"})
 # Words a person might try from a programming language; named in the message, never resolved.
-FORBIDDEN_WORDS = frozenset({
-    "lambda", "import", "from", "def", "class", "exec", "eval", "compile", "open", "getattr",
-    "setattr", "delattr", "globals", "locals", "vars", "builtins", "input", "print", "return", "yield",
-})
+FORBIDDEN_WORDS = frozenset(
+    {
+        "lambda",
+        "import",
+        "from",
+        "def",
+        "class",
+        "exec",
+        "eval",
+        "compile",
+        "open",
+        "getattr",
+        "setattr",
+        "delattr",
+        "globals",
+        "locals",
+        "vars",
+        "builtins",
+        "input",
+        "print",
+        "return",
+        "yield",
+    }
+)
 UNIT_WORDS = frozenset(SPELLINGS)
 
 _SPELLINGS_LONGEST_FIRST = tuple(sorted(SPELLINGS, key=len, reverse=True))
@@ -33,8 +53,18 @@ _NAME = re.compile(r"[a-z][a-z0-9_]*")
 _WHITESPACE = " \t\r\n"
 _OPERATORS_2 = {"<=": "<=", ">=": ">=", "!=": "!="}
 _OPERATORS_1 = {
-    "+": "+", "-": "-", "*": "*", "/": "/", "^": "^", "<": "<", ">": ">", "=": "=",
-    "\u2212": "-", "\u2264": "<=", "\u2265": ">=", "\u2260": "!=",  # − ≤ ≥ ≠
+    "+": "+",
+    "-": "-",
+    "*": "*",
+    "/": "/",
+    "^": "^",
+    "<": "<",
+    ">": ">",
+    "=": "=",
+    "\u2212": "-",
+    "\u2264": "<=",
+    "\u2265": ">=",
+    "\u2260": "!=",  # − ≤ ≥ ≠
 }
 _REFUSED_2 = {
     "==": "write '=' to test equality",
@@ -102,14 +132,16 @@ def tokenize(source: object) -> list[Token]:
     if not isinstance(source, str):
         raise ExprError(f"an expression must be text, not {type(source).__name__}")
     if len(source) > MAX_CHARS:
-        raise ExprError(f"the expression is {len(source)} characters long; the limit is {MAX_CHARS}",
-                        source, MAX_CHARS)
+        raise ExprError(
+            f"the expression is {len(source)} characters long; the limit is {MAX_CHARS}", source, MAX_CHARS
+        )
     if not source.strip(_WHITESPACE):
         raise ExprError("the expression is empty", source, 0)
     dunder = source.find("__")
     if dunder >= 0:
-        raise ExprError("'__' is not allowed: names are lower-case words joined by single underscores",
-                        source, dunder)
+        raise ExprError(
+            "'__' is not allowed: names are lower-case words joined by single underscores", source, dunder
+        )
     tokens: list[Token] = []
     i, n = 0, len(source)
     while i < n:
@@ -131,8 +163,11 @@ def tokenize(source: object) -> list[Token]:
             token, i = _operator(source, i)
         tokens.append(token)
         if len(tokens) > MAX_TOKENS:
-            raise ExprError(f"the expression has more than {MAX_TOKENS} tokens; split it into smaller rules",
-                            source, token.start)
+            raise ExprError(
+                f"the expression has more than {MAX_TOKENS} tokens; split it into smaller rules",
+                source,
+                token.start,
+            )
     tokens.append(Token(Tok.END, "", n, n))
     return tokens
 
@@ -172,8 +207,11 @@ def _unit_after(source: str, end: int) -> tuple[str | None, int]:
     if j == end and re.fullmatch(r"[eE][0-9]+", text):
         raise ExprError("exponent notation is not supported; write the number out", source, j)
     close = difflib.get_close_matches(text, _SPELLINGS_LONGEST_FIRST, n=4, cutoff=0.6)
-    hint = f"did you mean {', '.join(repr(c) for c in close)}?" if close else \
-        "use a unit such as bar, psi, L/min, gpm, °C, rpm, mm/min, %"
+    hint = (
+        f"did you mean {', '.join(repr(c) for c in close)}?"
+        if close
+        else "use a unit such as bar, psi, L/min, gpm, °C, rpm, mm/min, %"
+    )
     raise ExprError(f"'{text}' after a number is not a unit fieldkit knows; {hint}", source, j)
 
 
@@ -185,8 +223,7 @@ def _name(source: str, i: int) -> tuple[Token, int]:
     if end < len(source) and source[end].isalnum():
         raise ExprError("names are written in lower-case letters, digits and '_'", source, end)
     if source[end : end + 1] == ".":
-        raise ExprError(f"'.' after '{text}': attribute access is not part of the rule language",
-                        source, end)
+        raise ExprError(f"'.' after '{text}': attribute access is not part of the rule language", source, end)
     if text in KEYWORDS:
         return Token(Tok.KEYWORD, text, i, end), end
     if text in FORBIDDEN_WORDS:
@@ -194,8 +231,12 @@ def _name(source: str, i: int) -> tuple[Token, int]:
     if text == "if":
         raise ExprError("write a condition as 'when … then … else …'", source, i)
     if text in UNIT_WORDS and not source[end:].lstrip(_WHITESPACE).startswith("("):
-        raise ExprError(f"'{text}' is a unit word, not a name: a unit goes right after a number "
-                        f"(e.g. '5 {text}'), and names may not be unit words", source, i)
+        raise ExprError(
+            f"'{text}' is a unit word, not a name: a unit goes right after a number "
+            f"(e.g. '5 {text}'), and names may not be unit words",
+            source,
+            i,
+        )
     return Token(Tok.NAME, text, i, end), end
 
 
@@ -211,9 +252,16 @@ def _operator(source: str, i: int) -> tuple[Token, int]:
     if ch in _REFUSED_1:
         raise ExprError(_REFUSED_1[ch], source, i)
     if ch.isalpha() and ch.isascii():
-        raise ExprError("names are written in lower-case letters; upper-case letters appear only in "
-                        "units after a number", source, i)
+        raise ExprError(
+            "names are written in lower-case letters; upper-case letters appear only in units after a number",
+            source,
+            i,
+        )
     if ch.isprintable():
-        raise ExprError(f"unexpected character '{ch}'" + ("" if ch.isascii() else
-                        " (units such as °C go right after a number)"), source, i)
+        raise ExprError(
+            f"unexpected character '{ch}'"
+            + ("" if ch.isascii() else " (units such as °C go right after a number)"),
+            source,
+            i,
+        )
     raise ExprError(f"unexpected invisible character U+{ord(ch):04X}", source, i)

@@ -72,8 +72,11 @@ class _Parser:
     def enter(self, token: Token) -> None:
         self.depth += 1
         if self.depth > MAX_DEPTH:
-            raise self.error(f"the expression is nested more than {MAX_DEPTH} levels deep "
-                             "(parentheses, calls, '-', 'not', 'when'); simplify it", token.start)
+            raise self.error(
+                f"the expression is nested more than {MAX_DEPTH} levels deep "
+                "(parentheses, calls, '-', 'not', 'when'); simplify it",
+                token.start,
+            )
 
     def leave(self) -> None:
         self.depth -= 1
@@ -104,7 +107,9 @@ class _Parser:
         condition = self.disjunction()
         then_at = self.expect(Tok.KEYWORD, "then", "after the condition of 'when'").start
         then = self.disjunction()
-        else_at = self.expect(Tok.KEYWORD, "else", "after the 'then' value (every 'when' needs an 'else')").start
+        else_at = self.expect(
+            Tok.KEYWORD, "else", "after the 'then' value (every 'when' needs an 'else')"
+        ).start
         otherwise = self.expression()
         self.leave()
         return When(token.start, otherwise.end, condition, then, otherwise, then_at, else_at)
@@ -182,14 +187,24 @@ class _Parser:
             self.advance()
             sign = -1
         token = self.peek()
-        if token.kind is not Tok.NUMBER or token.unit is not None or not token.magnitude.is_integer() \
-                or "." in token.text or token.magnitude > MAX_EXPONENT:
-            raise self.error(f"the exponent after '^' must be a whole number from -{MAX_EXPONENT} to "
-                             f"{MAX_EXPONENT} written directly, e.g. x ^ 2", token.start)
+        if (
+            token.kind is not Tok.NUMBER
+            or token.unit is not None
+            or not token.magnitude.is_integer()
+            or "." in token.text
+            or token.magnitude > MAX_EXPONENT
+        ):
+            raise self.error(
+                f"the exponent after '^' must be a whole number from -{MAX_EXPONENT} to "
+                f"{MAX_EXPONENT} written directly, e.g. x ^ 2",
+                token.start,
+            )
         self.advance()
         if self.at(Tok.OP, "^"):
-            raise self.error("raise to a power once; for a power of a power use parentheses: (x ^ 2) ^ 2",
-                             self.peek().start)
+            raise self.error(
+                "raise to a power once; for a power of a power use parentheses: (x ^ 2) ^ 2",
+                self.peek().start,
+            )
         return Power(base.start, token.end, base, sign * int(token.magnitude), caret.start)
 
     def primary(self) -> Node:
@@ -213,8 +228,10 @@ class _Parser:
             self.leave()
             return inner
         if token.kind is Tok.KEYWORD and token.text == "when":
-            raise self.error("put 'when … then … else …' in parentheses when it is part of a larger "
-                             "expression", token.start)
+            raise self.error(
+                "put 'when … then … else …' in parentheses when it is part of a larger expression",
+                token.start,
+            )
         if token.kind is Tok.END:
             raise self.error("the expression ends too early: a number, a name or '(' is missing", token.start)
         raise self.error(f"expected a number, a name or '(' but found {token.describe()}", token.start)

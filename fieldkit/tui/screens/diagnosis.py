@@ -70,8 +70,14 @@ class DiagnosisScreen(Screen):
         table = self.query_one("#checks", DataTable)
         table.add_columns("point", "condition", "reading", "expected", "gauge ±", "verdict")
         for c in self.diagnosis.checks:
-            table.add_row(literal(c.test_point_label), literal(c.condition), literal(c.value), literal(c.expected),
-                          literal(c.uncertainty), Text(VERDICT_WORD[c.verdict] + (" *" if c.discounted else "")))
+            table.add_row(
+                literal(c.test_point_label),
+                literal(c.condition),
+                literal(c.value),
+                literal(c.expected),
+                literal(c.uncertainty),
+                Text(VERDICT_WORD[c.verdict] + (" *" if c.discounted else "")),
+            )
         self.query_one("#faults", FaultList).focus()
 
     @on(OptionList.OptionSelected, "#faults")

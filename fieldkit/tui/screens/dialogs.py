@@ -40,7 +40,9 @@ class ConfirmDialog(Dialog):
     def compose(self) -> ComposeResult:
         with Vertical(classes="dialog"):
             yield Label(Text(self._title, style="bold"), classes="dialog-title")
-            yield Static(self._body if isinstance(self._body, Text) else Text(self._body), classes="dialog-body")
+            yield Static(
+                self._body if isinstance(self._body, Text) else Text(self._body), classes="dialog-body"
+            )
             with Horizontal(classes="dialog-buttons"):
                 yield Button(Text(f"{self._yes} (y)"), id="yes", variant="primary")
                 yield Button(Text(f"{self._no} (n)"), id="no")
@@ -79,8 +81,9 @@ class ChoiceDialog(Dialog):
 class LinePrompt(Dialog):
     """Type one line (a reason to skip, a corrected value, a file path)."""
 
-    def __init__(self, title: str, question: Text | str, value: str = "", placeholder: str = "",
-                 check=None) -> None:
+    def __init__(
+        self, title: str, question: Text | str, value: str = "", placeholder: str = "", check=None
+    ) -> None:
         super().__init__()
         self._title, self._question, self._value, self._placeholder = title, question, value, placeholder
         self._check = check
@@ -88,7 +91,10 @@ class LinePrompt(Dialog):
     def compose(self) -> ComposeResult:
         with Vertical(classes="dialog"):
             yield Label(Text(self._title, style="bold"), classes="dialog-title")
-            yield Static(self._question if isinstance(self._question, Text) else Text(self._question), classes="dialog-body")
+            yield Static(
+                self._question if isinstance(self._question, Text) else Text(self._question),
+                classes="dialog-body",
+            )
             yield Input(value=self._value, placeholder=self._placeholder, id="line")
             yield Static("", id="line-error", classes="inline-error")
         yield KeyBar()
@@ -117,9 +123,14 @@ class QuitDialog(Dialog):
         self._typed, self._where = typed, where
 
     def compose(self) -> ComposeResult:
-        body = Text.assemble("The value ", literal(repr(self._typed), "bold"), " typed for ",
-                             literal(self._where, "bold"), " is not saved yet. Readings are saved when you press "
-                             "Enter; this one would be lost.", end="")
+        body = Text.assemble(
+            "The value ",
+            literal(repr(self._typed), "bold"),
+            " typed for ",
+            literal(self._where, "bold"),
+            " is not saved yet. Readings are saved when you press Enter; this one would be lost.",
+            end="",
+        )
         with Vertical(classes="dialog"):
             yield Label(Text("Unsaved value", style="bold"), classes="dialog-title")
             yield Static(body, classes="dialog-body")
@@ -180,7 +191,9 @@ class CautionScreen(Dialog):
         out.append_text(literal(f"(source: {self._general.source})", "dim"))
         if self._step:
             out.append("\n\n")
-            out.append_text(literal(f"For this step{': ' + self._where if self._where else ''}", "bold underline"))
+            out.append_text(
+                literal(f"For this step{': ' + self._where if self._where else ''}", "bold underline")
+            )
             for c in self._step:
                 out.append(f"\n\n{SEVERITY_MARK.get(c.severity.value, c.severity.value)} ", "bold")
                 out.append_text(literal(c.title, "bold"))
@@ -205,6 +218,7 @@ def existing_file(suffixes: tuple[str, ...]):
         if path.suffix.lower() not in suffixes:
             return f"{path.name}: expected a {' or '.join(suffixes)} file"
         return ""
+
     return check
 
 

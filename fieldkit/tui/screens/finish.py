@@ -32,8 +32,11 @@ def draft_summary(diagnosis: Diagnosis) -> str:
     out_of_range = [c for c in diagnosis.checks if c.verdict in (Verdict.LOW, Verdict.HIGH)]
     parts = [f"{len(diagnosis.checks)} readings taken, {len(out_of_range)} out of range."]
     if out_of_range:
-        parts.append("Out of range: " + "; ".join(f"{c.test_point_label} {c.value} ({c.verdict.label})"
-                                                   for c in out_of_range[:6]) + ".")
+        parts.append(
+            "Out of range: "
+            + "; ".join(f"{c.test_point_label} {c.value} ({c.verdict.label})" for c in out_of_range[:6])
+            + "."
+        )
     if diagnosis.faults:
         top = diagnosis.faults[0]
         parts.append(f"Most likely: {top.display_title} ({percent(top.probability)}).")
@@ -110,7 +113,9 @@ class FinishScreen(Screen):
         try:
             _path, what = export_job_card(closed, self.profile, diagnosis, folder, fmt, self.bench.system)
         except WRITE_ERRORS as exc:
-            self.dismiss(f"✓ Visit closed. ✗ The job card was not written ({exc}); Find (F3) → 'Write the job card' tries again.")
+            self.dismiss(
+                f"✓ Visit closed. ✗ The job card was not written ({exc}); Find (F3) → 'Write the job card' tries again."
+            )
             return
         self.dismiss(f"✓ Visit closed. {what}")
 
@@ -123,8 +128,9 @@ class JobCardDialog(Dialog):
 
     BINDINGS = keys.JOB_CARD
 
-    def __init__(self, visit: Visit, profile: MachineProfile, diagnosis: Diagnosis,
-                 system: DisplaySystem | None = None) -> None:
+    def __init__(
+        self, visit: Visit, profile: MachineProfile, diagnosis: Diagnosis, system: DisplaySystem | None = None
+    ) -> None:
         super().__init__()
         self.visit, self.profile, self.diagnosis, self.system = visit, profile, diagnosis, system
 
@@ -147,8 +153,14 @@ class JobCardDialog(Dialog):
     def action_write(self) -> None:
         folder = Path(self.query_one("#jc-folder", Input).value.strip() or default_folder()).expanduser()
         try:
-            _path, what = export_job_card(self.visit, self.profile, self.diagnosis, folder,
-                                          str(self.query_one("#jc-format", Select).value), self.system)
+            _path, what = export_job_card(
+                self.visit,
+                self.profile,
+                self.diagnosis,
+                folder,
+                str(self.query_one("#jc-format", Select).value),
+                self.system,
+            )
         except WRITE_ERRORS as exc:
             self.query_one("#jc-msg", Static).update(literal(f"✗ not written: {exc}"))
             return

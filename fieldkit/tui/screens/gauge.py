@@ -21,8 +21,15 @@ from fieldkit.units import Kind, kind_of, parse_value
 OTHER_STANDARD = "% of full scale (meter's own data)"
 
 
-def build_gauge(gauge_id: str, full_scale: str, scale_start: str, accuracy: str, standard: str, label: str,
-                decimal_comma: bool = False) -> Gauge:
+def build_gauge(
+    gauge_id: str,
+    full_scale: str,
+    scale_start: str,
+    accuracy: str,
+    standard: str,
+    label: str,
+    decimal_comma: bool = False,
+) -> Gauge:
     """A Gauge from the form's text, or a FieldkitError/ValidationError that says which field is wrong."""
     try:
         top = parse_value(full_scale, decimal_comma=decimal_comma).quantity
@@ -37,12 +44,20 @@ def build_gauge(gauge_id: str, full_scale: str, scale_start: str, accuracy: str,
     try:
         cls = float(accuracy.strip().replace(",", "."))
     except ValueError:
-        raise FieldkitError(f"accuracy class: '{accuracy}' is not a number (EN 837-1 classes: "
-                            f"{', '.join(f'{c:g}' for c in EN837_CLASSES)})") from None
+        raise FieldkitError(
+            f"accuracy class: '{accuracy}' is not a number (EN 837-1 classes: "
+            f"{', '.join(f'{c:g}' for c in EN837_CLASSES)})"
+        ) from None
     if kind_of(top) is not Kind.PRESSURE and standard == "EN 837-1":
         standard = OTHER_STANDARD
-    return Gauge(id=gauge_id.strip(), label=label.strip(), full_scale=top, scale_start=start,
-                 accuracy_class=cls, standard=standard)
+    return Gauge(
+        id=gauge_id.strip(),
+        label=label.strip(),
+        full_scale=top,
+        scale_start=start,
+        accuracy_class=cls,
+        standard=standard,
+    )
 
 
 class AddGaugeDialog(Dialog):
@@ -65,8 +80,13 @@ class AddGaugeDialog(Dialog):
                 yield Label("Class %")
                 yield Input(value="1.6", placeholder="EN 837-1: 0.6 1 1.6 2.5", id="g-class", compact=True)
                 yield Label("Standard")
-                yield Select([(Text("EN 837-1 (pressure gauge)"), "EN 837-1"), (Text(OTHER_STANDARD), OTHER_STANDARD)],
-                             value="EN 837-1", allow_blank=False, id="g-standard", compact=True)
+                yield Select(
+                    [(Text("EN 837-1 (pressure gauge)"), "EN 837-1"), (Text(OTHER_STANDARD), OTHER_STANDARD)],
+                    value="EN 837-1",
+                    allow_blank=False,
+                    id="g-standard",
+                    compact=True,
+                )
                 yield Label("Label")
                 yield Input(placeholder="optional, e.g. 0-250 bar glycerine", id="g-label", compact=True)
             yield Static("", id="g-error", classes="inline-error")
@@ -89,15 +109,25 @@ class AddGaugeDialog(Dialog):
         self.action_add()
 
     def action_add(self) -> None:
-        value = {w: self.query_one(f"#{w}", Input).value for w in ("g-id", "g-top", "g-start", "g-class", "g-label")}
+        value = {
+            w: self.query_one(f"#{w}", Input).value
+            for w in ("g-id", "g-top", "g-start", "g-class", "g-label")
+        }
         standard = self.query_one("#g-standard", Select).value
         error = self.query_one("#g-error", Static)
         if value["g-id"].strip() in self._taken:
             error.update(literal(f"this visit already has a gauge '{value['g-id'].strip()}'"))
             return
         try:
-            gauge = build_gauge(value["g-id"], value["g-top"], value["g-start"], value["g-class"], str(standard),
-                                value["g-label"], self._decimal_comma)
+            gauge = build_gauge(
+                value["g-id"],
+                value["g-top"],
+                value["g-start"],
+                value["g-class"],
+                str(standard),
+                value["g-label"],
+                self._decimal_comma,
+            )
         except (FieldkitError, ValidationError) as exc:
             error.update(literal(explain(exc)))
             return

@@ -27,9 +27,14 @@ class HistoryScreen(Screen):
     def compose(self) -> ComposeResult:
         yield Static(id="topbar")
         yield DataTable(id="history", cursor_type="row", zebra_stripes=True, header_height=2)
-        yield Static(Text("Case drain flows are shown at the reference oil temperature (leakage scales with "
-                          "1/viscosity), so hot and cold days compare. Trend: one mark per visit, low ▁ to high █, oldest visit on the left; the columns list the newest visit first.",
-                          end=""), id="history-note")
+        yield Static(
+            Text(
+                "Case drain flows are shown at the reference oil temperature (leakage scales with "
+                "1/viscosity), so hot and cold days compare. Trend: one mark per visit, low ▁ to high █, oldest visit on the left; the columns list the newest visit first.",
+                end="",
+            ),
+            id="history-note",
+        )
         yield KeyBar()
 
     def on_mount(self) -> None:
@@ -58,11 +63,20 @@ class HistoryScreen(Screen):
                 head.append(" ◂", "bold")
             grid.add_column(head, key=s.id)
         for row in table.rows:
-            grid.add_row(literal(row.label), Text(row.trend, style="bold"), Text(row.change),
-                         *[literal(row.cells[i] or "—") for i in order], height=1)
+            grid.add_row(
+                literal(row.label),
+                Text(row.trend, style="bold"),
+                Text(row.change),
+                *[literal(row.cells[i] or "—") for i in order],
+                height=1,
+            )
         if not table.rows:
-            grid.add_row(Text("no readings on record for this machine"), Text(""), Text(""),
-                         *[Text("") for _ in table.visits])
+            grid.add_row(
+                Text("no readings on record for this machine"),
+                Text(""),
+                Text(""),
+                *[Text("") for _ in table.visits],
+            )
 
     def action_toggle_scope(self) -> None:
         if self.visit is None or not self.visit.machine_serial:

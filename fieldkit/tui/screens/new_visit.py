@@ -59,14 +59,23 @@ class NewVisitScreen(Screen):
 
     def compose(self) -> ComposeResult:
         s = self.bench.settings
-        profiles = [(literal(f"{self.bench.library.get(pid).name} ({pid})"), pid) for pid in self.bench.library.ids()]
-        yield Static(Text("New visit · Enter moves on · ctrl+s starts the visit · Esc cancels", style="bold", end=""),
-                     id="topbar")
+        profiles = [
+            (literal(f"{self.bench.library.get(pid).name} ({pid})"), pid) for pid in self.bench.library.ids()
+        ]
+        yield Static(
+            Text("New visit · Enter moves on · ctrl+s starts the visit · Esc cancels", style="bold", end=""),
+            id="topbar",
+        )
         with Vertical(id="new-visit-body"):
             with Grid(classes="form"):
                 yield Label("Machine")
-                yield Select(profiles, value=self.machine if self.machine else (profiles[0][1] if profiles else Select.NULL),
-                             allow_blank=not profiles, id="machine", compact=True)
+                yield Select(
+                    profiles,
+                    value=self.machine if self.machine else (profiles[0][1] if profiles else Select.NULL),
+                    allow_blank=not profiles,
+                    id="machine",
+                    compact=True,
+                )
                 yield Label("Job number")
                 yield Input(placeholder="required, e.g. RHS-25-0400", id="job", max_length=40, compact=True)
                 yield Label("Customer")
@@ -81,8 +90,12 @@ class NewVisitScreen(Screen):
                 yield Input(s.technician, id="technician", max_length=120, compact=True)
                 yield Label("Oil")
                 yield Input(s.oil, placeholder="e.g. VG46 mineral", id="oil", max_length=60, compact=True)
-            yield Checkbox(self._gauge_label(bool(self.gauges)), value=bool(self.gauges), id="bring-gauges",
-                           disabled=not self.gauges)
+            yield Checkbox(
+                self._gauge_label(bool(self.gauges)),
+                value=bool(self.gauges),
+                id="bring-gauges",
+                disabled=not self.gauges,
+            )
             yield Static("", id="new-error", classes="inline-error")
             with Horizontal(classes="dialog-buttons"):
                 yield Button("Start visit (ctrl+s)", id="create", variant="primary")
@@ -97,7 +110,9 @@ class NewVisitScreen(Screen):
         if not self.gauges:
             return Text("No earlier visit has gauges: add them in the visit with ^g")
         ids = ", ".join(g.id for g in self.gauges)
-        return literal(f"{'YES' if on else 'NO'}: bring the {len(self.gauges)} gauges of the last visit ({ids})")
+        return literal(
+            f"{'YES' if on else 'NO'}: bring the {len(self.gauges)} gauges of the last visit ({ids})"
+        )
 
     @on(Checkbox.Changed, "#bring-gauges")
     def _gauges_toggled(self, event: Checkbox.Changed) -> None:
@@ -136,9 +151,17 @@ class NewVisitScreen(Screen):
         try:
             hours = parse_hours(values["hours"])
             gauges = self.gauges if self.query_one("#bring-gauges", Checkbox).value else []
-            visit = Visit(job_number=values["job"], customer=values["customer"], site=values["site"], machine=machine,
-                          machine_serial=values["serial"], hour_meter=hours, technician=values["technician"],
-                          oil=values["oil"], gauges=gauges)
+            visit = Visit(
+                job_number=values["job"],
+                customer=values["customer"],
+                site=values["site"],
+                machine=machine,
+                machine_serial=values["serial"],
+                hour_meter=hours,
+                technician=values["technician"],
+                oil=values["oil"],
+                gauges=gauges,
+            )
             stored = self.bench.store.create_visit(visit)
         except (FieldkitError, ValidationError) as exc:
             error.update(literal(explain(exc, "✗ not started")))
@@ -149,8 +172,9 @@ class NewVisitScreen(Screen):
     def _remember(self, values: dict[str, str]) -> None:
         """Keep technician, customer and oil for the next visit; a settings file that cannot be
         written only costs the defaults, never the visit."""
-        settings = self.bench.settings.model_copy(update={
-            "technician": values["technician"], "customer": values["customer"], "oil": values["oil"]})
+        settings = self.bench.settings.model_copy(
+            update={"technician": values["technician"], "customer": values["customer"], "oil": values["oil"]}
+        )
         self.bench.settings = settings
         try:
             settings.save()

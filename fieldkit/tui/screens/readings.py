@@ -59,9 +59,16 @@ class ReadingsScreen(Screen):
         table.clear(columns=True)
         table.add_columns("id", "status", "entered", "value", "condition", "gauge", "taken (UTC)")
         for r in self.readings:
-            table.add_row(literal(r.id), literal(reading_status(r, self.readings)), literal(r.entered),
-                          literal(format_value(r.value, self.bench.system)), literal(r.condition.describe()),
-                          literal(r.gauge or "—"), Text(f"{r.taken_at:%Y-%m-%d %H:%M}"), key=r.id)
+            table.add_row(
+                literal(r.id),
+                literal(reading_status(r, self.readings)),
+                literal(r.entered),
+                literal(format_value(r.value, self.bench.system)),
+                literal(r.condition.describe()),
+                literal(r.gauge or "—"),
+                Text(f"{r.taken_at:%Y-%m-%d %H:%M}"),
+                key=r.id,
+            )
         if not self.readings:
             self._say("No readings at this point yet.")
 
@@ -105,17 +112,32 @@ class ReadingsScreen(Screen):
             if text is None:
                 return
             try:
-                new = self.bench.record(self.visit_id, self.point.id, text, old.condition, gauge=old.gauge,
-                                        note=old.note, replaces=old.id)
+                new = self.bench.record(
+                    self.visit_id,
+                    self.point.id,
+                    text,
+                    old.condition,
+                    gauge=old.gauge,
+                    note=old.note,
+                    replaces=old.id,
+                )
             except FieldkitError as exc:
                 self._say(f"✗ {exc} (nothing saved)")
                 return
             self.refresh_table()
             self._say(f"✓ {old.entered} corrected to {new.entered}; the old value stays in the trail")
 
-        self.app.push_screen(LinePrompt("Correct a reading", literal(
-            f"Reading {old.id} was entered as {old.entered!r} ({old.condition.describe()}). The corrected value:"),
-            value=old.entered, check=check), corrected)
+        self.app.push_screen(
+            LinePrompt(
+                "Correct a reading",
+                literal(
+                    f"Reading {old.id} was entered as {old.entered!r} ({old.condition.describe()}). The corrected value:"
+                ),
+                value=old.entered,
+                check=check,
+            ),
+            corrected,
+        )
 
     def action_delete(self) -> None:
         from fieldkit.tui.screens.dialogs import ConfirmDialog
@@ -135,9 +157,17 @@ class ReadingsScreen(Screen):
             self.refresh_table()
             self._say(f"Reading {r.id} marked deleted; it stays in the trail.")
 
-        self.app.push_screen(ConfirmDialog("Delete this reading?", literal(
-            f"{r.entered} ({r.condition.describe()}) will no longer count. It stays in the record as deleted."),
-            yes="Delete", no="Keep"), confirmed)
+        self.app.push_screen(
+            ConfirmDialog(
+                "Delete this reading?",
+                literal(
+                    f"{r.entered} ({r.condition.describe()}) will no longer count. It stays in the record as deleted."
+                ),
+                yes="Delete",
+                no="Keep",
+            ),
+            confirmed,
+        )
 
     def action_cancel(self) -> None:
         self.dismiss(None)

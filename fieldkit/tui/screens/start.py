@@ -25,8 +25,13 @@ DEMO_OPEN_VISIT = "demo-open-visit.json"
 
 
 def visit_row(s: VisitSummary) -> list[Text]:
-    return [literal(s.job_number), Text(s.date.isoformat()), literal(s.machine), Text(str(s.reading_count)),
-            literal(s.customer)]
+    return [
+        literal(s.job_number),
+        Text(s.date.isoformat()),
+        literal(s.machine),
+        Text(str(s.reading_count)),
+        literal(s.customer),
+    ]
 
 
 class StartScreen(Screen):
@@ -94,7 +99,9 @@ class StartScreen(Screen):
             if s.status is VisitStatus.CLOSED:
                 past_table.add_row(*visit_row(s), key=s.id)
         if not opened:
-            open_table.add_row(Text("no open visit: n starts one"), Text(""), Text(""), Text(""), Text(""), key="-none-")
+            open_table.add_row(
+                Text("no open visit: n starts one"), Text(""), Text(""), Text(""), Text(""), key="-none-"
+            )
         machines = self.query_one("#machines", DataTable)
         machines.clear()
         counts: dict[str, int] = {}
@@ -102,11 +109,18 @@ class StartScreen(Screen):
             counts[s.machine] = counts.get(s.machine, 0) + 1
         for pid in self.bench.library.ids():
             p = self.bench.library.get(pid)
-            machines.add_row(literal(p.name), literal(p.id), Text(str(len(p.circuits))), Text(str(counts.get(pid, 0))),
-                             key=f"machine:{pid}")
+            machines.add_row(
+                literal(p.name),
+                literal(p.id),
+                Text(str(len(p.circuits))),
+                Text(str(counts.get(pid, 0))),
+                key=f"machine:{pid}",
+            )
 
     def _say(self, message: str | Text) -> None:
-        self.query_one("#start-msg", Static).update(message if isinstance(message, Text) else literal(message))
+        self.query_one("#start-msg", Static).update(
+            message if isinstance(message, Text) else literal(message)
+        )
 
     # --- opening ----------------------------------------------------------------------------
     def open_visit(self, visit_id: str) -> None:
@@ -200,15 +214,24 @@ class StartScreen(Screen):
         from fieldkit.tui.screens.dialogs import LinePrompt, existing_file
 
         target = self._selected_open_visit()
-        where = (f"; a CSV of readings goes into the highlighted open visit ({target.job_number})" if target
-                 else "; a CSV of readings needs an open visit")
+        where = (
+            f"; a CSV of readings goes into the highlighted open visit ({target.job_number})"
+            if target
+            else "; a CSV of readings needs an open visit"
+        )
 
         def chosen(text: str | None) -> None:
             if text:
                 self.import_path(Path(text.strip()).expanduser())
 
-        self.app.push_screen(LinePrompt("Import", literal(f"Path of a visit JSON file or a CSV of readings{where}:"),
-                                        check=existing_file((".json", ".csv"))), chosen)
+        self.app.push_screen(
+            LinePrompt(
+                "Import",
+                literal(f"Path of a visit JSON file or a CSV of readings{where}:"),
+                check=existing_file((".json", ".csv")),
+            ),
+            chosen,
+        )
 
     def import_path(self, path: Path) -> None:
         from fieldkit.tui.screens.dialogs import ConfirmDialog
@@ -233,12 +256,22 @@ class StartScreen(Screen):
             self._say(explain(exc, "✗ nothing imported"))
             return
         if any(s.id == visit.id for s in self.summaries):
+
             def as_copy(yes: bool | None) -> None:
                 if yes:
                     self._import_visit(visit, as_new=True)
-            self.app.push_screen(ConfirmDialog("Already in the store", literal(
-                f"Visit {visit.job_number} ({visit.id}) is already in the store. Import it again as a copy with new ids?"),
-                yes="Import a copy", no="Cancel"), as_copy)
+
+            self.app.push_screen(
+                ConfirmDialog(
+                    "Already in the store",
+                    literal(
+                        f"Visit {visit.job_number} ({visit.id}) is already in the store. Import it again as a copy with new ids?"
+                    ),
+                    yes="Import a copy",
+                    no="Cancel",
+                ),
+                as_copy,
+            )
             return
         self._import_visit(visit, as_new=False)
 
@@ -278,10 +311,21 @@ class StartScreen(Screen):
         yield "Resume the latest open visit", "pick up where you left off", self.action_resume_latest
         yield "New visit", "machine, job number, customer, hour meter", self.action_new_visit
         yield "Open the demo", "the bundled sample visits", self.action_open_demo
-        yield "Import a visit (JSON) or readings (CSV)", "from another laptop or a logger", self.action_import_file
+        yield (
+            "Import a visit (JSON) or readings (CSV)",
+            "from another laptop or a logger",
+            self.action_import_file,
+        )
         for s in self.summaries:
             state = "open" if s.status is VisitStatus.OPEN else "closed"
-            yield (f"Open visit {s.job_number} · {s.machine} · {s.date.isoformat()}", f"{state} visit",
-                   lambda vid=s.id: self.open_visit(vid))
+            yield (
+                f"Open visit {s.job_number} · {s.machine} · {s.date.isoformat()}",
+                f"{state} visit",
+                lambda vid=s.id: self.open_visit(vid),
+            )
         for pid in self.bench.library.ids():
-            yield f"New visit on {pid}", "start a visit on this machine", lambda p=pid: self.action_new_visit(p)
+            yield (
+                f"New visit on {pid}",
+                "start a visit on this machine",
+                lambda p=pid: self.action_new_visit(p),
+            )

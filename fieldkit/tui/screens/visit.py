@@ -66,8 +66,12 @@ class VisitScreen(VisitActions, Screen):
     """One visit, worked through test point by test point."""
 
     BINDINGS = keys.VISIT
-    KEY_HINTS: ClassVar[list[tuple[str, str]]] = [("↑ ↓", "choose a test point (also from the value field)"), ("Tab", "next field: gauge, condition, speed, oil"),
-                 ("Enter", "save the reading (in any entry field)"), ("Esc", "back to the visit list")]
+    KEY_HINTS: ClassVar[list[tuple[str, str]]] = [
+        ("↑ ↓", "choose a test point (also from the value field)"),
+        ("Tab", "next field: gauge, condition, speed, oil"),
+        ("Enter", "save the reading (in any entry field)"),
+        ("Esc", "back to the visit list"),
+    ]
     HORIZONTAL_BREAKPOINTS: ClassVar[list[tuple[int, str]]] = [(0, "-narrow"), (WIDE_FROM, "-wide")]
 
     def __init__(self, bench: Workbench, visit_id: str, *, demo: bool = False) -> None:
@@ -104,11 +108,18 @@ class VisitScreen(VisitActions, Screen):
                 yield StepPanel(id="step")
                 with Vertical(id="entry"):
                     with Horizontal(classes="entry-row"):
-                        yield Input(placeholder="value, e.g. 24,5 bar", id="value", compact=True, max_length=64)
+                        yield Input(
+                            placeholder="value, e.g. 24,5 bar", id="value", compact=True, max_length=64
+                        )
                         yield Select([], prompt="no gauge", id="gauge", compact=True)
                     with Horizontal(classes="entry-row"):
-                        yield Select([(Text(SHORT_STATE[s]), s) for s in FunctionState], allow_blank=False,
-                                     value=FunctionState.NEUTRAL, id="function", compact=True)
+                        yield Select(
+                            [(Text(SHORT_STATE[s]), s) for s in FunctionState],
+                            allow_blank=False,
+                            value=FunctionState.NEUTRAL,
+                            id="function",
+                            compact=True,
+                        )
                         yield Input(placeholder="speed rpm", id="speed", compact=True, max_length=32)
                         yield Input(placeholder="oil °C", id="oil", compact=True, max_length=32)
                     yield Static(VALUE_HINT, id="parse-msg")
@@ -155,9 +166,17 @@ class VisitScreen(VisitActions, Screen):
     def _show_ranking(self) -> None:
         assert self.visit is not None and self.profile is not None
         # One-line strips keep their size: no layout pass for them.
-        show_text(self.query_one("#topbar", Static), visit_title(self.visit, self.profile, demo=self.demo), layout=False)
+        show_text(
+            self.query_one("#topbar", Static),
+            visit_title(self.visit, self.profile, demo=self.demo),
+            layout=False,
+        )
         show_text(self.query_one("#next-line", Static), next_line(self.next_test, self.closed), layout=False)
-        show_text(self.query_one("#top-fault", Static), top_fault_line(self.diagnosis, self._previous_top), layout=False)
+        show_text(
+            self.query_one("#top-fault", Static),
+            top_fault_line(self.diagnosis, self._previous_top),
+            layout=False,
+        )
         if self._wide():
             self.query_one("#side-faults", FaultList).show(self.diagnosis)
         else:
@@ -202,8 +221,14 @@ class VisitScreen(VisitActions, Screen):
         for wid in ("#value", "#gauge", "#function", "#speed", "#oil"):
             self.query_one(wid).disabled = self.closed
         if self.closed:
-            self._message(Text("This visit is closed. Find (F3) → 'Reopen this visit' to add readings, "
-                               "or 'Write the job card' to print it again.", end=""), "info")
+            self._message(
+                Text(
+                    "This visit is closed. Find (F3) → 'Reopen this visit' to add readings, "
+                    "or 'Write the job card' to print it again.",
+                    end="",
+                ),
+                "info",
+            )
 
     def current(self) -> tuple[Circuit, TestPoint, PlanPoint | None]:
         assert self.profile is not None and self.point_id is not None
@@ -233,7 +258,9 @@ class VisitScreen(VisitActions, Screen):
         fitting = [g for g in self.visit.gauges if g.kind is point.kind]
         select = self.query_one("#gauge", Select)
         select.set_options([(Text(_gauge_label(g), end=""), g.id) for g in fitting])
-        best = suggest_gauge(point, self.visit.gauges, default_function(point, self.next_test), self.bench.system)
+        best = suggest_gauge(
+            point, self.visit.gauges, default_function(point, self.next_test), self.bench.system
+        )
         if best is not None:
             select.value = best.id
         elif fitting:
@@ -245,9 +272,16 @@ class VisitScreen(VisitActions, Screen):
         function = self._function()
         cautions = step_cautions(self.bench.knowledge, point, function)
         view = StepView(
-            profile=self.profile, circuit=circuit, point=point, plan_point=plan_point, function=function,
-            fit=gauge_fit(point, self._gauge(), function, self.bench.system), cautions=cautions,
-            next_test=self.next_test, system=self.bench.system, checks=plan_point.checks if plan_point else [],
+            profile=self.profile,
+            circuit=circuit,
+            point=point,
+            plan_point=plan_point,
+            function=function,
+            fit=gauge_fit(point, self._gauge(), function, self.bench.system),
+            cautions=cautions,
+            next_test=self.next_test,
+            system=self.bench.system,
+            checks=plan_point.checks if plan_point else [],
         )
         self.query_one("#step", StepPanel).show(view)
         show_text(self.query_one("#cautions", Static), caution_strip(cautions), layout=False)
@@ -327,14 +361,19 @@ class VisitScreen(VisitActions, Screen):
         speed = oil = None
         if speed_text.strip():
             try:
-                speed = parse_value(self._with_unit(speed_text, "rpm"), Kind.SPEED, decimal_comma=comma,
-                                    role_name="speed").quantity
+                speed = parse_value(
+                    self._with_unit(speed_text, "rpm"), Kind.SPEED, decimal_comma=comma, role_name="speed"
+                ).quantity
             except FieldkitError as exc:
                 raise FieldkitError(f"speed field: {exc}") from None
         if oil_text.strip():
             try:
-                oil = parse_value(self._with_unit(oil_text, self.bench.system.temperature), Kind.TEMPERATURE,
-                                  decimal_comma=comma, role_name="oil temperature").quantity
+                oil = parse_value(
+                    self._with_unit(oil_text, self.bench.system.temperature),
+                    Kind.TEMPERATURE,
+                    decimal_comma=comma,
+                    role_name="oil temperature",
+                ).quantity
             except FieldkitError as exc:
                 raise FieldkitError(f"oil field: {exc}") from None
         return Condition(function=self._function(), speed=speed, oil_temperature=oil)
@@ -368,9 +407,15 @@ class VisitScreen(VisitActions, Screen):
             self._message(literal(f"✗ {exc} (nothing saved)"), "error")
             return
         value_input.remove_class("-bad")
-        ref = f" ({parsed.reference.value})" if parsed.reference is not None and parsed.reference.value != "gauge" else ""
+        ref = (
+            f" ({parsed.reference.value})"
+            if parsed.reference is not None and parsed.reference.value != "gauge"
+            else ""
+        )
         shown = format_value(parsed.quantity, self.bench.system)
-        self._message(literal(f"= {shown}{ref} at {point.label}, {self._function().label}: Enter saves"), "ok")
+        self._message(
+            literal(f"= {shown}{ref} at {point.label}, {self._function().label}: Enter saves"), "ok"
+        )
 
     def unsaved_value(self) -> tuple[str, str] | None:
         """A value typed but not saved, and where (for the quit and leave prompts)."""
@@ -400,7 +445,9 @@ class VisitScreen(VisitActions, Screen):
             return False
         gauge = self._gauge()
         try:
-            reading = self.bench.record(self.visit_id, point.id, text, condition, gauge=gauge.id if gauge else None)
+            reading = self.bench.record(
+                self.visit_id, point.id, text, condition, gauge=gauge.id if gauge else None
+            )
         except AmbiguousInputError as exc:
             self._ask_which(exc, point, condition, gauge)
             return False
@@ -411,21 +458,31 @@ class VisitScreen(VisitActions, Screen):
         self._after_save(reading, point)
         return True
 
-    def _ask_which(self, exc: AmbiguousInputError, point: TestPoint, condition: Condition, gauge: Gauge | None) -> None:
+    def _ask_which(
+        self, exc: AmbiguousInputError, point: TestPoint, condition: Condition, gauge: Gauge | None
+    ) -> None:
         from fieldkit.model.quantity import quantity_text
         from fieldkit.tui.screens.dialogs import ChoiceDialog
 
         choices = list(exc.choices)
-        labels = [Text(f"{quantity_text(c.quantity)}   (= {format_value(c.quantity, self.bench.system)})", end="")
-                  for c in choices]
+        labels = [
+            Text(f"{quantity_text(c.quantity)}   (= {format_value(c.quantity, self.bench.system)})", end="")
+            for c in choices
+        ]
 
         def chosen(index: int | None) -> None:
             if index is None:
                 self._message("Not saved: choose which value the gauge showed, or retype it.", "ask")
                 return
             try:
-                saved = self.bench.record(self.visit_id, point.id, "", condition, gauge=gauge.id if gauge else None,
-                                          chosen=choices[index])
+                saved = self.bench.record(
+                    self.visit_id,
+                    point.id,
+                    "",
+                    condition,
+                    gauge=gauge.id if gauge else None,
+                    chosen=choices[index],
+                )
             except FieldkitError as err:
                 self._message(literal(f"✗ {err} (nothing saved)"), "error")
                 return
@@ -447,10 +504,17 @@ class VisitScreen(VisitActions, Screen):
         change = ""
         top, was = self._shown_top, self._previous_top
         if top is not None and was is not None and top.key != was.key:
-            change = (f" Now most likely: {top.display_title} {percent(top.probability)} "
-                      f"(was {was.display_title} {percent(was.probability)}).")
-        self._message(literal(f"✓ saved {reading.entered or shown} at {point.label}, "
-                              f"{SHORT_STATE[reading.condition.function]}{unskipped}.{change}"), "ok")
+            change = (
+                f" Now most likely: {top.display_title} {percent(top.probability)} "
+                f"(was {was.display_title} {percent(was.probability)})."
+            )
+        self._message(
+            literal(
+                f"✓ saved {reading.entered or shown} at {point.label}, "
+                f"{SHORT_STATE[reading.condition.function]}{unskipped}.{change}"
+            ),
+            "ok",
+        )
         self._keep_message = True
         # The saved line and the new ranking go out in the next frame on their own; the findings,
         # the plan's glyphs and the step panel, the larger redraw, follow in the frame after.
@@ -497,6 +561,7 @@ class VisitScreen(VisitActions, Screen):
         if fault is not None:
             self.app.push_screen(FaultScreen(fault))
 
+
 def _gauge_label(g: Gauge) -> str:
     start = format_value(g.scale_start) if g.scale_start is not None else "0"
     return f"{g.id} {start}–{format_value(g.full_scale)} cl {g.accuracy_class:g}"
@@ -506,5 +571,3 @@ def _example(point: TestPoint) -> str:
     from fieldkit.units import EXAMPLE
 
     return EXAMPLE[point.kind]
-
-

@@ -57,7 +57,9 @@ class VisitActions(_Base):
                 self.query_one("#gauge", Select).value = gauge.id
             self._message(literal(f"✓ gauge {gauge.id} added to the visit"), "ok")
 
-        self.app.push_screen(AddGaugeDialog({g.id for g in self.visit.gauges}, self.bench.settings.decimal_comma), added)
+        self.app.push_screen(
+            AddGaugeDialog({g.id for g in self.visit.gauges}, self.bench.settings.decimal_comma), added
+        )
 
     def action_skip_point(self) -> None:
         from fieldkit.tui.screens.dialogs import ConfirmDialog, LinePrompt
@@ -67,32 +69,52 @@ class VisitActions(_Base):
             return
         _c, point, plan_point = self.current()
         if plan_point is not None and plan_point.checks:
-            self._message(literal(f"{point.label} already has readings; delete them (^r) before skipping it."), "error")
+            self._message(
+                literal(f"{point.label} already has readings; delete them (^r) before skipping it."), "error"
+            )
             return
         visit = self.visit
         if plan_point is not None and plan_point.state is PointState.SKIPPED:
+
             def unskip(yes: bool | None) -> None:
                 if yes:
-                    self.bench.store.update_visit(self.visit_id, notes=notes_without_skip(visit.notes, point.id))
+                    self.bench.store.update_visit(
+                        self.visit_id, notes=notes_without_skip(visit.notes, point.id)
+                    )
                     self.reload()
                     self._message(literal(f"{point.label} is back in the plan"), "ok")
-            self.app.push_screen(ConfirmDialog("Put it back?", literal(f"{point.label} is marked skipped. Put it back in the plan?")), unskip)
+
+            self.app.push_screen(
+                ConfirmDialog(
+                    "Put it back?", literal(f"{point.label} is marked skipped. Put it back in the plan?")
+                ),
+                unskip,
+            )
             return
 
         def skip(reason: str | None) -> None:
             if reason is None:
                 return
             try:
-                self.bench.store.update_visit(self.visit_id, notes=notes_with_skip(visit.notes, point, reason))
+                self.bench.store.update_visit(
+                    self.visit_id, notes=notes_with_skip(visit.notes, point, reason)
+                )
             except FieldkitError as exc:
                 self._message(literal(f"✗ {exc}"), "error")
                 return
             self.reload()
             self._message(literal(f"– {point.label} marked skipped (written in the visit notes)"), "ok")
 
-        self.app.push_screen(LinePrompt("Skip this test point", literal(
-            f"Why is {point.label} not measured? The reason goes into the visit notes and the job card."),
-            value="no access on this machine"), skip)
+        self.app.push_screen(
+            LinePrompt(
+                "Skip this test point",
+                literal(
+                    f"Why is {point.label} not measured? The reason goes into the visit notes and the job card."
+                ),
+                value="no access on this machine",
+            ),
+            skip,
+        )
 
     def action_machine_history(self) -> None:
         from fieldkit.tui.screens.history import HistoryScreen
@@ -129,7 +151,9 @@ class VisitActions(_Base):
             self.write_job_card()
             return
         if self.unsaved_value() is not None:
-            self._message("A value is typed but not saved: press Enter to save it, or clear it, then finish.", "error")
+            self._message(
+                "A value is typed but not saved: press Enter to save it, or clear it, then finish.", "error"
+            )
             return
 
         def done(result: str | None) -> None:
@@ -143,8 +167,10 @@ class VisitActions(_Base):
         from fieldkit.tui.screens.finish import JobCardDialog
 
         if self.visit is not None and self.profile is not None and self.diagnosis is not None:
-            self.app.push_screen(JobCardDialog(self.visit, self.profile, self.diagnosis, self.bench.system),
-                                 lambda r: self._message(literal(r), "ok") if r else None)
+            self.app.push_screen(
+                JobCardDialog(self.visit, self.profile, self.diagnosis, self.bench.system),
+                lambda r: self._message(literal(r), "ok") if r else None,
+            )
 
     def reopen(self) -> None:
         try:
@@ -168,8 +194,14 @@ class VisitActions(_Base):
                 self.reload()
                 self._message(literal(message), "ok" if message.startswith("✓") else "error")
 
-        self.app.push_screen(LinePrompt("Import readings (CSV)", "Path of a CSV file of readings (fieldkit's CSV layout):",
-                                        check=existing_file((".csv",))), chosen)
+        self.app.push_screen(
+            LinePrompt(
+                "Import readings (CSV)",
+                "Path of a CSV file of readings (fieldkit's CSV layout):",
+                check=existing_file((".csv",)),
+            ),
+            chosen,
+        )
 
     def action_leave(self) -> None:
         from fieldkit.tui.screens.dialogs import ConfirmDialog
@@ -185,9 +217,22 @@ class VisitActions(_Base):
                 self.app.pop_screen()
 
         typed, where = unsaved
-        self.app.push_screen(ConfirmDialog("Leave without saving?", Text.assemble(
-            "The value ", literal(repr(typed), "bold"), " typed for ", literal(where, "bold"),
-            " is not saved. Leave and throw it away?", end=""), yes="Throw it away", no="Stay"), answer)
+        self.app.push_screen(
+            ConfirmDialog(
+                "Leave without saving?",
+                Text.assemble(
+                    "The value ",
+                    literal(repr(typed), "bold"),
+                    " typed for ",
+                    literal(where, "bold"),
+                    " is not saved. Leave and throw it away?",
+                    end="",
+                ),
+                yes="Throw it away",
+                no="Stay",
+            ),
+            answer,
+        )
 
     def palette_commands(self) -> Iterable[tuple[str, str, Callable[[], object]]]:
         yield "Next recommended test", "select the point the engine suggests", self.action_go_next_test
@@ -206,13 +251,18 @@ class VisitActions(_Base):
         yield "Back to the visit list", "leave this visit", self.action_leave
         if self.profile is not None:
             for circuit, point in self.profile.all_test_points():
-                yield (f"Go to {point.label} ({circuit.id})", "select this test point",
-                       lambda pid=point.id: self.select_point(pid))
+                yield (
+                    f"Go to {point.label} ({circuit.id})",
+                    "select this test point",
+                    lambda pid=point.id: self.select_point(pid),
+                )
         if self.diagnosis is not None:
             for f in self.diagnosis.faults[:8]:
-                yield f"Why: {f.display_title}", "findings for and against", lambda key=f.key: self.open_fault(key)
-
-
+                yield (
+                    f"Why: {f.display_title}",
+                    "findings for and against",
+                    lambda key=f.key: self.open_fault(key),
+                )
 
 
 def import_readings_csv(bench: Workbench, visit_id: str, path: Path) -> str:
@@ -222,8 +272,12 @@ def import_readings_csv(bench: Workbench, visit_id: str, path: Path) -> str:
     try:
         visit = bench.store.get_visit(visit_id)
         profile = bench.profile_for(visit)
-        readings = read_readings_csv(path, test_points=kinds_by_test_point(profile),
-                                     gauges={g.id for g in visit.gauges}, decimal_comma=bench.settings.decimal_comma)
+        readings = read_readings_csv(
+            path,
+            test_points=kinds_by_test_point(profile),
+            gauges={g.id for g in visit.gauges},
+            decimal_comma=bench.settings.decimal_comma,
+        )
         bench.store.add_readings(visit.id, readings)
     except FieldkitError as exc:
         return explain(exc, "✗ nothing imported")

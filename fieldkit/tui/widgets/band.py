@@ -44,7 +44,9 @@ def _position(x: float, lo: float, hi: float, width: int) -> int:
     return max(0, min(width - 1, round((x - lo) / (hi - lo) * (width - 1))))
 
 
-def draw_band(value: float, uncertainty: float, low: float | None, high: float | None, width: int) -> list[Cell]:
+def draw_band(
+    value: float, uncertainty: float, low: float | None, high: float | None, width: int
+) -> list[Cell]:
     """The picture as cells, one per character column."""
     width = max(width, 8)
     u = abs(uncertainty)
@@ -79,14 +81,25 @@ def draw_band(value: float, uncertainty: float, low: float | None, high: float |
 def band_plain(check: ReadingCheck, width: int) -> str:
     if check.value_num is None:
         return ""
-    return "".join(c.char for c in draw_band(check.value_num, check.uncertainty_num, check.low_num, check.high_num, width))
+    return "".join(
+        c.char
+        for c in draw_band(check.value_num, check.uncertainty_num, check.low_num, check.high_num, width)
+    )
 
 
 class ReadingBands(Widget):
     """The band pictures of the readings taken at one test point, newest last."""
 
-    COMPONENT_CLASSES: ClassVar[set[str]] = {"band--track", "band--band", "band--edge", "band--unc",
-                         "band--ok", "band--bad", "band--unsure", "band--label"}
+    COMPONENT_CLASSES: ClassVar[set[str]] = {
+        "band--track",
+        "band--band",
+        "band--edge",
+        "band--unc",
+        "band--ok",
+        "band--bad",
+        "band--unsure",
+        "band--label",
+    }
     DEFAULT_CSS = """
     ReadingBands { height: auto; }
     """
@@ -118,7 +131,7 @@ class ReadingBands(Widget):
     def render(self) -> Text:
         # Styles looked up once per render, and runs of cells with one role appended as one
         # piece: per-cell look-ups made this the slowest widget of the visit screen.
-        style = {name[len("band--"):]: self._style(name[len("band--"):]) for name in self.COMPONENT_CLASSES}
+        style = {name[len("band--") :]: self._style(name[len("band--") :]) for name in self.COMPONENT_CLASSES}
         if not self._checks:
             return Text("no reading here yet", style=style["label"], end="")
         width = max(12, self.content_size.width - 12)
@@ -126,7 +139,13 @@ class ReadingBands(Widget):
         for i, c in enumerate(self._checks):
             if i:
                 out.append("\n")
-            mood = "ok" if c.verdict is Verdict.IN_RANGE else "bad" if c.verdict in (Verdict.LOW, Verdict.HIGH) else "unsure"
+            mood = (
+                "ok"
+                if c.verdict is Verdict.IN_RANGE
+                else "bad"
+                if c.verdict in (Verdict.LOW, Verdict.HIGH)
+                else "unsure"
+            )
             out.append_text(literal(c.condition, style["label"]))
             out.append("\n")
             if c.value_num is not None:

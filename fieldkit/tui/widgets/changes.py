@@ -15,8 +15,14 @@ def same_text(a: object, b: object) -> bool:
     """True when two contents would draw the same: equal strings, or Rich texts with the same
     characters, spans and whole-text settings (``Text.__eq__`` alone ignores the base style)."""
     if isinstance(a, Text) and isinstance(b, Text):
-        return (a == b and a.style == b.style and a.justify == b.justify and a.overflow == b.overflow
-                and a.no_wrap == b.no_wrap and a.end == b.end)
+        return (
+            a == b
+            and a.style == b.style
+            and a.justify == b.justify
+            and a.overflow == b.overflow
+            and a.no_wrap == b.no_wrap
+            and a.end == b.end
+        )
     if isinstance(a, str) and isinstance(b, str):
         return a == b
     return False

@@ -32,22 +32,33 @@ def point_text(p: PlanPoint, *, recommended: bool, styles: dict[PointState, Styl
 class PlanList(OptionList):
     """Test points grouped by circuit; highlighting one selects it for the step panel."""
 
-    COMPONENT_CLASSES: ClassVar[set[str]] = {"plan--not-measured", "plan--in-range", "plan--out-of-range", "plan--inconclusive",
-                         "plan--skipped", "plan--circuit"}
+    COMPONENT_CLASSES: ClassVar[set[str]] = {
+        "plan--not-measured",
+        "plan--in-range",
+        "plan--out-of-range",
+        "plan--inconclusive",
+        "plan--skipped",
+        "plan--circuit",
+    }
 
     def __init__(self, *, id: str | None = None) -> None:
         super().__init__(id=id)
         self._ids: list[str | None] = []
 
     def _state_styles(self) -> dict[PointState, Style]:
-        return {s: self.get_component_rich_style("plan--" + s.value.replace(" ", "-"), partial=True) for s in PointState}
+        return {
+            s: self.get_component_rich_style("plan--" + s.value.replace(" ", "-"), partial=True)
+            for s in PointState
+        }
 
     def show(self, plan: list[PlanCircuit], recommended: str | None, selected: str | None) -> None:
         options: list[Option] = []
         styles = self._state_styles()
         for pc in plan:
             head = Text(end="", no_wrap=True, overflow="ellipsis")
-            head.append_text(literal(pc.circuit.name, self.get_component_rich_style("plan--circuit", partial=True)))
+            head.append_text(
+                literal(pc.circuit.name, self.get_component_rich_style("plan--circuit", partial=True))
+            )
             options.append(Option(head, id=f"circuit:{pc.circuit.id}", disabled=True))
             for p in pc.points:
                 options.append(Option(point_text(p, recommended=p.id == recommended, styles=styles), id=p.id))

@@ -22,7 +22,12 @@ from fieldkit.tui.widgets.changes import show_text
 from fieldkit.units import DisplaySystem, format_value
 
 SEVERITY_MARK = {"danger": "‼ DANGER", "warning": "! WARNING", "notice": "i NOTICE"}
-FIT_MARK = {Level.OK: "✓ suits", Level.NOTE: "i note", Level.WARNING: "! check", Level.ERROR: "✗ DO NOT CONNECT"}
+FIT_MARK = {
+    Level.OK: "✓ suits",
+    Level.NOTE: "i note",
+    Level.WARNING: "! check",
+    Level.ERROR: "✗ DO NOT CONNECT",
+}
 
 
 @dataclass(slots=True)
@@ -74,7 +79,9 @@ class StepPanel(VerticalScroll):
 
         nxt = self.query_one("#step-next", Static)
         if view.next_test is not None and view.next_test.test_point == tp.id:
-            show_text(nxt, Text.assemble(("▸ Recommended next: ", "bold"), literal(view.next_test.why), end=""))
+            show_text(
+                nxt, Text.assemble(("▸ Recommended next: ", "bold"), literal(view.next_test.why), end="")
+            )
             nxt.remove_class("-hidden")
         else:
             show_text(nxt, "")
@@ -87,8 +94,12 @@ class StepPanel(VerticalScroll):
         if tp.max_pressure is not None:
             _row(info, "Max", f"{format_value(tp.max_pressure, view.system)} can reach this point")
         window = view.profile.test_window
-        _row(info, "Set", f"{SHORT_STATE[view.function]} · {format_value(view.profile.rated_speed)} · oil "
-                          f"{format_value(window.oil_min, view.system)} to {format_value(window.oil_max, view.system)}")
+        _row(
+            info,
+            "Set",
+            f"{SHORT_STATE[view.function]} · {format_value(view.profile.rated_speed)} · oil "
+            f"{format_value(window.oil_min, view.system)} to {format_value(window.oil_max, view.system)}",
+        )
         for rng in tp.expected:
             _row(info, "Expect", f"{range_text(rng, view.system)} ({describe_when(rng.when)})")
         if not tp.expected:
