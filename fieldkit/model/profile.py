@@ -16,6 +16,7 @@ from pydantic import Field, field_serializer, field_validator, model_validator
 from fieldkit.model.base import SCHEMA_VERSION, Strict
 from fieldkit.model.condition import Condition, ConditionSpec
 from fieldkit.model.parameters import PARAMETERS
+from fieldkit.model.parts import Part
 from fieldkit.model.quantity import AnyQuantity, Pressure, Speed, Temperature, parse_for_kind, quantity_text
 from fieldkit.model.roles import ROLES, Role
 from fieldkit.units import Kind, kind_of
@@ -144,6 +145,15 @@ class Circuit(Strict):
     reliefs: list[Relief] = Field(default_factory=list)
     relief_layout: ReliefLayout | None = None
     test_points: list[TestPoint] = Field(default_factory=list)
+    fitted_parts: list[Part] | None = Field(
+        default=None,
+        description="optional parts fitted to this circuit; unset means the template's usual parts",
+    )
+
+    def has_part(self, part: Part) -> bool:
+        """Whether a part is fitted. Unstated means 'assume fitted', so a caution is never dropped
+        for want of a declaration."""
+        return self.fitted_parts is None or part in self.fitted_parts
 
     @model_validator(mode="after")
     def _qualify_ids(self) -> Circuit:
