@@ -15,6 +15,7 @@ import subprocess
 import sys
 
 import fieldkit.diagnosis
+import fieldkit.expr
 import fieldkit.model
 import fieldkit.physics
 import fieldkit.store
@@ -42,6 +43,8 @@ def submodules(package: object) -> list[str]:
 CORE_MODULES = [
     "fieldkit.units",
     "fieldkit.errors",
+    "fieldkit.expr",
+    *submodules(fieldkit.expr),
     "fieldkit.model",
     *submodules(fieldkit.model),
     "fieldkit.physics",
@@ -66,7 +69,7 @@ def test_core_module_list_covers_loading_physics_and_the_engine() -> None:
         "fieldkit.diagnosis.engine",
         "fieldkit.physics.reliefs",
         "fieldkit.physics.pumps_motors",
-        "fieldkit.diagnosis.expr.parser",
+        "fieldkit.expr.parser",
     ):
         assert name in CORE_MODULES
     assert len(submodules(fieldkit.physics)) >= 10

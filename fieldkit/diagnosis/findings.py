@@ -16,11 +16,11 @@ from collections.abc import Iterable
 from dataclasses import dataclass, field
 
 from fieldkit.diagnosis.catalogue import Fault
-from fieldkit.diagnosis.expr.dims import kind_dimension
 from fieldkit.diagnosis.measure import Measured
 from fieldkit.diagnosis.results import Finding, Verdict
 from fieldkit.diagnosis.rulepack import Rule
 from fieldkit.diagnosis.symbols import DERIVED, MACHINE_FIGURES, SYMBOLS
+from fieldkit.expr.dims import kind_dimension
 from fieldkit.model.condition import FunctionState
 from fieldkit.model.parameters import PARAMETERS
 from fieldkit.model.profile import Circuit, MachineProfile, ReliefLayout

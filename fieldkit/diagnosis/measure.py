@@ -12,7 +12,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from fieldkit.diagnosis.expr.dims import si_value
+from fieldkit.expr.dims import si_value
 from fieldkit.model.gauge import Gauge
 from fieldkit.model.profile import Circuit, MachineProfile, TestPoint
 from fieldkit.model.roles import Role

@@ -1,7 +1,7 @@
 """Rule packs: TOML files of rules that turn readings into findings with evidence for faults.
 
 A rule computes one value from readings and circuit figures (an expression of our own language,
-see :mod:`fieldkit.diagnosis.expr`), compares it with limits, and says how likely each outcome
+see :mod:`fieldkit.expr`), compares it with limits, and says how likely each outcome
 (low / in range / high) is under each fault. Faults it does not list behave like a healthy
 machine. Every expression is compiled and dimension-checked when the pack loads, so a rule that
 compares a pressure with a flow is refused with its file and line before any visit is judged.
@@ -16,10 +16,10 @@ from typing import Any
 from pydantic import Field, model_validator
 
 from fieldkit.diagnosis.catalogue import ANY_CIRCUIT, CircuitKinds
-from fieldkit.diagnosis.expr import ExprError, compile_expression
-from fieldkit.diagnosis.expr.dims import describe
 from fieldkit.diagnosis.symbols import DERIVED, FUNCTIONS, SYMBOLS, names_to_roles
 from fieldkit.errors import DataFileError
+from fieldkit.expr import ExprError, compile_expression
+from fieldkit.expr.dims import describe
 from fieldkit.model.base import Strict
 from fieldkit.model.condition import FunctionState
 from fieldkit.tomlfile import key_lines, line_for, parse_toml, read_text, validate

@@ -10,7 +10,7 @@
 
 from __future__ import annotations
 
-from fieldkit.diagnosis.expr import BUILTIN_FUNCTIONS
+from fieldkit.expr import BUILTIN_FUNCTIONS
 from fieldkit.model.condition import FunctionState
 from fieldkit.model.parameters import PARAMETERS
 from fieldkit.model.roles import ROLES, Role

@@ -24,10 +24,10 @@ import pint
 
 from fieldkit.diagnosis.catalogue import Fault
 from fieldkit.diagnosis.engine import Knowledge, default_knowledge, diagnose
-from fieldkit.diagnosis.expr import si_value
 from fieldkit.diagnosis.results import Diagnosis, Finding
 from fieldkit.diagnosis.rulepack import Rule
 from fieldkit.diagnosis.symbols import DERIVED, MACHINE_FIGURES, SYMBOLS
+from fieldkit.expr import si_value
 from fieldkit.model.condition import Condition, FunctionState
 from fieldkit.model.gauge import Gauge
 from fieldkit.model.loading import ProfileLibrary, load_profile, load_templates

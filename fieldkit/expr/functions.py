@@ -22,9 +22,9 @@ from dataclasses import dataclass
 from types import MappingProxyType
 from typing import Final, Literal, TypeAlias
 
-from fieldkit.diagnosis.expr.dims import BOOLEAN, DIMENSIONLESS, Dim, ValueType, _Boolean, to_type
-from fieldkit.diagnosis.expr.lexer import FORBIDDEN_WORDS, KEYWORDS
-from fieldkit.diagnosis.expr.parser import MAX_ARGS
+from fieldkit.expr.dims import BOOLEAN, DIMENSIONLESS, Dim, ValueType, _Boolean, to_type
+from fieldkit.expr.lexer import FORBIDDEN_WORDS, KEYWORDS
+from fieldkit.expr.parser import MAX_ARGS
 from fieldkit.units import Kind
 
 #: Parameter marker: every SAME parameter of one call has one dimension; a SAME result has it too.

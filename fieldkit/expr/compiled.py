@@ -9,9 +9,9 @@ from typing import Any
 
 import pint
 
-from fieldkit.diagnosis.expr.compiler import Fn, is_temperature
-from fieldkit.diagnosis.expr.dims import BOOLEAN, TempTag, ValueType, describe, kind_for, to_quantity
-from fieldkit.diagnosis.expr.errors import ExprError
+from fieldkit.expr.compiler import Fn, is_temperature
+from fieldkit.expr.dims import BOOLEAN, TempTag, ValueType, describe, kind_for, to_quantity
+from fieldkit.expr.errors import ExprError
 from fieldkit.units import Kind
 
 # Central-difference step for sensitivity coefficients: a small fraction of the input's

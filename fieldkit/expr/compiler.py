@@ -15,7 +15,8 @@ from collections.abc import Callable, Mapping
 from dataclasses import dataclass
 from typing import Any
 
-from fieldkit.diagnosis.expr.dims import (
+from fieldkit.errors import FieldkitError
+from fieldkit.expr.dims import (
     BOOLEAN,
     DIMENSIONLESS,
     TempTag,
@@ -27,9 +28,9 @@ from fieldkit.diagnosis.expr.dims import (
     spelling_si,
     to_type,
 )
-from fieldkit.diagnosis.expr.errors import ExprError
-from fieldkit.diagnosis.expr.functions import ANY, SAME, FunctionSpec, is_marker
-from fieldkit.diagnosis.expr.syntax import (
+from fieldkit.expr.errors import ExprError
+from fieldkit.expr.functions import ANY, SAME, FunctionSpec, is_marker
+from fieldkit.expr.syntax import (
     Call,
     Chain,
     Compare,
@@ -43,8 +44,7 @@ from fieldkit.diagnosis.expr.syntax import (
     Truth,
     When,
 )
-from fieldkit.diagnosis.expr.temperature import after_add, check_alike, merge
-from fieldkit.errors import FieldkitError
+from fieldkit.expr.temperature import after_add, check_alike, merge
 from fieldkit.units import Kind
 
 Env = Mapping[str, Any]

@@ -8,7 +8,8 @@ import math
 
 import pytest
 
-from fieldkit.diagnosis.expr import (
+from fieldkit.errors import FieldkitError
+from fieldkit.expr import (
     MAX_CHARS,
     MAX_DEPTH,
     MAX_TOKENS,
@@ -17,7 +18,6 @@ from fieldkit.diagnosis.expr import (
     compile_expression,
     function_table,
 )
-from fieldkit.errors import FieldkitError
 from fieldkit.units import Kind
 
 SYMBOLS = {

@@ -14,12 +14,12 @@ from typing import Any
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from fieldkit.diagnosis.expr import (
+from fieldkit.expr import (
     BOOLEAN,
     BUILTIN_FUNCTIONS,
     MAX_DEPTH,
-    ExprError,
     Compiled,
+    ExprError,
     compile_expression,
 )
 from fieldkit.units import SPELLINGS, Kind

@@ -15,7 +15,7 @@ from typing import TypeAlias
 import pint
 from pint.util import UnitsContainer
 
-from fieldkit.diagnosis.expr.errors import ExprError
+from fieldkit.expr.errors import ExprError
 from fieldkit.units import CANONICAL_UNIT, Q_, SPELLINGS, Kind, unit
 
 Dim: TypeAlias = UnitsContainer

@@ -13,7 +13,7 @@ import re
 from dataclasses import dataclass
 from enum import Enum
 
-from fieldkit.diagnosis.expr.errors import ExprError
+from fieldkit.expr.errors import ExprError
 from fieldkit.units import SPELLINGS
 
 MAX_CHARS = 1000

@@ -8,7 +8,7 @@ with a hint to write the difference in K. Sums of two readings stay allowed (ave
 
 from __future__ import annotations
 
-from fieldkit.diagnosis.expr.dims import TempTag
+from fieldkit.expr.dims import TempTag
 
 _POINTS = (TempTag.POINT, TempTag.POINT_LITERAL)
 HINT = "write a temperature difference in K, e.g. 20 K"

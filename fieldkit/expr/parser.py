@@ -8,9 +8,9 @@ from __future__ import annotations
 
 from collections.abc import Callable
 
-from fieldkit.diagnosis.expr.errors import ExprError
-from fieldkit.diagnosis.expr.lexer import Tok, Token, tokenize
-from fieldkit.diagnosis.expr.syntax import (
+from fieldkit.expr.errors import ExprError
+from fieldkit.expr.lexer import Tok, Token, tokenize
+from fieldkit.expr.syntax import (
     Call,
     Chain,
     Compare,

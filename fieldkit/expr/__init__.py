@@ -81,9 +81,9 @@ from __future__ import annotations
 import re
 from collections.abc import Mapping
 
-from fieldkit.diagnosis.expr.compiled import Compiled
-from fieldkit.diagnosis.expr.compiler import REL_TOLERANCE, Compiler, same_type
-from fieldkit.diagnosis.expr.dims import (
+from fieldkit.expr.compiled import Compiled
+from fieldkit.expr.compiler import REL_TOLERANCE, Compiler, same_type
+from fieldkit.expr.dims import (
     BOOLEAN,
     DIMENSIONLESS,
     Dim,
@@ -94,10 +94,10 @@ from fieldkit.diagnosis.expr.dims import (
     to_quantity,
     to_type,
 )
-from fieldkit.diagnosis.expr.errors import ExprError
-from fieldkit.diagnosis.expr.functions import ANY, BUILTIN_FUNCTIONS, SAME, FunctionSpec, function_table
-from fieldkit.diagnosis.expr.lexer import FORBIDDEN_WORDS, KEYWORDS, MAX_CHARS, MAX_TOKENS, UNIT_WORDS
-from fieldkit.diagnosis.expr.parser import MAX_ARGS, MAX_DEPTH, MAX_EXPONENT, parse
+from fieldkit.expr.errors import ExprError
+from fieldkit.expr.functions import ANY, BUILTIN_FUNCTIONS, SAME, FunctionSpec, function_table
+from fieldkit.expr.lexer import FORBIDDEN_WORDS, KEYWORDS, MAX_CHARS, MAX_TOKENS, UNIT_WORDS
+from fieldkit.expr.parser import MAX_ARGS, MAX_DEPTH, MAX_EXPONENT, parse
 
 _NAME = re.compile(r"[a-z][a-z0-9_]*")
 

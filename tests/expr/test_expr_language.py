@@ -11,7 +11,7 @@ import math
 import pytest
 import scipy.constants as sc
 
-from fieldkit.diagnosis.expr import (
+from fieldkit.expr import (
     BOOLEAN,
     BUILTIN_FUNCTIONS,
     SAME,
@@ -22,7 +22,7 @@ from fieldkit.diagnosis.expr import (
     function_table,
     si_value,
 )
-from fieldkit.units import Kind, Q_, ureg
+from fieldkit.units import Q_, Kind, ureg
 
 SYMBOLS = {
     "charge_pressure": Kind.PRESSURE,
