@@ -723,3 +723,23 @@ def _plain(q: pint.Quantity) -> str:
         return format_value(q)
     except Exception:
         return f"{q.magnitude:g} {q.units:~P}"
+
+
+def percent(p: float, *, gap: str = "") -> str:
+    """A probability in whole per cent, for the screen and the job card alike.
+
+    Rounded half up, except that a probability which is neither impossible nor certain never
+    reads as "0%" or "100%": it reads "<1%" or ">99%", since a technician would take "100%" as
+    proof. Exactly 0 and exactly 1 read "0%" and "100%". Values a hair outside 0…1 (floating
+    point noise from normalising) count as 0 or 1. ``gap`` goes between the number and the sign
+    (the job card puts a no-break space there).
+    """
+    if math.isnan(p):
+        raise ValueError("a probability cannot be NaN")
+    p = min(max(p, 0.0), 1.0)
+    whole = math.floor(p * 100 + 0.5)
+    if whole == 0 and p > 0:
+        return f"<1{gap}%"
+    if whole == 100 and p < 1:
+        return f">99{gap}%"
+    return f"{whole}{gap}%"

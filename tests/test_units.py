@@ -448,3 +448,43 @@ def test_convert_runs_as_a_module_from_the_shell() -> None:
     )
     assert done.returncode == 0, done.stderr
     assert done.stdout == "241.3 bar\n"
+
+
+# percent(): rounding half up is worked by hand below; the "<1%"/">99%" rule for a probability
+# that is neither 0 nor 1 is our own choice (common practice: never print certainty you do not have).
+@pytest.mark.parametrize(
+    ("p", "shown"),
+    [
+        (0.0, "0%"),  # impossible: says so
+        (1.0, "100%"),  # certain: says so
+        (1e-9, "<1%"),  # 0.0000001 % rounds to 0, but it is not impossible
+        (0.004999, "<1%"),  # 0.4999 % rounds to 0
+        (0.005, "1%"),  # 0.5 % rounds half up to 1
+        (0.83, "83%"),
+        (0.8349, "83%"),  # 83.49 % → 83
+        (0.995, ">99%"),  # 99.5 % rounds to 100, but it is not certain
+        (0.999999, ">99%"),
+        (0.994, "99%"),  # 99.4 % → 99
+        (-1e-12, "0%"),  # floating point noise below 0 counts as 0
+        (1 + 1e-12, "100%"),  # and above 1 as 1
+    ],
+)
+def test_a_probability_reads_in_whole_per_cent_and_never_claims_certainty_it_lacks(p: float, shown: str) -> None:
+    from fieldkit.units import percent
+
+    assert percent(p) == shown
+
+
+def test_the_job_card_and_the_screen_print_the_same_per_cent() -> None:
+    from fieldkit.report.usertext import percent as card_percent
+    from fieldkit.units import percent
+
+    for p in (0.0, 0.003, 0.4, 0.997, 1.0):
+        assert card_percent(p) == percent(p).replace("%", "\u00a0%")
+
+
+def test_a_probability_that_is_not_a_number_is_refused() -> None:
+    from fieldkit.units import percent
+
+    with pytest.raises(ValueError, match="NaN"):
+        percent(float("nan"))

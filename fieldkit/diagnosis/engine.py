@@ -14,6 +14,7 @@ from pathlib import Path
 
 from fieldkit.diagnosis.catalogue import Caution, Fault, load_cautions, load_faults
 from fieldkit.diagnosis.findings import Evaluator, Hypothesis, outcome_probabilities, verdict_for
+from fieldkit.diagnosis.lint import check_references
 from fieldkit.diagnosis.measure import ASSUMED_CLASS, Measured, measure_visit
 from fieldkit.diagnosis.next_test import suggest
 from fieldkit.diagnosis.ranking import entropy_bits, hypotheses_for, log_posterior, rank
@@ -47,8 +48,6 @@ class Knowledge:
 
     @classmethod
     def load(cls, folder: Path) -> Knowledge:
-        from fieldkit.diagnosis.lint import check_references
-
         k = cls(
             load_packs(folder),
             load_faults(folder / "faults.toml"),

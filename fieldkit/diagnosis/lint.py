@@ -7,14 +7,30 @@ cautions, rules that can never move the ranking, and faults no rule gives eviden
 
 from __future__ import annotations
 
+from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
-from typing import TYPE_CHECKING
+from pathlib import Path
+from typing import Protocol
 
-from fieldkit.diagnosis.catalogue import NO_FAULT
+from fieldkit.diagnosis.catalogue import NO_FAULT, Caution, Fault
+from fieldkit.diagnosis.rulepack import Rule
 from fieldkit.errors import DataFileError
 
-if TYPE_CHECKING:
-    from fieldkit.diagnosis.engine import Knowledge
+
+class Knowledge(Protocol):
+    """What is checked: the packs and catalogues of one rules folder. The engine's
+    :class:`fieldkit.diagnosis.engine.Knowledge` is one; this module needs no more of it, so the
+    engine can import the checks without the checks importing the engine."""
+
+    @property
+    def rules(self) -> Sequence[Rule]: ...
+    @property
+    def faults(self) -> Mapping[str, Fault]: ...
+    @property
+    def cautions(self) -> Mapping[str, Caution]: ...
+    @property
+    def folder(self) -> Path: ...
+
 
 #: Faults the engine gives evidence for in code rather than by a rule.
 BUILT_IN_EVIDENCE = frozenset({NO_FAULT, "gauge_error"})
@@ -113,13 +129,13 @@ def problems(knowledge: Knowledge) -> list[Problem]:
                         True,
                     )
                 )
-    for fault in knowledge.faults.values():
-        if fault.id not in evidenced and fault.id not in BUILT_IN_EVIDENCE:
+    for entry in knowledge.faults.values():
+        if entry.id not in evidenced and entry.id not in BUILT_IN_EVIDENCE:
             found.append(
                 Problem(
                     str(knowledge.folder / "faults.toml"),
                     None,
-                    f"no rule gives evidence for fault '{fault.id}'",
+                    f"no rule gives evidence for fault '{entry.id}'",
                     False,
                 )
             )

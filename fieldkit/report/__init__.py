@@ -3,5 +3,5 @@
 Importing this package is cheap: the PDF library is imported only when a PDF is rendered
 (:func:`fieldkit.report.jobcard.render_card`), so the terminal UI and other commands start fast.
 Use ``fieldkit.report.jobcard.write_job_card`` / ``write_report`` to write a job card, and
-``fieldkit.report.model.build_report`` for the data behind it.
+``fieldkit.report.build.job_card`` for the data behind it.
 """

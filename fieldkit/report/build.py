@@ -45,7 +45,7 @@ from fieldkit.report.model import (
     make_band,
 )
 from fieldkit.report.usertext import one_line, percent, plain
-from fieldkit.units import DisplaySystem, Kind, format_value, to_canonical
+from fieldkit.units import METRIC, DisplaySystem, Kind, format_value, to_canonical
 
 # Used only when a rules folder lacks its general caution: the job card always carries one.
 _FALLBACK_GENERAL = CautionNote(
@@ -61,8 +61,16 @@ _FALLBACK_GENERAL = CautionNote(
 )
 
 
-def assemble(visit: Visit, profile: MachineProfile, diagnosis: Diagnosis, system: DisplaySystem) -> JobCard:
-    """The job card for :func:`fieldkit.report.model.build_report` (which documents it)."""
+def job_card(
+    visit: Visit, profile: MachineProfile, diagnosis: Diagnosis, system: DisplaySystem | None = None
+) -> JobCard:
+    """Everything the job card says, from the visit, its machine and its diagnosis.
+
+    ``system`` should be the display system the diagnosis was made in (its texts already are);
+    it sets the units of the few values formatted here, such as the oil temperature. Raises
+    :class:`ReportError` for a visit without readings or a profile of another machine.
+    """
+    system = system or METRIC
     _check_inputs(visit, profile, diagnosis)
     readings = _readings(visit, diagnosis, gauge_uses(visit, profile, system))
     settled = bool(diagnosis.faults) and diagnosis.top.probability >= SETTLED

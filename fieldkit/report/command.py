@@ -10,8 +10,9 @@ import argparse
 from pathlib import Path
 from typing import TYPE_CHECKING
 
+from fieldkit.report.build import job_card
 from fieldkit.report.jobcard import parse_fixed_date, render_card, write_atomic
-from fieldkit.report.model import ReportError, build_report
+from fieldkit.report.model import ReportError
 
 if TYPE_CHECKING:  # the workbench opens the store; the annotation alone needs no import
     from fieldkit.session import Workbench
@@ -48,7 +49,7 @@ def run_report(bench: Workbench, args: argparse.Namespace) -> int:
         raise ReportError(f"{source}: is the visit being reported; write the job card to another file")
     visit, profile = bench.resolve(args.visit)
     diagnosis = bench.diagnose(visit, profile)
-    card = build_report(visit, profile, diagnosis, bench.system)
+    card = job_card(visit, profile, diagnosis, bench.system)
     rendered = [
         (fmt, path, render_card(card, fmt, letter=args.letter, fixed_date=fixed_date))
         for fmt, path in outputs

@@ -18,7 +18,8 @@ from fieldkit.diagnosis.results import Diagnosis
 from fieldkit.durable import sync_folder, write_temp
 from fieldkit.model.profile import MachineProfile
 from fieldkit.model.visit import Visit
-from fieldkit.report.model import JobCard, ReportError, build_report
+from fieldkit.report.build import job_card
+from fieldkit.report.model import JobCard, ReportError
 from fieldkit.store.filenames import export_stem, safe_file_name
 from fieldkit.units import DisplaySystem
 
@@ -121,7 +122,7 @@ def write_job_card(
     target = folder / name
     if Path(name).name != name or target.parent != folder:  # safe_file_name guarantees it; check anyway
         raise ReportError(f"{folder}: refusing the file name {name!r}")
-    card = build_report(visit, profile, diagnosis, system)
+    card = job_card(visit, profile, diagnosis, system)
     return write_atomic(target, render_card(card, fmt, letter=letter, fixed_date=fixed_date))
 
 
@@ -146,5 +147,5 @@ def write_report(
         fmt = by_suffix.get(path.suffix.lower())
         if fmt is None:
             raise ReportError(f"{path}: cannot tell the format from the suffix; use .pdf, .txt or .md")
-    card = build_report(visit, profile, diagnosis, system)
+    card = job_card(visit, profile, diagnosis, system)
     return write_atomic(path, render_card(card, fmt, letter=letter, fixed_date=fixed_date))

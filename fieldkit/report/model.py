@@ -12,12 +12,9 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 
 from fieldkit import __version__
-from fieldkit.diagnosis.results import Diagnosis, Verdict
+from fieldkit.diagnosis.results import Verdict
 from fieldkit.errors import FieldkitError
-from fieldkit.model.profile import MachineProfile
-from fieldkit.model.visit import Visit
 from fieldkit.report.usertext import percent
-from fieldkit.units import METRIC, DisplaySystem
 
 #: A top fault at or above this probability counts as settled: no further test is suggested.
 SETTLED = 0.80
@@ -354,17 +351,3 @@ class JobCard:
     def remarks(self) -> list[ReadingRow]:
         """Readings that carry a remark or a note, for the list under the readings table."""
         return [r for r in self.readings if r.remark or r.note]
-
-
-def build_report(
-    visit: Visit, profile: MachineProfile, diagnosis: Diagnosis, system: DisplaySystem | None = None
-) -> JobCard:
-    """Everything the job card says, from the visit, its machine and its diagnosis.
-
-    ``system`` should be the display system the diagnosis was made in (its texts already are);
-    it sets the units of the few values formatted here, such as the oil temperature. Raises
-    :class:`ReportError` for a visit without readings or a profile of another machine.
-    """
-    from fieldkit.report.build import assemble  # the builder imports this module's classes
-
-    return assemble(visit, profile, diagnosis, system or METRIC)

@@ -8,6 +8,8 @@ from __future__ import annotations
 
 import unicodedata
 
+from fieldkit import units
+
 #: Between a number and its unit sign, so a line never breaks between them.
 NBSP = "\u00a0"
 
@@ -41,8 +43,6 @@ def one_line(text: str) -> str:
 
 
 def percent(p: float) -> str:
-    if p < 0.005:
-        return f"<1{NBSP}%"
-    if p > 0.995:
-        return f">99{NBSP}%"
-    return f"{p * 100:.0f}{NBSP}%"
+    """A probability as the job card prints it (see :func:`fieldkit.units.percent`), with a
+    no-break space before the sign so a line never breaks inside it."""
+    return units.percent(p, gap=NBSP)

@@ -22,11 +22,8 @@ from fieldkit.model.profile import Circuit, CircuitKind, TestPoint
 from fieldkit.model.roles import Role
 from fieldkit.physics.accumulators import expected_precharge
 from fieldkit.physics.cylinders import bore_area, leakage_from_drift
+from fieldkit.simulate.constants import ATM_BAR, KELVIN, LEAKAGE_SCATTER, LOAD_SCATTER, SETTING_SCATTER
 from fieldkit.simulate.machine import (
-    KELVIN,
-    LEAKAGE_SCATTER,
-    LOAD_SCATTER,
-    SETTING_SCATTER,
     CircuitModel,
     Draw,
     Env,
@@ -39,7 +36,6 @@ from fieldkit.simulate.machine import (
     qty,
 )
 from fieldkit.simulate.open_circuits import stall_pressure
-from fieldkit.units import STANDARD_ATMOSPHERE
 
 #: Precharge figures are stated for gas at about 20 °C unless the maker says otherwise (from memory).
 PRECHARGE_REFERENCE_C = 20.0
@@ -47,7 +43,6 @@ PRECHARGE_REFERENCE_C = 20.0
 #: seal (the middle of the expected range; the split is the simulator's own choice).
 VALVE_SHARE = 0.5
 SEAL_SHARE = 0.1
-_ATM_BAR = STANDARD_ATMOSPHERE.m_as("bar")
 
 
 def _supply_stall(machine: Machine, env: Env) -> float | None:
@@ -66,8 +61,8 @@ def precharge_reading(model: CircuitModel, gas_c: float) -> float:
     """Gauge reading of a precharge set at ``precharge_c`` and read with the gas at ``gas_c``:
     constant gas volume, so absolute pressure scales with absolute temperature."""
     p = model.p
-    absolute = (p["precharge"] + _ATM_BAR) * (gas_c + KELVIN) / (p["precharge_c"] + KELVIN)
-    return max(0.0, absolute - _ATM_BAR)
+    absolute = (p["precharge"] + ATM_BAR) * (gas_c + KELVIN) / (p["precharge_c"] + KELVIN)
+    return max(0.0, absolute - ATM_BAR)
 
 
 def actuator(

@@ -34,11 +34,15 @@ from fieldkit.model.profile import Circuit, CircuitKind, TestPoint
 from fieldkit.model.roles import Role
 from fieldkit.physics.closed_loop import charge_flow_budget, expected_charge_pressure
 from fieldkit.physics.reliefs import ReliefValve, deadhead
-from fieldkit.simulate.machine import (
+from fieldkit.simulate.constants import (
+    DEEPEST_VACUUM_BAR,
     LEAKAGE_SCATTER,
     LOAD_SCATTER,
+    LOAD_SHARE,
     RESTRICTION_SCATTER,
     SETTING_SCATTER,
+)
+from fieldkit.simulate.machine import (
     CircuitModel,
     Draw,
     Env,
@@ -62,10 +66,8 @@ CHARGE_SHARE = 0.125
 #: Loop pressure travelling at full stroke and working under load, as a share of the cross-port
 #: relief (simulator's choice of test conditions).
 STROKE_SHARE = 0.35
-LOAD_SHARE = 0.6
 #: Charge relief override: bar per L/min passing over it (a small direct-acting valve; own estimate).
 CHARGE_OVERRIDE_SLOPE = 0.02
-DEEPEST_VACUUM_BAR = 0.9
 
 
 # --- closed loop ---------------------------------------------------------------------------

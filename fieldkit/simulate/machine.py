@@ -15,28 +15,19 @@ mm/min), so the hot loop of an evaluation does not build pint quantities it does
 
 from __future__ import annotations
 
-from collections.abc import Callable
+from collections.abc import Callable, Mapping
 from dataclasses import dataclass, field
 from random import Random
 
 import pint
 
 from fieldkit.model.condition import Condition, FunctionState
+from fieldkit.model.parameters import PARAMETERS
 from fieldkit.model.profile import Circuit, CircuitKind, MachineProfile, TestPoint
 from fieldkit.model.roles import Role
 from fieldkit.physics.fluid import ViscosityCurve, grade
+from fieldkit.simulate.constants import KELVIN, RESTRICTION_SCATTER, TYPICAL_SCATTER
 from fieldkit.units import Q_, Kind, to_canonical, unit
-
-KELVIN = 273.15
-
-#: Scatter between machines of one model, as a relative standard deviation (simulator's own
-#: estimates, not published figures): spring settings are set on a bench, leakage and line
-#: losses vary far more from one machine to the next.
-SETTING_SCATTER = 0.01
-LEAKAGE_SCATTER = 0.10
-RESTRICTION_SCATTER = 0.10
-LOAD_SCATTER = 0.05
-TYPICAL_SCATTER = 0.03
 
 
 def qty(value: float, expr: str) -> pint.Quantity:
@@ -127,6 +118,17 @@ PointPhysics = Callable[["Machine", CircuitModel, TestPoint, FunctionState, Env]
 Builder = Callable[["Machine", Circuit, Draw], CircuitModel]
 
 
+@dataclass(frozen=True)
+class PhysicsTable:
+    """Per circuit kind, how its healthy parameters are built and what its points read.
+
+    Passed in (:data:`fieldkit.simulate.physics_table.TABLE`) rather than imported here: the
+    kinds' modules build on this one, so importing them back would close a cycle."""
+
+    physics: Mapping[CircuitKind, PointPhysics]
+    builders: Mapping[CircuitKind, Builder]
+
+
 @dataclass
 class Machine:
     profile: MachineProfile
@@ -134,6 +136,7 @@ class Machine:
     curve: ViscosityCurve
     reference_c: float
     rated_rpm: float
+    table: PhysicsTable
     circuits: dict[str, CircuitModel] = field(default_factory=dict)
     #: Filled by the gauge-error fault: which reading goes wrong and how.
     gauge_fault: dict[str, float] = field(default_factory=dict)
@@ -160,14 +163,12 @@ class Machine:
     def true_value(self, circuit_id: str, point: TestPoint, state: FunctionState, env: Env) -> float | None:
         """What a perfect instrument would read at a point in a state, or None when neither the
         physics nor the profile says anything about it."""
-        from fieldkit.simulate.physics_table import PHYSICS
-
         if point.role is Role.OIL_TEMPERATURE:
             return env.oil_c
         if point.role is Role.PUMP_SPEED:
             return env.speed_rpm
         model = self.circuits[circuit_id]
-        value = PHYSICS[model.kind](self, model, point, state, env)
+        value = self.table.physics[model.kind](self, model, point, state, env)
         if value is None:
             value = typical(point, state)
             if value is not None:
@@ -183,8 +184,6 @@ def param(circuit: Circuit, name: str) -> float | None:
     q = circuit.parameters.get(name)
     if q is None:
         return None
-    from fieldkit.model.parameters import PARAMETERS
-
     return to_canonical(q, PARAMETERS[name][0])
 
 
@@ -241,10 +240,9 @@ def drain_line(max_case: float, healthy_flow: float, draw: Draw) -> tuple[float,
     return static, per_flow
 
 
-def build_machine(profile: MachineProfile, rng: Random | None) -> Machine:
-    """The healthy machine for a profile, with scatter from ``rng`` (None: the nominal machine)."""
-    from fieldkit.simulate.physics_table import BUILDERS
-
+def build_machine(profile: MachineProfile, rng: Random | None, table: PhysicsTable) -> Machine:
+    """The healthy machine for a profile, with scatter from ``rng`` (None: the nominal machine),
+    its circuits built and read by ``table``."""
     draw = Draw(rng)
     window = profile.test_window
     oil_min = to_canonical(window.oil_min, Kind.TEMPERATURE)
@@ -269,9 +267,10 @@ def build_machine(profile: MachineProfile, rng: Random | None) -> Machine:
         curve=grade(profile.oil_grade).curve,
         reference_c=to_canonical(profile.reference_oil_temperature, Kind.TEMPERATURE),
         rated_rpm=rated,
+        table=table,
     )
     for circuit in profile.circuits:
-        model = BUILDERS[circuit.kind](machine, circuit, draw)
+        model = table.builders[circuit.kind](machine, circuit, draw)
         model.typical = {tp.id: draw(1.0, TYPICAL_SCATTER) for tp in circuit.test_points}
         machine.circuits[circuit.id] = model
     return machine
@@ -282,6 +281,7 @@ __all__ = [
     "Draw",
     "Env",
     "Machine",
+    "PhysicsTable",
     "ReliefState",
     "TestSetting",
     "any_bounds",

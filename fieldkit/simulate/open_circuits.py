@@ -29,11 +29,15 @@ from fieldkit.model.condition import FunctionState
 from fieldkit.model.profile import Circuit, CircuitKind, ReliefLayout, TestPoint
 from fieldkit.model.roles import Role
 from fieldkit.physics.reliefs import Arrangement, Parallel, ReliefValve, Series, deadhead, opening_pressure
-from fieldkit.simulate.machine import (
+from fieldkit.simulate.constants import (
+    DEEPEST_VACUUM_BAR,
     LEAKAGE_SCATTER,
     LOAD_SCATTER,
+    LOAD_SHARE,
     RESTRICTION_SCATTER,
     SETTING_SCATTER,
+)
+from fieldkit.simulate.machine import (
     CircuitModel,
     Draw,
     Env,
@@ -53,10 +57,6 @@ from fieldkit.units import Kind, to_canonical
 #: vapour come out of the oil) and loses about a tenth of its fill per further 0.1 bar:
 #: the simulator's own simple model, not a published curve.
 CAVITATION_ONSET_BAR = 0.25
-#: A compound gauge cannot read below a near-perfect vacuum.
-DEEPEST_VACUUM_BAR = 0.9
-#: Pressure under load as a share of the cut-off or relief (simulator's choice of test load).
-LOAD_SHARE = 0.6
 #: The loading valve pressure of a flow test, as a share of the main relief (common practice:
 #: load the pump well up, below the relief so no oil bypasses).
 FLOW_TEST_SHARE = 0.8

@@ -18,7 +18,7 @@ from fieldkit.simulate.closed_loop import (
     closed_loop,
     motor,
 )
-from fieldkit.simulate.machine import Builder, CircuitModel, Draw, Env, Machine, PointPhysics
+from fieldkit.simulate.machine import Builder, CircuitModel, Draw, Env, Machine, PhysicsTable, PointPhysics
 from fieldkit.simulate.open_circuits import build_open, fixed_pump, variable_pump
 
 
@@ -67,4 +67,7 @@ BUILDERS: dict[CircuitKind, Builder] = {
     CircuitKind.PILOT_SUPPLY: build_actuator,
 }
 
-__all__ = ["BUILDERS", "PHYSICS"]
+#: What :func:`fieldkit.simulate.machine.build_machine` is given.
+TABLE = PhysicsTable(PHYSICS, BUILDERS)
+
+__all__ = ["BUILDERS", "PHYSICS", "TABLE"]

@@ -20,6 +20,7 @@ from fieldkit.model.visit import Condition, Reading, Scenario, Visit, VisitStatu
 from fieldkit.simulate import gauges as kit
 from fieldkit.simulate.faults import FAULTS, FaultModel
 from fieldkit.simulate.machine import Machine, build_machine, qty
+from fieldkit.simulate.physics_table import TABLE
 from fieldkit.simulate.plan import Planned, reading_plan
 from fieldkit.units import CANONICAL_UNIT, Kind, PressureReference, format_value
 
@@ -64,7 +65,7 @@ class Simulator:
     def __init__(self, profile: MachineProfile) -> None:
         self.profile = profile
         self.plan: list[Planned] = reading_plan(profile)
-        nominal = build_machine(profile, None)
+        nominal = build_machine(profile, None, TABLE)
         self.nominal = self._true_values(nominal)
         self.gauges: list[Gauge | None] = [
             kit.gauge_for(p.point.kind, p.point.role, v if v is not None else 0.0)
@@ -96,7 +97,7 @@ class Simulator:
                 p.point.kind is Kind.PRESSURE and (v or 0.0) >= GAUGE_FAULT_MIN_BAR
                 for p, v in zip(self.plan, self.nominal)
             )
-        machine = build_machine(self.profile, None)
+        machine = build_machine(self.profile, None, TABLE)
         model.change(machine, machine.circuits[circuit_id] if circuit_id else None, 1.0, Random(0))
         faulty = self._true_values(machine)
         return any(
@@ -149,7 +150,7 @@ class Simulator:
         if not 0.0 < severity <= MAX_SEVERITY:
             raise FieldkitError(f"severity must be above 0 and at most {MAX_SEVERITY:g}; got {severity:g}")
         machine_rng, fault_rng, _gauge_rng = _streams(seed)
-        machine = build_machine(self.profile, machine_rng)
+        machine = build_machine(self.profile, machine_rng, TABLE)
         if fault_id == NO_FAULT:
             return machine, Injection(NO_FAULT, None, severity, "healthy machine")
         targets = self.targets(fault_id)

@@ -182,7 +182,8 @@ async def _quiet(clock: FrameClock, done: Callable[[], bool], quiet: float = 0.1
 def _ranking_shown(diagnosis: Diagnosis, wide: bool) -> Callable[[list[str]], bool]:
     """True for a screen whose LIKELY line (and, when wide, first ranked-fault row) show the
     top fault of ``diagnosis`` with its bar and per cent."""
-    from fieldkit.tui.widgets.faults import fault_text, percent, prob_bar
+    from fieldkit.tui.widgets.faults import fault_text, prob_bar
+    from fieldkit.units import percent
 
     top = diagnosis.faults[0]
     likely = f"LIKELY ▸ {prob_bar(top.probability, 6)} {percent(top.probability)} {top.display_title}"

@@ -14,8 +14,9 @@ from pathlib import Path
 import pytest
 from report_builders import SAMPLE_VISITS, load
 
+from fieldkit.report.build import job_card
 from fieldkit.report.gauge_use import gauge_uses
-from fieldkit.report.model import LOW_ON_SCALE_KEY, build_report
+from fieldkit.report.model import LOW_ON_SCALE_KEY
 from fieldkit.report.text import render_text
 from fieldkit.units import METRIC
 
@@ -37,7 +38,7 @@ def test_the_card_flags_the_same_gauges_the_diagnosis_does(bench, path: Path) ->
 def test_every_gauge_concern_reaches_the_card_in_a_brief_form(bench, path: Path) -> None:
     visit, profile = load(bench, path)
     diagnosis = bench.diagnose(visit, profile)
-    card = build_report(visit, profile, diagnosis)
+    card = job_card(visit, profile, diagnosis)
     for check, row in zip(diagnosis.checks, card.readings, strict=True):
         advice = check.gauge_advice
         if "overranged" in advice:
@@ -57,7 +58,7 @@ def test_a_low_share_is_the_printed_gauge_error_over_the_reading(worn) -> None:
     # Worn-charge-pump demo visit, reading 5: case pressure 0.7 bar on the 0–10 bar class 1.6
     # gauge, printed error ±0.092 bar: 0.092 / 0.7 = 13 % [calc]. The share must agree with the
     # two numbers printed beside it, or the card would contradict itself.
-    card = build_report(*worn)
+    card = job_card(*worn)
     row = next(r for r in card.readings if r.low_share and r.reading == "0.7 bar")
     assert row.uncertainty == "±0.092 bar"
     assert row.low_share == "13 %"
@@ -65,6 +66,6 @@ def test_a_low_share_is_the_printed_gauge_error_over_the_reading(worn) -> None:
 
 
 def test_the_plain_text_card_spells_the_share_out_and_keeps_the_key(worn) -> None:
-    text = re.sub(r"\s+", " ", render_text(build_report(*worn)))
+    text = re.sub(r"\s+", " ", render_text(job_card(*worn)))
     assert "low on its scale, its error is 13 % of the reading" in text
     assert re.sub(r"\s+", " ", LOW_ON_SCALE_KEY) in text

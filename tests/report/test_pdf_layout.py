@@ -5,17 +5,16 @@ and a row joined to the one above never lands on another page."""
 from __future__ import annotations
 
 import itertools
-from pathlib import Path
 
 import pytest
 from fpdf import FPDF
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from fieldkit.report.pdf_tables import Cell, measured_table
-from fieldkit.report.pdf_text import FAMILY, PADDING, Run, line_height, text_height, wrap_lines, wrap_runs
+from fieldkit.report.pdf.style import BOLD_FONT, FAMILY, REGULAR_FONT
+from fieldkit.report.pdf.tables import Cell, measured_table
+from fieldkit.report.pdf.text import PADDING, Run, line_height, text_height, wrap_lines, wrap_runs
 
-FONTS = Path(__file__).resolve().parents[2] / "fieldkit" / "report" / "fonts"
 WORDS = st.one_of(
     st.sampled_from(
         ["bar", "±0.35", "Δp", "≥", "°C", "µm", "case", "drain", "—", "relief-valve", "\u00a0%", "x" * 60]
@@ -27,8 +26,8 @@ TEXTS = st.lists(st.one_of(WORDS, st.just("\n"), st.just("")), min_size=1, max_s
 
 def _pdf() -> FPDF:
     pdf = FPDF(unit="mm", format="A4")
-    pdf.add_font(FAMILY, "", FONTS / "DejaVuSans.ttf")
-    pdf.add_font(FAMILY, "B", FONTS / "DejaVuSans-Bold.ttf")
+    pdf.add_font(FAMILY, "", REGULAR_FONT)
+    pdf.add_font(FAMILY, "B", BOLD_FONT)
     pdf.add_page()
     return pdf
 

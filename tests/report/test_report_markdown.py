@@ -16,8 +16,9 @@ from markdown_it import MarkdownIt
 from markdown_it.token import Token
 from report_builders import HOSTILE, SAMPLE_VISITS, load, with_reading_note, with_text
 
+from fieldkit.report.build import job_card
 from fieldkit.report.markdown import block_line, inline, paragraph, render_markdown
-from fieldkit.report.model import JobCard, build_report
+from fieldkit.report.model import JobCard
 from fieldkit.session import Workbench
 
 PARSER = MarkdownIt("commonmark").enable("table").enable("strikethrough")
@@ -73,9 +74,7 @@ def _hostile_card(bench: Workbench) -> JobCard:
         notes=f"# not a heading\n- not a list\n1. not a list\n---\n{HOSTILE}\n> not a quote",
         technician="Ann_e **B**",
     )
-    return build_report(
-        with_reading_note(odd, 0, "seal | weeping *badly* [see](http://x)"), profile, diagnosis
-    )
+    return job_card(with_reading_note(odd, 0, "seal | weeping *badly* [see](http://x)"), profile, diagnosis)
 
 
 def test_readings_table_keeps_its_shape_when_user_text_has_pipes_and_markup(bench) -> None:
@@ -156,7 +155,7 @@ def test_user_text_never_becomes_a_link_html_emphasis_or_a_block(bench) -> None:
 def test_sample_visits_give_well_formed_tables(bench, path: Path) -> None:
     visit, profile = load(bench, path)
     diagnosis = bench.diagnose(visit, profile)
-    md = render_markdown(build_report(visit, profile, diagnosis))
+    md = render_markdown(job_card(visit, profile, diagnosis))
     tables = _tables(PARSER.parse(md))
     readings = next(rows for head, rows in tables if head and head[1] == "Test point")
     assert [row[3] for row in readings] == [c.value for c in diagnosis.checks]

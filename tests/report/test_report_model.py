@@ -10,14 +10,15 @@ from report_builders import with_text
 
 from fieldkit.diagnosis.results import Diagnosis, Verdict
 from fieldkit.model.visit import Visit
-from fieldkit.report.model import SETTLED, TOP_FAULTS, ReportError, build_report, make_band
+from fieldkit.report.build import job_card
+from fieldkit.report.model import SETTLED, TOP_FAULTS, ReportError, make_band
 from fieldkit.report.usertext import plain
 from fieldkit.units import DisplaySystem
 
 
 def test_every_current_reading_gets_a_row_in_diagnosis_order(worn) -> None:
     visit, profile, diagnosis = worn
-    card = build_report(visit, profile, diagnosis)
+    card = job_card(visit, profile, diagnosis)
     assert [r.reading_id for r in card.readings] == [c.reading_id for c in diagnosis.checks]
     assert [r.reading for r in card.readings] == [c.value for c in diagnosis.checks]
     assert [r.number for r in card.readings] == list(range(1, len(diagnosis.checks) + 1))
@@ -25,7 +26,7 @@ def test_every_current_reading_gets_a_row_in_diagnosis_order(worn) -> None:
 
 def test_inconclusive_readings_say_so_and_what_to_do(worn) -> None:
     visit, profile, diagnosis = worn
-    card = build_report(visit, profile, diagnosis)
+    card = job_card(visit, profile, diagnosis)
     unsure = [r for r in card.readings if r.verdict is Verdict.INCONCLUSIVE]
     assert unsure, "the worn-charge-pump demo visit has readings within the gauge error of a limit"
     for r in unsure:
@@ -36,7 +37,7 @@ def test_inconclusive_readings_say_so_and_what_to_do(worn) -> None:
 
 def test_out_of_range_and_inconclusive_findings_lead_and_in_range_ones_are_summed_up(worn) -> None:
     visit, profile, diagnosis = worn
-    card = build_report(visit, profile, diagnosis)
+    card = job_card(visit, profile, diagnosis)
     order = [f.verdict for f in card.findings.flagged]
     assert order == sorted(order, key=lambda v: v is Verdict.INCONCLUSIVE)  # out of range first
     assert {f.verdict for f in card.findings.flagged} <= {Verdict.LOW, Verdict.HIGH, Verdict.INCONCLUSIVE}
@@ -47,7 +48,7 @@ def test_out_of_range_and_inconclusive_findings_lead_and_in_range_ones_are_summe
 
 def test_faults_beyond_the_top_five_are_summed_into_one_line(worn) -> None:
     visit, profile, diagnosis = worn
-    card = build_report(visit, profile, diagnosis)
+    card = job_card(visit, profile, diagnosis)
     assert [f.title for f in card.faults.top] == [f.display_title for f in diagnosis.faults[:TOP_FAULTS]]
     rest = diagnosis.faults[TOP_FAULTS:]
     assert card.faults.others_count == len(rest)
@@ -59,7 +60,7 @@ def test_faults_beyond_the_top_five_are_summed_into_one_line(worn) -> None:
 
 def test_each_listed_fault_carries_its_evidence(worn) -> None:
     visit, profile, diagnosis = worn
-    card = build_report(visit, profile, diagnosis)
+    card = job_card(visit, profile, diagnosis)
     top = card.faults.top[0]
     assert top.supporting, "the leading fault of the demo visit is supported by findings"
     assert top.supporting[0].title == diagnosis.top.supporting[0].title
@@ -69,7 +70,7 @@ def test_each_listed_fault_carries_its_evidence(worn) -> None:
 
 def test_actions_hold_the_leading_faults_fix_and_the_findings_actions(worn) -> None:
     visit, profile, diagnosis = worn
-    card = build_report(visit, profile, diagnosis)
+    card = job_card(visit, profile, diagnosis)
     texts = " ".join(a.text for a in card.actions)
     assert diagnosis.top.fix in texts
     for f in diagnosis.findings:
@@ -88,11 +89,11 @@ def _with_top_probability(diagnosis: Diagnosis, p: float) -> Diagnosis:
 def test_next_test_is_shown_only_while_the_diagnosis_is_not_settled(worn) -> None:
     visit, profile, diagnosis = worn
     assert diagnosis.next_tests, "the demo visit suggests a next test"
-    unsettled = build_report(visit, profile, _with_top_probability(diagnosis, SETTLED - 0.2))
+    unsettled = job_card(visit, profile, _with_top_probability(diagnosis, SETTLED - 0.2))
     assert not unsettled.settled
     assert unsettled.next_test is not None
     assert unsettled.next_test.why == diagnosis.next_tests[0].why
-    settled = build_report(visit, profile, _with_top_probability(diagnosis, SETTLED + 0.05))
+    settled = job_card(visit, profile, _with_top_probability(diagnosis, SETTLED + 0.05))
     assert settled.settled
     assert settled.next_test is None
     assert settled.next_test_note.startswith("Settled")
@@ -100,7 +101,7 @@ def test_next_test_is_shown_only_while_the_diagnosis_is_not_settled(worn) -> Non
 
 def test_general_caution_comes_first_and_visit_cautions_follow(worn) -> None:
     visit, profile, diagnosis = worn
-    card = build_report(visit, profile, diagnosis)
+    card = job_card(visit, profile, diagnosis)
     assert card.cautions[0].general
     assert [c.title for c in card.cautions] == [c.title for c in diagnosis.cautions]
 
@@ -108,7 +109,7 @@ def test_general_caution_comes_first_and_visit_cautions_follow(worn) -> None:
 def test_general_caution_is_kept_even_when_the_rules_lack_it(worn) -> None:
     visit, profile, diagnosis = worn
     without = dataclasses.replace(diagnosis, cautions=[c for c in diagnosis.cautions if c.id != "general"])
-    card = build_report(visit, profile, without)
+    card = job_card(visit, profile, without)
     assert card.cautions[0].general
     assert len(card.cautions) == len(diagnosis.cautions)
 
@@ -117,19 +118,19 @@ def test_a_visit_without_readings_is_refused_with_a_clear_message(worn) -> None:
     visit, profile, diagnosis = worn
     empty = visit.model_copy(update={"readings": []})
     with pytest.raises(ReportError, match="has no readings"):
-        build_report(empty, profile, diagnosis)
+        job_card(empty, profile, diagnosis)
 
 
 def test_a_profile_for_another_machine_is_refused(worn) -> None:
     visit, profile, diagnosis = worn
     other = visit.model_copy(update={"machine": "some-other-machine"})
     with pytest.raises(ReportError, match="some-other-machine"):
-        build_report(other, profile, diagnosis)
+        job_card(other, profile, diagnosis)
 
 
 def test_header_carries_the_visit_as_typed(worn) -> None:
     visit, profile, diagnosis = worn
-    card = build_report(with_text(visit, job_number="J|17 *x*", customer="A & B <Ltd>"), profile, diagnosis)
+    card = job_card(with_text(visit, job_number="J|17 *x*", customer="A & B <Ltd>"), profile, diagnosis)
     assert card.header.job_number == "J|17 *x*"
     assert card.header.customer == "A & B <Ltd>"
     assert card.header.machine == profile.name
@@ -139,8 +140,8 @@ def test_header_carries_the_visit_as_typed(worn) -> None:
 
 def test_oil_temperature_follows_the_display_units(worn) -> None:
     visit, profile, diagnosis = worn
-    metric = build_report(visit, profile, diagnosis, DisplaySystem.named("metric"))
-    us = build_report(visit, profile, diagnosis, DisplaySystem.named("us"))
+    metric = job_card(visit, profile, diagnosis, DisplaySystem.named("metric"))
+    us = job_card(visit, profile, diagnosis, DisplaySystem.named("us"))
     assert metric.header.oil_temperature == "58 °C to 61 °C during readings"
     # t/°F = 1.8 · t/°C + 32 (NIST SP 811, section 4.2.1.1): 58 °C = 136.4 °F, 61 °C = 141.8 °F.
     assert us.header.oil_temperature == "136.4 °F to 141.8 °F during readings"
@@ -192,13 +193,13 @@ def test_a_visit_model_without_current_readings_counts_as_empty(worn) -> None:
     deleted = first.model_copy(update={"deleted_at": first.taken_at})
     only_deleted: Visit = visit.model_copy(update={"readings": [deleted]})
     with pytest.raises(ReportError, match="no readings"):
-        build_report(only_deleted, profile, diagnosis)
+        job_card(only_deleted, profile, diagnosis)
 
 
 def test_an_inconclusive_finding_on_one_inconclusive_reading_is_named_not_repeated(worn) -> None:
     # Worn-charge-pump demo visit: "Loop B pressure with the drive stalled" rests on reading 9
     # alone, itself inconclusive; its message only restates that row. It is named in one line.
-    card = build_report(*worn)
+    card = job_card(*worn)
     repeated = [f for f in card.findings.flagged if f.repeats_reading]
     assert [f.title for f in repeated] == ["Loop B pressure with the drive stalled"]
     (finding,) = repeated

@@ -21,9 +21,10 @@ from report_builders import (
     with_text,
 )
 
-import fieldkit.report.pdf as pdf_module
+import fieldkit.report.pdf.card as pdf_module
 from fieldkit.diagnosis.results import Verdict
-from fieldkit.report.model import Band, build_report
+from fieldkit.report.build import job_card
+from fieldkit.report.model import Band
 from fieldkit.report.pdf import render_pdf
 
 FIXED = datetime(2025, 5, 14, 8, 30, tzinfo=UTC)
@@ -46,7 +47,7 @@ def _read(data: bytes) -> tuple[PdfReader, str]:
 def test_pdf_holds_every_reading_the_top_fault_and_the_cautions(bench, path: Path) -> None:
     visit, profile = load(bench, path)
     diagnosis = bench.diagnose(visit, profile)
-    card = build_report(visit, profile, diagnosis)
+    card = job_card(visit, profile, diagnosis)
     _reader, text = _read(render_pdf(card, fixed_date=FIXED))
     for check in diagnosis.checks:
         assert _flat(check.value) in text, check.value
@@ -81,7 +82,7 @@ def test_pdf_holds_every_reading_the_top_fault_and_the_cautions(bench, path: Pat
 def test_every_sample_visit_fits_on_two_pages_of_a4_and_of_letter(bench, path: Path) -> None:
     # The issue asks for a job card legible on one or two A4/Letter pages.
     visit, profile = load(bench, path)
-    card = build_report(visit, profile, bench.diagnose(visit, profile))
+    card = job_card(visit, profile, bench.diagnose(visit, profile))
     for letter, size in ((False, A4), (True, LETTER)):
         reader, text = _read(render_pdf(card, letter=letter, fixed_date=FIXED))
         assert len(reader.pages) <= 2, (
@@ -95,7 +96,7 @@ def test_every_sample_visit_fits_on_two_pages_of_a4_and_of_letter(bench, path: P
 def test_cautions_are_printed_in_the_order_the_card_gives_them(worn) -> None:
     # Three columns are read downwards: drawing them column by column keeps the card's order
     # (general caution first, then by severity) in the page's own text order too.
-    card = build_report(*worn)
+    card = job_card(*worn)
     _reader, text = _read(render_pdf(card, fixed_date=FIXED))
     section = text[text.index("Safety cautions") :]
     places = [section.index(_flat(c.title)) for c in card.cautions]
@@ -104,7 +105,7 @@ def test_cautions_are_printed_in_the_order_the_card_gives_them(worn) -> None:
 
 
 def test_pdf_is_a4_by_default_and_letter_when_asked(worn) -> None:
-    card = build_report(*worn)
+    card = job_card(*worn)
     for letter, size in ((False, A4), (True, LETTER)):
         reader, _text = _read(render_pdf(card, letter=letter, fixed_date=FIXED))
         for page in reader.pages:
@@ -115,21 +116,21 @@ def test_pdf_is_a4_by_default_and_letter_when_asked(worn) -> None:
 def test_symbols_outside_latin1_print_as_typed(worn) -> None:
     visit, profile, diagnosis = worn
     noted = with_text(visit, notes=UNICODE_NOTE)
-    _reader, text = _read(render_pdf(build_report(noted, profile, diagnosis), fixed_date=FIXED))
+    _reader, text = _read(render_pdf(job_card(noted, profile, diagnosis), fixed_date=FIXED))
     assert UNICODE_NOTE in text
 
 
 def test_a_character_the_font_lacks_is_marked_not_swapped(worn) -> None:
     visit, profile, diagnosis = worn
     noted = with_text(visit, notes="pump \u4e2d seal")  # a CJK character: DejaVu Sans has no glyph for it
-    _reader, text = _read(render_pdf(build_report(noted, profile, diagnosis), fixed_date=FIXED))
+    _reader, text = _read(render_pdf(job_card(noted, profile, diagnosis), fixed_date=FIXED))
     assert "pump [U+4E2D] seal" in text
 
 
 def test_markup_in_user_text_is_printed_literally(worn) -> None:
     visit, profile, diagnosis = worn
     hostile = with_reading_note(with_text(visit, notes=HOSTILE, customer="**Bold** Ltd"), 0, "[x](y) **z**")
-    _reader, text = _read(render_pdf(build_report(hostile, profile, diagnosis), fixed_date=FIXED))
+    _reader, text = _read(render_pdf(job_card(hostile, profile, diagnosis), fixed_date=FIXED))
     assert _flat(HOSTILE) in text
     assert "**Bold** Ltd" in text
     assert "[x](y) **z**" in text
@@ -138,13 +139,13 @@ def test_markup_in_user_text_is_printed_literally(worn) -> None:
 def test_a_note_that_looks_like_a_page_number_alias_stays_as_typed(worn) -> None:
     visit, profile, diagnosis = worn
     noted = with_text(visit, notes="see {nb} and {pg} pages")
-    reader, text = _read(render_pdf(build_report(noted, profile, diagnosis), fixed_date=FIXED))
+    reader, text = _read(render_pdf(job_card(noted, profile, diagnosis), fixed_date=FIXED))
     assert "see {nb} and {pg} pages" in text
     assert f"page 1 of {len(reader.pages)}" in text
 
 
 def test_same_visit_and_fixed_date_give_the_same_pdf(worn) -> None:
-    card = build_report(*worn)
+    card = job_card(*worn)
     first, second = render_pdf(card, fixed_date=FIXED), render_pdf(card, fixed_date=FIXED)
     reader, text_one = _read(first)
     _reader, text_two = _read(second)
@@ -162,7 +163,7 @@ def test_a_band_picture_is_drawn_in_each_reading_row(worn, monkeypatch: pytest.M
         real(pdf, band, verdict, x, y, w, h)
 
     monkeypatch.setattr(pdf_module, "band_picture", spy)
-    card = build_report(*worn)
+    card = job_card(*worn)
     render_pdf(card, fixed_date=FIXED)
     with_band = [r.band.value for r in card.readings if r.band is not None]
     assert [value for value, _y, _h in drawn] == with_band
@@ -177,7 +178,7 @@ def test_forty_readings_run_onto_more_pages_with_the_headings_repeated(bench) ->
     big = many_readings(visit, 40)
     diagnosis = bench.diagnose(big, profile)
     assert len(diagnosis.checks) == 40
-    reader, text = _read(render_pdf(build_report(big, profile, diagnosis), fixed_date=FIXED))
+    reader, text = _read(render_pdf(job_card(big, profile, diagnosis), fixed_date=FIXED))
     assert len(reader.pages) >= 3
     for check in diagnosis.checks:
         assert _flat(check.value) in text
@@ -189,7 +190,7 @@ def test_forty_readings_run_onto_more_pages_with_the_headings_repeated(bench) ->
 def test_a_very_long_reading_note_moves_to_the_notes_instead_of_breaking_the_table(worn) -> None:
     visit, profile, diagnosis = worn
     note = "\n".join(f"line {i}: seal weeping at the test port" for i in range(120))
-    card = build_report(with_reading_note(visit, 2, note), profile, diagnosis)
+    card = job_card(with_reading_note(visit, 2, note), profile, diagnosis)
     _reader, text = _read(render_pdf(card, fixed_date=FIXED))
     assert "printed in full under Notes" in text
     assert "line 0: seal weeping" in text and "line 119: seal weeping" in text

@@ -8,8 +8,8 @@ from pathlib import Path
 import pytest
 from report_builders import HOSTILE, SAMPLE_VISITS, UNICODE_NOTE, load, with_reading_note, with_text
 
+from fieldkit.report.build import job_card
 from fieldkit.report.columns import width, wrap
-from fieldkit.report.model import build_report
 from fieldkit.report.text import COLUMNS, render_text
 
 
@@ -27,7 +27,7 @@ def _assert_fits(text: str) -> None:
 def test_text_fits_80_columns_and_holds_each_reading_and_the_top_fault(bench, path: Path) -> None:
     visit, profile = load(bench, path)
     diagnosis = bench.diagnose(visit, profile)
-    text = render_text(build_report(visit, profile, diagnosis))
+    text = render_text(job_card(visit, profile, diagnosis))
     _assert_fits(text)
     flat = _flat(text)
     for check in diagnosis.checks:
@@ -44,9 +44,7 @@ def test_long_words_wide_scripts_and_tabs_still_fit(worn) -> None:
         notes="https://example.invalid/" + "a" * 300 + "\n中文的注释" * 40 + "\n" + UNICODE_NOTE,
         job_number="J" * 40,
     )
-    text = render_text(
-        build_report(with_reading_note(odd, 1, "\u00e9\u0301" * 100 + " end"), profile, diagnosis)
-    )
+    text = render_text(job_card(with_reading_note(odd, 1, "\u00e9\u0301" * 100 + " end"), profile, diagnosis))
     _assert_fits(text)
     assert UNICODE_NOTE in text
     assert "\t" not in text
@@ -54,7 +52,7 @@ def test_long_words_wide_scripts_and_tabs_still_fit(worn) -> None:
 
 def test_user_text_is_printed_as_typed_and_control_codes_are_made_visible(worn) -> None:
     visit, profile, diagnosis = worn
-    text = render_text(build_report(with_text(visit, notes=HOSTILE + " \x1b[31mred"), profile, diagnosis))
+    text = render_text(job_card(with_text(visit, notes=HOSTILE + " \x1b[31mred"), profile, diagnosis))
     assert "\x1b" not in text
     assert "\\x1b[31mred" in text
     assert _flat(HOSTILE) in _flat(text)

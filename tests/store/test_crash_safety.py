@@ -28,9 +28,9 @@ from collections.abc import Iterator
 from pathlib import Path
 
 import pytest
+from store_builders import MACHINE, integrity, visit
 
 from fieldkit.store.sqlite import SqliteVisitStore
-from store_builders import MACHINE, integrity, visit
 
 pytestmark = pytest.mark.skipif(
     not hasattr(os, "fork") or not hasattr(signal, "SIGKILL"), reason="needs POSIX fork and SIGKILL"

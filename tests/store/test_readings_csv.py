@@ -7,6 +7,7 @@ from datetime import UTC, timedelta, timezone
 from pathlib import Path
 
 import pytest
+from store_builders import CASE_DRAIN, CHARGE, LOOP_A, profile, raw_rows, visit
 
 from fieldkit.errors import DataFileError
 from fieldkit.model.visit import FunctionState
@@ -20,7 +21,6 @@ from fieldkit.store.csv_import import (
 )
 from fieldkit.store.sqlite import SqliteVisitStore
 from fieldkit.units import Q_, Kind, PressureReference
-from store_builders import CASE_DRAIN, CHARGE, LOOP_A, profile, raw_rows, visit
 
 POINTS = {CHARGE: Kind.PRESSURE, CASE_DRAIN: Kind.FLOW, LOOP_A: Kind.PRESSURE}
 

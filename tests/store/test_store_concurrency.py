@@ -11,10 +11,10 @@ import time
 from pathlib import Path
 
 import pytest
+from store_builders import integrity, reading, visit
 
 from fieldkit.errors import StoreError
 from fieldkit.store.sqlite import SqliteVisitStore
-from store_builders import integrity, reading, visit
 
 CHILD = Path(__file__).with_name("store_child.py")
 

@@ -12,12 +12,12 @@ import sqlite3
 from pathlib import Path
 
 import pytest
+from store_builders import CHARGE, digest, raw_rows, reading, visit
 
 from fieldkit.errors import StoreError
 from fieldkit.store.migrations import APPLICATION_ID, MIGRATIONS, Migration, latest_version
 from fieldkit.store.opening import create_store
 from fieldkit.store.sqlite import SqliteVisitStore
-from store_builders import CHARGE, digest, raw_rows, reading, visit
 
 
 def _store_with_readings(path: Path, count: int = 60) -> str:

@@ -6,11 +6,11 @@ import sqlite3
 from pathlib import Path
 
 import pytest
+from store_builders import CHARGE, digest, raw_rows, reading, visit, visit_with_readings
 
 from fieldkit.errors import StoreError
 from fieldkit.model.visit import Reading, Visit
 from fieldkit.store.sqlite import SqliteVisitStore
-from store_builders import CHARGE, digest, raw_rows, reading, visit, visit_with_readings
 
 
 def _snapshot(store: SqliteVisitStore) -> tuple[object, ...]:

@@ -9,12 +9,6 @@ import threading
 from pathlib import Path
 
 import pytest
-
-from fieldkit.errors import StoreError
-from fieldkit.model.visit import Reading, VisitStatus
-from fieldkit.store import SqliteVisitStore, VisitStore, open_store
-from fieldkit.store.migrations import APPLICATION_ID
-from fieldkit.units import Q_
 from store_builders import (
     CASE_DRAIN,
     CHARGE,
@@ -26,6 +20,12 @@ from store_builders import (
     visit,
     visit_with_readings,
 )
+
+from fieldkit.errors import StoreError
+from fieldkit.model.visit import Reading, VisitStatus
+from fieldkit.store import SqliteVisitStore, VisitStore, open_store
+from fieldkit.store.migrations import APPLICATION_ID
+from fieldkit.units import Q_
 
 
 def test_the_sqlite_store_offers_every_operation_the_screens_use(store: SqliteVisitStore) -> None:

@@ -8,12 +8,14 @@ from pathlib import Path
 
 import pytest
 from hypothesis import HealthCheck, given, settings
+from store_builders import profile, visit, visit_with_readings
+from visit_strategies import visits
 
 from fieldkit.errors import DataFileError
 from fieldkit.model.visit import Visit
 from fieldkit.store import transfer
-from fieldkit.store.sqlite import SqliteVisitStore
 from fieldkit.store.filenames import MAX_STEM_BYTES, MAX_STEM_CHARS, safe_file_name
+from fieldkit.store.sqlite import SqliteVisitStore
 from fieldkit.store.transfer import (
     MAX_EXPORT_BYTES,
     export_file_name,
@@ -21,8 +23,6 @@ from fieldkit.store.transfer import (
     read_visit_json,
     write_export,
 )
-from store_builders import profile, visit, visit_with_readings
-from visit_strategies import visits
 
 
 def _tree(root: Path) -> set[str]:

@@ -7,10 +7,10 @@ import datetime as dt
 from datetime import UTC
 
 from hypothesis import strategies as st
+from store_builders import CASE_DRAIN, CHARGE, LOOP_A, MACHINE, gauge
 
 from fieldkit.model.visit import Condition, FunctionState, Reading, Visit
 from fieldkit.units import Q_, PressureReference, unit
-from store_builders import CASE_DRAIN, CHARGE, LOOP_A, MACHINE, gauge
 
 # Units a gauge or meter reads in, as pint expressions (our spellings map onto these).
 PRESSURE_UNITS = ("bar", "psi", "megapascal", "kilopascal", "millibar")

@@ -18,7 +18,8 @@ from fieldkit.tui.screens.gauge import OTHER_STANDARD, build_gauge
 from fieldkit.tui.step import gauge_fit, step_cautions, suggest_gauge
 from fieldkit.tui.trend import history_table, sparkline
 from fieldkit.tui.widgets.band import MARK, draw_band
-from fieldkit.tui.widgets.faults import percent, prob_bar
+from fieldkit.tui.widgets.faults import prob_bar
+from fieldkit.units import percent
 
 from .conftest import DEMO_OPEN_VISIT
 

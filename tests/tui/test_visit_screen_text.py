@@ -5,7 +5,7 @@ not fail them, and a missing key hint or caution does)."""
 from __future__ import annotations
 
 from fieldkit.tui.screens.visit import VisitScreen
-from fieldkit.tui.widgets.faults import percent
+from fieldkit.units import percent
 
 from .conftest import wait_until
 from .screen_text import screen_lines, screen_text

@@ -14,8 +14,9 @@ from fieldkit.diagnosis.results import Diagnosis, RankedFault
 from fieldkit.tui import keys
 from fieldkit.tui.safe_text import literal
 from fieldkit.tui.widgets.band import VERDICT_WORD
-from fieldkit.tui.widgets.faults import FaultList, FindingsView, percent, prob_bar
+from fieldkit.tui.widgets.faults import FaultList, FindingsView, prob_bar
 from fieldkit.tui.widgets.keybar import KeyBar
+from fieldkit.units import percent
 
 
 def next_tests_text(diagnosis: Diagnosis) -> Text:

@@ -20,9 +20,8 @@ from fieldkit.tui import keys
 from fieldkit.tui.export import FORMATS, default_folder, export_job_card, jobcard_available
 from fieldkit.tui.safe_text import literal
 from fieldkit.tui.screens.dialogs import Dialog
-from fieldkit.tui.widgets.faults import percent
 from fieldkit.tui.widgets.keybar import KeyBar
-from fieldkit.units import DisplaySystem
+from fieldkit.units import DisplaySystem, percent
 
 WRITE_ERRORS = (FieldkitError, OSError, ValueError)
 

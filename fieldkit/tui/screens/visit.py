@@ -48,11 +48,11 @@ from fieldkit.tui.step import (
 )
 from fieldkit.tui.widgets.bars import caution_strip, next_line, top_fault_line, visit_title
 from fieldkit.tui.widgets.changes import show_text
-from fieldkit.tui.widgets.faults import FaultList, FindingsView, percent
+from fieldkit.tui.widgets.faults import FaultList, FindingsView
 from fieldkit.tui.widgets.keybar import KeyBar
 from fieldkit.tui.widgets.plan_list import PlanList
 from fieldkit.tui.widgets.step_panel import StepPanel, StepView
-from fieldkit.units import Kind, format_value, parse_value
+from fieldkit.units import Kind, format_value, parse_value, percent
 
 WIDE_FROM = 118  # columns from which the ranked faults and findings are shown beside the step
 # s: one turn of the event loop, for the widgets changed by a save to report to the screen

@@ -9,7 +9,8 @@ from fieldkit.diagnosis.results import Diagnosis, NextTest, RankedFault
 from fieldkit.model.profile import MachineProfile
 from fieldkit.model.visit import Visit, VisitStatus
 from fieldkit.tui.safe_text import literal
-from fieldkit.tui.widgets.faults import percent, prob_bar
+from fieldkit.tui.widgets.faults import prob_bar
+from fieldkit.units import percent
 
 SEVERITY_SHORT = {"danger": "‼", "warning": "!", "notice": "i"}
 

@@ -13,6 +13,7 @@ from textual.widgets.option_list import Option
 from fieldkit.diagnosis.results import Diagnosis, Finding, RankedFault, Verdict
 from fieldkit.tui.safe_text import literal
 from fieldkit.tui.widgets.changes import same_text, show_text
+from fieldkit.units import percent
 
 EIGHTHS = " ▏▎▍▌▋▊▉█"
 FINDING_GLYPH = {
@@ -31,15 +32,6 @@ def prob_bar(p: float, width: int = 10) -> str:
     full, part = divmod(eighths, 8)
     bar = "█" * full + (EIGHTHS[part] if part and full < width else "")
     return bar + "·" * (width - len(bar))
-
-
-def percent(p: float) -> str:
-    """Whole per cent, but never '0%' or '100%' for a probability that is neither."""
-    if 0 < p < 0.005:
-        return "<1%"
-    if 0.995 <= p < 1:
-        return ">99%"
-    return f"{p:.0%}"
 
 
 def fault_text(f: RankedFault, bar_width: int = 10) -> Text:

@@ -8,14 +8,11 @@ from contextlib import contextmanager
 
 from fpdf import FPDF
 
-from fieldkit.report.pdf_draw import ACCENT, INK
-from fieldkit.report.pdf_text import FAMILY, Run, line_height, print_line, print_runs, wrap_lines, wrap_runs
+from fieldkit.report.pdf.style import ACCENT, BODY, FAMILY, INK
+from fieldkit.report.pdf.text import Run, line_height, print_line, print_runs, wrap_lines, wrap_runs
 
 MARGIN = 10.0
 FOOT = 12.0  # bottom margin: the footer line sits in it
-BODY = 8.0
-SMALL = 6.8
-TINY = 6.0
 SECTION = 6.4  # height of a section heading with its rule and spacing
 
 

@@ -11,19 +11,18 @@ from fpdf import FPDF
 
 from fieldkit.diagnosis.results import Verdict
 from fieldkit.report.model import Band
-
-INK = (33, 37, 41)
-MUTED = (96, 106, 116)
-RULE = (196, 204, 212)
-ACCENT = (22, 86, 110)
-RANGE_FILL = (196, 228, 204)
-RANGE_EDGE = (84, 150, 100)
-OUT = (178, 34, 24)
-OUT_FILL = (251, 226, 222)
-UNSURE = (166, 104, 0)
-UNSURE_FILL = (255, 240, 200)
-OK = (36, 112, 58)
-ZEBRA = (244, 246, 248)
+from fieldkit.report.pdf.style import (
+    ACCENT,
+    FAMILY,
+    INK,
+    MUTED,
+    OK,
+    OUT,
+    RANGE_EDGE,
+    RANGE_FILL,
+    RULE,
+    UNSURE,
+)
 
 NEEDLE = {Verdict.LOW: OUT, Verdict.HIGH: OUT, Verdict.INCONCLUSIVE: UNSURE, Verdict.IN_RANGE: OK}
 
@@ -80,8 +79,6 @@ def probability_bar(pdf: FPDF, p: float, x: float, y: float, w: float, h: float)
 
 def band_legend(pdf: FPDF, x: float, y: float, size: float) -> float:
     """A one-line key to the band pictures; returns the height used."""
-    from fieldkit.report.pdf_tables import FAMILY
-
     h = 4.0
     mid = y + h / 2
     pdf.set_font(FAMILY, "", size)

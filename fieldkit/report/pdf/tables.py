@@ -1,6 +1,6 @@
 """Tables for the PDF job card, laid out and drawn by us with fpdf2's plain ``cell``, ``rect`` and ``line``.
 
-Every cell is broken into lines once (:func:`fieldkit.report.pdf_text.wrap_lines`) and those
+Every cell is broken into lines once (:func:`fieldkit.report.pdf.text.wrap_lines`) and those
 same lines are printed, so a row's measured height is the height it is drawn at, by
 construction: the band pictures and probability bars drawn into cells afterwards always land
 beside their own row. (fpdf2's ``table()`` laid every cell out twice, once to size the row and
@@ -16,9 +16,9 @@ from dataclasses import dataclass
 
 from fpdf import FPDF
 
-from fieldkit.report.pdf_layout import section
-from fieldkit.report.pdf_text import (
-    FAMILY,
+from fieldkit.report.pdf.layout import section
+from fieldkit.report.pdf.style import FAMILY, INK, RULE
+from fieldkit.report.pdf.text import (
     PADDING,
     Run,
     line_height,
@@ -29,10 +29,7 @@ from fieldkit.report.pdf_text import (
     wrap_runs,
 )
 
-__all__ = ["FAMILY", "Cell", "Draw", "Run", "line_height", "measured_table", "text_height"]
-
-INK = (33, 37, 41)
-RULE = (206, 212, 218)
+__all__ = ["Cell", "Draw", "Run", "line_height", "measured_table", "text_height"]
 
 
 @dataclass(frozen=True, slots=True)

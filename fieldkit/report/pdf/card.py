@@ -15,43 +15,34 @@ from __future__ import annotations
 
 import hashlib
 from datetime import UTC, datetime
-from pathlib import Path
 
 from fpdf import FPDF
 
 from fieldkit.diagnosis.results import Verdict
 from fieldkit.report.model import JobCard, Note
-from fieldkit.report.pdf_boxes import cautions, sign_off
-from fieldkit.report.pdf_draw import (
+from fieldkit.report.pdf.boxes import cautions, sign_off
+from fieldkit.report.pdf.draw import band_legend, band_picture, probability_bar
+from fieldkit.report.pdf.layout import FOOT, MARGIN, fit, placed, runs_block, section, text_block
+from fieldkit.report.pdf.style import (
     ACCENT,
+    BODY,
+    BOLD_FONT,
+    FAMILY,
     INK,
     MUTED,
     OK,
     OUT,
     OUT_FILL,
+    REGULAR_FONT,
     RULE,
+    SMALL,
+    TINY,
     UNSURE,
     UNSURE_FILL,
     ZEBRA,
-    band_legend,
-    band_picture,
-    probability_bar,
 )
-from fieldkit.report.pdf_layout import (
-    BODY,
-    FOOT,
-    MARGIN,
-    SMALL,
-    TINY,
-    fit,
-    placed,
-    runs_block,
-    section,
-    text_block,
-)
-from fieldkit.report.pdf_tables import Cell, Run, measured_table
-from fieldkit.report.pdf_text import (
-    FAMILY,
+from fieldkit.report.pdf.tables import Cell, Run, measured_table
+from fieldkit.report.pdf.text import (
     block_height,
     draw_block,
     draw_runs,
@@ -60,7 +51,6 @@ from fieldkit.report.pdf_text import (
     text_height,
 )
 
-FONTS = Path(__file__).parent / "fonts"
 REMARK_SIZE = 6.2
 #: Relative widths: number, test point and condition, reading, expected, gauge, band, verdict.
 READING_COLUMNS = [5, 43, 16, 21, 34, 35, 19]
@@ -98,8 +88,8 @@ class JobCardPDF(FPDF):
         # text on the card can contain it, and the same card always gets the same one.
         self.total_pages = "{" + hashlib.sha256(repr(card).encode("utf-8", "replace")).hexdigest()[:12] + "}"
         self.alias_nb_pages(self.total_pages)
-        self.add_font(FAMILY, "", FONTS / "DejaVuSans.ttf")
-        self.add_font(FAMILY, "B", FONTS / "DejaVuSans-Bold.ttf")
+        self.add_font(FAMILY, "", REGULAR_FONT)
+        self.add_font(FAMILY, "B", BOLD_FONT)
         regular, bold = self.fonts[FAMILY], self.fonts[FAMILY + "B"]
         self._glyphs = set(regular.cmap) & set(bold.cmap)
         self.set_margins(MARGIN, MARGIN, MARGIN)

@@ -7,9 +7,22 @@ import itertools
 from fpdf import FPDF
 
 from fieldkit.report.model import Caution, JobCard
-from fieldkit.report.pdf_draw import ACCENT, INK, MUTED, OUT, OUT_FILL, RULE, UNSURE, UNSURE_FILL
-from fieldkit.report.pdf_layout import BODY, SMALL, TINY, fit, placed, section
-from fieldkit.report.pdf_text import FAMILY, Run, block_height, draw_block, draw_runs, runs_height
+from fieldkit.report.pdf.layout import fit, placed, section
+from fieldkit.report.pdf.style import (
+    ACCENT,
+    BODY,
+    FAMILY,
+    INK,
+    MUTED,
+    OUT,
+    OUT_FILL,
+    RULE,
+    SMALL,
+    TINY,
+    UNSURE,
+    UNSURE_FILL,
+)
+from fieldkit.report.pdf.text import Run, block_height, draw_block, draw_runs, runs_height
 
 SEVERITY = {"danger": (OUT, OUT_FILL), "warning": (UNSURE, UNSURE_FILL), "notice": (ACCENT, (226, 238, 243))}
 

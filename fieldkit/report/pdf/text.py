@@ -15,7 +15,8 @@ from dataclasses import dataclass
 
 from fpdf import FPDF
 
-FAMILY = "fieldkit-sans"
+from fieldkit.report.pdf.style import FAMILY
+
 PT = 25.4 / 72  # mm per point
 PADDING = 0.5  # mm around the text of every table cell
 
