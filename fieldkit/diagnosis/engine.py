@@ -13,9 +13,15 @@ from functools import lru_cache
 from pathlib import Path
 
 from fieldkit.diagnosis.catalogue import Caution, Fault, load_cautions, load_faults
-from fieldkit.diagnosis.findings import Evaluator, Hypothesis, outcome_probabilities, verdict_for
+from fieldkit.diagnosis.findings import (
+    Evaluator,
+    Hypothesis,
+    censored_outcomes,
+    outcome_probabilities,
+    verdict_for,
+)
 from fieldkit.diagnosis.lint import check_references
-from fieldkit.diagnosis.measure import ASSUMED_CLASS, Measured, measure_visit
+from fieldkit.diagnosis.measure import Measured, measure_visit
 from fieldkit.diagnosis.next_test import suggest
 from fieldkit.diagnosis.ranking import entropy_bits, hypotheses_for, log_posterior, rank
 from fieldkit.diagnosis.results import CautionNote, Diagnosis, Finding, NextTest, ReadingCheck, Verdict
@@ -93,13 +99,17 @@ def check_reading(m: Measured, system: DisplaySystem) -> ReadingCheck:
     if rng is not None:
         low = to_canonical(rng.low, m.kind) if rng.low is not None else None
         high = to_canonical(rng.high, m.kind) if rng.high is not None else None
-        verdict = verdict_for(*outcome_probabilities(m.canonical, m.u_canonical, low, high))
+        if m.censored:
+            outcomes = censored_outcomes(m.canonical, m.u_canonical, low, high, m.censored)
+        else:
+            outcomes = outcome_probabilities(m.canonical, m.u_canonical, low, high)
+        verdict = verdict_for(*outcomes)
         low, high = shown(low), shown(high)
     u = m.u_canonical * abs(scale)
     gauge = (
         f"{m.gauge.id}: 0–{format_value(m.gauge.full_scale, system)} class {m.gauge.accuracy_class:g}"
         if m.gauge is not None
-        else f"none recorded (assumed class {ASSUMED_CLASS:g})"
+        else f"none recorded (assumed {m.assumed_label})"
     )
     return ReadingCheck(
         reading_id=m.reading.id,

@@ -23,21 +23,27 @@ from fieldkit.diagnosis.symbols import DERIVED, MACHINE_FIGURES, SYMBOLS
 from fieldkit.expr.dims import kind_dimension
 from fieldkit.model.condition import FunctionState
 from fieldkit.model.parameters import PARAMETERS
-from fieldkit.model.profile import Circuit, MachineProfile, ReliefLayout
+from fieldkit.model.profile import Circuit, MachineProfile
 from fieldkit.model.roles import ROLES, Role
 from fieldkit.units import Q_, DisplaySystem, Kind, format_si, to_canonical
 
-#: A verdict is stated when one outcome is at least this likely; otherwise it is 'inconclusive'.
-CONFIDENT = 0.95
-#: Evidence from readings taken outside the test window counts at this weight (tempered likelihood).
-INVALID_WEIGHT = 0.35
-
 _SQRT2 = math.sqrt(2.0)
-_PLACEHOLDER = re.compile(r"\{([a-z_]+)\}")
+_SQRT3 = math.sqrt(3.0)
 
 
 def _phi(z: float) -> float:
     return 0.5 * math.erfc(-z / _SQRT2)
+
+
+#: A verdict is stated when one outcome is at least this likely; otherwise it is 'inconclusive'.
+#: Φ(√3) ≈ 0.958 is the probability one limit of error a = √3·u out (a rectangular limit read as
+#: u = a/√3, GUM 4.3.7): a reading closer to a limit than its gauge's limit of error is
+#: inconclusive, as the README promises.
+CONFIDENT = _phi(_SQRT3)
+#: Evidence from readings taken outside the test window counts at this weight (tempered likelihood).
+INVALID_WEIGHT = 0.35
+
+_PLACEHOLDER = re.compile(r"\{([a-z_]+)\}")
 
 
 def outcome_probabilities(
@@ -52,6 +58,28 @@ def outcome_probabilities(
         p_high = _phi((value - high) / u) if high is not None else 0.0
     p_ok = max(0.0, 1.0 - p_low - p_high)
     return p_low, p_ok, p_high
+
+
+def censored_outcomes(
+    value: float, u: float, low: float | None, high: float | None, direction: int
+) -> tuple[float, float, float]:
+    """Outcome weights for a censored value: ``direction`` +1 means the truth is at least
+    ``value`` (a needle on its stop), −1 at most, 0 nothing known. Each outcome counts as far as
+    it is consistent with the bound (gauge error allowed), normalised: a bound inside the range
+    leaves 'in range' and 'beyond' equally open, so it decides nothing."""
+    if direction == 0:
+        return 1 / 3, 1 / 3, 1 / 3
+    s = max(u, 1e-12)
+    if direction > 0:
+        w_low = _phi((low - value) / s) if low is not None else 0.0
+        w_ok = _phi((high - value) / s) if high is not None else 1.0
+        w_high = 1.0 if high is not None else 0.0
+    else:
+        w_high = _phi((value - high) / s) if high is not None else 0.0
+        w_ok = _phi((value - low) / s) if low is not None else 1.0
+        w_low = 1.0 if low is not None else 0.0
+    total = w_low + w_ok + w_high
+    return w_low / total, w_ok / total, w_high / total
 
 
 def verdict_for(p_low: float, p_ok: float, p_high: float) -> Verdict:
@@ -125,6 +153,8 @@ class Evaluator:
                 whole.by_role.setdefault(m.role, []).append(m)
         self.machine = whole
         self.missing_roles: dict[str, list[tuple[Role, FunctionState | None]]] = {}
+        #: What a rule had to assume while it was evaluated, added to its message.
+        self.notes: list[str] = []
         from fieldkit.physics.fluid import grade
 
         self.curve = grade(profile.oil_grade).curve
@@ -139,6 +169,37 @@ class Evaluator:
             # The first state the rule names is the one to ask the technician to set.
             raise Missing(role, states[0] if states else None)
         return found[-1]
+
+    def plain_states(self, rule: Rule, scope: Scope) -> tuple[FunctionState, ...]:
+        """States the rule's plain role names are read in. A rule's ``when`` decides; a rule
+        without one that combines readings takes them all from one condition: the state its
+        ``<role>_in_<state>`` names fix, else the latest state in which every role it reads was
+        measured. Readings from different conditions are never paired."""
+        if rule.spec.when:
+            return tuple(rule.spec.when)
+        plain: list[Role] = []
+        fixed: set[FunctionState] = set()
+        for name in rule.names:
+            if name in SYMBOLS.readings:
+                role, state = SYMBOLS.readings[name]
+                if state is None:
+                    plain.append(role)
+                else:
+                    fixed.add(state)
+            elif name in DERIVED:
+                plain.extend(DERIVED[name][1])
+        if not plain or (len(plain) == 1 and not fixed):
+            return ()
+        if len(fixed) == 1:
+            return (next(iter(fixed)),)
+        first = sorted(scope.by_role.get(plain[0], []), key=lambda m: m.reading.taken_at, reverse=True)
+        for m in first:
+            state = m.reading.condition.function
+            if all(
+                any(x.reading.condition.function is state for x in scope.by_role.get(r, [])) for r in plain
+            ):
+                return (state,)
+        return (first[0].reading.condition.function,) if first else ()
 
     def parameter(self, scope: Scope, name: str) -> float:
         circuits = [scope.circuit] if scope.circuit is not None else self.profile.circuits
@@ -168,19 +229,20 @@ class Evaluator:
             used.append(m)
             if m.oil_temp_c is None:
                 raise Missing(Role.OIL_TEMPERATURE, None)
-            t_ref = to_canonical(self.profile.reference_oil_temperature, Kind.TEMPERATURE)
-            ratio = self.curve.cst_at_kelvin(m.oil_temp_c + 273.15) / self.curve.cst_at_kelvin(t_ref + 273.15)
-            return m.si * ratio, m.u_si * ratio
+            t_ref = to_canonical(self.profile.reference_oil_temperature, Kind.TEMPERATURE) + 273.15
+            nu_ref = self.curve.cst_at_kelvin(t_ref)
+            t = m.oil_temp_c + 273.15
+            ratio = self.curve.cst_at_kelvin(t) / nu_ref
+            # GUM 5.1.2: both the flow reading and the thermometer contribute; the sensitivity to
+            # temperature is q · (dν/dT) / ν_ref, taken by a central difference.
+            d_ratio = (self.curve.cst_at_kelvin(t + 0.5) - self.curve.cst_at_kelvin(t - 0.5)) / nu_ref
+            return m.si * ratio, math.hypot(m.u_si * ratio, m.si * d_ratio * m.u_oil_temp)
         if name == "pump_theoretical_flow":
-            disp = self.parameter(scope, "pump_displacement")
-            try:
-                m = self.latest(scope, Role.PUMP_SPEED, ())
-                used.append(m)
-                return disp * m.si, disp * m.u_si
-            except Missing:
-                return disp * self.machine_figure("rated_speed"), 0.0
+            return self._theoretical_flow(scope, states, used)
         if name == "relief_deadhead":
             return self._deadhead(scope, used)
+        if name == "cross_port_stall_expected":
+            return self._cross_port_stall(scope, used)
         if name == "oil_viscosity":
             m = self.latest(scope, Role.OIL_TEMPERATURE, ())
             used.append(m)
@@ -192,32 +254,63 @@ class Evaluator:
             return nu * 1e-6, abs(slope) * m.u_canonical * 1e-6
         raise NotApplicable(f"derived value '{name}' is not known")
 
+    def _theoretical_flow(
+        self, scope: Scope, states: tuple[FunctionState, ...], used: list[Measured]
+    ) -> tuple[float, float]:
+        """Displacement × the pump speed of the same condition as the flow reading. With no
+        speed measured there, rated speed stands in, with the test window's speed tolerance as
+        a rectangular half-width for engine droop under load, and the finding says so."""
+        disp = self.parameter(scope, "pump_displacement")
+        try:
+            flow = self.latest(scope, Role.PUMP_FLOW, states)
+            same = (flow.reading.condition.function,)
+        except Missing:
+            same = states
+        try:
+            m = self.latest(scope, Role.PUMP_SPEED, same)
+        except Missing:
+            rated = self.machine_figure("rated_speed")
+            tol = self.profile.test_window.speed_tolerance_pct
+            state = same[0].label if same else "the test condition"
+            self.notes.append(
+                f"No pump speed was measured {state}: rated speed assumed, ±{tol:g} % for engine droop."
+            )
+            return disp * rated, disp * rated * tol / 100.0 / _SQRT3
+        used.append(m)
+        return disp * m.si, disp * m.u_si
+
+    def _cross_port_stall(self, scope: Scope, used: list[Measured]) -> tuple[float, float]:
+        """What a loop port gauge should read with the drive stalled on its cross-port relief.
+        A setting stated as a differential is held above the low side, which sits at charge
+        pressure, so the gauge reads setting + charge; a setting stated as a gauge reading is
+        read as it is (physics.closed_loop.cross_port_stall_reading)."""
+        from fieldkit.physics.closed_loop import cross_port_stall_reading
+
+        setting = self.parameter(scope, "high_pressure_relief_setting")
+        circuit = scope.circuit
+        convention = circuit.cross_port_relief_convention if circuit is not None else "gauge"
+        if convention != "differential":
+            return setting, 0.0
+        try:
+            m = self.latest(scope, Role.CHARGE_PRESSURE, (FunctionState.STALLED,))
+        except Missing:
+            try:
+                m = self.latest(
+                    scope, Role.CHARGE_PRESSURE, (FunctionState.FULL_STROKE, FunctionState.UNDER_LOAD)
+                )
+            except Missing:
+                raise Missing(Role.CHARGE_PRESSURE, FunctionState.STALLED) from None
+        used.append(m)
+        expected = cross_port_stall_reading(Q_(setting, "Pa"), Q_(m.si, "Pa"), convention)
+        return float(expected.to_base_units().magnitude), m.u_si
+
     def _deadhead(self, scope: Scope, used: list[Measured]) -> tuple[float, float]:
-        from fieldkit.physics.reliefs import Parallel, ReliefValve, Series, deadhead
+        from fieldkit.physics.reliefs import arrangement_for, deadhead
 
         circuit = scope.circuit
         if circuit is None or not circuit.reliefs:
             raise NotApplicable("the circuit lists no relief valves")
-        valves = {
-            r.id: ReliefValve(
-                r.id, r.setting, r.override if r.override is not None else Q_(0.0, "bar"), r.drain
-            )
-            for r in circuit.reliefs
-        }
-
-        def build(layout: ReliefLayout) -> Series | Parallel:
-            items = [valves[m] if isinstance(m, str) else build(m) for m in layout.members()]
-            return Series(items) if layout.series else Parallel(items)
-
-        tree = (
-            build(circuit.relief_layout)
-            if circuit.relief_layout
-            else (
-                valves[circuit.reliefs[0].id]
-                if len(circuit.reliefs) == 1
-                else Parallel(list(valves.values()))
-            )
-        )
+        tree = arrangement_for(circuit.reliefs, circuit.relief_layout)
         back = None
         u = 0.0
         try:
@@ -226,7 +319,8 @@ class Evaluator:
             m = None
         if m is not None:
             used.append(m)
-            back, u = m.reading.value, m.u_si
+            # The measured value as gauge pressure (an absolute reading converted in measure).
+            back, u = Q_(m.canonical, "bar"), m.u_si
         result = deadhead(tree, back)
         return float(result.upstream.to_base_units().magnitude), u
 
@@ -247,20 +341,32 @@ class Evaluator:
         missing: list[str] = []
         missing_roles: list[tuple[Role, FunctionState | None]] = []
         expected_from: Measured | None = None
+        self.notes = []
+        plain_states = self.plain_states(rule, scope)
+        censored: dict[str, int] = {}
         for name in sorted(rule.names):
             try:
                 if name in SYMBOLS.readings:
                     role, state = SYMBOLS.readings[name]
-                    m = self.latest(scope, role, (state,) if state else tuple(spec.when))
+                    m = self.latest(scope, role, (state,) if state else plain_states)
                     used.append(m)
                     values[name], uncert[name] = m.si, m.u_si
+                    if m.censored:
+                        censored[name] = m.censored
                     expected_from = m
                 elif name in PARAMETERS:
                     values[name], uncert[name] = self.parameter(scope, name), 0.0
                 elif name in MACHINE_FIGURES:
                     values[name], uncert[name] = self.machine_figure(name), 0.0
                 elif name in DERIVED:
-                    values[name], uncert[name] = self.derived(scope, name, tuple(spec.when), used)
+                    before = len(used)
+                    values[name], uncert[name] = self.derived(scope, name, plain_states, used)
+                    # Every derived value rises with the readings it is made of, except viscosity,
+                    # which falls as the oil warms.
+                    sign = -1 if name == "oil_viscosity" else 1
+                    for m in used[before:]:
+                        if m.censored:
+                            censored[name] = sign * m.censored
                     if used:
                         expected_from = used[0]
             except Missing as miss:
@@ -309,9 +415,13 @@ class Evaluator:
                 source=spec.source,
                 p_in_range=1.0,
             )
-        p_low, _, _ = outcome_probabilities(value, math.hypot(u, u_low), low, None)
-        _, _, p_high = outcome_probabilities(value, math.hypot(u, u_high), None, high)
-        p_ok = max(0.0, 1.0 - p_low - p_high)
+        direction = self._censoring(rule, values, censored)
+        if direction is not None:
+            p_low, p_ok, p_high = censored_outcomes(value, math.hypot(u, u_low, u_high), low, high, direction)
+        else:
+            p_low, _, _ = outcome_probabilities(value, math.hypot(u, u_low), low, None)
+            _, _, p_high = outcome_probabilities(value, math.hypot(u, u_high), None, high)
+            p_ok = max(0.0, 1.0 - p_low - p_high)
         verdict = verdict_for(p_low, p_ok, p_high)
         invalid = sorted({m.invalid for m in used if m.invalid}) if spec.discount_when_invalid else []
         weight = INVALID_WEIGHT if invalid else 1.0
@@ -328,6 +438,13 @@ class Evaluator:
             message += (
                 f" Too close to a limit to call with this gauge (P low {p_low:.0%}, P high {p_high:.0%})."
             )
+        if direction is not None:
+            message += (
+                " A reading in it sat at the end of its gauge's scale, so it gives only a bound"
+                f" ({'at least' if direction > 0 else 'at most' if direction < 0 else 'unknown'} {texts['value']})."
+            )
+        if self.notes:
+            message += " " + " ".join(self.notes)
         if invalid:
             message += f" Counted at reduced weight: {'; '.join(invalid)}."
         finding = Finding(
@@ -354,6 +471,21 @@ class Evaluator:
         )
         finding.evidence = evidence(rule, scope.circuit, (p_low, p_ok, p_high), weight, hypotheses)
         return finding
+
+    @staticmethod
+    def _censoring(rule: Rule, values: dict[str, float], censored: dict[str, int]) -> int | None:
+        """None when no censored reading feeds the value; else which way the value is bounded:
+        +1 at least, −1 at most, 0 unknown (bounds pulling both ways)."""
+        if not censored:
+            return None
+        base = rule.value.evaluate(values)
+        ways: set[int] = set()
+        for name, way in censored.items():
+            step = max(abs(values[name]) * 0.1, 1e-6)
+            moved = rule.value.evaluate({**values, name: values[name] + step})
+            if moved != base:
+                ways.add(way if moved > base else -way)
+        return ways.pop() if len(ways) == 1 else (0 if ways else None)
 
     def _texts(
         self, rule: Rule, value: float, u: float, low: float | None, high: float | None

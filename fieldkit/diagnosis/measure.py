@@ -2,9 +2,12 @@
 taken under valid test conditions.
 
 The uncertainty comes from the gauge that took it (EN 837-1 class × span, read as a rectangular
-distribution: u = a/√3, JCGM 100:2008 clause 4.3.7). A reading with no gauge recorded is given
-an assumed class 2.5 gauge of twice the reading's size (common practice: pick a range about twice
-the working value), and says so.
+distribution: u = a/√3, JCGM 100:2008 clause 4.3.7). A reading with no gauge recorded is given a
+stated default instrument for its kind (:func:`default_instrument`), shown as assumed: its error
+does not shrink with the reading, so a near-zero reading never looks exact.
+
+A needle at the end of its scale only says "at least this" (EN 837-1 gives no accuracy beyond
+the scale): such a reading is *censored*, and every check that uses it treats it so.
 """
 
 from __future__ import annotations
@@ -22,6 +25,61 @@ from fieldkit.units import CANONICAL_UNIT, Q_, Kind, PressureReference, kind_of,
 ASSUMED_CLASS = 2.5
 _SQRT3 = math.sqrt(3.0)
 
+#: Standard full-scale values (canonical units) a default instrument is chosen from: the
+#: 1 – 1.6 – 2.5 – 4 – 6 series (EN 837-1 ranges, from memory).
+_PRESSURE_RANGES = (1.0, 1.6, 2.5, 4.0, 6.0, 10.0, 16.0, 25.0, 40.0, 60.0, 100.0, 160.0, 250.0, 400.0, 600.0)
+_FLOW_RANGES = (10.0, 25.0, 60.0, 100.0, 160.0, 250.0, 400.0, 600.0)
+
+
+@dataclass(frozen=True, slots=True)
+class DefaultInstrument:
+    """The instrument assumed for a reading with no gauge recorded (shown as assumed)."""
+
+    start: float
+    top: float
+    accuracy_class: float
+    label: str
+
+    @property
+    def limit_of_error(self) -> float:
+        return self.accuracy_class / 100.0 * (self.top - self.start)
+
+
+def _smallest(ranges: tuple[float, ...], need: float) -> float:
+    return next((r for r in ranges if r >= need), ranges[-1])
+
+
+def default_instrument(kind: Kind, value: float, point: TestPoint | None = None) -> DefaultInstrument:
+    """What a technician would most likely have used, stated so the report can say so.
+
+    * pressure: a class 1.6 gauge (common workshop class, common practice) of the smallest
+      standard range that covers the point's highest pressure, or reads the value within 3/4 of
+      its scale when the point states none (EN 837-2, from memory); a compound −1 bar start for
+      a vacuum;
+    * flow: a 2.5 % of full scale flow meter, smallest standard range reading the value within
+      3/4 of its scale, never below 0–10 L/min (common practice);
+    * temperature: ±2 K, a contact or dial thermometer (common practice);
+    * speed: ±25 rpm, an optical tachometer read by hand (0.5 % of 5000 rpm, common practice);
+    * anything else: class 2.5 of a scale twice the reading, at least one unit.
+    """
+    v = abs(value)
+    if kind is Kind.PRESSURE:
+        start = -1.0 if value < 0 else 0.0
+        highest = to_canonical(point.max_pressure, Kind.PRESSURE) if point and point.max_pressure else None
+        top = _smallest(_PRESSURE_RANGES, highest if highest is not None else v / 0.75)
+        return DefaultInstrument(start, top, 1.6, f"{start:g}–{top:g} bar class 1.6 gauge")
+    if kind is Kind.FLOW:
+        top = _smallest(_FLOW_RANGES, v / 0.75)
+        return DefaultInstrument(0.0, top, 2.5, f"0–{top:g} L/min flow meter, 2.5 % of full scale")
+    if kind is Kind.TEMPERATURE:
+        return DefaultInstrument(0.0, 200.0, 1.0, "thermometer ±2 K")
+    if kind is Kind.SPEED:
+        return DefaultInstrument(0.0, 5000.0, 0.5, "tachometer ±25 rpm")
+    top = max(2.0 * v, 1.0)
+    return DefaultInstrument(
+        0.0, top, ASSUMED_CLASS, f"class {ASSUMED_CLASS:g} instrument of twice the reading"
+    )
+
 
 @dataclass(slots=True)
 class Measured:
@@ -37,6 +95,13 @@ class Measured:
     assumed_gauge: bool
     oil_temp_c: float | None
     invalid: str  # why the test conditions were not valid; "" when they were
+    #: Standard uncertainty of the oil temperature the reading was taken at (K).
+    u_oil_temp: float = 0.0
+    #: +1 when the needle sat at the top of its scale (the truth is at least the reading), −1 at
+    #: the bottom of a compound scale (at most), 0 for an ordinary reading.
+    censored: int = 0
+    #: The instrument assumed when none was recorded; "" when the gauge is known.
+    assumed_label: str = ""
 
     @property
     def role(self) -> Role:
@@ -67,20 +132,41 @@ def gauge_limit_of_error(gauge: Gauge) -> float:
     return gauge.accuracy_class / 100.0 * (top - start)
 
 
-def _uncertainty(value: float, kind: Kind, gauge: Gauge | None) -> tuple[float, bool]:
+def _uncertainty(
+    value: float, kind: Kind, gauge: Gauge | None, point: TestPoint | None = None
+) -> tuple[float, bool, str]:
     if gauge is not None and gauge.kind is kind:
-        return gauge_limit_of_error(gauge) / _SQRT3, False
-    span = max(2.0 * abs(value), 1.0)
-    return ASSUMED_CLASS / 100.0 * span / _SQRT3, True
+        return gauge_limit_of_error(gauge) / _SQRT3, False, ""
+    inst = default_instrument(kind, value, point)
+    return inst.limit_of_error / _SQRT3, True, inst.label
 
 
-def _oil_temperature_at(reading: Reading, oil_readings: list[Reading]) -> float | None:
+def censoring(value: float, kind: Kind, gauge: Gauge | None) -> int:
+    """+1 when the reading sits at or past its gauge's full scale, −1 at or below the start of
+    a compound or vacuum scale, else 0."""
+    if gauge is None or gauge.kind is not kind:
+        return 0
+    if value >= to_canonical(gauge.full_scale, kind):
+        return 1
+    if gauge.scale_start is not None and value <= to_canonical(gauge.scale_start, kind):
+        return -1
+    return 0
+
+
+def _oil_temperature_at(
+    reading: Reading, oil_readings: list[Reading], visit: Visit
+) -> tuple[float | None, float]:
+    """Oil temperature for a reading and its standard uncertainty: the temperature stated with
+    the reading (assumed thermometer), else the nearest oil temperature reading (its gauge)."""
     if reading.condition.oil_temperature is not None:
-        return to_canonical(reading.condition.oil_temperature, Kind.TEMPERATURE)
+        t = to_canonical(reading.condition.oil_temperature, Kind.TEMPERATURE)
+        return t, default_instrument(Kind.TEMPERATURE, t).limit_of_error / _SQRT3
     if not oil_readings:
-        return None
+        return None, 0.0
     nearest = min(oil_readings, key=lambda r: abs((r.taken_at - reading.taken_at).total_seconds()))
-    return to_canonical(nearest.value, Kind.TEMPERATURE)
+    t = to_canonical(nearest.value, Kind.TEMPERATURE)
+    u, _assumed, _label = _uncertainty(t, Kind.TEMPERATURE, visit.gauge(nearest.gauge))
+    return t, u
 
 
 def measure_visit(visit: Visit, profile: MachineProfile) -> tuple[list[Measured], list[str]]:
@@ -115,8 +201,8 @@ def measure_visit(visit: Visit, profile: MachineProfile) -> tuple[list[Measured]
             q = to_gauge(q, r.reference, visit.barometric_pressure)
         canonical = to_canonical(q, kind)
         gauge = visit.gauge(r.gauge)
-        u, assumed = _uncertainty(canonical, kind, gauge)
-        oil_c = _oil_temperature_at(r, oil)
+        u, assumed, label = _uncertainty(canonical, kind, gauge, point)
+        oil_c, u_oil = _oil_temperature_at(r, oil, visit)
         invalid = ""
         if point.role not in (Role.OIL_TEMPERATURE, Role.PUMP_SPEED):
             if oil_c is not None and oil_c < oil_min:
@@ -141,6 +227,9 @@ def measure_visit(visit: Visit, profile: MachineProfile) -> tuple[list[Measured]
                 assumed_gauge=assumed,
                 oil_temp_c=oil_c,
                 invalid=invalid,
+                u_oil_temp=u_oil,
+                censored=censoring(canonical, kind, gauge),
+                assumed_label=label,
             )
         )
     out.sort(key=lambda m: m.reading.taken_at)

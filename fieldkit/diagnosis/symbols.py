@@ -60,6 +60,11 @@ DERIVED: dict[str, tuple[Kind, frozenset[Role], str]] = {
         frozenset(),
         "what the pump outlet should read when deadheaded: the circuit's relief layout (series add, parallel lowest wins) plus measured return back pressure",
     ),
+    "cross_port_stall_expected": (
+        Kind.PRESSURE,
+        frozenset({Role.CHARGE_PRESSURE}),
+        "what a loop port gauge should read stalled on its cross-port relief: the setting, plus the low side's charge pressure when the profile states the setting as a differential",
+    ),
     "oil_viscosity": (
         Kind.VISCOSITY,
         frozenset({Role.OIL_TEMPERATURE}),

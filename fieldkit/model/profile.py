@@ -8,7 +8,7 @@ A profile is a TOML file a person edits. Circuits may start from a template in `
 from __future__ import annotations
 
 from enum import StrEnum
-from typing import Any
+from typing import Any, Literal
 
 import pint
 from pydantic import Field, field_serializer, field_validator, model_validator
@@ -144,6 +144,14 @@ class Circuit(Strict):
     parameters: dict[str, Any] = Field(default_factory=dict)
     reliefs: list[Relief] = Field(default_factory=list)
     relief_layout: ReliefLayout | None = None
+    cross_port_relief_convention: Literal["differential", "gauge"] = Field(
+        default="differential",
+        description=(
+            "how the closed loop's cross-port relief setting is stated: 'differential' (above the low "
+            "side, which sits at charge pressure, so a port gauge reads setting + charge at a stall; "
+            "the common way) or 'gauge' (what the port gauge reads)"
+        ),
+    )
     test_points: list[TestPoint] = Field(default_factory=list)
     fitted_parts: list[Part] | None = Field(
         default=None,

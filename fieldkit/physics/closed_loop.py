@@ -12,7 +12,7 @@ from dataclasses import dataclass
 
 import pint
 
-from fieldkit.physics.common import Ratio, fraction, out, shown, si
+from fieldkit.physics.common import OutOfRangeError, Ratio, fraction, out, shown, si
 from fieldkit.units import Kind
 
 
@@ -126,3 +126,22 @@ def charge_flow_budget(
     return ChargeBudget(
         out(supply, Kind.FLOW), out(demand, Kind.FLOW), out(surplus, Kind.FLOW), keeps_loop_full=surplus > 0.0
     )
+
+
+def cross_port_stall_reading(
+    setting: pint.Quantity, low_side_pressure: pint.Quantity, convention: str = "differential"
+) -> pint.Quantity:
+    """What a loop port gauge reads with the drive stalled against its cross-port relief.
+
+    The cross-port relief discharges from the high side into the low side, which the charge
+    circuit holds at charge pressure. A setting stated as a *differential* is held across the
+    valve, so the high-side gauge reads setting + low-side pressure; a setting stated as a
+    *gauge* figure is what the gauge reads (common practice: makers state either, so the
+    profile says which).
+    """
+    high = si(setting, Kind.PRESSURE, "cross-port relief setting", positive=True)
+    if convention == "gauge":
+        return out(high, Kind.PRESSURE)
+    if convention != "differential":
+        raise OutOfRangeError(f"relief convention must be 'differential' or 'gauge'; got {convention!r}")
+    return out(high + si(low_side_pressure, Kind.PRESSURE, "low-side (charge) pressure"), Kind.PRESSURE)

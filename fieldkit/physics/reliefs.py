@@ -12,20 +12,25 @@ A circuit's reliefs are described as a small tree: :class:`ReliefValve` leaves j
   opening pressure stays at its setting (common practice, from memory); oil still cannot flow
   uphill, so its inlet is never below its outlet.
 * Parallel: the branch with the lowest opening pressure opens first and takes the flow. At
-  full flow the inlet reads that branch's full-flow pressure; if another branch cracks below
-  that, they share the flow and the true reading lies a little lower (ignored here).
+  full flow the inlet reads that branch's full-flow pressure, but never more than any other
+  branch's full-flow pressure: a branch with a steep override can be overtaken by one that
+  cracks later but opens fully sooner, and then that branch passes the rest of the flow. The
+  inlet is therefore capped at the lowest full-flow pressure of any branch (sharing between two
+  part-open branches reads a little lower still; ignored here).
 * Series: each valve's outlet is the next valve's inlet, so with internal drains the settings
   add; the return back pressure adds to the whole chain.
 """
 
 from __future__ import annotations
 
+from collections.abc import Sequence
 from dataclasses import dataclass, field
 from enum import StrEnum
 from typing import Union
 
 import pint
 
+from fieldkit.model.profile import Relief, ReliefLayout
 from fieldkit.physics.common import OutOfRangeError, out, shown, si
 from fieldkit.units import Q_, Kind
 
@@ -136,7 +141,9 @@ def _opens_at(node: Arrangement, back_pa: float, full_flow: bool) -> float:
         for item in reversed(node.items):
             p = _opens_at(item, p, full_flow)
         return p
-    return _opens_at(_lowest(node, back_pa), back_pa, full_flow)
+    # Cracking: the lowest branch. Full flow: no branch lets the inlet rise past its own
+    # full-flow pressure, so the lowest of them caps it.
+    return min(_opens_at(b, back_pa, full_flow) for b in node.branches)
 
 
 def opening_pressure(
@@ -232,3 +239,57 @@ def deadhead(
         points={n: None if p is None else out(p, Kind.PRESSURE) for n, p in points.items()},
         return_pressure=out(back, Kind.PRESSURE),
     )
+
+
+def valve_of(relief: Relief) -> ReliefValve:
+    """A profile's relief entry as a physics valve (no override stated: none assumed)."""
+    override = relief.override if relief.override is not None else _ZERO_BAR
+    return ReliefValve(relief.id, relief.setting, override, relief.drain)
+
+
+def arrangement_for(
+    reliefs: Sequence[Relief | ReliefValve],
+    layout: ReliefLayout | None,
+    *,
+    joined: Sequence[ReliefValve] = (),
+    joined_to: str | None = None,
+) -> Arrangement:
+    """The one place a circuit's reliefs become a physics tree, for the rule engine and the
+    simulator alike.
+
+    ``layout`` (the profile's ``relief_layout``) arranges them; without one a single relief stands
+    alone and several are taken in parallel. ``joined`` valves sit in parallel with the relief
+    ``joined_to`` wherever it appears (a relief wrongly connected to the main one, as the
+    simulator injects it); they are left out of the default arrangement otherwise.
+    """
+    valves: dict[str, ReliefValve] = {}
+    for r in reliefs:
+        v = r if isinstance(r, ReliefValve) else valve_of(r)
+        valves[v.name] = v
+    if not valves:
+        raise OutOfRangeError("a relief arrangement needs at least one relief")
+    extra = tuple(joined)
+    extra_names = {v.name for v in extra}
+
+    def leaf(name: str, inside_parallel: bool) -> Arrangement:
+        if name not in valves:
+            raise OutOfRangeError(f"relief layout names '{name}', which the circuit does not list")
+        if name == joined_to and extra and not inside_parallel:
+            return Parallel((valves[name], *extra))
+        return valves[name]
+
+    def build(node: str | ReliefLayout, inside_parallel: bool) -> Arrangement:
+        if isinstance(node, str):
+            return leaf(node, inside_parallel)
+        is_parallel = bool(node.parallel)
+        items = [build(m, is_parallel) for m in node.members()]
+        if is_parallel and joined_to in node.members() and extra:
+            items.extend(extra)
+        return Parallel(tuple(items)) if is_parallel else Series(tuple(items))
+
+    if layout is not None:
+        return build(layout, False)
+    in_circuit = [name for name in valves if name not in extra_names]
+    if len(in_circuit) == 1:
+        return leaf(in_circuit[0], False)
+    return Parallel(tuple(valves.values()))

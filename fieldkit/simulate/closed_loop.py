@@ -6,7 +6,9 @@ Closed loop (``CircuitModel.p``, canonical units):
   internal leakage (L/min per bar at the reference temperature): the charge pump delivers
   V · n · fill − c · p, so a worn (loose) charge pump sags as pressure rises;
 * ``charge_relief`` and ``flushing_relief`` settings (net of case, as data sheets give them);
-* ``hp_a`` / ``hp_b`` cross-port relief settings, read as the gauge shows them at stall;
+* ``hp_a`` / ``hp_b`` cross-port relief settings; ``hp_differential`` 1 when they are held as a
+  differential above the low side (the gauge then reads setting + charge at a stall), 0 when
+  they are stated as the gauge reading (the profile's ``cross_port_relief_convention``);
 * ``pump_drain`` / ``motor_drain`` case drain at the stall pressure ``p_ref`` and the reference
   temperature, ``pump_wear`` / ``motor_wear`` their multipliers; loop leakage is laminar, so it
   scales with loop pressure and 1/viscosity;
@@ -32,8 +34,11 @@ from __future__ import annotations
 from fieldkit.model.condition import FunctionState
 from fieldkit.model.profile import Circuit, CircuitKind, TestPoint
 from fieldkit.model.roles import Role
-from fieldkit.physics.closed_loop import charge_flow_budget, expected_charge_pressure
-from fieldkit.physics.reliefs import ReliefValve, deadhead
+from fieldkit.physics.closed_loop import (
+    charge_flow_budget,
+    cross_port_stall_reading,
+    expected_charge_pressure,
+)
 from fieldkit.simulate.constants import (
     DEEPEST_VACUUM_BAR,
     LEAKAGE_SCATTER,
@@ -169,8 +174,12 @@ def closed_loop(
     if role is Role.MOTOR_CASE_DRAIN_FLOW:
         return motor_drain(model, state, env)
     if role in (Role.LOOP_A_PRESSURE, Role.LOOP_B_PRESSURE) and state is FunctionState.STALLED:
+        # The cross-port relief discharges into the low side, held at charge pressure: a setting
+        # held as a differential reads setting + charge at the high-side gauge.
         setting = p["hp_a"] if role is Role.LOOP_A_PRESSURE else p["hp_b"]
-        return deadhead(ReliefValve("cross-port", qty(setting, "bar"))).upstream.m_as("bar")
+        low_side = charge_pressure(machine, model, state, env)
+        convention = "differential" if p.get("hp_differential", 0.0) else "gauge"
+        return cross_port_stall_reading(qty(setting, "bar"), qty(low_side, "bar"), convention).m_as("bar")
     if role is Role.SUCTION_PRESSURE:
         return -min(charge_vacuum(model, env), DEEPEST_VACUUM_BAR)
     if role is Role.FILTER_PRESSURE_DROP:
@@ -187,11 +196,11 @@ def build_closed_loop(machine: Machine, circuit: Circuit, draw: Draw) -> Circuit
         param(circuit, "charge_relief_setting") or middle(*bounds(charge_pt, FunctionState.NEUTRAL)) or 22.0
     )
     flushing = param(circuit, "flushing_relief_setting")
-    hp = (
-        param(circuit, "high_pressure_relief_setting")
-        or middle(*bounds(point(circuit, Role.LOOP_A_PRESSURE), FunctionState.STALLED))
-        or 350.0
-    )
+    hp = param(circuit, "high_pressure_relief_setting")
+    convention = circuit.cross_port_relief_convention
+    if hp is None:  # no figure: the stall range is what the gauge reads
+        hp = middle(*bounds(point(circuit, Role.LOOP_A_PRESSURE), FunctionState.STALLED)) or 350.0
+        convention = "gauge"
     q0 = charge_disp * rated / 1000.0
     model = CircuitModel(circuit, {})
     p = model.p
@@ -208,6 +217,7 @@ def build_closed_loop(machine: Machine, circuit: Circuit, draw: Draw) -> Circuit
         motor_wear=1.0,
         case_extra=0.0,
         inlet_restrict=1.0,
+        hp_differential=1.0 if convention == "differential" else 0.0,
     )
     if flushing:
         p["flushing_relief"] = draw(flushing, SETTING_SCATTER)

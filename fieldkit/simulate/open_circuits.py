@@ -26,9 +26,16 @@ Reliefs are arranged by the profile's ``relief_layout`` and solved with
 from __future__ import annotations
 
 from fieldkit.model.condition import FunctionState
-from fieldkit.model.profile import Circuit, CircuitKind, ReliefLayout, TestPoint
+from fieldkit.model.profile import Circuit, CircuitKind, TestPoint
 from fieldkit.model.roles import Role
-from fieldkit.physics.reliefs import Arrangement, Parallel, ReliefValve, Series, deadhead, opening_pressure
+from fieldkit.physics.reliefs import (
+    Arrangement,
+    ReliefValve,
+    Series,
+    arrangement_for,
+    deadhead,
+    opening_pressure,
+)
 from fieldkit.simulate.constants import (
     DEEPEST_VACUUM_BAR,
     LEAKAGE_SCATTER,
@@ -91,33 +98,16 @@ def _valve(rid: str, r: ReliefState) -> ReliefValve:
 
 
 def relief_tree(model: CircuitModel) -> Arrangement | None:
-    """The reliefs in circuit as a physics tree: the profile's layout (or all reliefs in
-    parallel, as the rule engine reads a profile without one), plus any relief wrongly joined
-    in parallel with the main one."""
+    """The reliefs in circuit as a physics tree, built by the same
+    :func:`fieldkit.physics.reliefs.arrangement_for` the rule engine uses, from this machine's
+    drawn settings, plus any relief wrongly joined in parallel with the main one."""
     if not model.reliefs:
         return None
     valves = {rid: _valve(rid, r) for rid, r in model.reliefs.items()}
-    main = main_relief_id(model)
     extra = [valves[rid] for rid in model.parallel_extra if rid in valves]
-
-    def build(node: str | ReliefLayout, parent_parallel: bool) -> Arrangement:
-        if isinstance(node, str):
-            if node == main and extra and not parent_parallel:
-                return Parallel((valves[node], *extra))
-            return valves[node]
-        is_parallel = bool(node.parallel)
-        items = [build(m, is_parallel) for m in node.members()]
-        if is_parallel and main in node.members() and extra:
-            items.extend(extra)
-        return Parallel(tuple(items)) if is_parallel else Series(tuple(items))
-
-    layout = model.circuit.relief_layout
-    if layout is not None:
-        return build(layout, False)
-    in_circuit = [rid for rid in valves if rid not in model.parallel_extra]
-    if len(in_circuit) == 1:
-        return build(in_circuit[0], False)
-    return Parallel(tuple(valves[rid] for rid in valves))
+    return arrangement_for(
+        list(valves.values()), model.circuit.relief_layout, joined=extra, joined_to=main_relief_id(model)
+    )
 
 
 def downstream(model: CircuitModel, return_bar: float) -> float:

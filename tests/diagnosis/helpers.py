@@ -366,7 +366,7 @@ class Scene:
         out[self.free] = canonical_of(free_need.point.kind, x)
         if together:
             for need in self.needs:
-                if need.point.kind is free_need.point.kind:
+                if need.point.kind is free_need.point.kind and need.name in self.rule.value.names:
                     out[need.name] = canonical_of(need.point.kind, x)
         return out
 
@@ -459,6 +459,17 @@ def _figure(name: str, profile: MachineProfile, circuits: list[Circuit]) -> floa
         if len(circuits) != 1 or not circuits[0].reliefs:
             raise NoScene("no relief layout")
         return si_of(Kind.PRESSURE, deadhead_bar(circuits[0]))
+    if name == "cross_port_stall_expected":
+        # Setting plus the low side's charge (middle of the in-stroke charge range) when the
+        # setting is a differential (physics.closed_loop.cross_port_stall_reading).
+        setting = _figure("high_pressure_relief_setting", profile, circuits)
+        loop = circuits[0]
+        if loop.cross_port_relief_convention != "differential":
+            return setting
+        charge = _primary(loop.test_points, Role.CHARGE_PRESSURE)
+        if charge is None:
+            raise NoScene("no charge point")
+        return setting + si_of(Kind.PRESSURE, _nominal(charge, FunctionState.STALLED))
     if name == "pump_theoretical_flow":
         # No speed reading in a scene: the engine uses the rated speed (symbols.DERIVED).
         return _figure("pump_displacement", profile, circuits) * si_value(profile.rated_speed)
@@ -474,7 +485,7 @@ def _try_scene(rule: Rule, profile: MachineProfile, circuit: Circuit | None) -> 
     for name in sorted(rule.names):
         if name in SYMBOLS.readings:
             role, fixed = SYMBOLS.readings[name]
-        elif name in DERIVED and DERIVED[name][1]:
+        elif name in DERIVED and DERIVED[name][1] and name != "cross_port_stall_expected":
             (role,) = DERIVED[name][1]
             fixed = None
         else:
@@ -487,6 +498,15 @@ def _try_scene(rule: Rule, profile: MachineProfile, circuit: Circuit | None) -> 
         if state is None:
             raise NoScene(f"{point.id} has no expected range in {spec.when}")
         needs.append(ReadingNeed(name, role, state, point))
+    if "cross_port_stall_expected" in rule.names:
+        # The expected port reading adds the low side's charge: the visit needs a charge reading
+        # at the stall too (its nominal value is the one _figure used).
+        point = _primary(points, Role.CHARGE_PRESSURE)
+        if point is None:
+            raise NoScene("no charge point")
+        needs.append(
+            ReadingNeed("charge_pressure_in_stalled", Role.CHARGE_PRESSURE, FunctionState.STALLED, point)
+        )
     if not needs:
         raise NoScene("the rule reads no test point")
     nominal = {n.name: _nominal(n.point, n.state) for n in needs}

@@ -5,6 +5,7 @@ import pytest
 from fieldkit.errors import DimensionError
 from fieldkit.physics.common import OutOfRangeError
 from fieldkit.physics.reliefs import Parallel, ReliefValve, Series, deadhead, opening_pressure
+from fieldkit.units import Q_
 from fieldkit.units import parse_quantity as q
 
 
@@ -127,3 +128,37 @@ def test_drain_must_be_internal_or_external():
 def test_empty_group_is_refused():
     with pytest.raises(OutOfRangeError, match="at least one relief"):
         Series([])
+
+
+def test_parallel_override_caps_the_inlet_at_the_lowest_full_flow_pressure() -> None:
+    # Hand calculation (issue 13, item 5). Branch A cracks at 200 bar with a 30 bar override, so
+    # it would need 230 bar to pass the whole flow; branch B cracks later, at 210 bar, but is fully
+    # open at 210 + 5 = 215 bar. Before the inlet reaches 230 bar, B is wide open and passes the
+    # rest: the inlet cannot rise past 215 bar. Cracking still starts at A's 200 bar.
+    soft = ReliefValve("soft", Q_(200, "bar"), Q_(30, "bar"))
+    stiff = ReliefValve("stiff", Q_(210, "bar"), Q_(5, "bar"))
+    group = Parallel([soft, stiff])
+    assert deadhead(group).upstream.m_as("bar") == pytest.approx(215.0)
+    assert deadhead(group, at_full_flow=False).upstream.m_as("bar") == pytest.approx(200.0)
+
+
+def test_one_relief_builder_serves_the_engine_and_the_simulator() -> None:
+    # A layout of main and port relief in parallel, then a 4 bar check in series (hand sum:
+    # 180 + 4 = 184 bar); an aux relief of 110 bar wrongly joined to the main governs: 110 + 4.
+    from fieldkit.model.profile import Relief, ReliefLayout
+    from fieldkit.physics.reliefs import arrangement_for
+
+    reliefs = [
+        Relief(id="main", setting="180 bar"),
+        Relief(id="port", setting="210 bar"),
+        Relief(id="aux", setting="110 bar"),
+        Relief(id="check", setting="4 bar"),
+    ]
+    layout = ReliefLayout(series=[ReliefLayout(parallel=["main", "port"]), "check"])
+    assert deadhead(arrangement_for(reliefs, layout)).upstream.m_as("bar") == pytest.approx(184.0)
+    aux = ReliefValve("aux", Q_(110, "bar"))
+    joined = arrangement_for(reliefs, layout, joined=[aux], joined_to="main")
+    assert deadhead(joined).upstream.m_as("bar") == pytest.approx(114.0)
+    # No layout: one relief stands alone, several share the inlet (lowest governs: 4 bar).
+    assert deadhead(arrangement_for(reliefs[:1], None)).upstream.m_as("bar") == pytest.approx(180.0)
+    assert deadhead(arrangement_for(reliefs, None)).upstream.m_as("bar") == pytest.approx(4.0)

@@ -103,11 +103,18 @@ def test_hp_relief_low_lowers_one_loop_side_only(simulators, true_at):
     healthy, faulty, injected = pair(sim, "hp_relief_low")
     side = "loop_a" if "loop A" in injected.change else "loop_b"
     other = "loop_b" if side == "loop_a" else "loop_a"
-    assert true_at(sim, faulty, f"travel.{side}", S.STALLED) == pytest.approx(
-        0.85 * true_at(sim, healthy, f"travel.{side}", S.STALLED), rel=1e-9
+
+    # The demo's settings are differentials: the gauge reads setting + charge (the low side), so
+    # the 15 % drop shows on the part above charge. The other side is unchanged but for the
+    # charge under it, which moves a hair with the loop's leakage.
+    def above_charge(model: object, point: str) -> float:
+        return true_at(sim, model, point, S.STALLED) - true_at(sim, model, "travel.charge", S.STALLED)
+
+    assert above_charge(faulty, f"travel.{side}") == pytest.approx(
+        0.85 * above_charge(healthy, f"travel.{side}"), rel=1e-9
     )
-    assert true_at(sim, faulty, f"travel.{other}", S.STALLED) == true_at(
-        sim, healthy, f"travel.{other}", S.STALLED
+    assert true_at(sim, faulty, f"travel.{other}", S.STALLED) == pytest.approx(
+        true_at(sim, healthy, f"travel.{other}", S.STALLED), abs=0.05
     )
 
 
