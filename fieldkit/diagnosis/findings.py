@@ -439,9 +439,10 @@ class Evaluator:
                 f" Too close to a limit to call with this gauge (P low {p_low:.0%}, P high {p_high:.0%})."
             )
         if direction is not None:
+            bound = {1: "at least", -1: "at most"}.get(direction, "no bound on")
             message += (
                 " A reading in it sat at the end of its gauge's scale, so it gives only a bound"
-                f" ({'at least' if direction > 0 else 'at most' if direction < 0 else 'unknown'} {texts['value']})."
+                f" ({bound} {texts['value']})."
             )
         if self.notes:
             message += " " + " ".join(self.notes)
