@@ -45,6 +45,8 @@ class VisitSummary:
     status: VisitStatus
     reading_count: int
     updated_at: dt.datetime
+    #: The shop-server login that took the visit, once it has been through a sync ("" before).
+    taken_by: str = ""
 
 
 @runtime_checkable

@@ -75,7 +75,79 @@ _V1 = Migration(
     ),
 )
 
-MIGRATIONS: tuple[Migration, ...] = (_V1,)
+# Layout 2 makes every record travel to the shop server and back (fieldkit.store.sync):
+# * ``replica`` holds this store's own origin id (made once, never changed) and the sync cursors;
+# * every visit and reading carries its origin (which laptop made it) and whether it came from
+#   the server (``from_server``, so it is not sent back up);
+# * header edits are kept as a log of field changes (fieldkit.store.header_log) so two laptops
+#   can edit one header offline; the existing headers become their first log entries;
+# * deletions are records of their own, so a deletion made offline travels like a reading.
+#   The same reading deleted on two laptops keeps the earlier time (the trigger allows that move).
+_ORIGIN = "(SELECT value FROM replica WHERE key = 'origin')"
+_V2 = Migration(
+    2,
+    "sync with a shop server: origins, header change log, deletion records",
+    (
+        "CREATE TABLE replica (key TEXT PRIMARY KEY NOT NULL, value TEXT NOT NULL)",
+        "INSERT INTO replica (key, value) VALUES ('origin', lower(hex(randomblob(8))))",
+        "ALTER TABLE visit ADD COLUMN origin TEXT NOT NULL DEFAULT ''",
+        "ALTER TABLE visit ADD COLUMN taken_by TEXT NOT NULL DEFAULT ''",
+        "ALTER TABLE visit ADD COLUMN from_server INTEGER NOT NULL DEFAULT 0",
+        f"UPDATE visit SET origin = {_ORIGIN}",
+        "ALTER TABLE reading ADD COLUMN origin TEXT NOT NULL DEFAULT ''",
+        "ALTER TABLE reading ADD COLUMN from_server INTEGER NOT NULL DEFAULT 0",
+        f"UPDATE reading SET origin = {_ORIGIN}",
+        """CREATE TABLE header_change (
+            seq INTEGER PRIMARY KEY AUTOINCREMENT,
+            id TEXT NOT NULL UNIQUE,
+            visit_id TEXT NOT NULL REFERENCES visit (id),
+            field TEXT NOT NULL,
+            value_json TEXT NOT NULL,
+            changed_at TEXT NOT NULL,
+            origin TEXT NOT NULL,
+            author TEXT NOT NULL DEFAULT '',
+            from_server INTEGER NOT NULL DEFAULT 0
+        )""",
+        "CREATE INDEX header_change_by_visit ON header_change (visit_id, field, changed_at)",
+        """CREATE TRIGGER header_change_is_kept
+            BEFORE UPDATE OF id, visit_id, field, value_json, changed_at, origin ON header_change
+            BEGIN SELECT RAISE(ABORT, 'a header change is history; add a new change instead'); END""",
+        """CREATE TRIGGER header_change_row_is_kept
+            BEFORE DELETE ON header_change
+            BEGIN SELECT RAISE(ABORT, 'header changes are kept as history'); END""",
+        f"""INSERT INTO header_change (id, visit_id, field, value_json, changed_at, origin)
+            SELECT lower(hex(randomblob(8))), v.id, j.key,
+                   CASE j.type WHEN 'text' THEN json_quote(j.value) WHEN 'true' THEN 'true'
+                        WHEN 'false' THEN 'false' WHEN 'null' THEN 'null' ELSE j.value END,
+                   v.created_at, {_ORIGIN}
+            FROM visit v, json_each(v.header_json) j
+            WHERE j.key NOT IN ('id', 'machine', 'readings', 'schema_version', 'gauges')""",
+        f"""INSERT INTO header_change (id, visit_id, field, value_json, changed_at, origin)
+            SELECT lower(hex(randomblob(8))), v.id, 'gauge:' || json_extract(g.value, '$.id'), json(g.value),
+                   v.created_at, {_ORIGIN}
+            FROM visit v, json_each(v.header_json, '$.gauges') g""",
+        """CREATE TABLE reading_deletion (
+            seq INTEGER PRIMARY KEY AUTOINCREMENT,
+            visit_id TEXT NOT NULL,
+            reading_id TEXT NOT NULL,
+            deleted_at TEXT NOT NULL,
+            origin TEXT NOT NULL,
+            from_server INTEGER NOT NULL DEFAULT 0,
+            UNIQUE (visit_id, reading_id, origin),
+            FOREIGN KEY (visit_id, reading_id) REFERENCES reading (visit_id, id)
+        )""",
+        f"""INSERT INTO reading_deletion (visit_id, reading_id, deleted_at, origin)
+            SELECT visit_id, id, deleted_at, {_ORIGIN} FROM reading WHERE deleted_at IS NOT NULL""",
+        "DROP TRIGGER reading_deleted_once",
+        """CREATE TRIGGER reading_deleted_once
+            BEFORE UPDATE OF deleted_at ON reading
+            WHEN OLD.deleted_at IS NOT NULL AND (NEW.deleted_at IS NULL OR NEW.deleted_at >= OLD.deleted_at)
+            BEGIN SELECT RAISE(ABORT, 'this reading was already deleted'); END""",
+        "CREATE INDEX reading_by_seq_origin ON reading (from_server, seq)",
+    ),
+)
+
+MIGRATIONS: tuple[Migration, ...] = (_V1, _V2)
 
 
 def latest_version(migrations: Sequence[Migration] = MIGRATIONS) -> int:

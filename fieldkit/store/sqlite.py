@@ -31,6 +31,7 @@ from pydantic import BaseModel, ValidationError
 from fieldkit.errors import StoreError
 from fieldkit.model.visit import Gauge, Reading, Visit, VisitStatus, new_id
 from fieldkit.store.base import EDITABLE_FIELDS, VisitSummary
+from fieldkit.store.header_log import changed_fields
 from fieldkit.store.migrations import MIGRATIONS, Migration, apply_pending, latest_version
 from fieldkit.store.opening import FileState, create_store, inspect_file, inspect_with_sqlite
 from fieldkit.tomlfile import validation_error
@@ -89,6 +90,23 @@ class SqliteVisitStore:
             except BaseException:
                 self.close()
                 raise
+        self.origin = self._replica_value("origin") or ""
+
+    def _replica_value(self, key: str) -> str | None:
+        with self._lock:
+            try:
+                row = self._db.execute("SELECT value FROM replica WHERE key = ?", (key,)).fetchone()
+            except sqlite3.OperationalError:  # a store opened with an older layout list (tests)
+                return None
+            return None if row is None else str(row[0])
+
+    def transaction(self, doing: str = "change") -> contextlib.AbstractContextManager[sqlite3.Connection]:
+        """A write transaction for the sync module (:mod:`fieldkit.store.replica`)."""
+        return self._write(doing)
+
+    def snapshot(self) -> contextlib.AbstractContextManager[sqlite3.Connection]:
+        """A read transaction for the sync module."""
+        return self._read()
 
     # --- connection and transactions ----------------------------------------------------------
 
@@ -268,7 +286,9 @@ class SqliteVisitStore:
             ).fetchone()[0]
         )
 
-    def _summary(self, conn: sqlite3.Connection, header: Visit, updated_at: str) -> VisitSummary:
+    def _summary(
+        self, conn: sqlite3.Connection, header: Visit, updated_at: str, taken_by: str = ""
+    ) -> VisitSummary:
         return VisitSummary(
             id=header.id,
             job_number=header.job_number,
@@ -278,6 +298,7 @@ class SqliteVisitStore:
             status=header.status,
             reading_count=self._current_count(conn, header.id),
             updated_at=dt.datetime.fromisoformat(updated_at),
+            taken_by=taken_by,
         )
 
     @staticmethod
@@ -290,18 +311,50 @@ class SqliteVisitStore:
             raise StoreError(f"{what} is not valid and was not saved: {_why(exc)}") from None
 
     def _write_header(self, conn: sqlite3.Connection, visit: Visit, *, insert: bool) -> None:
+        """Write the header and log each changed field (fieldkit.store.header_log), so the edit
+        can travel to the shop server and merge there field by field."""
         now = _now()
         header = visit.model_dump_json(exclude={"readings"})
+        before: dict[str, Any] | None = None
         if insert:
             conn.execute(
-                "INSERT INTO visit (id, machine, status, visit_date, created_at, updated_at, header_json) "
-                "VALUES (?, ?, ?, ?, ?, ?, ?)",
-                (visit.id, visit.machine, visit.status.value, visit.date.isoformat(), now, now, header),
+                "INSERT INTO visit (id, machine, status, visit_date, created_at, updated_at, header_json, origin) "
+                "VALUES (?, ?, ?, ?, ?, ?, ?, ?)",
+                (
+                    visit.id,
+                    visit.machine,
+                    visit.status.value,
+                    visit.date.isoformat(),
+                    now,
+                    now,
+                    header,
+                    self.origin,
+                ),
             )
         else:
+            row = conn.execute("SELECT header_json FROM visit WHERE id = ?", (visit.id,)).fetchone()
+            before = json.loads(row[0]) if row else None
             conn.execute(
                 "UPDATE visit SET machine = ?, status = ?, visit_date = ?, updated_at = ?, header_json = ? WHERE id = ?",
                 (visit.machine, visit.status.value, visit.date.isoformat(), now, header, visit.id),
+            )
+        self._log_header(conn, visit.id, changed_fields(before, json.loads(header)), now)
+
+    def _log_header(self, conn: sqlite3.Connection, visit_id: str, changes: dict[str, str], now: str) -> None:
+        """An edit made here after seeing a value must win over it even if this laptop's clock is
+        behind the one that wrote the value: its time is pushed past the field's newest change."""
+        for field, value in changes.items():
+            row = conn.execute(
+                "SELECT max(changed_at) FROM header_change WHERE visit_id = ? AND field = ?",
+                (visit_id, field),
+            ).fetchone()
+            at = now
+            if row and row[0] is not None and row[0] >= now:
+                at = iso(dt.datetime.fromisoformat(row[0]) + dt.timedelta(microseconds=1))
+            conn.execute(
+                "INSERT INTO header_change (id, visit_id, field, value_json, changed_at, origin) "
+                "VALUES (?, ?, ?, ?, ?, ?)",
+                (new_id() + new_id()[:4], visit_id, field, value, at, self.origin),
             )
 
     def _touch(self, conn: sqlite3.Connection, visit_id: str) -> None:
@@ -309,8 +362,8 @@ class SqliteVisitStore:
 
     def _insert_reading(self, conn: sqlite3.Connection, visit_id: str, reading: Reading) -> None:
         conn.execute(
-            "INSERT INTO reading (visit_id, id, test_point, taken_at, replaces, deleted_at, stored_at, reading_json) "
-            "VALUES (?, ?, ?, ?, ?, ?, ?, ?)",
+            "INSERT INTO reading (visit_id, id, test_point, taken_at, replaces, deleted_at, stored_at, reading_json, "
+            "origin) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)",
             (
                 visit_id,
                 reading.id,
@@ -320,6 +373,7 @@ class SqliteVisitStore:
                 iso(reading.deleted_at) if reading.deleted_at else None,
                 _now(),
                 reading.model_dump_json(exclude={"deleted_at"}),
+                self.origin,
             ),
         )
 
@@ -397,11 +451,13 @@ class SqliteVisitStore:
         where = ("WHERE " + " AND ".join(clauses)) if clauses else ""
         with self._read() as conn:
             rows = conn.execute(
-                f"SELECT id, header_json, updated_at FROM visit {where} ORDER BY visit_date DESC, created_at DESC, id",
+                f"SELECT id, header_json, updated_at, taken_by FROM visit {where} "
+                "ORDER BY visit_date DESC, created_at DESC, id",
                 args,
             ).fetchall()
             return [
-                self._summary(conn, self._parse_header(vid, text)[1], updated) for vid, text, updated in rows
+                self._summary(conn, self._parse_header(vid, text)[1], updated, by)
+                for vid, text, updated, by in rows
             ]
 
     def update_visit(self, visit_id: str, **fields: Any) -> Visit:
@@ -512,9 +568,14 @@ class SqliteVisitStore:
         with self._write("deletion") as conn:
             self._open_header(conn, visit_id)
             self._standing(conn, visit_id, reading_id)
+            now = _now()
             conn.execute(
                 "UPDATE reading SET deleted_at = ? WHERE visit_id = ? AND id = ?",
-                (_now(), visit_id, reading_id),
+                (now, visit_id, reading_id),
+            )
+            conn.execute(
+                "INSERT INTO reading_deletion (visit_id, reading_id, deleted_at, origin) VALUES (?, ?, ?, ?)",
+                (visit_id, reading_id, now, self.origin),
             )
             self._touch(conn, visit_id)
             return self._readings(conn, visit_id, "AND id = ?", (reading_id,))[0]
@@ -549,13 +610,13 @@ class SqliteVisitStore:
         out: list[tuple[VisitSummary, list[Reading]]] = []
         with self._read() as conn:
             rows = conn.execute(
-                "SELECT id, updated_at FROM visit WHERE machine = ? ORDER BY visit_date, created_at, id",
+                "SELECT id, updated_at, taken_by FROM visit WHERE machine = ? ORDER BY visit_date, created_at, id",
                 (machine_id,),
             ).fetchall()
-            for vid, updated in rows:
+            for vid, updated, by in rows:
                 visit = self._load(conn, vid)
                 readings = [r for r in visit.current_readings() if wanted is None or r.test_point in wanted]
-                out.append((self._summary(conn, visit, updated), readings))
+                out.append((self._summary(conn, visit, updated, by), readings))
         return out
 
 

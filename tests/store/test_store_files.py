@@ -125,7 +125,9 @@ def test_a_store_from_a_newer_fieldkit_is_left_alone(store_path: Path) -> None:
     conn.execute("PRAGMA user_version = 99")
     conn.commit()
     conn.close()
-    _refused(store_path, r"made by a newer fieldkit \(layout 99; this program knows up to 1\)")
+    _refused(
+        store_path, rf"made by a newer fieldkit \(layout 99; this program knows up to {latest_version()}\)"
+    )
 
 
 def test_a_folder_is_not_a_store(tmp_path: Path) -> None:
@@ -169,13 +171,17 @@ def test_an_older_store_is_upgraded_in_one_step_and_keeps_its_readings(store_pat
     visit_id = _store_with_readings(store_path, 4)
     later = (
         *MIGRATIONS,
-        Migration(2, "test: an extra index", ("CREATE INDEX reading_by_stored ON reading (stored_at)",)),
+        Migration(
+            latest_version() + 1,
+            "test: an extra index",
+            ("CREATE INDEX reading_by_stored ON reading (stored_at)",),
+        ),
     )
     with SqliteVisitStore(store_path, migrations=later) as store:
         assert len(store.get_visit(visit_id).readings) == 4
     conn = sqlite3.connect(store_path)
     try:
-        assert conn.execute("PRAGMA user_version").fetchone()[0] == 2
+        assert conn.execute("PRAGMA user_version").fetchone()[0] == latest_version() + 1
         assert conn.execute("SELECT 1 FROM sqlite_master WHERE name = 'reading_by_stored'").fetchone()
     finally:
         conn.close()
@@ -190,7 +196,7 @@ def test_a_failing_upgrade_leaves_the_store_as_it_was(store_path: Path) -> None:
     broken = (
         *MIGRATIONS,
         Migration(
-            2,
+            latest_version() + 1,
             "test: good then bad",
             (
                 "CREATE TABLE photo (id TEXT)",
@@ -203,7 +209,7 @@ def test_a_failing_upgrade_leaves_the_store_as_it_was(store_path: Path) -> None:
     assert digest(store_path) == before
     conn = sqlite3.connect(store_path)
     try:
-        assert conn.execute("PRAGMA user_version").fetchone()[0] == 1
+        assert conn.execute("PRAGMA user_version").fetchone()[0] == latest_version()
         assert conn.execute("SELECT 1 FROM sqlite_master WHERE name = 'photo'").fetchone() is None
     finally:
         conn.close()

@@ -24,7 +24,7 @@ from store_builders import (
 from fieldkit.errors import StoreError
 from fieldkit.model.visit import Reading, VisitStatus
 from fieldkit.store import SqliteVisitStore, VisitStore, open_store
-from fieldkit.store.migrations import APPLICATION_ID
+from fieldkit.store.migrations import APPLICATION_ID, latest_version
 from fieldkit.units import Q_
 
 
@@ -40,7 +40,7 @@ def test_every_connection_is_set_up_to_survive_a_power_cut(store: SqliteVisitSto
         "synchronous": 2,
         "foreign_keys": 1,
         "busy_timeout": 5000,
-        "user_version": 1,
+        "user_version": latest_version(),
         "application_id": APPLICATION_ID,
     }
 

@@ -1,0 +1,300 @@
+"""The laptop's side of a sync: what is waiting to go up, and taking in what came down.
+
+Everything here runs inside the SQLite store's own transactions. A batch taken in from the
+server and the cursor that says "taken up to here" are committed together, so a sync killed at
+any moment either has a batch or has not, and the next sync carries on from the cursor. Going up,
+the server commits first and the cursor after; a batch sent twice is skipped on the server by its
+global ids, so the worst a kill can do is send a batch again.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+import json
+import sqlite3
+from collections.abc import Iterable, Sequence
+from dataclasses import dataclass
+from datetime import UTC
+from typing import Any
+
+from pydantic import ValidationError
+
+from fieldkit.errors import StoreError
+from fieldkit.model.visit import Reading, Visit
+from fieldkit.store.header_log import FieldChange, fold
+from fieldkit.store.sqlite import SqliteVisitStore, iso
+
+#: Local SQL for each record kind: (ordering column, columns sent, table).
+_OUTGOING: dict[str, tuple[str, str, str]] = {
+    "visit": ("rowid", "id, machine, origin, created_at", "visit"),
+    "header_change": ("seq", "id, visit_id, field, value_json, changed_at, origin", "header_change"),
+    "reading": ("seq", "visit_id, id, test_point, taken_at, replaces, reading_json, origin", "reading"),
+    "reading_deletion": ("seq", "visit_id, reading_id, deleted_at, origin", "reading_deletion"),
+}
+KINDS = tuple(_OUTGOING)
+
+
+@dataclass(frozen=True, slots=True)
+class SyncStatus:
+    """What the start screen shows: when the last sync finished and what is waiting to go up."""
+
+    last_sync: dt.datetime | None
+    waiting: dict[str, int]
+    login: str
+
+    @property
+    def waiting_total(self) -> int:
+        return sum(self.waiting.values())
+
+
+class Replica:
+    """Sync bookkeeping on one :class:`SqliteVisitStore` (the store stays the store of record)."""
+
+    def __init__(self, store: SqliteVisitStore) -> None:
+        self.store = store
+
+    # --- cursors and marks ------------------------------------------------------------------------
+
+    @staticmethod
+    def _get(conn: sqlite3.Connection, key: str, default: str = "") -> str:
+        row = conn.execute("SELECT value FROM replica WHERE key = ?", (key,)).fetchone()
+        return default if row is None else str(row[0])
+
+    @staticmethod
+    def _set(conn: sqlite3.Connection, key: str, value: str) -> None:
+        conn.execute(
+            "INSERT INTO replica (key, value) VALUES (?, ?) ON CONFLICT (key) DO UPDATE SET value = excluded.value",
+            (key, value),
+        )
+
+    def cursor(self, key: str) -> int:
+        with self.store.snapshot() as conn:
+            return int(self._get(conn, key, "0"))
+
+    def set_cursor(self, key: str, value: int) -> None:
+        with self.store.transaction("sync bookkeeping") as conn:
+            self._set(conn, key, str(int(value)))
+
+    def meet_server(self, server_id: str, login: str) -> bool:
+        """Remember the server; a different server than last time starts every cursor at zero
+        (sending everything again is safe, the server skips what it has). True if reset."""
+        with self.store.transaction("sync bookkeeping") as conn:
+            known = self._get(conn, "server_id")
+            reset = known not in ("", server_id)
+            if reset:
+                conn.execute("DELETE FROM replica WHERE key LIKE 'push:%' OR key LIKE 'pull:%'")
+            self._set(conn, "server_id", server_id)
+            self._set(conn, "login", login)
+            return reset
+
+    def marks(self) -> dict[str, int]:
+        """The newest local record of each kind right now, read in one transaction: a push sends
+        up to these marks only, so what it sends is complete (a reading's gauge is in the header
+        changes sent before it) even while the technician keeps typing."""
+        with self.store.snapshot() as conn:
+            out: dict[str, int] = {}
+            for kind, (order, _, table) in _OUTGOING.items():
+                row = conn.execute(f"SELECT coalesce(max({order}), 0) FROM {table}").fetchone()
+                out[kind] = int(row[0])
+            return out
+
+    # --- going up ---------------------------------------------------------------------------------
+
+    def outgoing(self, kind: str, after: int, upto: int, limit: int) -> tuple[list[tuple[Any, ...]], int]:
+        """Records made on this laptop, numbered in (after, upto], oldest first, and the number of
+        the last one returned (``after`` when none)."""
+        order, cols, table = _OUTGOING[kind]
+        with self.store.snapshot() as conn:
+            rows = conn.execute(
+                f"SELECT {order}, {cols} FROM {table} WHERE from_server = 0 AND {order} > ? AND {order} <= ? "
+                f"ORDER BY {order} LIMIT ?",
+                (after, upto, limit),
+            ).fetchall()
+        last = int(rows[-1][0]) if rows else after
+        return [tuple(r[1:]) for r in rows], last
+
+    def header_changes_of(self, visit_ids: Sequence[str]) -> list[tuple[Any, ...]]:
+        """Every local header change of these visits: a visit goes up with its header, in one
+        server transaction, so nobody ever pulls a visit without one."""
+        if not visit_ids:
+            return []
+        marks = ",".join("?" * len(visit_ids))
+        with self.store.snapshot() as conn:
+            return [
+                tuple(r)
+                for r in conn.execute(
+                    f"SELECT {_OUTGOING['header_change'][1]} FROM header_change "
+                    f"WHERE from_server = 0 AND visit_id IN ({marks}) ORDER BY seq",
+                    tuple(visit_ids),
+                ).fetchall()
+            ]
+
+    def status(self) -> SyncStatus:
+        with self.store.snapshot() as conn:
+            waiting: dict[str, int] = {}
+            for kind, (order, _, table) in _OUTGOING.items():
+                after = int(self._get(conn, f"push:{kind}", "0"))
+                row = conn.execute(
+                    f"SELECT count(*) FROM {table} WHERE from_server = 0 AND {order} > ?", (after,)
+                ).fetchone()
+                waiting[kind] = int(row[0])
+            last = self._get(conn, "last_sync")
+            login = self._get(conn, "login")
+        return SyncStatus(dt.datetime.fromisoformat(last) if last else None, waiting, login)
+
+    def finished(self) -> None:
+        with self.store.transaction("sync bookkeeping") as conn:
+            self._set(conn, "last_sync", iso(dt.datetime.now(UTC)))
+
+    # --- coming down ------------------------------------------------------------------------------
+
+    def take_visits(
+        self,
+        rows: Sequence[tuple[Any, ...]],
+        changes: Sequence[tuple[Any, ...]],
+        cursor_key: str,
+        cursor: int,
+    ) -> int:
+        """Visits from the server with their whole header log; one local transaction with the cursor.
+        ``rows``: id, machine, origin, created_at, owner, server_seq; ``changes``: header change
+        columns, author, server_seq. Returns how many visits were new here."""
+        new = 0
+        with self.store.transaction("sync") as conn:
+            conn.execute(
+                "PRAGMA defer_foreign_keys = ON"
+            )  # the log goes in before its visit row; checked at commit
+            self._insert_changes(conn, changes)
+            for vid, machine, origin, created_at, owner, _seq in rows:
+                if conn.execute("SELECT 1 FROM visit WHERE id = ?", (vid,)).fetchone():
+                    conn.execute("UPDATE visit SET taken_by = ? WHERE id = ?", (owner, vid))
+                    continue
+                header = self._folded(conn, vid, machine)
+                conn.execute(
+                    "INSERT INTO visit (id, machine, status, visit_date, created_at, updated_at, header_json, "
+                    "origin, taken_by, from_server) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, 1)",
+                    (
+                        vid,
+                        machine,
+                        header.status.value,
+                        header.date.isoformat(),
+                        created_at,
+                        iso(dt.datetime.now(UTC)),
+                        header.model_dump_json(exclude={"readings"}),
+                        origin,
+                        owner,
+                    ),
+                )
+                new += 1
+            self._set(conn, cursor_key, str(cursor))
+        return new
+
+    def take_header_changes(self, rows: Sequence[tuple[Any, ...]], cursor_key: str, cursor: int) -> None:
+        with self.store.transaction("sync") as conn:
+            touched = self._insert_changes(conn, rows)
+            for vid in sorted(touched):
+                machine = conn.execute("SELECT machine FROM visit WHERE id = ?", (vid,)).fetchone()
+                if machine is None:
+                    raise StoreError(f"the server sent header changes for visit '{vid}', which it never sent")
+                header = self._folded(conn, vid, str(machine[0]))
+                conn.execute(
+                    "UPDATE visit SET status = ?, visit_date = ?, updated_at = ?, header_json = ? WHERE id = ?",
+                    (
+                        header.status.value,
+                        header.date.isoformat(),
+                        iso(dt.datetime.now(UTC)),
+                        header.model_dump_json(exclude={"readings"}),
+                        vid,
+                    ),
+                )
+            self._set(conn, cursor_key, str(cursor))
+
+    def take_readings(self, rows: Sequence[tuple[Any, ...]], cursor_key: str, cursor: int) -> int:
+        """Readings from the server (append-only, so they never conflict); returns how many were new."""
+        new = 0
+        now = iso(dt.datetime.now(UTC))
+        with self.store.transaction("sync") as conn:
+            for vid, rid, test_point, taken_at, replaces, text, origin, _author, _seq in rows:
+                try:
+                    Reading.model_validate_json(text)
+                except ValidationError as exc:
+                    raise StoreError(
+                        f"the server sent reading '{rid}' of visit '{vid}' that this fieldkit cannot read; "
+                        f"nothing from this batch was saved ({exc.errors()[0]['msg']})"
+                    ) from None
+                cur = conn.execute(
+                    "INSERT OR IGNORE INTO reading (visit_id, id, test_point, taken_at, replaces, deleted_at, "
+                    "stored_at, reading_json, origin, from_server) VALUES (?, ?, ?, ?, ?, NULL, ?, ?, ?, 1)",
+                    (vid, rid, test_point, taken_at, replaces, now, text, origin),
+                )
+                new += cur.rowcount
+            self._set(conn, cursor_key, str(cursor))
+        return new
+
+    def take_deletions(self, rows: Sequence[tuple[Any, ...]], cursor_key: str, cursor: int) -> None:
+        """A deletion marks the reading; the same reading deleted on two laptops keeps the earlier time."""
+        with self.store.transaction("sync") as conn:
+            for vid, rid, deleted_at, origin, _author, _seq in rows:
+                conn.execute(
+                    "INSERT OR IGNORE INTO reading_deletion (visit_id, reading_id, deleted_at, origin, from_server) "
+                    "VALUES (?, ?, ?, ?, 1)",
+                    (vid, rid, deleted_at, origin),
+                )
+                conn.execute(
+                    "UPDATE reading SET deleted_at = ? WHERE visit_id = ? AND id = ? "
+                    "AND (deleted_at IS NULL OR deleted_at > ?)",
+                    (deleted_at, vid, rid, deleted_at),
+                )
+            self._set(conn, cursor_key, str(cursor))
+
+    # --- helpers ------------------------------------------------------------------------------------
+
+    @staticmethod
+    def _insert_changes(conn: sqlite3.Connection, rows: Iterable[tuple[Any, ...]]) -> set[str]:
+        touched: set[str] = set()
+        for cid, vid, field, value, changed_at, origin, author, _seq in rows:
+            cur = conn.execute(
+                "INSERT OR IGNORE INTO header_change (id, visit_id, field, value_json, changed_at, origin, author, "
+                "from_server) VALUES (?, ?, ?, ?, ?, ?, ?, 1)",
+                (cid, vid, field, value, changed_at, origin, author),
+            )
+            if cur.rowcount:
+                touched.add(str(vid))
+        return touched
+
+    def _folded(self, conn: sqlite3.Connection, visit_id: str, machine: str) -> Visit:
+        changes = [
+            FieldChange(*row)
+            for row in conn.execute(
+                "SELECT id, visit_id, field, value_json, changed_at, origin, author FROM header_change "
+                "WHERE visit_id = ?",
+                (visit_id,),
+            )
+        ]
+        used = [
+            str(g)
+            for (g,) in conn.execute(
+                "SELECT DISTINCT json_extract(reading_json, '$.gauge') FROM reading "
+                "WHERE visit_id = ? AND json_extract(reading_json, '$.gauge') IS NOT NULL",
+                (visit_id,),
+            )
+        ]
+        try:
+            return Visit.model_validate(fold(visit_id, machine, changes, used))
+        except (ValidationError, ValueError) as exc:
+            raise StoreError(
+                f"visit '{visit_id}' from the shop server has a header this fieldkit cannot read: {exc}"
+            ) from None
+
+    def header_history(self, visit_id: str, field: str) -> list[FieldChange]:
+        """Every value one header field has had (the losing ones too), oldest first."""
+        with self.store.snapshot() as conn:
+            rows = conn.execute(
+                "SELECT id, visit_id, field, value_json, changed_at, origin, author FROM header_change "
+                "WHERE visit_id = ? AND field = ? ORDER BY changed_at, id",
+                (visit_id, field),
+            ).fetchall()
+        return [FieldChange(*row) for row in rows]
+
+
+def field_value(change: FieldChange) -> Any:
+    return json.loads(change.value)
