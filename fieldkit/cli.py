@@ -112,6 +112,10 @@ def _parser() -> argparse.ArgumentParser:
     )
     ev.add_argument("--cases", type=int, default=20)
     ev.add_argument("--seed", type=int, default=1)
+
+    from fieldkit.sync_command import add_parsers
+
+    add_parsers(sub)
     return p
 
 
@@ -163,6 +167,10 @@ def _dispatch(args: argparse.Namespace) -> int:
         from fieldkit.simulate.command import run_evaluate
 
         return run_evaluate(args)
+    if cmd in ("server", "sync"):
+        from fieldkit.sync_command import run_server, run_sync
+
+        return run_server(args) if cmd == "server" else run_sync(args)
     bench = _workbench(args)
     try:
         if cmd == "visits":

@@ -75,6 +75,22 @@ class Replica:
         with self.store.transaction("sync bookkeeping") as conn:
             self._set(conn, key, str(int(value)))
 
+    def sent(self, kind: str, last: int, login: str) -> None:
+        """The server has everything of this kind up to ``last``: move the cursor, and sign this
+        laptop's header changes with the login that sent them (as the server did)."""
+        with self.store.transaction("sync bookkeeping") as conn:
+            if kind in ("visit", "header_change"):
+                conn.execute(
+                    "UPDATE header_change SET author = ? WHERE from_server = 0 AND author = '' AND "
+                    + (
+                        "visit_id IN (SELECT id FROM visit WHERE rowid <= ? AND from_server = 0)"
+                        if kind == "visit"
+                        else "seq <= ?"
+                    ),
+                    (login, last),
+                )
+            self._set(conn, f"push:{kind}", str(int(last)))
+
     def meet_server(self, server_id: str, login: str) -> bool:
         """Remember the server; a different server than last time starts every cursor at zero
         (sending everything again is safe, the server skips what it has). True if reset."""

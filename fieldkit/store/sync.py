@@ -74,9 +74,9 @@ def _push(
     total = sum(replica.status().waiting.values())
     done = 0
     sent_with_visit: set[str] = set()
+    report.sent = dict.fromkeys(KINDS, 0)
     for kind in KINDS:
         key = f"push:{kind}"
-        report.sent[kind] = 0
         while True:
             after = replica.cursor(key)
             rows, last = replica.outgoing(kind, after, marks[kind], batch)
@@ -94,11 +94,12 @@ def _push(
                 changes = replica.header_changes_of([str(r[0]) for r in keep])
                 payload["header_change"] = changes
                 sent_with_visit.update(str(c[0]) for c in changes)
+                report.sent["header_change"] += len(changes)
             elif kind == "header_change":
                 payload[kind] = [r for r in keep if str(r[0]) not in sent_with_visit]
             server.push(payload)
-            replica.set_cursor(key, last)
-            report.sent[kind] += len(keep)
+            replica.sent(kind, last, server.login.name)
+            report.sent[kind] += len(payload[kind])
             done += len(rows)
             if progress:
                 progress("up", done, max(total, done))

@@ -1,0 +1,83 @@
+"""``fieldkit server init URL``, ``fieldkit server add-technician NAME`` and ``fieldkit sync``.
+
+Kept out of cli.py so the command line starts without psycopg; see the README section
+"A shop server for several technicians".
+"""
+
+from __future__ import annotations
+
+import argparse
+import sys
+from typing import Any
+
+from fieldkit.errors import FieldkitError
+
+
+def add_parsers(sub: Any) -> None:
+    srv = sub.add_parser("server", help="set up the shop server (PostgreSQL) that laptops sync with")
+    ss = srv.add_subparsers(dest="server_command", metavar="ACTION")
+    init = ss.add_parser(
+        "init", help="create or upgrade fieldkit's tables, roles and access rules in a database"
+    )
+    init.add_argument("url", help="the database, as its owner: postgresql://USER@HOST/DB or 'service=NAME'")
+    add = ss.add_parser("add-technician", help="create a login that may add to its own visits and read all")
+    add.add_argument("name", help="login name: lower-case letters, digits and _")
+    add.add_argument("--supervisor", action="store_true", help="may add to every technician's visits")
+    add.add_argument(
+        "--url", help="the database as its owner (default: $FIELDKIT_SERVER or libpq's PG* settings)"
+    )
+
+    sy = sub.add_parser(
+        "sync", help="send this laptop's new records to the shop server and fetch the others'"
+    )
+    sy.add_argument("--url", help="the shop server (default: $FIELDKIT_SERVER or libpq's PG* settings)")
+
+
+def run_server(args: argparse.Namespace) -> int:
+    from fieldkit.store.pg_server import add_technician, init_server, server_conninfo
+
+    if args.server_command == "init":
+        before, after = init_server(args.url)
+        if before == after:
+            print(f"the shop server is already at layout {after}; nothing to do")
+        else:
+            print(
+                f"the shop server is set up (layout {before} → {after}); add logins with 'fieldkit server add-technician NAME'"
+            )
+        return 0
+    if args.server_command == "add-technician":
+        password = add_technician(server_conninfo(args.url), args.name, supervisor=args.supervisor)
+        kind = "supervisor" if args.supervisor else "technician"
+        print(
+            f"created the {kind} login '{args.name}' with the password below (shown once; not stored by fieldkit):"
+        )
+        print(password)
+        print(
+            "on that laptop put it in ~/.pgpass or a service file (see the README), never in a project file"
+        )
+        return 0
+    raise FieldkitError("say 'fieldkit server init URL' or 'fieldkit server add-technician NAME'")
+
+
+def run_sync(args: argparse.Namespace) -> int:
+    from fieldkit.store import open_store
+    from fieldkit.store.pg_server import ShopServer, server_conninfo
+    from fieldkit.store.sync import sync
+
+    conninfo = server_conninfo(args.url)
+    store = open_store(args.store)
+    try:
+        with ShopServer(conninfo) as server:
+
+            def progress(phase: str, done: int, total: int) -> None:
+                word = "sending" if phase == "up" else "receiving"
+                print(f"\r{word} {done}/{total}", end="", file=sys.stderr, flush=True)
+
+            report = sync(store, server, progress=progress if sys.stderr.isatty() else None)
+        if sys.stderr.isatty():
+            print(file=sys.stderr)
+        for line in report.lines():
+            print(line)
+    finally:
+        store.close()
+    return 0

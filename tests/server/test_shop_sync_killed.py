@@ -1,0 +1,142 @@
+"""A sync killed with SIGKILL at random moments, again and again, loses and duplicates nothing:
+after one clean sync at the end both laptops and the server hold every record exactly once and
+the laptops' states are equal (the property fieldkit.store.sync promises)."""
+
+from __future__ import annotations
+
+import os
+import random
+import select
+import signal
+import time
+import traceback
+from pathlib import Path
+
+import pytest
+from conftest import Shop
+from shop_builders import RIG, laptop, reading, state, visit
+
+from fieldkit.store.pg_server import ShopServer, connect
+from fieldkit.store.sqlite import SqliteVisitStore
+from fieldkit.store.sync import sync
+
+KILLS = 60
+
+
+def _sync_in_child(path: Path, conninfo: str) -> tuple[int, bytes, bool]:
+    """Fork a sync (small batches, so there are many commit points) and return its pid, a pipe
+    to read its progress from, and nothing else; the parent decides when to kill it."""
+    rfd, wfd = os.pipe()
+    pid = os.fork()
+    if pid == 0:  # the child: its own store connection and server connection
+        os.close(rfd)
+        code = 1
+        try:
+            store = SqliteVisitStore(path)
+            with ShopServer(conninfo) as server:
+                sync(store, server, batch=7, progress=lambda *_: os.write(wfd, b"."))
+            os.write(wfd, b"!")
+            code = 0
+        except BaseException:
+            traceback.print_exc()
+        os._exit(code)
+    os.close(wfd)
+    return pid, rfd  # type: ignore[return-value]
+
+
+def _drain(rfd: int) -> bytes:
+    got = b""
+    while select.select([rfd], [], [], 0)[0]:
+        chunk = os.read(rfd, 4096)
+        if not chunk:
+            break
+        got += chunk
+    return got
+
+
+def _run(path: Path, conninfo: str, kill: tuple[int, float] | None) -> tuple[bool, int]:
+    """Run a sync; ``kill`` = (batches to let commit, then seconds to wait) before SIGKILL.
+    Returns (finished, batches committed before the end or the kill)."""
+    pid, rfd = _sync_in_child(path, conninfo)
+    seen = b""
+    if kill is not None:
+        batches, delay = kill
+        while seen.count(b".") < batches and not seen.endswith(b"!"):
+            chunk = os.read(rfd, 1)
+            if not chunk:
+                break
+            seen += chunk
+        time.sleep(delay)
+        os.kill(pid, signal.SIGKILL)
+    _, status = os.waitpid(pid, 0)
+    seen += _drain(rfd)
+    os.close(rfd)
+    if os.WIFEXITED(status):
+        assert os.WEXITSTATUS(status) == 0, "the sync failed on its own (see the captured stderr)"
+    return seen.endswith(b"!"), seen.count(b".")
+
+
+class Laptop:
+    """One technician's laptop; the store is closed whenever a sync child runs."""
+
+    def __init__(self, folder: Path, name: str, login: str, shop: Shop) -> None:
+        self.path = laptop(folder, name).path
+        self.conninfo = shop.login(login)
+        self.visits: list[str] = []
+
+    def work(self, rng: random.Random, made: set[tuple[str, str]], minute: int) -> None:
+        with SqliteVisitStore(self.path) as store:
+            if not self.visits or rng.random() < 0.2:
+                self.visits.append(store.create_visit(visit(f"RHF-{minute:04d}")).id)
+            vid = rng.choice(self.visits)
+            for i in range(rng.randint(3, 15)):
+                r = store.add_reading(vid, reading(f"{20 + rng.random() * 5:.2f} bar", minute + i))
+                made.add((vid, r.id))
+            standing = store.get_visit(vid).current_readings()
+            if rng.random() < 0.4:
+                fixed = store.correct_reading(vid, standing[0].id, reading("24.0 bar", minute))
+                made.add((vid, fixed.id))
+            if rng.random() < 0.4 and len(standing) > 2:
+                store.delete_reading(vid, standing[-1].id)
+            if rng.random() < 0.5:
+                store.update_visit(vid, notes=f"note {minute}", hour_meter=float(minute))
+
+
+@pytest.mark.slow
+def test_a_sync_killed_at_random_moments_loses_and_duplicates_nothing(shop: Shop, tmp_path: Path) -> None:
+    rng = random.Random(15)
+    ana, ben = shop.add("ana"), shop.add("ben")
+    laptops = [Laptop(tmp_path, "ana", ana, shop), Laptop(tmp_path, "ben", ben, shop)]
+    made: set[tuple[str, str]] = set()
+    killed_midway = 0
+    for n in range(1, KILLS + 1):
+        lap = rng.choice(laptops)
+        lap.work(rng, made, n * 20)
+        # kill after a random number of committed batches (0: while connecting or in the first),
+        # then a random few milliseconds more, so the kill lands inside a transaction as often as between
+        finished, batches = _run(lap.path, lap.conninfo, (rng.randint(0, 4), rng.uniform(0, 0.004)))
+        killed_midway += (not finished) and batches > 0
+    print(f"kills after one batch or more and before the end: {killed_midway} of {KILLS}")
+    assert killed_midway >= KILLS // 3, f"only {killed_midway} kills landed inside a sync"
+
+    for lap in (*laptops, *laptops):
+        assert _run(lap.path, lap.conninfo, None)[0]
+
+    with SqliteVisitStore(laptops[0].path) as a, SqliteVisitStore(laptops[1].path) as b:
+        sa, sb = state(a), state(b)
+        on_a = {(vid, r["id"]) for vid, v in sa.items() for r in v["readings"]}
+        assert on_a == made
+        assert sa == sb
+        with connect(shop.admin_url) as conn:
+            rows = conn.execute("SELECT visit_id, id FROM fieldkit.reading").fetchall()
+        assert sorted(rows) == sorted(made)  # every reading once on the server, none missing
+        with ShopServer(shop.admin_url) as server:
+            on_server = server.machine_history(RIG)
+        assert {h["header"]["id"]: h["header"]["notes"] for h in on_server} == {
+            vid: v["notes"] for vid, v in sa.items()
+        }
+        deleted_server = {
+            (h["header"]["id"], rid) for h in on_server for rid, _, gone in h["readings"] if gone
+        }
+        deleted_a = {(vid, r["id"]) for vid, v in sa.items() for r in v["readings"] if r["deleted_at"]}
+        assert deleted_server == deleted_a
