@@ -118,7 +118,11 @@ def check_reading(m: Measured, system: DisplaySystem) -> ReadingCheck:
         circuit=m.circuit.id,
         condition=m.reading.condition.describe(),
         value=format_value(m.reading.value, system),
-        expected=_range_text(low, high, unit_text) if rng is not None else "no range for this condition",
+        expected=(
+            _range_text(low, high, unit_text) + (f" {rng.typical}" if rng.typical else "")
+            if rng is not None
+            else "no range for this condition"
+        ),
         uncertainty=f"±{u:.2g} {unit_text}",
         verdict=verdict,
         gauge=gauge,

@@ -42,4 +42,9 @@ PARAMETERS: dict[str, tuple[Kind, str]] = {
     "max_drift_rate": (Kind.VELOCITY, "highest acceptable cylinder drift under the test load"),
     "oil_volume": (Kind.VOLUME, "oil in the circuit (tank and lines)"),
     "rated_flow": (Kind.FLOW, "pump flow at rated speed and no load"),
+    "min_volumetric_efficiency": (Kind.RATIO, "least pump volumetric efficiency at test pressure"),
+    "max_case_drain_share": (
+        Kind.RATIO,
+        "highest case drain as a share of the pump's flow, at rated pressure",
+    ),
 }

@@ -46,6 +46,12 @@ class ExpectedRange(Strict):
     source: str = Field(
         min_length=3, description="the maker's manual, a standard, 'common practice' or 'from memory'"
     )
+    part: Part | None = Field(default=None, description="applies only when this optional part is fitted")
+    typical: str = Field(
+        default="",
+        description="'typical (common practice)' or 'from memory' when the range rests on a typical "
+        "value rather than the maker's figure or a document; set by the loader",
+    )
 
     @model_validator(mode="after")
     def _check(self) -> ExpectedRange:
@@ -75,6 +81,7 @@ class TestPoint(Strict):
     minutes: float = Field(default=10.0, gt=0, le=480, description="time to set up and take this reading")
     cautions: list[str] = Field(default_factory=list)
     source: str = ""
+    part: Part | None = Field(default=None, description="the optional part this point is on, if any")
 
     @model_validator(mode="after")
     def _ranges_match_role(self) -> TestPoint:
@@ -142,6 +149,11 @@ class Circuit(Strict):
         default_factory=list, description="template test points this machine lacks"
     )
     parameters: dict[str, Any] = Field(default_factory=dict)
+    typical_parameters: dict[str, str] = Field(
+        default_factory=dict,
+        description="parameters holding the template's typical value (name → its source), "
+        "not the maker's figure; set by the loader",
+    )
     reliefs: list[Relief] = Field(default_factory=list)
     relief_layout: ReliefLayout | None = None
     cross_port_relief_convention: Literal["differential", "gauge"] = Field(

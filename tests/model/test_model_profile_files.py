@@ -144,7 +144,8 @@ def test_expected_range_of_the_wrong_kind_for_its_role(tmp_path: Path, templates
     error = load_error(path, templates)
     assert error.path == str(path)
     assert "pump_outlet_pressure needs a pressure" in str(error)
-    assert error.line == line_of(text, 'id = "pump"') - 1  # the [[circuits.test_points]] header of that point
+    assert error.line == line_of(text, 'low = "180 L/min"')  # the bound itself
+    assert error.key is not None and error.key.endswith("expected.0.low")
 
 
 def test_toml_syntax_error_names_the_line(tmp_path: Path, templates: Any) -> None:

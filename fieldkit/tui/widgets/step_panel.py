@@ -102,6 +102,7 @@ class StepPanel(VerticalScroll):
         )
         for rng in tp.expected:
             _row(info, "Expect", f"{range_text(rng, view.system)} ({describe_when(rng.when)})")
+            _row(info, "Source", rng.source)
         if not tp.expected:
             _row(info, "Expect", "no expected range in the profile: the reading is recorded, not judged")
         _row(info, "Takes", f"about {tp.minutes:g} min")
