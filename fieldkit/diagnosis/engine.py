@@ -28,7 +28,8 @@ from fieldkit.diagnosis.results import CautionNote, Diagnosis, Finding, NextTest
 from fieldkit.diagnosis.rulepack import Rule, load_packs
 from fieldkit.errors import FieldkitError
 from fieldkit.model.condition import FunctionState
-from fieldkit.model.profile import MachineProfile, TestPoint
+from fieldkit.model.profile import ExpectedRange, MachineProfile, TestPoint, TestWindow
+from fieldkit.model.roles import Role
 from fieldkit.model.visit import Visit
 from fieldkit.units import (
     CANONICAL_UNIT,
@@ -86,9 +87,13 @@ def _range_text(low: float | None, high: float | None, unit: str) -> str:
     return "—"
 
 
-def check_reading(m: Measured, system: DisplaySystem) -> ReadingCheck:
+def check_reading(m: Measured, system: DisplaySystem, window: TestWindow | None = None) -> ReadingCheck:
     """A reading against its point's expected range for its condition, gauge error included."""
     rng = m.point.expected_for(m.reading.condition)
+    if window is not None and m.role is Role.OIL_TEMPERATURE:
+        # The visit's test window decides whether the oil is fit for testing (one rule, the same
+        # the oil-in-test-window rule reads), not a template's general band.
+        rng = ExpectedRange(low=window.oil_min, high=window.oil_max, source=window.source)
     scale, offset, unit_text = display_scale(unit(CANONICAL_UNIT[m.kind]), m.kind, system)
 
     def shown(x: float | None) -> float | None:
@@ -256,7 +261,7 @@ def diagnose(
     ranked, posterior = rank(hyps, findings)
     logs = log_posterior(hyps, findings)
     next_tests = suggest(evaluator, pairs, hyps, posterior, logs)
-    checks = [check_reading(m, system) for m in measured]
+    checks = [check_reading(m, system, profile.test_window) for m in measured]
     cautions = _cautions(knowledge, profile, measured, findings, next_tests)
     if not measured:
         notes.append("no readings yet: the ranking shows the catalogue's priors")

@@ -222,8 +222,10 @@ class TestWindow(Strict):
 
     __test__ = False
 
-    oil_min: Temperature = Field(default="40 °C", validate_default=True)
-    oil_max: Temperature = Field(default="80 °C", validate_default=True)
+    # The usual 38-60 °C band (common practice, field notes), the same figure the templates and
+    # physics.fluid.MIN_TEST_TEMPERATURE use: one rule decides, and a profile's window overrides it.
+    oil_min: Temperature = Field(default="38 °C", validate_default=True)
+    oil_max: Temperature = Field(default="60 °C", validate_default=True)
     speed_tolerance_pct: float = Field(default=5.0, gt=0, le=50)
     source: str = "common practice"
 

@@ -40,6 +40,7 @@ FAMILIES: dict[str, tuple[str, ...]] = {
         "main_relief_high",
         "parallel_relief_governing",
         "hp_relief_low",
+        "hp_relief_high",
         "charge_relief_low",
         "compensator_misset",
         "ls_setting_wrong",

@@ -115,6 +115,17 @@ def hp_relief_low(m: Machine, c: CircuitModel | None, s: float, rng: Random) -> 
     return f"loop {side[-1].upper()} cross-port relief opens at {_bar(c.p[side])} instead of {_bar(before)}"
 
 
+@fault("hp_relief_high", *LOOP)
+def hp_relief_high(m: Machine, c: CircuitModel | None, s: float, rng: Random) -> str:
+    """One cross-port relief (A or B, drawn from the seed) has had its adjuster turned in: it
+    opens 10 %·s above its setting, so that direction stalls high."""
+    assert c is not None
+    side = rng.choice(("hp_a", "hp_b"))
+    before = c.p[side]
+    c.p[side] = before * (1.0 + 0.10 * s)
+    return f"loop {side[-1].upper()} cross-port relief opens at {_bar(c.p[side])} instead of {_bar(before)}"
+
+
 # --- pumps and motors -------------------------------------------------------------------------
 
 

@@ -115,6 +115,11 @@ def reading_plan(profile: MachineProfile) -> list[Planned]:
                 continue
             for state in states_for(circuit, tp):
                 planned.append(Planned(circuit.id, tp, state, _stage(tp, state)))
+        # A flow test is read with the speed it ran at: the tachometer is read again under load,
+        # where engine droop shows (common practice).
+        speed = next((tp for tp in circuit.test_points if tp.role is Role.PUMP_SPEED), None)
+        if speed is not None and any(tp.role is Role.PUMP_FLOW for tp in circuit.test_points):
+            planned.append(Planned(circuit.id, speed, FunctionState.UNDER_LOAD, Stage.UNDER_LOAD))
     planned.sort(key=lambda r: r.stage)  # stable: profile order within a stage
     head: list[Planned] = []
     tail: list[Planned] = []

@@ -267,3 +267,63 @@ def test_a_gauge_convention_reads_the_setting_as_it_is() -> None:
     f = finding(d, "loop-stall-lower-side", "travel")
     assert number(f.low) == pytest.approx(380 - 0.03 * 380, abs=0.05)
     assert f.verdict is Verdict.IN_RANGE
+
+
+# --- 12. a cross-port relief set high ----------------------------------------------------------
+
+
+def test_a_loop_side_stalling_high_names_the_relief_set_high_with_the_over_pressure_caution() -> None:
+    # Fellborer: 380 bar differential + 22 bar charge = 402 bar expected at the port gauge. Side A
+    # reads 440 bar: 38 bar (10 % of the setting) above it, far past the 3 % band (413.4 bar).
+    profile = fellborer()
+    d = diagnose(_stall_visit(profile, 440.0, 402.0, 22.0), profile, knowledge())
+    assert finding(d, "loop-stall-higher-side", "travel").verdict is Verdict.HIGH
+    assert d.faults[0].id == "hp_relief_high"
+    assert any(c.id == "over-pressure" and c.severity == "danger" for c in d.cautions)
+
+
+# --- 11. one rule for the test window ----------------------------------------------------------
+
+
+def test_the_visit_window_decides_whether_the_oil_is_too_hot() -> None:
+    # Loamshifter (demo): its test window is 45-70 deg C. Oil at 63 deg C is inside it, so the oil
+    # reading must not be called high against the template's general 38-60 deg C band.
+    profile = library().get("oskerfield-loamshifter")
+    b = VisitBuilder(profile)
+    b.add("work.oil_temp", 63.0, NEUTRAL)
+    d = diagnose(b.build(), profile, knowledge())
+    check = next(c for c in d.checks if c.test_point == "work.oil_temp")
+    assert check.verdict is Verdict.IN_RANGE
+    assert check.expected.startswith("45")
+
+
+def test_the_default_test_window_is_the_common_38_to_60_degree_band() -> None:
+    # common practice (field notes): ideal oil temperature 38-60 deg C; fluid.MIN_TEST_TEMPERATURE
+    # agrees. A profile that states no window gets this one.
+    from fieldkit.model.profile import TestWindow
+    from fieldkit.units import Kind, to_canonical
+
+    w = TestWindow()
+    assert to_canonical(w.oil_min, Kind.TEMPERATURE) == pytest.approx(38.0)
+    assert to_canonical(w.oil_max, Kind.TEMPERATURE) == pytest.approx(60.0)
+
+
+# --- calibration: an irrelevant reading ---------------------------------------------------------
+
+
+def test_a_healthy_reading_elsewhere_does_not_favour_no_fault_over_a_relief_fault() -> None:
+    # Pebblerun main relief reading 150 bar at the stall against 182-191 bar: a relief question. A
+    # healthy belt-motor drain (0.6 L/min, limit 1.5 L/min) says nothing about the main relief, so
+    # the odds of 'main relief low' against 'no fault' must not move when it is added.
+    profile = pebblerun()
+    b = VisitBuilder(profile)
+    b.add("main.stall", 150.0, STALLED)
+    before = diagnose(b.build(), profile, knowledge())
+    b.add("belt.motor_drain", 0.6, UNDER_LOAD)
+    after = diagnose(b.build(), profile, knowledge())
+
+    def odds(d: object) -> float:
+        p = {f.key: f.probability for f in d.faults}  # type: ignore[attr-defined]
+        return p["main_relief_low@main"] / p["no_fault"]
+
+    assert odds(after) >= odds(before) * 0.999

@@ -401,3 +401,22 @@ def test_gauge_error_spoils_exactly_one_pressure_reading(simulators):
         else:
             seen.add("biased")
     assert seen == {"overranged", "biased"}
+
+
+def test_hp_relief_high_raises_one_loop_side_only(simulators, true_at):
+    # The adjuster turned in: that side's setting rises by 10 %·s; the gauge reads the setting plus
+    # the charge under it (differential convention), the other side is unchanged.
+    sim = simulators["tarnhollow-fellborer"]
+    healthy, faulty, injected = pair(sim, "hp_relief_high")
+    side = "loop_a" if "loop A" in injected.change else "loop_b"
+    other = "loop_b" if side == "loop_a" else "loop_a"
+
+    def above_charge(model: object, point: str) -> float:
+        return true_at(sim, model, point, S.STALLED) - true_at(sim, model, "travel.charge", S.STALLED)
+
+    assert above_charge(faulty, f"travel.{side}") == pytest.approx(
+        1.10 * above_charge(healthy, f"travel.{side}"), rel=1e-6
+    )
+    assert true_at(sim, faulty, f"travel.{other}", S.STALLED) == pytest.approx(
+        true_at(sim, healthy, f"travel.{other}", S.STALLED), abs=0.05
+    )
