@@ -14,11 +14,12 @@ from textual.screen import Screen
 
 from fieldkit.session import Workbench
 from fieldkit.tui import keys
-from fieldkit.tui.commands import FieldkitCommands
+from fieldkit.tui.commands import Commanded, FieldkitCommands
+from fieldkit.tui.screens.base import FieldkitScreen
 from fieldkit.tui.theme import DAYLIGHT, THEMES, WORKSHOP
 
 
-class FieldkitApp(App[None]):
+class FieldkitApp(Commanded, App[None]):
     """Screens: start → visit → (faults, readings, history, finish)."""
 
     CSS_PATH = "fieldkit.tcss"
@@ -54,17 +55,15 @@ class FieldkitApp(App[None]):
     def unsaved_value(self) -> tuple[str, str] | None:
         """A value typed on any open visit screen but not saved."""
         for screen in reversed(self.screen_stack):
-            probe: Callable[[], tuple[str, str] | None] | None = getattr(screen, "unsaved_value", None)
-            if probe is not None:
-                found = probe()
+            if isinstance(screen, FieldkitScreen):
+                found = screen.unsaved_value()
                 if found is not None:
                     return found
         return None
 
-    def _visit_screen_with_value(self) -> Screen | None:
+    def _visit_screen_with_value(self) -> FieldkitScreen | None:
         for screen in reversed(self.screen_stack):
-            probe = getattr(screen, "unsaved_value", None)
-            if probe is not None and probe() is not None:
+            if isinstance(screen, FieldkitScreen) and screen.unsaved_value() is not None:
                 return screen
         return None
 
@@ -91,7 +90,7 @@ class FieldkitApp(App[None]):
                 if screen is not self.screen:
                     while self.screen is not screen and len(self.screen_stack) > 1:
                         self.pop_screen()
-                if screen.save_reading():  # type: ignore[attr-defined]
+                if screen.save_reading():
                     self.exit()
 
         self.push_screen(QuitDialog(typed, where), answer)
@@ -114,14 +113,17 @@ class FieldkitApp(App[None]):
         step: list = []
         where = ""
         for screen in reversed(self.screen_stack):
-            probe = getattr(screen, "step_cautions", None)
-            if probe is not None:
-                step, where = probe()
-                break
+            if isinstance(screen, FieldkitScreen):
+                step, where = screen.step_cautions()
+                if step or where:
+                    break
         self.push_screen(CautionScreen(general_caution(self.bench.knowledge), step, where))
 
     def action_toggle_daylight(self) -> None:
         self.theme = DAYLIGHT.name if self.theme == WORKSHOP.name else WORKSHOP.name
+
+    def on_start_screen_demo_wanted(self) -> None:
+        self.open_demo()
 
     def open_demo(self) -> None:
         """Switch to the demo store (a separate file) on top of the user's own; Esc comes back."""
@@ -153,9 +155,8 @@ class FieldkitApp(App[None]):
             self.bench.settings.save()
         except OSError as exc:
             self.notify(f"not remembered for next time: {exc}", severity="warning", markup=False)
-        reload = getattr(self.screen, "reload", None)
-        if callable(reload):
-            reload()
+        if isinstance(self.screen, FieldkitScreen):
+            self.screen.reload()
         s = self.bench.settings
         self.notify(
             f"values shown in {self.bench.system.pressure}, {self.bench.system.flow}, "
@@ -215,7 +216,7 @@ def settings_problem() -> str:
 
 def key_rows(app: App, screen: Screen) -> list[tuple[str, str]]:
     """The keys a person can press here: the screen's hints, its bindings, then the app's."""
-    rows: list[tuple[str, str]] = list(getattr(screen, "KEY_HINTS", []))
+    rows: list[tuple[str, str]] = list(screen.KEY_HINTS) if isinstance(screen, FieldkitScreen) else []
     seen: set[str] = set()
     for key, active in screen.active_bindings.items():
         if not isinstance(active.node, (Screen, App)) or not active.binding.description or key in seen:

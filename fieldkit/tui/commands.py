@@ -1,7 +1,7 @@
 """fieldkit's commands in the command search (F3).
 
-Every screen offers its commands through ``palette_commands()``; this provider lists them and
-the app-wide ones. Names may hold a job number or a customer, so they are drawn as plain
+A screen or the app offers commands by deriving from :class:`Commanded` and overriding
+``palette_commands()``; this provider lists the current screen's and then the app's. Names may hold a job number or a customer, so they are drawn as plain
 Content with the matched letters styled, never through markup (Textual's own highlighter
 parses markup, which a job number like ``[/`` would break).
 """
@@ -21,15 +21,18 @@ from fieldkit.tui.safe_text import visible
 Command = tuple[str, str, Callable[[], object]]
 
 
+class Commanded:
+    """Something that offers commands in the command search: a name, a help line, what it runs."""
+
+    def palette_commands(self) -> Iterable[Command]:
+        return ()
+
+
 def _commands(provider: Provider) -> list[Command]:
     out: list[Command] = []
-    screen = provider.screen
-    own = getattr(screen, "palette_commands", None)
-    if callable(own):
-        out.extend(own())
-    app_own = getattr(provider.app, "palette_commands", None)
-    if callable(app_own):
-        out.extend(app_own())
+    for node in (provider.screen, provider.app):
+        if isinstance(node, Commanded):
+            out.extend(node.palette_commands())
     return out
 
 

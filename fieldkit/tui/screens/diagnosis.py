@@ -7,12 +7,12 @@ from rich.text import Text
 from textual import on
 from textual.app import ComposeResult
 from textual.containers import VerticalScroll
-from textual.screen import Screen
 from textual.widgets import DataTable, OptionList, Static, TabbedContent, TabPane
 
 from fieldkit.diagnosis.results import Diagnosis, RankedFault
 from fieldkit.tui import keys
 from fieldkit.tui.safe_text import literal
+from fieldkit.tui.screens.base import FieldkitScreen
 from fieldkit.tui.widgets.band import VERDICT_WORD
 from fieldkit.tui.widgets.faults import FaultList, FindingsView, prob_bar
 from fieldkit.tui.widgets.keybar import KeyBar
@@ -38,7 +38,7 @@ def next_tests_text(diagnosis: Diagnosis) -> Text:
     return out
 
 
-class DiagnosisScreen(Screen):
+class DiagnosisScreen(FieldkitScreen):
     """Faults, findings, next tests and reading checks, in tabs."""
 
     BINDINGS = keys.DIAGNOSIS
@@ -149,7 +149,7 @@ def fault_explanation(f: RankedFault) -> Text:
     return out
 
 
-class FaultScreen(Screen):
+class FaultScreen(FieldkitScreen):
     """Why a fault ranks where it does."""
 
     BINDINGS = keys.FAULT

@@ -8,7 +8,6 @@ from rich.text import Text
 from textual import on
 from textual.app import ComposeResult
 from textual.containers import Horizontal, Vertical
-from textual.screen import Screen
 from textual.widgets import Button, Input, Label, Select, Static, TextArea
 
 from fieldkit.diagnosis.results import Diagnosis, Verdict
@@ -19,6 +18,7 @@ from fieldkit.session import Workbench
 from fieldkit.tui import keys
 from fieldkit.tui.export import FORMATS, default_folder, export_job_card, jobcard_available
 from fieldkit.tui.safe_text import literal
+from fieldkit.tui.screens.base import FieldkitScreen
 from fieldkit.tui.screens.dialogs import Dialog
 from fieldkit.tui.widgets.keybar import KeyBar
 from fieldkit.units import DisplaySystem, percent
@@ -49,7 +49,7 @@ def _format_select(id: str) -> Select:
     return Select([(Text(f), f) for f in FORMATS], value=default, allow_blank=False, id=id, compact=True)
 
 
-class FinishScreen(Screen):
+class FinishScreen(FieldkitScreen):
     BINDINGS = keys.FINISH
 
     def __init__(self, bench: Workbench, visit: Visit, profile: MachineProfile, diagnosis: Diagnosis) -> None:

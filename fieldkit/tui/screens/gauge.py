@@ -12,7 +12,7 @@ from textual.widgets import Button, Input, Label, Select, Static
 from fieldkit.errors import FieldkitError
 from fieldkit.model.gauge import EN837_CLASSES, Gauge
 from fieldkit.tui import keys
-from fieldkit.tui.messages import explain
+from fieldkit.tui.error_text import explain
 from fieldkit.tui.safe_text import literal
 from fieldkit.tui.screens.dialogs import Dialog
 from fieldkit.tui.widgets.keybar import KeyBar

@@ -4,7 +4,6 @@ from __future__ import annotations
 
 from rich.text import Text
 from textual.app import ComposeResult
-from textual.screen import Screen
 from textual.widgets import DataTable, Static
 
 from fieldkit.model.profile import MachineProfile
@@ -12,11 +11,12 @@ from fieldkit.model.visit import Visit
 from fieldkit.session import Workbench
 from fieldkit.tui import keys
 from fieldkit.tui.safe_text import literal
+from fieldkit.tui.screens.base import FieldkitScreen
 from fieldkit.tui.trend import history_table
 from fieldkit.tui.widgets.keybar import KeyBar
 
 
-class HistoryScreen(Screen):
+class HistoryScreen(FieldkitScreen):
     BINDINGS = keys.HISTORY
 
     def __init__(self, bench: Workbench, profile: MachineProfile, visit: Visit | None) -> None:

@@ -11,7 +11,6 @@ from rich.text import Text
 from textual import on
 from textual.app import ComposeResult
 from textual.containers import Grid, Horizontal, Vertical
-from textual.screen import Screen
 from textual.widgets import Button, Checkbox, Input, Label, Select, Static
 
 from fieldkit.errors import FieldkitError
@@ -19,8 +18,9 @@ from fieldkit.model.gauge import Gauge
 from fieldkit.model.visit import Visit
 from fieldkit.session import Workbench
 from fieldkit.tui import keys
-from fieldkit.tui.messages import explain
+from fieldkit.tui.error_text import explain
 from fieldkit.tui.safe_text import literal
+from fieldkit.tui.screens.base import FieldkitScreen
 from fieldkit.tui.widgets.keybar import KeyBar
 
 FIELDS = ("job", "customer", "site", "serial", "hours", "technician", "oil")
@@ -48,7 +48,7 @@ def parse_hours(text: str) -> float | None:
         raise FieldkitError(f"hour meter: '{text}' is not a number of hours") from None
 
 
-class NewVisitScreen(Screen):
+class NewVisitScreen(FieldkitScreen):
     BINDINGS = keys.NEW_VISIT
 
     def __init__(self, bench: Workbench, machine: str | None = None) -> None:

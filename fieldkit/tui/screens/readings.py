@@ -9,7 +9,6 @@ from __future__ import annotations
 
 from rich.text import Text
 from textual.app import ComposeResult
-from textual.screen import Screen
 from textual.widgets import DataTable, Static
 
 from fieldkit.errors import AmbiguousInputError, FieldkitError
@@ -18,6 +17,7 @@ from fieldkit.model.visit import Reading
 from fieldkit.session import Workbench
 from fieldkit.tui import keys
 from fieldkit.tui.safe_text import literal
+from fieldkit.tui.screens.base import FieldkitScreen
 from fieldkit.tui.widgets.keybar import KeyBar
 from fieldkit.units import format_value
 
@@ -31,7 +31,7 @@ def reading_status(r: Reading, readings: list[Reading]) -> str:
     return "stands" + (f" (corrects {r.replaces})" if r.replaces else "")
 
 
-class ReadingsScreen(Screen):
+class ReadingsScreen(FieldkitScreen):
     BINDINGS = keys.READINGS
 
     def __init__(self, bench: Workbench, visit_id: str, point: TestPoint) -> None:

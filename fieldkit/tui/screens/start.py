@@ -9,7 +9,7 @@ from rich.text import Text
 from textual import on
 from textual.app import ComposeResult
 from textual.containers import Vertical
-from textual.screen import Screen
+from textual.message import Message
 from textual.widgets import DataTable, Label, Static
 
 from fieldkit.errors import FieldkitError
@@ -17,8 +17,9 @@ from fieldkit.model.visit import VisitStatus
 from fieldkit.session import Workbench, read_visit_file
 from fieldkit.store.base import VisitSummary
 from fieldkit.tui import keys
-from fieldkit.tui.messages import explain
+from fieldkit.tui.error_text import explain
 from fieldkit.tui.safe_text import literal
+from fieldkit.tui.screens.base import FieldkitScreen
 from fieldkit.tui.widgets.keybar import KeyBar
 
 DEMO_OPEN_VISIT = "demo-open-visit.json"
@@ -34,8 +35,11 @@ def visit_row(s: VisitSummary) -> list[Text]:
     ]
 
 
-class StartScreen(Screen):
+class StartScreen(FieldkitScreen):
     """Where a technician picks up work: resume, start, import, or look back."""
+
+    class DemoWanted(Message):
+        """The technician asked for the demo store (the app opens it over the user's own)."""
 
     BINDINGS = keys.START
 
@@ -176,11 +180,10 @@ class StartScreen(Screen):
         self.app.push_screen(NewVisitScreen(self.bench, machine), created)
 
     def action_open_demo(self) -> None:
-        opener: Callable[[], None] | None = getattr(self.app, "open_demo", None)
         if self.demo:
             self.open_demo_visit()
-        elif opener is not None:
-            opener()
+        else:
+            self.post_message(self.DemoWanted())
 
     def open_demo_visit(self) -> None:
         """The demo's open visit; when it was closed, a fresh copy of it."""
@@ -235,7 +238,7 @@ class StartScreen(Screen):
 
     def import_path(self, path: Path) -> None:
         from fieldkit.tui.screens.dialogs import ConfirmDialog
-        from fieldkit.tui.screens.visit_actions import import_readings_csv
+        from fieldkit.tui.visit_edits import import_readings_csv
 
         if path.suffix.lower() == ".csv":
             target = self._selected_open_visit()

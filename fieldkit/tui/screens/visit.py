@@ -1,68 +1,69 @@
 """The visit screen: the test plan, the selected step, reading entry and the live diagnosis.
 
-A reading is saved to the store the moment Enter is pressed (Workbench.record commits before it
-returns); the visit is read back and diagnosed again at once, in the UI thread, because that
-takes a few milliseconds. The next frame carries the 'saved' line and the new ranking (title,
-NEXT and LIKELY lines, the ranked-fault list); the findings, the plan's glyphs and the step
-panel, a larger redraw, are painted a frame later. Widgets whose text did not change are not
-redrawn at all. tests/bench/bench_tui.py times it from the key press to the screen.
+The screen is made of widgets that hold their own state and tell it what happened: the plan
+list posts :class:`PlanList.PointChosen` when the highlight moves onto a point, the entry rows
+post :class:`ReadingEntry.Saved` once a reading is in the store (Workbench.record commits before
+it returns). The screen then reads the visit back and diagnoses it again at once, in the UI
+thread, because that takes a few milliseconds. The next frame carries the 'saved' line and the
+new ranking (title, NEXT and LIKELY lines, the ranked-fault list); the findings, the plan's
+glyphs and the step panel, a larger redraw, are painted a frame later. A line whose data did not
+change is not redrawn at all (:mod:`fieldkit.tui.widgets.drawn`). tests/bench/bench_tui.py times
+it from the key press to the screen.
+
+The commands that open a dialog or another screen (readings trail, gauges, skipping, notes,
+history, finishing, CSV import) are at the end; their store edits are in
+:mod:`fieldkit.tui.visit_edits`.
 """
 
 from __future__ import annotations
 
-import re
+from collections.abc import Callable, Iterable
+from pathlib import Path
 from typing import ClassVar
 
 from rich.text import Text
 from textual import on
 from textual.app import ComposeResult
 from textual.containers import Horizontal, Vertical, VerticalScroll
-from textual.screen import Screen
-from textual.widgets import Input, Label, OptionList, Select, Static
+from textual.widgets import Input, Label, OptionList
 
 from fieldkit.diagnosis.catalogue import Caution
 from fieldkit.diagnosis.results import Diagnosis, NextTest, RankedFault
-from fieldkit.errors import AmbiguousInputError, FieldkitError
-from fieldkit.model.condition import Condition, FunctionState
+from fieldkit.errors import FieldkitError
 from fieldkit.model.gauge import Gauge
 from fieldkit.model.profile import Circuit, MachineProfile, TestPoint
-from fieldkit.model.visit import Reading, Visit, VisitStatus
+from fieldkit.model.visit import Visit, VisitStatus
 from fieldkit.session import Workbench
 from fieldkit.tui import keys
 from fieldkit.tui.plan import (
     PlanCircuit,
     PlanPoint,
+    PointState,
     build_plan,
+    notes_with_skip,
     notes_without_skip,
     skipped_points,
 )
 from fieldkit.tui.safe_text import literal
-from fieldkit.tui.screens.visit_actions import VisitActions
-from fieldkit.tui.step import (
-    SHORT_STATE,
-    default_function,
-    gauge_fit,
-    last_condition_values,
-    step_cautions,
-    suggest_gauge,
-)
-from fieldkit.tui.widgets.bars import caution_strip, next_line, top_fault_line, visit_title
-from fieldkit.tui.widgets.changes import show_text
+from fieldkit.tui.screens.base import FieldkitScreen
+from fieldkit.tui.step import SHORT_STATE, default_function, gauge_fit, step_cautions
+from fieldkit.tui.visit_edits import import_readings_csv
+from fieldkit.tui.widgets.bars import caution_strip, likely_line, next_line, visit_title
+from fieldkit.tui.widgets.drawn import DrawnLine
 from fieldkit.tui.widgets.faults import FaultList, FindingsView
 from fieldkit.tui.widgets.keybar import KeyBar
 from fieldkit.tui.widgets.plan_list import PlanList
+from fieldkit.tui.widgets.reading_entry import ReadingEntry
 from fieldkit.tui.widgets.step_panel import StepPanel, StepView
-from fieldkit.units import Kind, format_value, parse_value, percent
+from fieldkit.units import format_value, percent
 
 WIDE_FROM = 118  # columns from which the ranked faults and findings are shown beside the step
 # s: one turn of the event loop, for the widgets changed by a save to report to the screen
 # before the rest is queued behind their frame (Textual's call_after_refresh alone may run first)
 HAND_OVER = 0.001
-_BARE_NUMBER = re.compile(r"^\s*[+\-]?\d[\d.,]*\s*$")
-VALUE_HINT = "type the value as the gauge shows it (e.g. 24,5 bar · 3,500 psi · 0.75 bar abs); Enter saves it"
 
 
-class VisitScreen(VisitActions, Screen):
+class VisitScreen(FieldkitScreen):
     """One visit, worked through test point by test point."""
 
     BINDINGS = keys.VISIT
@@ -94,47 +95,37 @@ class VisitScreen(VisitActions, Screen):
         self.point_id: str | None = None
         self._previous_top: RankedFault | None = None
         self._shown_top: RankedFault | None = None
-        self._keep_message = False  # a 'saved' line stays until the next keystroke
         self._side_shown = False
 
     # --- layout -------------------------------------------------------------------------------
     def compose(self) -> ComposeResult:
-        yield Static(id="topbar")
-        yield Static(id="next-line")
-        yield Static(id="top-fault")
+        yield DrawnLine(visit_title, id="topbar")
+        yield DrawnLine(next_line, id="next-line")
+        yield DrawnLine(likely_line, id="top-fault")
         with Horizontal(id="body"):
             yield PlanList(id="plan")
             with Vertical(id="work"):
                 yield StepPanel(id="step")
-                with Vertical(id="entry"):
-                    with Horizontal(classes="entry-row"):
-                        yield Input(
-                            placeholder="value, e.g. 24,5 bar", id="value", compact=True, max_length=64
-                        )
-                        yield Select([], prompt="no gauge", id="gauge", compact=True)
-                    with Horizontal(classes="entry-row"):
-                        yield Select(
-                            [(Text(SHORT_STATE[s]), s) for s in FunctionState],
-                            allow_blank=False,
-                            value=FunctionState.NEUTRAL,
-                            id="function",
-                            compact=True,
-                        )
-                        yield Input(placeholder="speed rpm", id="speed", compact=True, max_length=32)
-                        yield Input(placeholder="oil °C", id="oil", compact=True, max_length=32)
-                    yield Static(VALUE_HINT, id="parse-msg")
+                yield ReadingEntry(self.bench, self.visit_id, id="entry")
             with Vertical(id="side"):
                 yield Label("Likely faults (Enter: why)", classes="side-title")
                 yield FaultList(id="side-faults")
                 yield Label("Findings", classes="side-title")
                 with VerticalScroll(id="side-findings-scroll"):
                     yield FindingsView(id="side-findings")
-        yield Static(id="cautions")
+        yield DrawnLine(caution_strip, id="cautions")
         yield KeyBar()
 
     def on_mount(self) -> None:
         self.reload(first=True)
         self.query_one("#value", Input).focus()
+
+    @property
+    def entry(self) -> ReadingEntry:
+        return self.query_one("#entry", ReadingEntry)
+
+    def _message(self, text: str, mood: str) -> None:
+        self.entry.say(text, mood)
 
     # --- data ---------------------------------------------------------------------------------
     @property
@@ -154,6 +145,7 @@ class VisitScreen(VisitActions, Screen):
         """The visit as stored, its diagnosis, and the lines and list that show the ranking."""
         self.visit = self.bench.store.get_visit(self.visit_id)
         self.profile = self.bench.profile_for(self.visit)
+        self.entry.visit = self.visit
         self._previous_top = self._shown_top
         self.diagnosis = self.bench.diagnose(self.visit, self.profile)
         self._shown_top = self.diagnosis.faults[0] if self.diagnosis.faults else None
@@ -165,18 +157,10 @@ class VisitScreen(VisitActions, Screen):
 
     def _show_ranking(self) -> None:
         assert self.visit is not None and self.profile is not None
-        # One-line strips keep their size: no layout pass for them.
-        show_text(
-            self.query_one("#topbar", Static),
-            visit_title(self.visit, self.profile, demo=self.demo),
-            layout=False,
-        )
-        show_text(self.query_one("#next-line", Static), next_line(self.next_test, self.closed), layout=False)
-        show_text(
-            self.query_one("#top-fault", Static),
-            top_fault_line(self.diagnosis, self._previous_top),
-            layout=False,
-        )
+        # One-line strips keep their size: a change repaints them, with no layout pass.
+        self.query_one("#topbar", DrawnLine).data = (self.visit, self.profile, self.demo)
+        self.query_one("#next-line", DrawnLine).data = (self.next_test, self.closed)
+        self.query_one("#top-fault", DrawnLine).data = (self._shown_top, self._previous_top)
         if self._wide():
             self.query_one("#side-faults", FaultList).show(self.diagnosis)
         else:
@@ -185,13 +169,14 @@ class VisitScreen(VisitActions, Screen):
     def _show_rest(self, *, first: bool = False) -> None:
         """Paint the rest from the current diagnosis: findings, the plan's glyphs, the selected
         step and the entry row's state (its defaults too, the first time)."""
+        assert self.profile is not None
         self._show_side()
         nxt = self.next_test
         self.query_one("#plan", PlanList).show(self.plan, nxt.test_point if nxt else None, self.point_id)
         if first:
-            self._fill_condition_defaults(force=True)
+            self.entry.fill_condition_defaults(self.profile, force=True)
         self._show_point(reset_entry=first)
-        self._show_closed_state()
+        self.entry.closed = self.closed
 
     def _show_rest_later(self) -> None:
         if self.is_attached and self.visit is not None:
@@ -217,19 +202,6 @@ class VisitScreen(VisitActions, Screen):
         if self._wide() and not self._side_shown and self.diagnosis is not None:
             self._show_side()
 
-    def _show_closed_state(self) -> None:
-        for wid in ("#value", "#gauge", "#function", "#speed", "#oil"):
-            self.query_one(wid).disabled = self.closed
-        if self.closed:
-            self._message(
-                Text(
-                    "This visit is closed. Find (F3) → 'Reopen this visit' to add readings, "
-                    "or 'Write the job card' to print it again.",
-                    end="",
-                ),
-                "info",
-            )
-
     def current(self) -> tuple[Circuit, TestPoint, PlanPoint | None]:
         assert self.profile is not None and self.point_id is not None
         circuit, point = self.profile.test_point(self.point_id)
@@ -237,39 +209,22 @@ class VisitScreen(VisitActions, Screen):
         return circuit, point, plan_point
 
     # --- the selected step --------------------------------------------------------------------
-    def _function(self) -> FunctionState:
-        value = self.query_one("#function", Select).value
-        return value if isinstance(value, FunctionState) else FunctionState.NEUTRAL
-
-    def _gauge(self) -> Gauge | None:
-        value = self.query_one("#gauge", Select).value
-        return self.visit.gauge(value) if isinstance(value, str) and self.visit is not None else None
-
     def _show_point(self, *, reset_entry: bool) -> None:
         assert self.visit is not None
         _circuit, point, _pp = self.current()
+        entry = self.entry
         if reset_entry:
-            self.query_one("#function", Select).value = default_function(point, self.next_test)
-            self._set_gauge_options(point)
+            function = default_function(point, self.next_test)
+            entry.function = function
+            entry.offer_gauges(point, function)
+        entry.point = point
         self._show_step()
-
-    def _set_gauge_options(self, point: TestPoint) -> None:
-        assert self.visit is not None
-        fitting = [g for g in self.visit.gauges if g.kind is point.kind]
-        select = self.query_one("#gauge", Select)
-        select.set_options([(Text(_gauge_label(g), end=""), g.id) for g in fitting])
-        best = suggest_gauge(
-            point, self.visit.gauges, default_function(point, self.next_test), self.bench.system
-        )
-        if best is not None:
-            select.value = best.id
-        elif fitting:
-            select.value = fitting[0].id
 
     def _show_step(self) -> None:
         assert self.profile is not None
         circuit, point, plan_point = self.current()
-        function = self._function()
+        entry = self.entry
+        function = entry.function
         cautions = step_cautions(self.bench.knowledge, point, function)
         view = StepView(
             profile=self.profile,
@@ -277,45 +232,29 @@ class VisitScreen(VisitActions, Screen):
             point=point,
             plan_point=plan_point,
             function=function,
-            fit=gauge_fit(point, self._gauge(), function, self.bench.system),
+            fit=gauge_fit(point, entry.gauge, function, self.bench.system),
             cautions=cautions,
             next_test=self.next_test,
             system=self.bench.system,
             checks=plan_point.checks if plan_point else [],
         )
         self.query_one("#step", StepPanel).show(view)
-        show_text(self.query_one("#cautions", Static), caution_strip(cautions), layout=False)
-        self.query_one("#value", Input).placeholder = f"e.g. {_example(point)}"
-        self._update_parse_message()
+        self.query_one("#cautions", DrawnLine).data = (tuple(cautions),)
 
     def step_cautions(self) -> tuple[list[Caution], str]:
         """The current step's cautions and where, for the general caution screen (F2)."""
         if self.profile is None or self.point_id is None:
             return [], ""
         _c, point, _p = self.current()
-        return step_cautions(self.bench.knowledge, point, self._function()), point.label
+        return step_cautions(self.bench.knowledge, point, self.entry.function), point.label
 
-    def _fill_condition_defaults(self, *, force: bool = False) -> None:
-        assert self.visit is not None and self.profile is not None
-        speed, oil = last_condition_values(self.visit, self.profile)
-        speed_in, oil_in = self.query_one("#speed", Input), self.query_one("#oil", Input)
-        if speed is not None and (force or not speed_in.value.strip()):
-            speed_in.value = format_value(speed, self.bench.system)
-        if oil is not None and (force or not oil_in.value.strip()):
-            oil_in.value = format_value(oil, self.bench.system)
-        oil_in.placeholder = f"oil {self.bench.system.temperature}"
+    # --- what the widgets say -----------------------------------------------------------------
+    def on_plan_list_point_chosen(self, event: PlanList.PointChosen) -> None:
+        if event.point_id != self.point_id:
+            self.point_id = event.point_id
+            self._show_point(reset_entry=True)
 
-    # --- events -------------------------------------------------------------------------------
-    @on(OptionList.OptionHighlighted, "#plan")
-    def _point_highlighted(self, event: OptionList.OptionHighlighted) -> None:
-        option_id = event.option.id
-        if option_id is None or option_id.startswith("circuit:") or option_id == self.point_id:
-            return
-        self.point_id = option_id
-        self._show_point(reset_entry=True)
-
-    @on(OptionList.OptionSelected, "#plan")
-    def _point_chosen(self) -> None:
+    def on_plan_list_point_picked(self) -> None:
         if not self.closed:
             self.query_one("#value", Input).focus()
 
@@ -323,178 +262,41 @@ class VisitScreen(VisitActions, Screen):
     def _fault_chosen(self, event: OptionList.OptionSelected) -> None:
         self.open_fault(event.option.id)
 
-    @on(Select.Changed, "#function")
-    @on(Select.Changed, "#gauge")
-    def _condition_changed(self) -> None:
+    def on_reading_entry_condition_changed(self) -> None:
         if self.profile is not None and self.point_id is not None:
             self._show_step()
 
-    @on(Input.Changed, "#value")
-    @on(Input.Changed, "#speed")
-    @on(Input.Changed, "#oil")
-    def _typed(self) -> None:
-        self._update_parse_message()
+    def on_reading_entry_saved(self, event: ReadingEntry.Saved) -> None:
+        self.after_save(event)
 
-    @on(Input.Submitted, "#value")
-    @on(Input.Submitted, "#speed")
-    @on(Input.Submitted, "#oil")
-    def _submitted(self, event: Input.Submitted) -> None:
-        event.stop()
-        self.save_reading()
-
-    # --- parsing and saving -------------------------------------------------------------------
-    def _message(self, text: Text | str, mood: str) -> None:
-        widget = self.query_one("#parse-msg", Static)
-        show_text(widget, text if isinstance(text, Text) else Text(text, end=""))
-        for m in ("ok", "error", "info", "ask"):
-            widget.set_class(m == mood, f"-{m}")
-
-    def _with_unit(self, text: str, unit: str) -> str:
-        return f"{text.strip()} {unit}" if _BARE_NUMBER.match(text) else text
-
-    def _condition(self) -> Condition:
-        """The condition as set in the entry row; a wrong speed or oil temperature is an error
-        that names the field."""
-        speed_text = self.query_one("#speed", Input).value
-        oil_text = self.query_one("#oil", Input).value
-        comma = self.bench.settings.decimal_comma
-        speed = oil = None
-        if speed_text.strip():
-            try:
-                speed = parse_value(
-                    self._with_unit(speed_text, "rpm"), Kind.SPEED, decimal_comma=comma, role_name="speed"
-                ).quantity
-            except FieldkitError as exc:
-                raise FieldkitError(f"speed field: {exc}") from None
-        if oil_text.strip():
-            try:
-                oil = parse_value(
-                    self._with_unit(oil_text, self.bench.system.temperature),
-                    Kind.TEMPERATURE,
-                    decimal_comma=comma,
-                    role_name="oil temperature",
-                ).quantity
-            except FieldkitError as exc:
-                raise FieldkitError(f"oil field: {exc}") from None
-        return Condition(function=self._function(), speed=speed, oil_temperature=oil)
-
-    def _update_parse_message(self) -> None:
-        if self.closed or self.profile is None:
-            return
-        _c, point, _p = self.current()
-        text = self.query_one("#value", Input).value
-        if self._keep_message and not text:
-            return
-        self._keep_message = False
-        value_input = self.query_one("#value", Input)
-        try:
-            self._condition()
-        except FieldkitError as exc:
-            self._message(literal(f"✗ {exc}"), "error")
-            return
-        if not text.strip():
-            value_input.remove_class("-bad")
-            self._message(VALUE_HINT, "info")
-            return
-        try:
-            parsed = self.bench.parse_for_point(point, text)
-        except AmbiguousInputError as exc:
-            value_input.remove_class("-bad")
-            self._message(literal(f"? {exc} Enter asks which."), "ask")
-            return
-        except FieldkitError as exc:
-            value_input.add_class("-bad")
-            self._message(literal(f"✗ {exc} (nothing saved)"), "error")
-            return
-        value_input.remove_class("-bad")
-        ref = (
-            f" ({parsed.reference.value})"
-            if parsed.reference is not None and parsed.reference.value != "gauge"
-            else ""
-        )
-        shown = format_value(parsed.quantity, self.bench.system)
-        self._message(
-            literal(f"= {shown}{ref} at {point.label}, {self._function().label}: Enter saves"), "ok"
-        )
-
-    def unsaved_value(self) -> tuple[str, str] | None:
-        """A value typed but not saved, and where (for the quit and leave prompts)."""
-        if not self.is_mounted or self.profile is None or self.point_id is None:
-            return None
-        text = self.query_one("#value", Input).value
-        if not text.strip():
-            return None
-        _c, point, _p = self.current()
-        return text, point.label
-
-    def save_reading(self) -> bool:
-        """Save the typed value now; True when it is in the store."""
-        value_input = self.query_one("#value", Input)
-        text = value_input.value
-        if self.closed:
-            self._message("This visit is closed; reopen it to add readings.", "error")
-            return False
-        if not text.strip():
-            self._message("Type a value first; " + VALUE_HINT, "error")
-            return False
-        _c, point, _p = self.current()
-        try:
-            condition = self._condition()
-        except FieldkitError as exc:
-            self._message(literal(f"✗ {exc} (nothing saved)"), "error")
-            return False
-        gauge = self._gauge()
-        try:
-            reading = self.bench.record(
-                self.visit_id, point.id, text, condition, gauge=gauge.id if gauge else None
-            )
-        except AmbiguousInputError as exc:
-            self._ask_which(exc, point, condition, gauge)
-            return False
-        except FieldkitError as exc:
-            value_input.add_class("-bad")
-            self._message(literal(f"✗ {exc} (nothing saved)"), "error")
-            return False
-        self._after_save(reading, point)
-        return True
-
-    def _ask_which(
-        self, exc: AmbiguousInputError, point: TestPoint, condition: Condition, gauge: Gauge | None
-    ) -> None:
+    def on_reading_entry_ambiguous(self, event: ReadingEntry.Ambiguous) -> None:
         from fieldkit.model.quantity import quantity_text
         from fieldkit.tui.screens.dialogs import ChoiceDialog
 
-        choices = list(exc.choices)
         labels = [
             Text(f"{quantity_text(c.quantity)}   (= {format_value(c.quantity, self.bench.system)})", end="")
-            for c in choices
+            for c in event.error.choices
         ]
+        self.app.push_screen(
+            ChoiceDialog("Which value?", literal(str(event.error)), labels),
+            lambda index: self.entry.save_choice(event, index),
+        )
 
-        def chosen(index: int | None) -> None:
-            if index is None:
-                self._message("Not saved: choose which value the gauge showed, or retype it.", "ask")
-                return
-            try:
-                saved = self.bench.record(
-                    self.visit_id,
-                    point.id,
-                    "",
-                    condition,
-                    gauge=gauge.id if gauge else None,
-                    chosen=choices[index],
-                )
-            except FieldkitError as err:
-                self._message(literal(f"✗ {err} (nothing saved)"), "error")
-                return
-            self._after_save(saved, point)
+    # --- saving -------------------------------------------------------------------------------
+    def unsaved_value(self) -> tuple[str, str] | None:
+        """A value typed but not saved, and where (for the quit and leave prompts)."""
+        if not self.is_mounted or self.profile is None:
+            return None
+        return self.entry.unsaved_value()
 
-        self.app.push_screen(ChoiceDialog("Which value?", literal(str(exc)), labels), chosen)
+    def save_reading(self) -> bool:
+        """Save the typed value now; True when it is in the store."""
+        return self.entry.save()
 
-    def _after_save(self, reading: Reading, point: TestPoint) -> None:
+    def after_save(self, saved: ReadingEntry.Saved) -> None:
+        """A reading is in the store: diagnose again and show the ranking in the next frame."""
         assert self.visit is not None
-        value_input = self.query_one("#value", Input)
-        value_input.value = ""
-        value_input.remove_class("-bad")
+        reading, point = saved.reading, saved.point
         unskipped = ""
         if point.id in skipped_points(self.visit.notes) and not self.closed:
             self.bench.store.update_visit(self.visit_id, notes=notes_without_skip(self.visit.notes, point.id))
@@ -508,14 +310,12 @@ class VisitScreen(VisitActions, Screen):
                 f" Now most likely: {top.display_title} {percent(top.probability)} "
                 f"(was {was.display_title} {percent(was.probability)})."
             )
-        self._message(
-            literal(
-                f"✓ saved {reading.entered or shown} at {point.label}, "
-                f"{SHORT_STATE[reading.condition.function]}{unskipped}.{change}"
-            ),
+        self.entry.say(
+            f"✓ saved {reading.entered or shown} at {point.label}, "
+            f"{SHORT_STATE[reading.condition.function]}{unskipped}.{change}",
             "ok",
+            keep=True,
         )
-        self._keep_message = True
         # The saved line and the new ranking go out in the next frame on their own; the findings,
         # the plan's glyphs and the step panel, the larger redraw, follow in the frame after.
         # Visit, diagnosis and plan are already current: only the painting of those waits.
@@ -525,7 +325,7 @@ class VisitScreen(VisitActions, Screen):
         # By now the widgets changed by the save have told the screen, so this waits for their frame.
         self.call_after_refresh(self._show_rest_later)
 
-    # --- actions ------------------------------------------------------------------------------
+    # --- moving about -------------------------------------------------------------------------
     def action_move_point(self, delta: int) -> None:
         plan = self.query_one("#plan", PlanList)
         if delta > 0:
@@ -561,13 +361,234 @@ class VisitScreen(VisitActions, Screen):
         if fault is not None:
             self.app.push_screen(FaultScreen(fault))
 
+    # --- commands that open a dialog or another screen ----------------------------------------
+    def action_point_readings(self) -> None:
+        from fieldkit.tui.screens.readings import ReadingsScreen
 
-def _gauge_label(g: Gauge) -> str:
-    start = format_value(g.scale_start) if g.scale_start is not None else "0"
-    return f"{g.id} {start}–{format_value(g.full_scale)} cl {g.accuracy_class:g}"
+        _c, point, _p = self.current()
+        self.app.push_screen(ReadingsScreen(self.bench, self.visit_id, point), lambda _r: self.reload())
 
+    def action_add_gauge(self) -> None:
+        from fieldkit.tui.screens.gauge import AddGaugeDialog
 
-def _example(point: TestPoint) -> str:
-    from fieldkit.units import EXAMPLE
+        if self.closed or self.visit is None:
+            self._message("This visit is closed; reopen it to add a gauge.", "error")
+            return
 
-    return EXAMPLE[point.kind]
+        def added(gauge: Gauge | None) -> None:
+            if gauge is None:
+                return
+            try:
+                self.bench.store.add_gauge(self.visit_id, gauge)
+            except FieldkitError as exc:
+                self._message(f"✗ {exc}", "error")
+                return
+            self.reload()
+            _c, point, _p = self.current()
+            self.entry.offer_gauges(point, self.entry.function, choose=gauge.id)
+            self._message(f"✓ gauge {gauge.id} added to the visit", "ok")
+
+        self.app.push_screen(
+            AddGaugeDialog({g.id for g in self.visit.gauges}, self.bench.settings.decimal_comma), added
+        )
+
+    def action_skip_point(self) -> None:
+        from fieldkit.tui.screens.dialogs import ConfirmDialog, LinePrompt
+
+        if self.closed or self.visit is None:
+            self._message("This visit is closed; reopen it to change the plan.", "error")
+            return
+        _c, point, plan_point = self.current()
+        if plan_point is not None and plan_point.checks:
+            self._message(f"{point.label} already has readings; delete them (^r) before skipping it.", "error")
+            return
+        visit = self.visit
+        if plan_point is not None and plan_point.state is PointState.SKIPPED:
+
+            def unskip(yes: bool | None) -> None:
+                if yes:
+                    self.bench.store.update_visit(
+                        self.visit_id, notes=notes_without_skip(visit.notes, point.id)
+                    )
+                    self.reload()
+                    self._message(f"{point.label} is back in the plan", "ok")
+
+            self.app.push_screen(
+                ConfirmDialog(
+                    "Put it back?", literal(f"{point.label} is marked skipped. Put it back in the plan?")
+                ),
+                unskip,
+            )
+            return
+
+        def skip(reason: str | None) -> None:
+            if reason is None:
+                return
+            try:
+                self.bench.store.update_visit(
+                    self.visit_id, notes=notes_with_skip(visit.notes, point, reason)
+                )
+            except FieldkitError as exc:
+                self._message(f"✗ {exc}", "error")
+                return
+            self.reload()
+            self._message(f"– {point.label} marked skipped (written in the visit notes)", "ok")
+
+        self.app.push_screen(
+            LinePrompt(
+                "Skip this test point",
+                literal(
+                    f"Why is {point.label} not measured? The reason goes into the visit notes and the job card."
+                ),
+                value="no access on this machine",
+            ),
+            skip,
+        )
+
+    def action_machine_history(self) -> None:
+        from fieldkit.tui.screens.history import HistoryScreen
+
+        if self.visit is not None and self.profile is not None:
+            self.app.push_screen(HistoryScreen(self.bench, self.profile, self.visit))
+
+    def action_edit_notes(self) -> None:
+        from fieldkit.tui.screens.dialogs import NotesDialog
+
+        if self.closed or self.visit is None:
+            self._message("This visit is closed; its notes are part of the record.", "error")
+            return
+
+        def saved(notes: str | None) -> None:
+            if notes is None:
+                return
+            try:
+                self.bench.store.update_visit(self.visit_id, notes=notes)
+            except FieldkitError as exc:
+                self._message(f"✗ notes not saved: {exc}", "error")
+                return
+            self.reload()
+            self._message("✓ notes saved", "ok")
+
+        self.app.push_screen(NotesDialog(self.visit.notes), saved)
+
+    def action_finish_visit(self) -> None:
+        from fieldkit.tui.screens.finish import FinishScreen
+
+        if self.visit is None or self.profile is None or self.diagnosis is None:
+            return
+        if self.closed:
+            self.write_job_card()
+            return
+        if self.unsaved_value() is not None:
+            self._message(
+                "A value is typed but not saved: press Enter to save it, or clear it, then finish.", "error"
+            )
+            return
+
+        def done(result: str | None) -> None:
+            self.reload()
+            if result:
+                self._message(result, "ok")
+
+        self.app.push_screen(FinishScreen(self.bench, self.visit, self.profile, self.diagnosis), done)
+
+    def write_job_card(self) -> None:
+        from fieldkit.tui.screens.finish import JobCardDialog
+
+        if self.visit is not None and self.profile is not None and self.diagnosis is not None:
+            self.app.push_screen(
+                JobCardDialog(self.visit, self.profile, self.diagnosis, self.bench.system),
+                lambda r: self._message(r, "ok") if r else None,
+            )
+
+    def reopen(self) -> None:
+        try:
+            self.bench.store.reopen_visit(self.visit_id)
+        except FieldkitError as exc:
+            self._message(f"✗ {exc}", "error")
+            return
+        self.reload()
+        self._message("Visit reopened: readings can be added again.", "ok")
+
+    def import_csv(self) -> None:
+        from fieldkit.tui.screens.dialogs import LinePrompt, existing_file
+
+        if self.closed:
+            self._message("This visit is closed; reopen it to import readings.", "error")
+            return
+
+        def chosen(path: str | None) -> None:
+            if path:
+                message = import_readings_csv(self.bench, self.visit_id, Path(path.strip()).expanduser())
+                self.reload()
+                self._message(message, "ok" if message.startswith("✓") else "error")
+
+        self.app.push_screen(
+            LinePrompt(
+                "Import readings (CSV)",
+                "Path of a CSV file of readings (fieldkit's CSV layout):",
+                check=existing_file((".csv",)),
+            ),
+            chosen,
+        )
+
+    def action_leave(self) -> None:
+        from fieldkit.tui.screens.dialogs import ConfirmDialog
+
+        unsaved = self.unsaved_value()
+        if unsaved is None:
+            self.app.pop_screen()
+            return
+
+        def answer(discard: bool | None) -> None:
+            if discard:
+                self.entry.clear_value()
+                self.app.pop_screen()
+
+        typed, where = unsaved
+        self.app.push_screen(
+            ConfirmDialog(
+                "Leave without saving?",
+                Text.assemble(
+                    "The value ",
+                    literal(repr(typed), "bold"),
+                    " typed for ",
+                    literal(where, "bold"),
+                    " is not saved. Leave and throw it away?",
+                    end="",
+                ),
+                yes="Throw it away",
+                no="Stay",
+            ),
+            answer,
+        )
+
+    def palette_commands(self) -> Iterable[tuple[str, str, Callable[[], object]]]:
+        yield "Next recommended test", "select the point the engine suggests", self.action_go_next_test
+        yield "Ranked faults and findings", "the live diagnosis in full", self.action_show_faults
+        yield "Readings at this point", "history, corrections, deletions", self.action_point_readings
+        yield "Add a gauge", "id, range and accuracy class", self.action_add_gauge
+        yield "Skip this test point", "the reason goes into the notes", self.action_skip_point
+        yield "Machine history", "earlier visits side by side", self.action_machine_history
+        yield "Visit notes", "edit the notes", self.action_edit_notes
+        yield "Import readings (CSV)", "from a logger or a digital gauge", self.import_csv
+        if self.closed:
+            yield "Reopen this visit", "to add or correct readings", self.reopen
+            yield "Write the job card", "PDF, text or Markdown", self.write_job_card
+        else:
+            yield "Finish the visit", "summary, notes, job card", self.action_finish_visit
+        yield "Back to the visit list", "leave this visit", self.action_leave
+        if self.profile is not None:
+            for circuit, point in self.profile.all_test_points():
+                yield (
+                    f"Go to {point.label} ({circuit.id})",
+                    "select this test point",
+                    lambda pid=point.id: self.select_point(pid),
+                )
+        if self.diagnosis is not None:
+            for f in self.diagnosis.faults[:8]:
+                yield (
+                    f"Why: {f.display_title}",
+                    "findings for and against",
+                    lambda key=f.key: self.open_fault(key),
+                )

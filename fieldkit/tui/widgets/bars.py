@@ -15,7 +15,7 @@ from fieldkit.units import percent
 SEVERITY_SHORT = {"danger": "‼", "warning": "!", "notice": "i"}
 
 
-def visit_title(visit: Visit, profile: MachineProfile, *, demo: bool = False) -> Text:
+def visit_title(visit: Visit, profile: MachineProfile, demo: bool = False) -> Text:
     out = Text(end="", no_wrap=True, overflow="ellipsis")
     if demo:
         out.append(" DEMO ", "reverse bold")
@@ -55,12 +55,17 @@ def next_line(next_test: NextTest | None, closed: bool) -> Text:
 
 
 def top_fault_line(diagnosis: Diagnosis | None, was: RankedFault | None) -> Text:
+    """The LIKELY line for a diagnosis; ``was`` is the fault that led before the last reading."""
+    return likely_line(diagnosis.faults[0] if diagnosis is not None and diagnosis.faults else None, was)
+
+
+def likely_line(top: RankedFault | None, was: RankedFault | None) -> Text:
+    """The LIKELY line from the leading fault alone (what the line widget is given)."""
     out = Text(end="", no_wrap=True, overflow="ellipsis")
     out.append("LIKELY ▸ ", "bold")
-    if diagnosis is None or not diagnosis.faults:
+    if top is None:
         out.append("no ranking yet")
         return out
-    top = diagnosis.faults[0]
     out.append(prob_bar(top.probability, 6), "bold")
     out.append(f" {percent(top.probability)} ")
     out.append_text(literal(top.display_title, "bold"))
@@ -69,7 +74,7 @@ def top_fault_line(diagnosis: Diagnosis | None, was: RankedFault | None) -> Text
     return out
 
 
-def caution_strip(cautions: list[Caution]) -> Text:
+def caution_strip(cautions: list[Caution] | tuple[Caution, ...]) -> Text:
     out = Text(end="")
     if not cautions:
         out.append("No step cautions listed for this point.")

@@ -7,12 +7,12 @@ colour; the number beside it says the same in words.
 from __future__ import annotations
 
 from rich.text import Text
-from textual.widgets import OptionList, Static
+from textual.widgets import OptionList
 from textual.widgets.option_list import Option
 
 from fieldkit.diagnosis.results import Diagnosis, Finding, RankedFault, Verdict
 from fieldkit.tui.safe_text import literal
-from fieldkit.tui.widgets.changes import same_text, show_text
+from fieldkit.tui.widgets.drawn import DrawnBlock
 from fieldkit.units import percent
 
 EIGHTHS = " ▏▎▍▌▋▊▉█"
@@ -52,34 +52,48 @@ def finding_text(f: Finding) -> Text:
 class FaultList(OptionList):
     """Ranked faults; choosing one opens its explanation."""
 
+    def __init__(self, *, id: str | None = None) -> None:
+        super().__init__(id=id)
+        self._rows: list[RankedFault] = []
+
     def show(self, diagnosis: Diagnosis | None, limit: int = 12) -> None:
-        """Show the ranking. When the same faults stay in the same order only the changed bars
-        are swapped; a new order rebuilds the list, keeping the highlighted row number."""
-        options = [Option(fault_text(f), id=f.key) for f in diagnosis.faults[:limit]] if diagnosis else []
-        if [o.id for o in options] == [self.get_option_at_index(i).id for i in range(self.option_count)]:
-            for index, option in enumerate(options):
-                if not same_text(self.get_option_at_index(index).prompt, option.prompt):
-                    self.replace_option_prompt_at_index(index, option.prompt)
+        """Show the ranking. When the same faults stay in the same order only the rows whose
+        fault changed are swapped; a new order rebuilds the list, keeping the highlighted row."""
+        rows = list(diagnosis.faults[:limit]) if diagnosis else []
+        if [f.key for f in rows] == [f.key for f in self._rows]:
+            for index, (old, new) in enumerate(zip(self._rows, rows, strict=True)):
+                if old != new:
+                    self.replace_option_prompt_at_index(index, fault_text(new))
+            self._rows = rows
             return
+        self._rows = rows
         keep = self.highlighted
         self.clear_options()
-        if not options:
+        if not rows:
             return
-        self.add_options(options)
+        self.add_options([Option(fault_text(f), id=f.key) for f in rows])
         self.highlighted = min(keep or 0, self.option_count - 1)
 
 
-class FindingsView(Static):
+NO_FINDINGS = "no findings yet: take a reading"
+
+
+def findings_text(findings: tuple[Finding, ...]) -> Text:
+    """Measured findings, one a line, in the engine's order (out-of-range first)."""
+    out = Text(end="")
+    for i, f in enumerate(findings):
+        if i:
+            out.append("\n")
+        out.append_text(finding_text(f))
+    return out if findings else Text(NO_FINDINGS, end="")
+
+
+class FindingsView(DrawnBlock):
     """Findings, out-of-range ones first (the order the engine gives)."""
 
+    def __init__(self, *, id: str | None = None) -> None:
+        super().__init__(findings_text, id=id)
+
     def show(self, diagnosis: Diagnosis | None) -> None:
-        if diagnosis is None or not diagnosis.findings:
-            show_text(self, Text("no findings yet: take a reading", end=""))
-            return
-        out = Text(end="")
-        measured = [f for f in diagnosis.findings if f.verdict is not Verdict.NOT_MEASURED]
-        for i, f in enumerate(measured):
-            if i:
-                out.append("\n")
-            out.append_text(finding_text(f))
-        show_text(self, out if measured else Text("no findings yet: take a reading", end=""))
+        found = diagnosis.findings if diagnosis is not None else []
+        self.data = (tuple(f for f in found if f.verdict is not Verdict.NOT_MEASURED),)

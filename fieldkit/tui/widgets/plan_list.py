@@ -7,16 +7,18 @@ next is marked with ▸.
 
 from __future__ import annotations
 
+from dataclasses import dataclass
 from typing import ClassVar
 
 from rich.style import Style
 from rich.text import Text
+from textual import on
+from textual.message import Message
 from textual.widgets import OptionList
 from textual.widgets.option_list import Option, OptionDoesNotExist
 
 from fieldkit.tui.plan import PlanCircuit, PlanPoint, PointState
 from fieldkit.tui.safe_text import literal
-from fieldkit.tui.widgets.changes import same_text
 
 
 def point_text(p: PlanPoint, *, recommended: bool, styles: dict[PointState, Style] | None = None) -> Text:
@@ -30,7 +32,20 @@ def point_text(p: PlanPoint, *, recommended: bool, styles: dict[PointState, Styl
 
 
 class PlanList(OptionList):
-    """Test points grouped by circuit; highlighting one selects it for the step panel."""
+    """Test points grouped by circuit. Moving onto a point posts :class:`PointChosen` (the screen
+    shows its step); Enter on it posts :class:`PointPicked` (the screen moves to value entry)."""
+
+    @dataclass
+    class PointChosen(Message):
+        """The highlight moved onto a test point."""
+
+        point_id: str
+
+    @dataclass
+    class PointPicked(Message):
+        """Enter was pressed on a test point."""
+
+        point_id: str
 
     COMPONENT_CLASSES: ClassVar[set[str]] = {
         "plan--not-measured",
@@ -44,6 +59,9 @@ class PlanList(OptionList):
     def __init__(self, *, id: str | None = None) -> None:
         super().__init__(id=id)
         self._ids: list[str | None] = []
+        #: What each row was drawn from, to redraw only the rows whose point changed.
+        self._drawn: list[object] = []
+        self._styles: dict[PointState, Style] = {}
 
     def _state_styles(self) -> dict[PointState, Style]:
         return {
@@ -52,29 +70,57 @@ class PlanList(OptionList):
         }
 
     def show(self, plan: list[PlanCircuit], recommended: str | None, selected: str | None) -> None:
-        options: list[Option] = []
         styles = self._state_styles()
+        ids: list[str | None] = []
+        drawn: list[object] = []
         for pc in plan:
-            head = Text(end="", no_wrap=True, overflow="ellipsis")
-            head.append_text(
-                literal(pc.circuit.name, self.get_component_rich_style("plan--circuit", partial=True))
-            )
-            options.append(Option(head, id=f"circuit:{pc.circuit.id}", disabled=True))
+            ids.append(f"circuit:{pc.circuit.id}")
+            drawn.append(pc.circuit.name)
             for p in pc.points:
-                options.append(Option(point_text(p, recommended=p.id == recommended, styles=styles), id=p.id))
-        ids = [o.id for o in options]
-        if ids == self._ids:
-            # Same plan, new states: swap the changed prompts in place (no rebuild, no jump of the
+                ids.append(p.id)
+                drawn.append((p, p.id == recommended))
+        if ids == self._ids and styles == self._styles:
+            # Same plan, new states: swap the changed rows in place (no rebuild, no jump of the
             # cursor, and nothing redrawn when a reading left every state as it was).
-            for index, option in enumerate(options):
-                if not same_text(self.get_option_at_index(index).prompt, option.prompt):
-                    self.replace_option_prompt_at_index(index, option.prompt)
+            for index, (old, new) in enumerate(zip(self._drawn, drawn, strict=True)):
+                if old != new and isinstance(new, tuple):
+                    point, recommended_here = new
+                    self.replace_option_prompt_at_index(
+                        index, point_text(point, recommended=recommended_here, styles=styles)
+                    )
         else:
+            options: list[Option] = []
+            for pc in plan:
+                head = Text(end="", no_wrap=True, overflow="ellipsis")
+                head.append_text(
+                    literal(pc.circuit.name, self.get_component_rich_style("plan--circuit", partial=True))
+                )
+                options.append(Option(head, id=f"circuit:{pc.circuit.id}", disabled=True))
+                for p in pc.points:
+                    options.append(
+                        Option(point_text(p, recommended=p.id == recommended, styles=styles), id=p.id)
+                    )
             self.clear_options()
             self.add_options(options)
             self._ids = ids
+        self._drawn = drawn
+        self._styles = styles
         if selected is not None:
             self.select_point(selected)
+
+    @on(OptionList.OptionHighlighted)
+    def _highlighted(self, event: OptionList.OptionHighlighted) -> None:
+        event.stop()
+        point_id = event.option.id
+        if point_id is not None and not point_id.startswith("circuit:"):
+            self.post_message(self.PointChosen(point_id))
+
+    @on(OptionList.OptionSelected)
+    def _selected(self, event: OptionList.OptionSelected) -> None:
+        event.stop()
+        point_id = event.option.id
+        if point_id is not None and not point_id.startswith("circuit:"):
+            self.post_message(self.PointPicked(point_id))
 
     def select_point(self, point_id: str) -> None:
         try:

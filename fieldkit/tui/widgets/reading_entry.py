@@ -1,0 +1,322 @@
+"""The entry rows of the visit screen: the value as the gauge shows it, the gauge, the machine
+state, engine speed and oil temperature, and the line under them that says what Enter will save.
+
+The widget parses as the technician types and saves on Enter (Workbench.record commits before it
+returns), then posts :class:`ReadingEntry.Saved`; the screen diagnoses again and redraws. Its
+``point`` and ``closed`` are reactive: choosing another point or closing the visit is all the
+screen has to say.
+"""
+
+from __future__ import annotations
+
+import re
+from dataclasses import dataclass
+
+from rich.text import Text
+from textual import on
+from textual.app import ComposeResult
+from textual.containers import Horizontal, Vertical
+from textual.message import Message
+from textual.reactive import reactive
+from textual.widgets import Input, Select
+
+from fieldkit.errors import AmbiguousInputError, FieldkitError
+from fieldkit.model.condition import Condition, FunctionState
+from fieldkit.model.gauge import Gauge
+from fieldkit.model.profile import MachineProfile, TestPoint
+from fieldkit.model.visit import Reading, Visit
+from fieldkit.session import Workbench
+from fieldkit.tui.safe_text import literal
+from fieldkit.tui.step import SHORT_STATE, last_condition_values, suggest_gauge
+from fieldkit.tui.widgets.drawn import DrawnBlock
+from fieldkit.units import EXAMPLE, Kind, format_value, parse_value
+
+_BARE_NUMBER = re.compile(r"^\s*[+\-]?\d[\d.,]*\s*$")
+VALUE_HINT = "type the value as the gauge shows it (e.g. 24,5 bar · 3,500 psi · 0.75 bar abs); Enter saves it"
+MOODS = ("ok", "error", "info", "ask")
+FIELDS = ("#value", "#gauge", "#function", "#speed", "#oil")
+
+
+def message_text(text: str) -> Text:
+    return literal(text)
+
+
+def gauge_label(g: Gauge) -> str:
+    start = format_value(g.scale_start) if g.scale_start is not None else "0"
+    return f"{g.id} {start}–{format_value(g.full_scale)} cl {g.accuracy_class:g}"
+
+
+class ReadingEntry(Vertical):
+    """Value, gauge and condition for the selected point; Enter in any field saves the reading."""
+
+    @dataclass
+    class Saved(Message):
+        """A reading is in the store."""
+
+        reading: Reading
+        point: TestPoint
+
+    @dataclass
+    class Ambiguous(Message):
+        """The typed value reads two ways (``2,500``): the screen asks which, then calls
+        :meth:`ReadingEntry.save_choice`."""
+
+        error: AmbiguousInputError
+        point: TestPoint
+        condition: Condition
+        gauge: Gauge | None
+
+    @dataclass
+    class ConditionChanged(Message):
+        """The machine state or the gauge was changed: the step's advice may differ."""
+
+    #: The test point a value is typed for.
+    point: reactive[TestPoint | None] = reactive(None, init=False)
+    #: A closed visit takes no readings: the fields are disabled.
+    closed: reactive[bool] = reactive(False, init=False)
+
+    def __init__(self, bench: Workbench, visit_id: str, *, id: str | None = None) -> None:
+        super().__init__(id=id)
+        self.bench = bench
+        self.visit_id = visit_id
+        #: The visit as last read from the store (its gauges), set by the screen.
+        self.visit: Visit | None = None
+        self._keep_message = False  # a 'saved' line stays until the next keystroke
+
+    def compose(self) -> ComposeResult:
+        with Horizontal(classes="entry-row"):
+            yield Input(placeholder="value, e.g. 24,5 bar", id="value", compact=True, max_length=64)
+            yield Select([], prompt="no gauge", id="gauge", compact=True)
+        with Horizontal(classes="entry-row"):
+            yield Select(
+                [(Text(SHORT_STATE[s]), s) for s in FunctionState],
+                allow_blank=False,
+                value=FunctionState.NEUTRAL,
+                id="function",
+                compact=True,
+            )
+            yield Input(placeholder="speed rpm", id="speed", compact=True, max_length=32)
+            yield Input(placeholder="oil °C", id="oil", compact=True, max_length=32)
+        yield DrawnBlock(message_text, id="parse-msg")
+
+    def on_mount(self) -> None:
+        self.say(VALUE_HINT, "info")
+
+    # --- reactive state -----------------------------------------------------------------------
+    def watch_point(self, point: TestPoint | None) -> None:
+        if point is not None:
+            self.query_one("#value", Input).placeholder = f"e.g. {EXAMPLE[point.kind]}"
+        self.update_message()
+
+    def watch_closed(self, closed: bool) -> None:
+        for wid in FIELDS:
+            self.query_one(wid).disabled = closed
+        if closed:
+            self.say(
+                "This visit is closed. Find (F3) → 'Reopen this visit' to add readings, "
+                "or 'Write the job card' to print it again.",
+                "info",
+            )
+
+    # --- what is set --------------------------------------------------------------------------
+    @property
+    def function(self) -> FunctionState:
+        value = self.query_one("#function", Select).value
+        return value if isinstance(value, FunctionState) else FunctionState.NEUTRAL
+
+    @function.setter
+    def function(self, state: FunctionState) -> None:
+        self.query_one("#function", Select).value = state
+
+    @property
+    def gauge(self) -> Gauge | None:
+        value = self.query_one("#gauge", Select).value
+        return self.visit.gauge(value) if isinstance(value, str) and self.visit is not None else None
+
+    def offer_gauges(self, point: TestPoint, function: FunctionState, choose: str | None = None) -> None:
+        """The visit's gauges that read this point's kind, the best suited one chosen (or ``choose``)."""
+        assert self.visit is not None
+        fitting = [g for g in self.visit.gauges if g.kind is point.kind]
+        select = self.query_one("#gauge", Select)
+        select.set_options([(Text(gauge_label(g), end=""), g.id) for g in fitting])
+        best = suggest_gauge(point, self.visit.gauges, function, self.bench.system)
+        if choose is not None and any(g.id == choose for g in fitting):
+            select.value = choose
+        elif best is not None:
+            select.value = best.id
+        elif fitting:
+            select.value = fitting[0].id
+
+    def fill_condition_defaults(self, profile: MachineProfile, *, force: bool = False) -> None:
+        """Speed and oil temperature from the last readings, where the fields are empty (or always)."""
+        assert self.visit is not None
+        speed, oil = last_condition_values(self.visit, profile)
+        speed_in, oil_in = self.query_one("#speed", Input), self.query_one("#oil", Input)
+        if speed is not None and (force or not speed_in.value.strip()):
+            speed_in.value = format_value(speed, self.bench.system)
+        if oil is not None and (force or not oil_in.value.strip()):
+            oil_in.value = format_value(oil, self.bench.system)
+        oil_in.placeholder = f"oil {self.bench.system.temperature}"
+
+    def unsaved_value(self) -> tuple[str, str] | None:
+        """A value typed but not saved, and where (for the quit and leave prompts)."""
+        if not self.is_mounted or self.point is None:
+            return None
+        text = self.query_one("#value", Input).value
+        return (text, self.point.label) if text.strip() else None
+
+    def clear_value(self) -> None:
+        self.query_one("#value", Input).value = ""
+
+    # --- the line under the fields ------------------------------------------------------------
+    def say(self, text: str, mood: str, *, keep: bool = False) -> None:
+        """Show a sentence under the fields; ``keep`` holds it until the next keystroke."""
+        widget = self.query_one("#parse-msg", DrawnBlock)
+        widget.data = (text,)
+        for m in MOODS:
+            widget.set_class(m == mood, f"-{m}")
+        self._keep_message = keep
+
+    def _with_unit(self, text: str, unit: str) -> str:
+        return f"{text.strip()} {unit}" if _BARE_NUMBER.match(text) else text
+
+    def condition(self) -> Condition:
+        """The condition as set in the entry row; a wrong speed or oil temperature is an error
+        that names the field."""
+        speed_text = self.query_one("#speed", Input).value
+        oil_text = self.query_one("#oil", Input).value
+        comma = self.bench.settings.decimal_comma
+        speed = oil = None
+        if speed_text.strip():
+            try:
+                speed = parse_value(
+                    self._with_unit(speed_text, "rpm"), Kind.SPEED, decimal_comma=comma, role_name="speed"
+                ).quantity
+            except FieldkitError as exc:
+                raise FieldkitError(f"speed field: {exc}") from None
+        if oil_text.strip():
+            try:
+                oil = parse_value(
+                    self._with_unit(oil_text, self.bench.system.temperature),
+                    Kind.TEMPERATURE,
+                    decimal_comma=comma,
+                    role_name="oil temperature",
+                ).quantity
+            except FieldkitError as exc:
+                raise FieldkitError(f"oil field: {exc}") from None
+        return Condition(function=self.function, speed=speed, oil_temperature=oil)
+
+    def update_message(self) -> None:
+        """Say what Enter would save, or what is wrong with what is typed."""
+        point = self.point
+        if self.closed or point is None:
+            return
+        value_input = self.query_one("#value", Input)
+        text = value_input.value
+        if self._keep_message and not text:
+            return
+        self._keep_message = False
+        try:
+            self.condition()
+        except FieldkitError as exc:
+            self.say(f"✗ {exc}", "error")
+            return
+        if not text.strip():
+            value_input.remove_class("-bad")
+            self.say(VALUE_HINT, "info")
+            return
+        try:
+            parsed = self.bench.parse_for_point(point, text)
+        except AmbiguousInputError as exc:
+            value_input.remove_class("-bad")
+            self.say(f"? {exc} Enter asks which.", "ask")
+            return
+        except FieldkitError as exc:
+            value_input.add_class("-bad")
+            self.say(f"✗ {exc} (nothing saved)", "error")
+            return
+        value_input.remove_class("-bad")
+        ref = (
+            f" ({parsed.reference.value})"
+            if parsed.reference is not None and parsed.reference.value != "gauge"
+            else ""
+        )
+        shown = format_value(parsed.quantity, self.bench.system)
+        self.say(f"= {shown}{ref} at {point.label}, {self.function.label}: Enter saves", "ok")
+
+    # --- events -------------------------------------------------------------------------------
+    @on(Select.Changed, "#function")
+    @on(Select.Changed, "#gauge")
+    def _condition_changed(self, event: Select.Changed) -> None:
+        event.stop()
+        self.update_message()
+        self.post_message(self.ConditionChanged())
+
+    @on(Input.Changed)
+    def _typed(self, event: Input.Changed) -> None:
+        event.stop()
+        self.update_message()
+
+    @on(Input.Submitted)
+    def _submitted(self, event: Input.Submitted) -> None:
+        event.stop()
+        self.save()
+
+    # --- saving -------------------------------------------------------------------------------
+    def save(self) -> bool:
+        """Save the typed value now; True when it is in the store (then :class:`Saved` is posted)."""
+        value_input = self.query_one("#value", Input)
+        text = value_input.value
+        point = self.point
+        if self.closed:
+            self.say("This visit is closed; reopen it to add readings.", "error")
+            return False
+        if not text.strip():
+            self.say("Type a value first; " + VALUE_HINT, "error")
+            return False
+        if point is None:
+            return False
+        try:
+            condition = self.condition()
+        except FieldkitError as exc:
+            self.say(f"✗ {exc} (nothing saved)", "error")
+            return False
+        gauge = self.gauge
+        try:
+            reading = self.bench.record(
+                self.visit_id, point.id, text, condition, gauge=gauge.id if gauge else None
+            )
+        except AmbiguousInputError as exc:
+            self.post_message(self.Ambiguous(exc, point, condition, gauge))
+            return False
+        except FieldkitError as exc:
+            value_input.add_class("-bad")
+            self.say(f"✗ {exc} (nothing saved)", "error")
+            return False
+        self._saved(reading, point)
+        return True
+
+    def _saved(self, reading: Reading, point: TestPoint) -> None:
+        value_input = self.query_one("#value", Input)
+        value_input.value = ""
+        value_input.remove_class("-bad")
+        self.post_message(self.Saved(reading, point))
+
+    def save_choice(self, ask: ReadingEntry.Ambiguous, index: int | None) -> None:
+        """Save the value the technician chose after an :class:`Ambiguous` (None: they did not)."""
+        if index is None:
+            self.say("Not saved: choose which value the gauge showed, or retype it.", "ask")
+            return
+        try:
+            saved = self.bench.record(
+                self.visit_id,
+                ask.point.id,
+                "",
+                ask.condition,
+                gauge=ask.gauge.id if ask.gauge else None,
+                chosen=ask.error.choices[index],
+            )
+        except FieldkitError as err:
+            self.say(f"✗ {err} (nothing saved)", "error")
+            return
+        self._saved(saved, ask.point)
