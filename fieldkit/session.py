@@ -23,10 +23,10 @@ if TYPE_CHECKING:
     from fieldkit.diagnosis.engine import Knowledge
     from fieldkit.diagnosis.results import Diagnosis
 from fieldkit.model.condition import Condition
-from fieldkit.model.loading import ProfileLibrary, default_library
+from fieldkit.model.loading import ProfileLibrary
 from fieldkit.model.profile import MachineProfile, TestPoint
 from fieldkit.model.visit import Reading, Visit
-from fieldkit.settings import Settings, data_home
+from fieldkit.settings import Settings, data_home, default_library
 from fieldkit.store import SqliteVisitStore, open_store
 from fieldkit.tomlfile import read_text, validation_error
 from fieldkit.units import DisplaySystem, Kind, ParsedValue, parse_value, to_canonical

@@ -14,6 +14,8 @@ from platformdirs import user_data_path
 from pydantic import Field, ValidationError
 
 from fieldkit.model.base import Strict
+from fieldkit.model.loading import ProfileLibrary
+from fieldkit.resources import rules_dir, samples_dir
 
 APP = "fieldkit"
 STORE_ENV = "FIELDKIT_STORE"
@@ -62,3 +64,9 @@ class Settings(Strict):
         tmp = path.with_suffix(".tmp")
         tmp.write_text(self.model_dump_json(indent=2), encoding="utf-8")
         os.replace(tmp, path)
+
+
+def default_library(extra: list[Path] | None = None) -> ProfileLibrary:
+    """Bundled demo profiles plus the user's profile folder and any extra folders named."""
+    folders = [samples_dir() / "profiles", user_profiles_dir(), *(extra or [])]
+    return ProfileLibrary(folders, rules_dir() / "templates")

@@ -4,7 +4,6 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from fieldkit.model.loading import default_library
 from fieldkit.model.visit import Visit
 from fieldkit.resources import samples_dir
 from fieldkit.session import (
@@ -14,6 +13,7 @@ from fieldkit.session import (
     retire_demo_store,
     seed_demo,
 )
+from fieldkit.settings import default_library
 from fieldkit.store import open_store
 
 

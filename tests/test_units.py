@@ -469,7 +469,9 @@ def test_convert_runs_as_a_module_from_the_shell() -> None:
         (1 + 1e-12, "100%"),  # and above 1 as 1
     ],
 )
-def test_a_probability_reads_in_whole_per_cent_and_never_claims_certainty_it_lacks(p: float, shown: str) -> None:
+def test_a_probability_reads_in_whole_per_cent_and_never_claims_certainty_it_lacks(
+    p: float, shown: str
+) -> None:
     from fieldkit.units import percent
 
     assert percent(p) == shown

@@ -31,6 +31,8 @@ from fieldkit.model.condition import FunctionState
 from fieldkit.model.profile import ExpectedRange, MachineProfile, TestPoint, TestWindow
 from fieldkit.model.roles import Role
 from fieldkit.model.visit import Visit
+from fieldkit.physics.gauges import gauge_suitability
+from fieldkit.resources import rules_dir
 from fieldkit.units import (
     CANONICAL_UNIT,
     METRIC,
@@ -72,7 +74,6 @@ def _cached(folder: str) -> Knowledge:
 
 def default_knowledge(folder: Path | None = None) -> Knowledge:
     """The bundled rules (or another folder), loaded once per process."""
-    from fieldkit.resources import rules_dir
 
     return _cached(str((folder or rules_dir()).resolve()))
 
@@ -156,7 +157,6 @@ def _gauge_advice(
     full_bar: float, start_bar: float | None, accuracy: float, reading_bar: float, highest_bar: float | None
 ) -> str:
     # Cached on plain numbers: the same readings are judged again after every new one.
-    from fieldkit.physics.gauges import gauge_suitability
 
     bar = unit("bar")
     try:

@@ -25,6 +25,9 @@ from fieldkit.model.condition import FunctionState
 from fieldkit.model.parameters import PARAMETERS
 from fieldkit.model.profile import Circuit, MachineProfile
 from fieldkit.model.roles import ROLES, Role
+from fieldkit.physics.closed_loop import cross_port_stall_reading
+from fieldkit.physics.fluid import grade
+from fieldkit.physics.reliefs import arrangement_for, deadhead
 from fieldkit.units import Q_, DisplaySystem, Kind, format_si, to_canonical
 
 _SQRT2 = math.sqrt(2.0)
@@ -155,7 +158,6 @@ class Evaluator:
         self.missing_roles: dict[str, list[tuple[Role, FunctionState | None]]] = {}
         #: What a rule had to assume while it was evaluated, added to its message.
         self.notes: list[str] = []
-        from fieldkit.physics.fluid import grade
 
         self.curve = grade(profile.oil_grade).curve
 
@@ -284,7 +286,6 @@ class Evaluator:
         A setting stated as a differential is held above the low side, which sits at charge
         pressure, so the gauge reads setting + charge; a setting stated as a gauge reading is
         read as it is (physics.closed_loop.cross_port_stall_reading)."""
-        from fieldkit.physics.closed_loop import cross_port_stall_reading
 
         setting = self.parameter(scope, "high_pressure_relief_setting")
         circuit = scope.circuit
@@ -305,7 +306,6 @@ class Evaluator:
         return float(expected.to_base_units().magnitude), m.u_si
 
     def _deadhead(self, scope: Scope, used: list[Measured]) -> tuple[float, float]:
-        from fieldkit.physics.reliefs import arrangement_for, deadhead
 
         circuit = scope.circuit
         if circuit is None or not circuit.reliefs:

@@ -20,7 +20,8 @@ from fieldkit.diagnosis.rulepack import Rule
 from fieldkit.model.condition import FunctionState
 from fieldkit.model.profile import Circuit, TestPoint
 from fieldkit.model.roles import Role
-from fieldkit.units import Kind
+from fieldkit.physics.gauges import smallest_gauge
+from fieldkit.units import Kind, format_value
 
 MAX_JOINT_RULES = 3
 OUTCOMES = ("low", "in range", "high")
@@ -183,8 +184,6 @@ def suggest(
 
 
 def _smaller_gauge_advice(evaluator: Evaluator, cand: _Candidate) -> str:
-    from fieldkit.physics.gauges import smallest_gauge
-    from fieldkit.units import format_value
 
     m = next(m for m in evaluator.measured if m.reading.id == cand.repeat_of.readings[0])  # type: ignore[union-attr]
     try:

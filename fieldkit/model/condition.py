@@ -12,6 +12,7 @@ from pydantic import Field
 
 from fieldkit.model.base import Strict
 from fieldkit.model.quantity import Speed, Temperature
+from fieldkit.units import format_value
 
 
 class FunctionState(StrEnum):
@@ -43,7 +44,6 @@ class Condition(Strict):
     oil_temperature: Temperature | None = Field(default=None, description="oil temperature while reading")
 
     def describe(self) -> str:
-        from fieldkit.units import format_value
 
         parts = [self.function.short]
         if self.speed is not None:

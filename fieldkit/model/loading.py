@@ -458,22 +458,12 @@ class ProfileLibrary:
         self._profiles[profile.id] = (profile, path)
 
 
-def default_library(extra: list[Path] | None = None) -> ProfileLibrary:
-    """Bundled demo profiles plus the user's profile folder and any extra folders named."""
-    from fieldkit.resources import rules_dir, samples_dir
-    from fieldkit.settings import user_profiles_dir
-
-    folders = [samples_dir() / "profiles", user_profiles_dir(), *(extra or [])]
-    return ProfileLibrary(folders, rules_dir() / "templates")
-
-
 __all__ = [
     "CircuitTemplate",
     "Templates",
     "TypicalFigure",
     "profile_from_raw",
     "ProfileLibrary",
-    "default_library",
     "load_model",
     "load_profile",
     "load_templates",

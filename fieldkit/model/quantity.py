@@ -16,6 +16,7 @@ from pydantic import BeforeValidator, PlainSerializer, WithJsonSchema
 
 from fieldkit.errors import FieldkitError
 from fieldkit.units import (
+    CANONICAL_UNIT,
     EXAMPLE,
     Q_,
     SPELLINGS,
@@ -77,7 +78,6 @@ def _parser(kind: Kind) -> Callable[[Any], pint.Quantity]:
 
 
 def unit_for(kind: Kind) -> pint.Unit:
-    from fieldkit.units import CANONICAL_UNIT
 
     return unit(CANONICAL_UNIT[kind])
 

@@ -13,11 +13,12 @@ from enum import StrEnum
 
 from pydantic import Field, field_validator, model_validator
 
+from fieldkit.errors import FieldkitError
 from fieldkit.model.base import SCHEMA_VERSION, Strict
 from fieldkit.model.condition import Condition, ConditionSpec, FunctionState
 from fieldkit.model.gauge import Gauge
 from fieldkit.model.quantity import AnyQuantity, Pressure
-from fieldkit.units import PressureReference
+from fieldkit.units import Kind, PressureReference, kind_of, parse_value
 
 __all__ = [
     "Condition",
@@ -64,9 +65,6 @@ class Reading(Strict):
     def _reference_from_text(cls, data: object) -> object:
         # "0.75 bar abs" written in a file carries its reference in the text; keep it.
         if isinstance(data, dict) and isinstance(data.get("value"), str):
-            from fieldkit.errors import FieldkitError
-            from fieldkit.units import parse_value
-
             try:
                 parsed = parse_value(data["value"])
             except FieldkitError as exc:
@@ -84,7 +82,6 @@ class Reading(Strict):
     @model_validator(mode="after")
     def _pressures_are_gauge_unless_said(self) -> Reading:
         # Text without a reference reads as gauge; a quantity built in code must mean the same.
-        from fieldkit.units import Kind, kind_of
 
         if self.reference is None and kind_of(self.value) is Kind.PRESSURE:
             self.reference = PressureReference.GAUGE

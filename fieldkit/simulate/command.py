@@ -28,7 +28,7 @@ def load_profile_arg(name: str, extra_folders: list[Path] | None = None) -> Mach
         from fieldkit.resources import rules_dir
 
         return load_profile(path, load_templates(rules_dir() / "templates"))
-    from fieldkit.model.loading import default_library
+    from fieldkit.settings import default_library
 
     return default_library(extra_folders or []).get(name)
 

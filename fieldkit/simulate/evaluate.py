@@ -18,12 +18,16 @@ import time
 from collections import Counter, defaultdict
 from collections.abc import Iterable, Sequence
 from dataclasses import dataclass, field
+from pathlib import Path
 from random import Random
 from typing import Any
 
 from fieldkit.diagnosis.engine import Knowledge, default_knowledge, diagnose
 from fieldkit.diagnosis.results import Diagnosis, Verdict
+from fieldkit.errors import FieldkitError
+from fieldkit.model.loading import ProfileLibrary
 from fieldkit.model.profile import MachineProfile
+from fieldkit.resources import rules_dir, samples_dir
 from fieldkit.simulate.simulator import NO_FAULT, Simulation, Simulator
 
 #: Severity range each simulated fault is drawn from: faults in the field vary, from barely past
@@ -352,7 +356,6 @@ def _worker(
     """One (machine, fault) batch in a worker process. The profile travels as JSON and is
     validated again here: quantities belong to the registry of the process that made them."""
     profile_json, fault, seed, cases, severity, rules = task
-    from pathlib import Path
 
     profile = MachineProfile.model_validate_json(profile_json)
     return _run_cases(profile, fault, seed, cases, severity, default_knowledge(Path(rules)))
@@ -375,8 +378,6 @@ def evaluate(
     diagnose each, and gather the figures. The same arguments give the same report, whatever
     the number of worker processes (each case has its own seed)."""
     if cases_per_fault < 1:
-        from fieldkit.errors import FieldkitError
-
         raise FieldkitError(f"cases per fault must be at least 1; got {cases_per_fault}")
     started = time.perf_counter()
     profiles = list(profiles) if profiles is not None else sample_profiles()
@@ -413,8 +414,6 @@ def evaluate(
 
 def sample_profiles() -> list[MachineProfile]:
     """The bundled demo profiles (not the user's own): what the evaluation is measured on."""
-    from fieldkit.model.loading import ProfileLibrary
-    from fieldkit.resources import rules_dir, samples_dir
 
     return ProfileLibrary([samples_dir() / "profiles"], rules_dir() / "templates").profiles()
 

@@ -12,6 +12,7 @@ from __future__ import annotations
 import os
 from pathlib import Path
 
+from fieldkit.settings import default_store_path
 from fieldkit.store.base import EDITABLE_FIELDS, VisitStore, VisitSummary
 from fieldkit.store.sqlite import SqliteVisitStore
 
@@ -19,7 +20,6 @@ from fieldkit.store.sqlite import SqliteVisitStore
 def open_store(path: str | os.PathLike[str] | None = None) -> SqliteVisitStore:
     """The user's store: ``path`` (the ``--store`` option), else ``FIELDKIT_STORE``, else the
     user data folder; see :func:`fieldkit.settings.default_store_path`."""
-    from fieldkit.settings import default_store_path
 
     return SqliteVisitStore(Path(default_store_path(path)))
 

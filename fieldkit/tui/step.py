@@ -18,8 +18,10 @@ from fieldkit.errors import FieldkitError
 from fieldkit.model.condition import ConditionSpec, FunctionState
 from fieldkit.model.gauge import Gauge
 from fieldkit.model.profile import ExpectedRange, MachineProfile, TestPoint
+from fieldkit.model.roles import Role
 from fieldkit.model.visit import Visit
 from fieldkit.physics.common import Level
+from fieldkit.physics.gauges import gauge_suitability, smallest_gauge
 from fieldkit.units import DisplaySystem, Kind, format_value, to_canonical
 
 SHORT_STATE = {
@@ -110,8 +112,6 @@ def gauge_fit(
         )
     work = working_value(point, function)
     if point.kind is Kind.PRESSURE:
-        from fieldkit.physics.gauges import gauge_suitability
-
         if work is None and point.max_pressure is None:
             return GaugeFit(
                 Level.NOTE,
@@ -144,7 +144,6 @@ def _gauge_to_add(point: TestPoint, function: FunctionState) -> str:
     the expected value within 3/4 of its scale and stays above the point's highest pressure."""
     if point.kind is not Kind.PRESSURE:
         return f"; add a {point.kind.value} meter with ^g"
-    from fieldkit.physics.gauges import smallest_gauge
 
     work = working_value(point, function) or point.max_pressure
     if work is None:
@@ -200,7 +199,6 @@ def last_condition_values(
 ) -> tuple[pint.Quantity | None, pint.Quantity | None]:
     """Speed and oil temperature to offer for the next reading: what the last reading stated
     (or the last oil temperature reading), else the rated speed and nothing."""
-    from fieldkit.model.roles import Role
 
     speed: pint.Quantity | None = profile.rated_speed
     oil: pint.Quantity | None = None

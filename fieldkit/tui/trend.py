@@ -16,6 +16,7 @@ from fieldkit.model.condition import FunctionState
 from fieldkit.model.profile import MachineProfile, TestPoint
 from fieldkit.model.roles import Role
 from fieldkit.model.visit import Reading
+from fieldkit.physics.fluid import grade, normalised_leakage
 from fieldkit.store.base import VisitSummary
 from fieldkit.store.sqlite import SqliteVisitStore
 from fieldkit.tui.step import SHORT_STATE
@@ -82,7 +83,6 @@ def _oil_at(reading: Reading, oil_readings: list[Reading]) -> pint.Quantity | No
 def _normalised(reading: Reading, oil: pint.Quantity | None, profile: MachineProfile) -> pint.Quantity | None:
     if oil is None:
         return None
-    from fieldkit.physics.fluid import grade, normalised_leakage
 
     try:
         return normalised_leakage(

@@ -7,12 +7,12 @@ from pathlib import Path
 
 from fieldkit.errors import FieldkitError
 from fieldkit.session import Workbench
+from fieldkit.store.csv_import import kinds_by_test_point, read_readings_csv
 from fieldkit.tui.error_text import explain
 
 
 def import_readings_csv(bench: Workbench, visit_id: str, path: Path) -> str:
     """Import a CSV of readings into a visit (all rows or none); a sentence saying what happened."""
-    from fieldkit.store.csv_import import kinds_by_test_point, read_readings_csv
 
     try:
         visit = bench.store.get_visit(visit_id)

@@ -18,6 +18,7 @@ from fieldkit.session import Workbench
 from fieldkit.tui import keys
 from fieldkit.tui.safe_text import literal
 from fieldkit.tui.screens.base import FieldkitScreen
+from fieldkit.tui.screens.dialogs import ConfirmDialog, LinePrompt
 from fieldkit.tui.widgets.keybar import KeyBar
 from fieldkit.units import format_value
 
@@ -93,7 +94,6 @@ class ReadingsScreen(FieldkitScreen):
         return r
 
     def action_correct(self) -> None:
-        from fieldkit.tui.screens.dialogs import LinePrompt
 
         old = self._standing()
         if old is None:
@@ -140,7 +140,6 @@ class ReadingsScreen(FieldkitScreen):
         )
 
     def action_delete(self) -> None:
-        from fieldkit.tui.screens.dialogs import ConfirmDialog
 
         r = self._standing()
         if r is None:

@@ -32,6 +32,7 @@ from fieldkit.diagnosis.results import Diagnosis, NextTest, RankedFault
 from fieldkit.errors import FieldkitError
 from fieldkit.model.gauge import Gauge
 from fieldkit.model.profile import Circuit, MachineProfile, TestPoint
+from fieldkit.model.quantity import quantity_text
 from fieldkit.model.visit import Visit, VisitStatus
 from fieldkit.session import Workbench
 from fieldkit.tui import keys
@@ -270,7 +271,6 @@ class VisitScreen(FieldkitScreen):
         self.after_save(event)
 
     def on_reading_entry_ambiguous(self, event: ReadingEntry.Ambiguous) -> None:
-        from fieldkit.model.quantity import quantity_text
         from fieldkit.tui.screens.dialogs import ChoiceDialog
 
         labels = [
@@ -400,7 +400,9 @@ class VisitScreen(FieldkitScreen):
             return
         _c, point, plan_point = self.current()
         if plan_point is not None and plan_point.checks:
-            self._message(f"{point.label} already has readings; delete them (^r) before skipping it.", "error")
+            self._message(
+                f"{point.label} already has readings; delete them (^r) before skipping it.", "error"
+            )
             return
         visit = self.visit
         if plan_point is not None and plan_point.state is PointState.SKIPPED:

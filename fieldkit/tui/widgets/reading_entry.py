@@ -297,6 +297,9 @@ class ReadingEntry(Vertical):
         return True
 
     def _saved(self, reading: Reading, point: TestPoint) -> None:
+        # The screen says "saved" once it has diagnosed again; clearing the field must not put
+        # the typing hint there first (a redraw for nothing in the frame that matters).
+        self._keep_message = True
         value_input = self.query_one("#value", Input)
         value_input.value = ""
         value_input.remove_class("-bad")
