@@ -10,6 +10,7 @@ This module sends and fetches records; :mod:`fieldkit.store.sync` decides what t
 
 from __future__ import annotations
 
+import json
 import os
 import re
 import secrets
@@ -374,7 +375,5 @@ def _column(name: str) -> sql.Composable:
 
 
 def _gauge_of(reading_json: str) -> str | None:
-    import json
-
     value = json.loads(reading_json).get("gauge")
     return str(value) if value is not None else None

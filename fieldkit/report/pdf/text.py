@@ -99,7 +99,7 @@ def text_height(
     lh: float | None = None,
 ) -> float:
     """Height a table cell ``width`` mm wide needs for ``text``, padding included: exactly what
-    :func:`fieldkit.report.pdf_tables.measured_table` draws it at."""
+    :func:`fieldkit.report.pdf.tables.measured_table` draws it at."""
     if not text:
         return 0.0
     lh = lh or line_height(size)
