@@ -15,6 +15,7 @@ from pydantic import AfterValidator, Field
 from fieldkit.errors import DataFileError
 from fieldkit.model.base import Strict
 from fieldkit.model.condition import FunctionState
+from fieldkit.model.parts import Part
 from fieldkit.model.profile import CircuitKind
 from fieldkit.model.roles import Role
 from fieldkit.tomlfile import key_lines, line_for, parse_toml, read_text, validate
@@ -45,6 +46,9 @@ class Fault(Strict):
     confirm: str
     fix: str
     parts: list[str] = Field(default_factory=list)
+    needs: list[Part] = Field(
+        default_factory=list, description="optional parts this fault lives in (any one); see model.fitted"
+    )
     check_minutes: float = Field(default=30, gt=0, le=24 * 60)
 
     @property
@@ -73,6 +77,9 @@ class Caution(Strict):
     always: bool = False
     roles: list[Role] = Field(default_factory=list)
     functions: list[FunctionState] = Field(default_factory=list)
+    needs: list[Part] = Field(
+        default_factory=list, description="optional parts this caution is about (any one); see model.fitted"
+    )
 
 
 class _FaultFile(Strict):

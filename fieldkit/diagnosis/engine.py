@@ -28,7 +28,8 @@ from fieldkit.diagnosis.results import CautionNote, Diagnosis, Finding, NextTest
 from fieldkit.diagnosis.rulepack import Rule, load_packs
 from fieldkit.errors import FieldkitError
 from fieldkit.model.condition import FunctionState
-from fieldkit.model.profile import ExpectedRange, MachineProfile, TestPoint, TestWindow
+from fieldkit.model.fitted import applies
+from fieldkit.model.profile import Circuit, ExpectedRange, MachineProfile, TestPoint, TestWindow
 from fieldkit.model.roles import Role
 from fieldkit.model.visit import Visit
 from fieldkit.physics.gauges import gauge_suitability
@@ -218,9 +219,9 @@ def _cautions(
 ) -> list[CautionNote]:
     notes: dict[str, CautionNote] = {}
 
-    def add(cid: str, because: str) -> None:
+    def add(cid: str, because: str, circuit: Circuit | None = None) -> None:
         c = knowledge.cautions.get(cid)
-        if c is not None and cid not in notes:
+        if c is not None and cid not in notes and applies(c.needs, circuit, profile):
             notes[cid] = CautionNote(c.id, c.title, c.text, c.severity.value, c.source, because)
 
     for c in knowledge.cautions.values():
@@ -231,11 +232,12 @@ def _cautions(
         _circuit, tp = profile.test_point(t.test_point)
         points.append((tp, "next test"))
     for tp, why in points:
+        circuit, _tp = profile.test_point(tp.id)
         for cid in tp.cautions:
-            add(cid, f"{why} at {tp.label}")
+            add(cid, f"{why} at {tp.label}", circuit)
         for c in knowledge.cautions.values():
             if tp.role in c.roles:
-                add(c.id, f"{why} at {tp.label}")
+                add(c.id, f"{why} at {tp.label}", circuit)
     for m in measured:
         if m.reading.condition.function is FunctionState.STALLED:
             for c in knowledge.cautions.values():

@@ -22,6 +22,7 @@ from fieldkit.diagnosis.rulepack import Rule
 from fieldkit.diagnosis.symbols import DERIVED, MACHINE_FIGURES, SYMBOLS
 from fieldkit.expr.dims import kind_dimension
 from fieldkit.model.condition import FunctionState
+from fieldkit.model.fitted import applies
 from fieldkit.model.parameters import PARAMETERS
 from fieldkit.model.profile import Circuit, MachineProfile
 from fieldkit.model.roles import ROLES, Role
@@ -327,9 +328,13 @@ class Evaluator:
     # --- rules ------------------------------------------------------------------------
     def scopes_for(self, rule: Rule) -> list[Scope]:
         if rule.spec.machine_wide:
-            return [self.machine]
+            return [self.machine] if applies(rule.spec.needs, None, self.profile) else []
         return [
-            s for s in self.scopes if s.circuit is not None and s.circuit.kind.value in rule.spec.circuits
+            s
+            for s in self.scopes
+            if s.circuit is not None
+            and s.circuit.kind.value in rule.spec.circuits
+            and applies(rule.spec.needs, s.circuit)
         ]
 
     def evaluate(self, rule: Rule, scope: Scope, hypotheses: list[Hypothesis]) -> Finding | None:

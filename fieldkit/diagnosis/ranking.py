@@ -17,6 +17,7 @@ import math
 from fieldkit.diagnosis.catalogue import NO_FAULT, Fault
 from fieldkit.diagnosis.findings import Hypothesis
 from fieldkit.diagnosis.results import Evidence, Finding, RankedFault
+from fieldkit.model.fitted import applies
 from fieldkit.model.profile import MachineProfile
 
 #: A finding counts as for (against) a fault when it makes it this many times more (less) likely.
@@ -29,10 +30,11 @@ def hypotheses_for(profile: MachineProfile, faults: dict[str, Fault]) -> list[Hy
     out: list[Hypothesis] = []
     for fault in faults.values():
         if fault.machine_wide:
-            out.append(Hypothesis(fault.id, fault, None, fault.prior))
+            if applies(fault.needs, None, profile):
+                out.append(Hypothesis(fault.id, fault, None, fault.prior))
             continue
         for c in profile.circuits:
-            if fault.applies_to(c.kind):
+            if fault.applies_to(c.kind) and applies(fault.needs, c):
                 out.append(Hypothesis(f"{fault.id}@{c.id}", fault, c, fault.prior))
     total = sum(h.prior for h in out)
     for h in out:

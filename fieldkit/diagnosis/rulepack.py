@@ -22,6 +22,7 @@ from fieldkit.expr import ExprError, compile_expression
 from fieldkit.expr.dims import describe
 from fieldkit.model.base import Strict
 from fieldkit.model.condition import FunctionState
+from fieldkit.model.parts import Part
 from fieldkit.tomlfile import key_lines, line_for, parse_toml, read_text, validate
 
 #: Probability that a healthy machine (or a fault the rule does not name) reads low or high here
@@ -50,6 +51,9 @@ class RuleSpec(Strict):
     id: str = Field(pattern=r"^[a-z][a-z0-9\-]*$", max_length=60)
     title: str = Field(min_length=3, max_length=120)
     circuits: CircuitKinds = Field(description="circuit kinds, or '*' for machine-wide")
+    needs: list[Part] = Field(
+        default_factory=list, description="optional parts the rule asks about (any one); see model.fitted"
+    )
     when: list[FunctionState] = Field(
         default_factory=list, description="function states the readings are taken in"
     )
