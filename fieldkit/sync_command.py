@@ -31,6 +31,13 @@ def add_parsers(sub: Any) -> None:
         "sync", help="send this laptop's new records to the shop server and fetch the others'"
     )
     sy.add_argument("--url", help="the shop server (default: $FIELDKIT_SERVER or libpq's PG* settings)")
+    sy.add_argument(
+        "--keep-profile",
+        metavar="ID=VERSION",
+        action="append",
+        default=[],
+        help="resolve a machine profile conflict by keeping one version (as the sync listed it)",
+    )
 
 
 def run_server(args: argparse.Namespace) -> int:
@@ -60,23 +67,32 @@ def run_server(args: argparse.Namespace) -> int:
 
 
 def run_sync(args: argparse.Namespace) -> int:
+    from fieldkit.profile_sync import keep, sync_with_profiles
+    from fieldkit.settings import user_profiles_dir
     from fieldkit.store import open_store
     from fieldkit.store.pg_server import ShopServer, server_conninfo
-    from fieldkit.store.sync import sync
+    from fieldkit.store.replica import Replica
 
     conninfo = server_conninfo(args.url)
+    folder = user_profiles_dir()
     store = open_store(args.store)
     try:
+        for choice in args.keep_profile:
+            profile_id, _, version = choice.partition("=")
+            kept = keep(Replica(store), folder, profile_id.strip(), version.strip())
+            print(f"profile '{kept.profile_id}': kept version {version.strip()} (recorded as {kept.id})")
         with ShopServer(conninfo) as server:
 
             def progress(phase: str, done: int, total: int) -> None:
                 word = "sending" if phase == "up" else "receiving"
                 print(f"\r{word} {done}/{total}", end="", file=sys.stderr, flush=True)
 
-            report = sync(store, server, progress=progress if sys.stderr.isatty() else None)
+            report, profiles = sync_with_profiles(
+                store, server, folder, progress=progress if sys.stderr.isatty() else None
+            )
         if sys.stderr.isatty():
             print(file=sys.stderr)
-        for line in report.lines():
+        for line in (*report.lines(), *profiles.lines()):
             print(line)
     finally:
         store.close()

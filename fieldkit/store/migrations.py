@@ -147,7 +147,31 @@ _V2 = Migration(
     ),
 )
 
-MIGRATIONS: tuple[Migration, ...] = (_V1, _V2)
+# Layout 3: machine profiles travel too, as versions. A version names the version(s) it was made
+# from; two versions made from the same one are a conflict that a person resolves (never merged).
+_V3 = Migration(
+    3,
+    "machine profile versions for the shop server",
+    (
+        """CREATE TABLE profile_version (
+            seq INTEGER PRIMARY KEY AUTOINCREMENT,
+            id TEXT NOT NULL UNIQUE,
+            profile_id TEXT NOT NULL,
+            parents_json TEXT NOT NULL,
+            toml_text TEXT NOT NULL,
+            made_at TEXT NOT NULL,
+            origin TEXT NOT NULL,
+            author TEXT NOT NULL DEFAULT '',
+            from_server INTEGER NOT NULL DEFAULT 0
+        )""",
+        "CREATE INDEX profile_version_by_profile ON profile_version (profile_id)",
+        """CREATE TRIGGER profile_version_is_kept
+            BEFORE UPDATE OF id, profile_id, parents_json, toml_text, made_at, origin ON profile_version
+            BEGIN SELECT RAISE(ABORT, 'a profile version is history; add a new version instead'); END""",
+    ),
+)
+
+MIGRATIONS: tuple[Migration, ...] = (_V1, _V2, _V3)
 
 
 def latest_version(migrations: Sequence[Migration] = MIGRATIONS) -> int:

@@ -159,7 +159,35 @@ _V1 = ServerMigration(
     ),
 )
 
-SERVER_MIGRATIONS: tuple[ServerMigration, ...] = (_V1,)
+#: Machine profiles are the company's, not one technician's: any login may add a version (stamped
+#: with its name); nobody may change or remove one.
+_V2 = ServerMigration(
+    2,
+    "machine profile versions",
+    (
+        f"""CREATE TABLE {SCHEMA}.profile_version (
+            id text PRIMARY KEY,
+            profile_id text NOT NULL,
+            parents_json text NOT NULL,
+            toml_text text NOT NULL,
+            made_at text NOT NULL,
+            origin text NOT NULL,
+            author name NOT NULL DEFAULT current_user,
+            server_seq bigint NOT NULL UNIQUE,
+            received_at timestamptz NOT NULL DEFAULT now()
+        )""",
+        f"""CREATE TRIGGER stamp BEFORE INSERT ON {SCHEMA}.profile_version
+            FOR EACH ROW EXECUTE FUNCTION {SCHEMA}.stamp_row()""",
+        f"ALTER TABLE {SCHEMA}.profile_version ENABLE ROW LEVEL SECURITY",
+        f"CREATE POLICY read_all ON {SCHEMA}.profile_version FOR SELECT TO {_BOTH} USING (true)",
+        f"CREATE POLICY signed ON {SCHEMA}.profile_version FOR INSERT TO {_BOTH} WITH CHECK (author = current_user)",
+        f"GRANT SELECT ON {SCHEMA}.profile_version TO {_BOTH}",
+        f"GRANT INSERT (id, profile_id, parents_json, toml_text, made_at, origin) ON {SCHEMA}.profile_version "
+        f"TO {_BOTH}",
+    ),
+)
+
+SERVER_MIGRATIONS: tuple[ServerMigration, ...] = (_V1, _V2)
 
 
 def latest_server_version(migrations: tuple[ServerMigration, ...] = SERVER_MIGRATIONS) -> int:

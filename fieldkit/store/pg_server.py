@@ -176,6 +176,7 @@ PUSH_COLUMNS: dict[str, tuple[str, ...]] = {
     "header_change": ("id", "visit_id", "field", "value_json", "changed_at", "origin"),
     "reading": ("visit_id", "id", "test_point", "taken_at", "replaces", "reading_json", "origin"),
     "reading_deletion": ("visit_id", "reading_id", "deleted_at", "origin"),
+    "profile_version": ("id", "profile_id", "parents_json", "toml_text", "made_at", "origin"),
 }
 #: Extra server-stamped columns a laptop fetches.
 PULL_EXTRA: dict[str, tuple[str, ...]] = {
@@ -183,7 +184,10 @@ PULL_EXTRA: dict[str, tuple[str, ...]] = {
     "header_change": ("author",),
     "reading": ("author",),
     "reading_deletion": ("author",),
+    "profile_version": ("author",),
 }
+#: Kinds that belong to a visit (row-level security lets a technician add them to its own visits only).
+VISIT_KINDS = ("visit", "header_change", "reading", "reading_deletion")
 KINDS = tuple(PUSH_COLUMNS)
 
 

@@ -30,8 +30,22 @@ _OUTGOING: dict[str, tuple[str, str, str]] = {
     "header_change": ("seq", "id, visit_id, field, value_json, changed_at, origin", "header_change"),
     "reading": ("seq", "visit_id, id, test_point, taken_at, replaces, reading_json, origin", "reading"),
     "reading_deletion": ("seq", "visit_id, reading_id, deleted_at, origin", "reading_deletion"),
+    "profile_version": ("seq", "id, profile_id, parents_json, toml_text, made_at, origin", "profile_version"),
 }
 KINDS = tuple(_OUTGOING)
+
+
+@dataclass(frozen=True, slots=True)
+class ProfileVersion:
+    """One saved state of a machine profile file; ``parents`` are the versions it was edited from."""
+
+    id: str
+    profile_id: str
+    parents: tuple[str, ...]
+    toml_text: str
+    made_at: str
+    origin: str = ""
+    author: str = ""
 
 
 @dataclass(frozen=True, slots=True)
@@ -87,6 +101,11 @@ class Replica:
                         if kind == "visit"
                         else "seq <= ?"
                     ),
+                    (login, last),
+                )
+            if kind == "profile_version":
+                conn.execute(
+                    "UPDATE profile_version SET author = ? WHERE from_server = 0 AND author = '' AND seq <= ?",
                     (login, last),
                 )
             self._set(conn, f"push:{kind}", str(int(last)))
@@ -261,6 +280,55 @@ class Replica:
                     (deleted_at, vid, rid, deleted_at),
                 )
             self._set(conn, cursor_key, str(cursor))
+
+    def take_profile_versions(self, rows: Sequence[tuple[Any, ...]], cursor_key: str, cursor: int) -> int:
+        new = 0
+        with self.store.transaction("sync") as conn:
+            for vid, profile_id, parents, text, made_at, origin, author, _seq in rows:
+                cur = conn.execute(
+                    "INSERT OR IGNORE INTO profile_version (id, profile_id, parents_json, toml_text, made_at, origin, "
+                    "author, from_server) VALUES (?, ?, ?, ?, ?, ?, ?, 1)",
+                    (vid, profile_id, parents, text, made_at, origin, author),
+                )
+                new += cur.rowcount
+            self._set(conn, cursor_key, str(cursor))
+        return new
+
+    def profile_versions(self, profile_id: str | None = None) -> list[ProfileVersion]:
+        """Every known version (of one profile), oldest first."""
+        where, args = ("WHERE profile_id = ?", (profile_id,)) if profile_id else ("", ())
+        with self.store.snapshot() as conn:
+            rows = conn.execute(
+                "SELECT id, profile_id, parents_json, toml_text, made_at, origin, author FROM profile_version "
+                f"{where} ORDER BY seq",
+                args,
+            ).fetchall()
+        return [ProfileVersion(r[0], r[1], tuple(json.loads(r[2])), r[3], r[4], r[5], r[6]) for r in rows]
+
+    def add_profile_version(self, version: ProfileVersion) -> bool:
+        """Record a version made here; False when the same version (same id) is known already."""
+        with self.store.transaction("profile version") as conn:
+            cur = conn.execute(
+                "INSERT OR IGNORE INTO profile_version (id, profile_id, parents_json, toml_text, made_at, origin) "
+                "VALUES (?, ?, ?, ?, ?, ?)",
+                (
+                    version.id,
+                    version.profile_id,
+                    json.dumps(list(version.parents)),
+                    version.toml_text,
+                    version.made_at,
+                    self.store.origin,
+                ),
+            )
+            return bool(cur.rowcount)
+
+    def value(self, key: str) -> str:
+        with self.store.snapshot() as conn:
+            return self._get(conn, key)
+
+    def set_value(self, key: str, value: str) -> None:
+        with self.store.transaction("sync bookkeeping") as conn:
+            self._set(conn, key, value)
 
     # --- helpers ------------------------------------------------------------------------------------
 

@@ -20,7 +20,7 @@ from __future__ import annotations
 from collections.abc import Callable
 from dataclasses import dataclass, field
 
-from fieldkit.store.pg_server import KINDS, ShopServer
+from fieldkit.store.pg_server import KINDS, VISIT_KINDS, ShopServer
 from fieldkit.store.replica import Replica
 from fieldkit.store.sqlite import SqliteVisitStore
 
@@ -82,12 +82,16 @@ def _push(
             rows, last = replica.outgoing(kind, after, marks[kind], batch)
             if not rows:
                 break
-            visit_col = 0 if kind in ("visit", "reading", "reading_deletion") else 1
-            visit_ids = sorted({str(r[visit_col]) for r in rows})
-            owners = server.owners(visit_ids)
-            mine = server.login.supervisor
-            allowed = {v for v in visit_ids if mine or owners.get(v, server.login.name) == server.login.name}
-            keep = [r for r in rows if r[visit_col] in allowed]
+            keep = rows
+            if kind in VISIT_KINDS:
+                visit_col = 1 if kind == "header_change" else 0
+                visit_ids = sorted({str(r[visit_col]) for r in rows})
+                owners = server.owners(visit_ids)
+                mine = server.login.supervisor
+                allowed = {
+                    v for v in visit_ids if mine or owners.get(v, server.login.name) == server.login.name
+                }
+                keep = [r for r in rows if r[visit_col] in allowed]
             report.held_back += len(rows) - len(keep)
             payload = {kind: keep}
             if kind == "visit":
@@ -129,6 +133,8 @@ def _pull(
                     report.received[kind] += len(rows)
                 elif kind == "reading":
                     report.received[kind] += replica.take_readings(rows, key, last)
+                elif kind == "profile_version":
+                    report.received[kind] += replica.take_profile_versions(rows, key, last)
                 else:
                     replica.take_deletions(rows, key, last)
                     report.received[kind] += len(rows)

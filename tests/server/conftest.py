@@ -6,13 +6,12 @@ from __future__ import annotations
 import os
 import uuid
 from collections.abc import Iterator
-from dataclasses import dataclass
 from pathlib import Path
 
 import pytest
-from pg_cluster import Cluster, start_cluster
+from pg_cluster import Cluster, Shop, start_cluster
 
-from fieldkit.store.pg_server import add_technician, connect, init_server
+from fieldkit.store.pg_server import connect, init_server
 
 
 @pytest.fixture(scope="session")
@@ -27,25 +26,6 @@ def cluster() -> Iterator[Cluster]:
         yield running
     finally:
         running.stop()
-
-
-@dataclass
-class Shop:
-    cluster: Cluster
-    dbname: str
-
-    @property
-    def admin_url(self) -> str:
-        return self.cluster.conninfo(self.dbname)
-
-    def login(self, name: str) -> str:
-        return self.cluster.conninfo(self.dbname, user=name)
-
-    def add(self, base: str, *, supervisor: bool = False) -> str:
-        """A new login (unique in the cluster); returns its name."""
-        name = f"{base}_{uuid.uuid4().hex[:6]}"
-        add_technician(self.admin_url, name, supervisor=supervisor)
-        return name
 
 
 @pytest.fixture

@@ -15,8 +15,11 @@ import pwd
 import shutil
 import subprocess
 import tempfile
+import uuid
 from dataclasses import dataclass
 from pathlib import Path
+
+from fieldkit.store.pg_server import add_technician
 
 PORT = 5432
 
@@ -86,6 +89,25 @@ class Cluster:
     def stop(self) -> None:
         self._run(str(self.bindir / "pg_ctl"), "-D", str(self.data), "-m", "immediate", "-w", "stop")
         shutil.rmtree(self.folder, ignore_errors=True)
+
+
+@dataclass
+class Shop:
+    cluster: Cluster
+    dbname: str
+
+    @property
+    def admin_url(self) -> str:
+        return self.cluster.conninfo(self.dbname)
+
+    def login(self, name: str) -> str:
+        return self.cluster.conninfo(self.dbname, user=name)
+
+    def add(self, base: str, *, supervisor: bool = False) -> str:
+        """A new login (unique in the cluster); returns its name."""
+        name = f"{base}_{uuid.uuid4().hex[:6]}"
+        add_technician(self.admin_url, name, supervisor=supervisor)
+        return name
 
 
 def start_cluster() -> Cluster:

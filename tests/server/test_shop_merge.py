@@ -6,7 +6,7 @@ from __future__ import annotations
 import json
 from pathlib import Path
 
-from conftest import Shop
+from pg_cluster import Shop
 from shop_builders import laptop, reading, state, visit
 
 from fieldkit.store.pg_server import ShopServer

@@ -7,7 +7,7 @@ from pathlib import Path
 
 import psycopg
 import pytest
-from conftest import Shop
+from pg_cluster import Shop
 from shop_builders import laptop, reading, visit
 
 from fieldkit.errors import StoreError

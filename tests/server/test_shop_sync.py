@@ -5,10 +5,11 @@ from __future__ import annotations
 from pathlib import Path
 
 import pytest
-from conftest import Shop
+from pg_cluster import Shop
 from shop_builders import CHARGE, laptop, reading, state, visit
 
 from fieldkit.errors import StoreError
+from fieldkit.store.pg_schema import latest_server_version
 from fieldkit.store.pg_server import ShopServer, connect
 from fieldkit.store.replica import Replica
 from fieldkit.store.sync import sync
@@ -82,8 +83,9 @@ def test_a_server_with_a_newer_layout_is_refused_with_nothing_sent(shop: Shop, t
             "INSERT INTO fieldkit.schema_version (version, why) VALUES (99, 'from a later fieldkit')"
         )
         conn.commit()
+    ours = latest_server_version()
     with pytest.raises(
-        StoreError, match=r"layout is version 99, newer than this fieldkit understands \(up to 1\)"
+        StoreError, match=rf"layout is version 99, newer than this fieldkit understands \(up to {ours}\)"
     ):
         ShopServer(shop.login(ana))
     with connect(shop.admin_url) as conn:

@@ -13,7 +13,7 @@ import traceback
 from pathlib import Path
 
 import pytest
-from conftest import Shop
+from pg_cluster import Shop
 from shop_builders import RIG, laptop, reading, state, visit
 
 from fieldkit.store.pg_server import ShopServer, connect
