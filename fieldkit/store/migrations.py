@@ -81,6 +81,8 @@ _V1 = Migration(
 #   the server (``from_server``, so it is not sent back up);
 # * header edits are kept as a log of field changes (fieldkit.store.header_log) so two laptops
 #   can edit one header offline; the existing headers become their first log entries;
+#   (their ids are made from the visit id and the field, in list order for gauges, so the fold
+#   keeps the gauges' order);
 # * deletions are records of their own, so a deletion made offline travels like a reading.
 #   The same reading deleted on two laptops keeps the earlier time (the trigger allows that move).
 _ORIGIN = "(SELECT value FROM replica WHERE key = 'origin')"
@@ -116,14 +118,15 @@ _V2 = Migration(
             BEFORE DELETE ON header_change
             BEGIN SELECT RAISE(ABORT, 'header changes are kept as history'); END""",
         f"""INSERT INTO header_change (id, visit_id, field, value_json, changed_at, origin)
-            SELECT lower(hex(randomblob(8))), v.id, j.key,
+            SELECT 'm2-' || v.id || '-' || j.key, v.id, j.key,
                    CASE j.type WHEN 'text' THEN json_quote(j.value) WHEN 'true' THEN 'true'
                         WHEN 'false' THEN 'false' WHEN 'null' THEN 'null' ELSE j.value END,
                    v.created_at, {_ORIGIN}
             FROM visit v, json_each(v.header_json) j
             WHERE j.key NOT IN ('id', 'machine', 'readings', 'schema_version', 'gauges')""",
         f"""INSERT INTO header_change (id, visit_id, field, value_json, changed_at, origin)
-            SELECT lower(hex(randomblob(8))), v.id, 'gauge:' || json_extract(g.value, '$.id'), json(g.value),
+            SELECT 'm2-' || v.id || '-g' || printf('%04d', g.key), v.id, 'gauge:' || json_extract(g.value, '$.id'),
+                   json(g.value),
                    v.created_at, {_ORIGIN}
             FROM visit v, json_each(v.header_json, '$.gauges') g""",
         """CREATE TABLE reading_deletion (

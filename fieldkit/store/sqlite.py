@@ -343,13 +343,14 @@ class SqliteVisitStore:
     def _log_header(self, conn: sqlite3.Connection, visit_id: str, changes: dict[str, str], now: str) -> None:
         """An edit made here after seeing a value must win over it even if this laptop's clock is
         behind the one that wrote the value: its time is pushed past the field's newest change."""
-        for field, value in changes.items():
+        start = dt.datetime.fromisoformat(now)
+        for i, (field, value) in enumerate(changes.items()):
             row = conn.execute(
                 "SELECT max(changed_at) FROM header_change WHERE visit_id = ? AND field = ?",
                 (visit_id, field),
             ).fetchone()
-            at = now
-            if row and row[0] is not None and row[0] >= now:
+            at = iso(start + dt.timedelta(microseconds=i))  # gauges added in one edit keep their order
+            if row and row[0] is not None and row[0] >= at:
                 at = iso(dt.datetime.fromisoformat(row[0]) + dt.timedelta(microseconds=1))
             conn.execute(
                 "INSERT INTO header_change (id, visit_id, field, value_json, changed_at, origin) "

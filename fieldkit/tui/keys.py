@@ -38,6 +38,13 @@ START: list[BindingType] = [
     Binding("d", "open_demo", "Demo", id="start.demo"),
     Binding("i", "import_file", "Import", id="start.import"),
     Binding("h", "machine_history", "History", id="start.history"),
+    Binding(
+        "y",
+        "sync",
+        "Sync",
+        id="start.sync",
+        tooltip="Exchange visits with the shop server in the background; keep working meanwhile",
+    ),
     Binding("escape", "back", "Back", id="start.back", show=False),
 ]
 

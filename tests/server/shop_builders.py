@@ -12,7 +12,7 @@ from fieldkit.model.visit import Gauge, Reading, Visit
 from fieldkit.store.sqlite import SqliteVisitStore
 
 RIG = "tarnhollow-fellborer"
-CHARGE = "drive.charge"
+CHARGE = "travel.charge"
 T0 = dt.datetime(2026, 3, 14, 9, 0, tzinfo=UTC)
 
 

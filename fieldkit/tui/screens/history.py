@@ -59,6 +59,8 @@ class HistoryScreen(FieldkitScreen):
         for i in order:
             s = table.visits[i]
             head = literal(f"{s.date:%Y-%m-%d}\n{s.job_number}")
+            if s.taken_by:  # from the shop server: who took the visit
+                head.append_text(literal(f" · {s.taken_by}"))
             if self.visit is not None and s.id == self.visit.id:
                 head.append(" ◂", "bold")
             grid.add_column(head, key=s.id)

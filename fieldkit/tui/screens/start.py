@@ -52,6 +52,7 @@ class StartScreen(FieldkitScreen):
 
     def compose(self) -> ComposeResult:
         yield Static(id="topbar")
+        yield Static(id="sync-status")
         with Vertical(id="start-body"):
             yield Label("Open visits  (r resumes the latest · Enter opens)", classes="section-title")
             yield DataTable(id="open-visits", cursor_type="row")
@@ -106,6 +107,7 @@ class StartScreen(FieldkitScreen):
             open_table.add_row(
                 Text("no open visit: n starts one"), Text(""), Text(""), Text(""), Text(""), key="-none-"
             )
+        self.show_sync_status()
         machines = self.query_one("#machines", DataTable)
         machines.clear()
         counts: dict[str, int] = {}
@@ -120,6 +122,46 @@ class StartScreen(FieldkitScreen):
                 Text(str(counts.get(pid, 0))),
                 key=f"machine:{pid}",
             )
+
+    # --- the shop server --------------------------------------------------------------------
+    def show_sync_status(self, progress: str = "") -> None:
+        from fieldkit.tui.sync_status import sync_status_text
+
+        self.query_one("#sync-status", Static).update(sync_status_text(self.bench.store, progress))
+
+    def action_sync(self) -> None:
+        """Sync in a worker thread: the store is shared under its lock, which a sync takes only
+        for one batch at a time, so readings typed meanwhile are saved at once."""
+        if any(w.group == "sync" and not w.is_finished for w in self.workers):
+            self._say("A sync is already running; its progress is shown above.")
+            return
+        self.show_sync_status("connecting to the shop server…")
+        self.run_worker(self._sync_in_background, thread=True, group="sync", name="sync")
+
+    def _sync_in_background(self) -> None:
+        from fieldkit.profile_sync import sync_with_profiles
+        from fieldkit.settings import user_profiles_dir
+        from fieldkit.store.pg_server import ShopServer, server_conninfo
+
+        def progress(phase: str, done: int, total: int) -> None:
+            word = "sending" if phase == "up" else "receiving"
+            self.app.call_from_thread(self.show_sync_status, f"{word} {done} of {total}…")
+
+        try:
+            with ShopServer(server_conninfo()) as server:
+                report, profiles = sync_with_profiles(self.bench.store, server, user_profiles_dir(), progress)
+        except FieldkitError as exc:
+            self.app.call_from_thread(self._sync_failed, exc)
+            return
+        self.app.call_from_thread(self._synced, [*report.lines()[1:], *profiles.lines()])
+
+    def _sync_failed(self, exc: FieldkitError) -> None:
+        self.show_sync_status()
+        self._say(explain(exc, "✗ sync stopped; everything on this laptop is kept"))
+
+    def _synced(self, lines: list[str]) -> None:
+        self.refresh_lists()
+        self._say("✓ synced · " + " · ".join(lines))
 
     def _say(self, message: str | Text) -> None:
         self.query_one("#start-msg", Static).update(
@@ -313,6 +355,7 @@ class StartScreen(FieldkitScreen):
     def palette_commands(self) -> Iterable[tuple[str, str, Callable[[], object]]]:
         yield "Resume the latest open visit", "pick up where you left off", self.action_resume_latest
         yield "New visit", "machine, job number, customer, hour meter", self.action_new_visit
+        yield "Sync with the shop server", "in the background; keep working", self.action_sync
         yield "Open the demo", "the bundled sample visits", self.action_open_demo
         yield (
             "Import a visit (JSON) or readings (CSV)",
