@@ -7,6 +7,7 @@ import os
 from rich.text import Text
 
 from fieldkit.errors import FieldkitError
+from fieldkit.store.replica import Replica
 from fieldkit.store.sqlite import SqliteVisitStore
 from fieldkit.tui.safe_text import literal
 
@@ -17,8 +18,6 @@ def _plural(n: int, word: str) -> str:
 
 def sync_status_text(store: SqliteVisitStore, progress: str = "") -> Text:
     """One line; plain text only (the login name and counts are never read as markup)."""
-    from fieldkit.store.replica import Replica
-
     try:
         status = Replica(store).status()
     except FieldkitError as exc:
