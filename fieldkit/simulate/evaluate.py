@@ -34,7 +34,7 @@ from fieldkit.simulate.simulator import NO_FAULT, Simulation, Simulator
 #: the maker's range to far beyond it (severity 1 is a clear case; see fieldkit.simulate.faults).
 DEFAULT_SEVERITY = (0.6, 1.4)
 DEFAULT_CASES = 20
-RELIABILITY_BINS = 5
+RELIABILITY_BINS = 10
 
 #: Faults grouped by what breaks, for summaries and regression bars.
 FAMILIES: dict[str, tuple[str, ...]] = {

@@ -24,6 +24,7 @@ import pint
 
 from fieldkit.diagnosis.catalogue import Fault
 from fieldkit.diagnosis.engine import Knowledge, default_knowledge, diagnose
+from fieldkit.diagnosis.findings import EVIDENCE_WEIGHT
 from fieldkit.diagnosis.results import Diagnosis, Finding
 from fieldkit.diagnosis.rulepack import Rule
 from fieldkit.diagnosis.symbols import DERIVED, MACHINE_FIGURES, SYMBOLS
@@ -263,12 +264,20 @@ def circuit_of(key: str) -> str | None:
 
 
 def table_likelihood(rule: Rule, fault: str) -> tuple[float, float, float]:
-    """P(low), P(in range), P(high) for a fault, read straight from the rule file's tables; a
-    fault the rule does not name reads like a healthy machine (rulepack docstring)."""
+    """P(low), P(in range), P(high) for a fault as the ranking uses them: read from the rule file's
+    tables (a fault the rule does not name reads like a healthy machine, rulepack docstring), then
+    weighted (:func:`weighted`)."""
     spec = rule.spec
     low = spec.if_low.get(fault, spec.healthy.low)
     high = spec.if_high.get(fault, spec.healthy.high)
-    return low, 1.0 - low - high, high
+    return weighted((low, 1.0 - low - high, high))
+
+
+def weighted(table: tuple[float, float, float]) -> tuple[float, float, float]:
+    """The model the ranking uses: each table to the power findings.EVIDENCE_WEIGHT, normalised
+    again over its three outcomes."""
+    powered = [p**EVIDENCE_WEIGHT for p in table]
+    return powered[0] / sum(powered), powered[1] / sum(powered), powered[2] / sum(powered)
 
 
 def likelihood_for(rule: Rule, finding_circuit: str | None, key: str) -> tuple[float, float, float]:

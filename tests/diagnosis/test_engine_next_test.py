@@ -66,12 +66,17 @@ def _first_unread_point(visit: Visit, d: Diagnosis) -> NextTest:
 
 
 def _value_for(profile: MachineProfile, t: NextTest, outcome: str) -> float:
-    """A value clearly low (5 % under the range) or in the middle of the point's range, canonical."""
+    """A value clearly low (5 % of the limit under it) or well inside the point's range, canonical
+    (a vacuum limit such as -0.17 bar has only a low side: half of it is well inside)."""
     _c, point = profile.test_point(t.test_point)
     rng = point.expected_for(Condition(function=STATE_BY_LABEL[t.condition]))
-    assert rng is not None and rng.low is not None and rng.high is not None
-    low, high = to_canonical(rng.low, point.kind), to_canonical(rng.high, point.kind)
-    return low * 0.95 if outcome == "low" else (low + high) / 2
+    assert rng is not None and rng.low is not None
+    low = to_canonical(rng.low, point.kind)
+    if outcome == "low":
+        return low - 0.05 * abs(low)
+    if rng.high is None:
+        return low / 2 if low < 0 else low * 1.5
+    return (low + to_canonical(rng.high, point.kind)) / 2
 
 
 @pytest.mark.parametrize("outcome", ["low", "in range"])
