@@ -256,13 +256,21 @@ class ShopServer:
                     if not rows:
                         continue
                     cols = PUSH_COLUMNS[kind]
-                    statement = sql.SQL("INSERT INTO {}.{} ({}) VALUES ({}) ON CONFLICT DO NOTHING").format(
+                    # One statement per batch (a column of text per field, unnested on the server):
+                    # far fewer round trips and plans than a row at a time.
+                    statement = sql.SQL(
+                        "INSERT INTO {}.{} ({}) SELECT {} FROM unnest({}) WITH ORDINALITY AS t({}, n) ORDER BY n "
+                        "ON CONFLICT DO NOTHING"
+                    ).format(
                         sql.Identifier(SCHEMA),
                         sql.Identifier(kind),
                         sql.SQL(", ").join(map(sql.Identifier, cols)),
-                        sql.SQL(", ").join(sql.Placeholder() * len(cols)),
+                        sql.SQL(", ").join(map(sql.Identifier, cols)),
+                        sql.SQL(", ").join(sql.SQL("%b::text[]") for _ in cols),
+                        sql.SQL(", ").join(map(sql.Identifier, cols)),
                     )
-                    cur.executemany(statement, rows)
+                    columns = [[None if v is None else str(v) for v in column] for column in zip(*rows, strict=True)]
+                    cur.execute(statement, columns)  # %b: binary arrays, no text escaping
                     sent += len(rows)
             self.conn.commit()
         except psycopg.Error as exc:
