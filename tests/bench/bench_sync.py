@@ -109,7 +109,9 @@ def _bulk_load(cluster: Cluster, dbname: str, start: int, stop: int, machines: i
     with connect(cluster.conninfo(dbname)) as conn, conn.cursor() as cur:
         with cur.copy("COPY fieldkit.visit (id, machine, origin, created_at) FROM STDIN") as cp:
             for i in range(start, stop):
-                cp.write_row((f"v{i}", f"m{i % machines}", "bulk", (T0 + dt.timedelta(minutes=i)).isoformat()))
+                cp.write_row(
+                    (f"v{i}", f"m{i % machines}", "bulk", (T0 + dt.timedelta(minutes=i)).isoformat())
+                )
         with cur.copy(
             "COPY fieldkit.header_change (id, visit_id, field, value_json, changed_at, origin) FROM STDIN"
         ) as cp:
@@ -129,7 +131,9 @@ def _bulk_load(cluster: Cluster, dbname: str, start: int, stop: int, machines: i
             for i in range(start, stop):
                 for k in range(3):
                     r = reading.model_copy(update={"id": f"r{k}"})
-                    cp.write_row((f"v{i}", f"r{k}", "drive.charge", T0.isoformat(), None, r.model_dump_json(), "bulk"))
+                    cp.write_row(
+                        (f"v{i}", f"r{k}", "drive.charge", T0.isoformat(), None, r.model_dump_json(), "bulk")
+                    )
         conn.commit()
         conn.execute("ANALYZE")
         conn.commit()
@@ -161,18 +165,25 @@ def bench_history(cluster: Cluster, sizes: list[int], machines: int = 1000) -> N
         plan = conn.execute(
             "EXPLAIN SELECT id FROM fieldkit.visit WHERE machine = 'm1' ORDER BY created_at, id"
         ).fetchall()
-    print("  plan of the visit lookup: " + " / ".join(str(row[0]).strip() for row in plan[:2]))
+    print("  plan of the visit lookup: " + " / ".join(str(row[0]).strip().split("  (")[0] for row in plan))
 
 
-def _sync_one(args: tuple[str, str]) -> float:
+def _sync_one(args: tuple[str, str]) -> tuple[float, float]:
+    """(seconds sending, seconds in all) for one laptop's sync."""
     path, url = args
     store = SqliteVisitStore(path)
+    first_down: list[float] = []
+
+    def progress(phase: str, done: int, total: int) -> None:
+        if phase == "down" and not first_down:
+            first_down.append(time.perf_counter())
+
     with ShopServer(url) as server:
         started = time.perf_counter()
-        sync(store, server)
+        sync(store, server, progress=progress)
         took = time.perf_counter() - started
     store.close()
-    return took
+    return (first_down[0] - started if first_down else took), took
 
 
 def bench_three(cluster: Cluster, readings: int, folder: Path) -> None:
@@ -180,7 +191,7 @@ def bench_three(cluster: Cluster, readings: int, folder: Path) -> None:
     dbname = _shop(cluster)
     alone_path = folder / "alone.sqlite3"
     _laptop(alone_path, readings).close()
-    alone = _sync_one((str(alone_path), _login(cluster, dbname, "alone")))
+    alone = _sync_one((str(alone_path), _login(cluster, dbname, "alone")))[1]
     dbname = _shop(cluster)
     jobs = []
     for k in range(3):
@@ -193,7 +204,12 @@ def bench_three(cluster: Cluster, readings: int, folder: Path) -> None:
         each = pool.map(_sync_one, jobs)
     wall = time.perf_counter() - started
     print(f"  one laptop alone: {alone:.2f} s")
-    print(f"  three at once: wall {wall:.2f} s; each {', '.join(f'{t:.2f}' for t in each)} s")
+    print(f"  three at once: wall {wall:.2f} s")
+    print(
+        "  each (sending / whole sync incl. receiving the other two): "
+        + ", ".join(f"{u:.2f} / {t:.2f}" for u, t in each)
+        + " s"
+    )
     # after the three, every laptop syncs again and must hold all 3 × readings
     for path, url in jobs:
         _sync_one((path, url))
