@@ -26,6 +26,10 @@ from typing import Any
 #: own format number.
 NOT_LOGGED: frozenset[str] = frozenset({"id", "machine", "readings", "schema_version"})
 GAUGE_PREFIX = "gauge:"
+#: Header lists whose items carry their own id: each item is a field of its own (``gauge:g60``),
+#: so items added on two laptops both survive. A list the model does not have is simply absent.
+ITEM_LISTS: dict[str, str] = {"gauges": GAUGE_PREFIX, "observations": "observation:", "work": "work:"}
+_PREFIXES = tuple(ITEM_LISTS.values())
 
 
 @dataclass(frozen=True, slots=True)
@@ -52,21 +56,21 @@ def logged_fields(header: Mapping[str, Any]) -> dict[str, str]:
     for key, value in header.items():
         if key in NOT_LOGGED:
             continue
-        if key == "gauges":
-            for gauge in value or []:
-                out[GAUGE_PREFIX + str(gauge["id"])] = canonical(gauge)
+        if key in ITEM_LISTS:
+            for item in value or []:
+                out[ITEM_LISTS[key] + str(item["id"])] = canonical(item)
         else:
             out[key] = canonical(value)
     return out
 
 
 def changed_fields(before: Mapping[str, Any] | None, after: Mapping[str, Any]) -> dict[str, str]:
-    """Fields whose value differs between two headers; a gauge that went away becomes ``null``."""
+    """Fields whose value differs between two headers; an item (a gauge…) that went away becomes ``null``."""
     old = logged_fields(before) if before is not None else {}
     new = logged_fields(after)
     out = {field: value for field, value in new.items() if old.get(field) != value}
     for field in old.keys() - new.keys():
-        if field.startswith(GAUGE_PREFIX):
+        if field.startswith(_PREFIXES):
             out[field] = "null"
     return out
 
@@ -86,13 +90,14 @@ def fold(
 ) -> dict[str, Any]:
     """The header the log stands for, as a dict the Visit model validates (readings empty).
 
-    Gauges keep the order in which they first appeared. A gauge whose newest change removed it
-    is kept when a reading names it (the reading came from a laptop that still had it)."""
+    Items of a list (gauges, observations, work) keep the order in which they first appeared. A
+    gauge whose newest change removed it is kept when a reading names it (the reading came from a
+    laptop that still had it)."""
     all_changes = list(changes)
     first_seen: dict[str, tuple[str, str]] = {}
     last_present: dict[str, tuple[tuple[str, str], str]] = {}
     for change in all_changes:
-        if change.field.startswith(GAUGE_PREFIX):
+        if change.field.startswith(_PREFIXES):
             key = (change.changed_at, change.id)
             if change.field not in first_seen or key < first_seen[change.field]:
                 first_seen[change.field] = key
@@ -100,18 +105,21 @@ def fold(
             if change.value != "null" and (held is None or key > held[0]):
                 last_present[change.field] = (key, change.value)
     header: dict[str, Any] = {"id": visit_id, "machine": machine}
-    gauges: list[tuple[tuple[str, str], Any]] = []
+    items: dict[str, list[tuple[tuple[str, str], Any]]] = {"gauges": []}
     used = {GAUGE_PREFIX + g for g in gauges_in_use}
     for field, change in winners(all_changes).items():
-        if field.startswith(GAUGE_PREFIX):
-            value = change.value
-            if value == "null" and field in used and field in last_present:
-                value = last_present[field][1]
-            if value != "null":
-                gauges.append((first_seen[field], json.loads(value)))
-        else:
+        name = next((n for n, prefix in ITEM_LISTS.items() if field.startswith(prefix)), None)
+        if name is None:
             header[field] = json.loads(change.value)
-    header["gauges"] = [g for _, g in sorted(gauges, key=lambda item: item[0])]
+            continue
+        value = change.value
+        if value == "null" and field in used and field in last_present:
+            value = last_present[field][1]
+        listed = items.setdefault(name, [])
+        if value != "null":
+            listed.append((first_seen[field], json.loads(value)))
+    for name, listed in items.items():
+        header[name] = [item for _, item in sorted(listed, key=lambda pair: pair[0])]
     header["readings"] = []
     return header
 

@@ -83,3 +83,22 @@ def test_the_newest_change_wins_and_equal_times_are_settled_by_the_id() -> None:
     assert won["customer"].id == "b"  # same time: the larger id, on every laptop alike
     assert won["notes"].value == '"newer"'
     assert winners(reversed(changes)) == won  # arrival order does not matter
+
+
+def test_items_of_a_list_added_on_two_laptops_both_stand() -> None:
+    """Lists whose items carry ids merge item by item (here a list the model may add later,
+    observations, beside the gauges); an item removed on one laptop goes, one added stays."""
+    t1, t2, t3 = (f"2026-03-14T09:0{m}:00.000000Z" for m in (1, 2, 3))
+    changes = [
+        FieldChange("a1", "v", "job_number", '"RHF-1"', t1, "lap1"),
+        FieldChange("a2", "v", "observation:o1", '{"id":"o1","answer":"yes"}', t1, "lap1"),
+        FieldChange("b1", "v", "observation:o2", '{"id":"o2","answer":"no"}', t2, "lap2"),
+        FieldChange("a3", "v", "gauge:g1", '{"id":"g1"}', t1, "lap1"),
+        FieldChange("b2", "v", "gauge:g2", '{"id":"g2"}', t2, "lap2"),
+        FieldChange("a4", "v", "gauge:g1", "null", t3, "lap1"),
+        FieldChange("b3", "v", "gauge:g2", "null", t3, "lap2"),
+    ]
+    header = fold("v", "rig", changes, gauges_in_use=["g2"])
+    assert header["observations"] == [{"id": "o1", "answer": "yes"}, {"id": "o2", "answer": "no"}]
+    assert header["gauges"] == [{"id": "g2"}]  # g1 removed; g2 removed too but a reading needs it
+    assert "work" not in header  # a list nobody wrote to stays the model's default
