@@ -24,7 +24,8 @@ if TYPE_CHECKING:
 def _parser() -> argparse.ArgumentParser:
     p = argparse.ArgumentParser(
         prog="fieldkit",
-        description="Log hydraulic test-point readings, check them with physics, rank likely faults, print the job card.",
+        description="Log hydraulic test-point readings, check them with physics, rank likely faults, print "
+        "the job card.",
     )
     p.add_argument("--version", action="version", version=f"fieldkit {__version__}")
     p.add_argument(
@@ -280,7 +281,8 @@ def _visits(bench: Workbench, args: argparse.Namespace) -> int:
     print(f"{'id':<14}{'job':<14}{'date':<12}{'status':<8}{'readings':>8}  machine / customer")
     for s in rows:
         print(
-            f"{s.id:<14}{s.job_number[:13]:<14}{s.date.isoformat():<12}{s.status.value:<8}{s.reading_count:>8}  "
+            f"{s.id:<14}{s.job_number[:13]:<14}{s.date.isoformat():<12}{s.status.value:<8}"
+            f"{s.reading_count:>8}  "
             f"{s.machine} / {s.customer}"
         )
     return 0

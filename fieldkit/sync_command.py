@@ -49,14 +49,16 @@ def run_server(args: argparse.Namespace) -> int:
             print(f"the shop server is already at layout {after}; nothing to do")
         else:
             print(
-                f"the shop server is set up (layout {before} → {after}); add logins with 'fieldkit server add-technician NAME'"
+                f"the shop server is set up (layout {before} → {after}); add logins with 'fieldkit server "
+                "add-technician NAME'"
             )
         return 0
     if args.server_command == "add-technician":
         password = add_technician(server_conninfo(args.url), args.name, supervisor=args.supervisor)
         kind = "supervisor" if args.supervisor else "technician"
         print(
-            f"created the {kind} login '{args.name}' with the password below (shown once; not stored by fieldkit):"
+            f"created the {kind} login '{args.name}' with the password below (shown once; not stored by "
+            "fieldkit):"
         )
         print(password)
         print(

@@ -523,7 +523,7 @@ def _check_fault(fault: str, v: Visit, p: MachineProfile) -> None:  # noqa: C901
 def test_fault_readings_agree_with_the_fault(
     visits: dict[str, Visit], profiles: dict[str, MachineProfile]
 ) -> None:
-    for name, v in _fault_visits(visits).items():
+    for v in _fault_visits(visits).values():
         if v.scenario is not None and v.scenario.fault != "no_fault":
             _check_fault(v.scenario.fault, v, profiles[v.machine])
 

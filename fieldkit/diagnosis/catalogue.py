@@ -120,6 +120,7 @@ def load_cautions(path: Path) -> dict[str, Caution]:
     if not any(c.always for c in cautions):
         raise DataFileError(
             str(path),
-            "one caution must be marked always = true (the general caution that defers to the machine's procedures)",
+            "one caution must be marked always = true (the general caution that defers to the machine's "
+            "procedures)",
         )
     return {c.id: c for c in cautions}

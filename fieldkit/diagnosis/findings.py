@@ -573,7 +573,7 @@ def likelihoods(
     for h in hypotheses:
         same_place = circuit is None or h.circuit is None or h.circuit.id == circuit.id
         lik = weighted(rule.spec.likelihood(h.fault.id)) if same_place else healthy
-        out.append(sum(o * p for o, p in zip(outcome, lik)))
+        out.append(sum(o * p for o, p in zip(outcome, lik, strict=True)))
     return out
 
 
@@ -598,9 +598,9 @@ def evidence(
 ) -> dict[str, float]:
     """Log-likelihood ratios against a healthy machine, kept only where they differ from it."""
     liks = likelihoods(rule, circuit, outcome, hypotheses)
-    base = sum(o * p for o, p in zip(outcome, weighted(rule.spec.likelihood("no_fault"))))
+    base = sum(o * p for o, p in zip(outcome, weighted(rule.spec.likelihood("no_fault")), strict=True))
     out: dict[str, float] = {}
-    for h, lik in zip(hypotheses, liks):
+    for h, lik in zip(hypotheses, liks, strict=True):
         llr = weight * (math.log(lik) - math.log(base))
         if abs(llr) > 1e-12:
             out[h.key] = llr

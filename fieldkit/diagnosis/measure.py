@@ -186,7 +186,8 @@ def measure_visit(visit: Visit, profile: MachineProfile) -> tuple[list[Measured]
     for r in current:
         if r.test_point not in points:
             notes.append(
-                f"reading {r.id} is for test point '{r.test_point}', which profile '{profile.id}' does not have; skipped"
+                f"reading {r.id} is for test point '{r.test_point}', which profile '{profile.id}' does not "
+                "have; skipped"
             )
             continue
         circuit, point = points[r.test_point]
@@ -212,7 +213,10 @@ def measure_visit(visit: Visit, profile: MachineProfile) -> tuple[list[Measured]
             elif r.condition.speed is not None:
                 speed = to_canonical(r.condition.speed, Kind.SPEED)
                 if abs(speed - rated) > tol * rated:
-                    invalid = f"speed {speed:.0f} rpm, not within {window.speed_tolerance_pct:g} % of rated {rated:.0f} rpm"
+                    invalid = (
+                        f"speed {speed:.0f} rpm, not within {window.speed_tolerance_pct:g} % of rated "
+                        f"{rated:.0f} rpm"
+                    )
         out.append(
             Measured(
                 reading=r,

@@ -54,9 +54,9 @@ def _expected_entropy(
     per_outcome: list[tuple[tuple[int, ...], float, list[float]]] = []
     for combo in itertools.product(range(3), repeat=len(mats)):
         joint = list(prior)
-        for mat, o in zip(mats, combo):
+        for mat, o in zip(mats, combo, strict=True):
             row = mat[o]
-            joint = [j * r for j, r in zip(joint, row)]
+            joint = [j * r for j, r in zip(joint, row, strict=True)]
         p = sum(joint)
         if p <= 0:
             continue
@@ -135,7 +135,10 @@ def suggest(
         soft: tuple[float, float, float] | None = None
         if cand.repeat_of is not None:
             # Take the soft finding out again: a precise repeat replaces it with a hard outcome.
-            base = [lg - cand.repeat_of.evidence.get(h.key, 0.0) for lg, h in zip(findings_logs, hyps)]
+            base = [
+                lg - cand.repeat_of.evidence.get(h.key, 0.0)
+                for lg, h in zip(findings_logs, hyps, strict=True)
+            ]
             top = max(base)
             prior = [math.exp(b - top) for b in base]
             total = sum(prior)
@@ -194,8 +197,10 @@ def _smaller_gauge_advice(evaluator: Evaluator, cand: _Candidate) -> str:
         better = [c for c in (0.6, 0.25, 0.1) if c < m.gauge.accuracy_class]
         if better:
             return (
-                f"The reading sits within the gauge's error of a limit and no smaller range suits this point: "
-                f"repeat it with a class {better[0]:g} gauge of the same range (EN 837-1), or a calibrated transducer."
+                "The reading sits within the gauge's error of a limit and no smaller range suits this "
+                "point: "
+                f"repeat it with a class {better[0]:g} gauge of the same range (EN 837-1), or a calibrated "
+                "transducer."
             )
         return "The reading sits within the gauge's error of a limit: repeat it with a calibrated transducer."
     current = f" instead of the {format_value(m.gauge.full_scale)} one" if m.gauge is not None else ""

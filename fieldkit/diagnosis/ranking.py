@@ -68,7 +68,7 @@ def rank(hypotheses: list[Hypothesis], findings: list[Finding]) -> tuple[list[Ra
     post = normalise(log_posterior(hypotheses, findings))
     ranked: list[RankedFault] = []
     cut = math.log(EXPLAIN_RATIO)
-    for h, p in zip(hypotheses, post):
+    for h, p in zip(hypotheses, post, strict=True):
         supporting: list[Evidence] = []
         against: list[Evidence] = []
         for f in findings:

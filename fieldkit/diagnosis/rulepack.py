@@ -9,6 +9,7 @@ compares a pressure with a flow is refused with its file and line before any vis
 
 from __future__ import annotations
 
+import functools
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
@@ -85,7 +86,8 @@ class RuleSpec(Strict):
             for fault, p in probs.items():
                 if not MIN_LIKELIHOOD <= p <= 1 - MIN_LIKELIHOOD:
                     raise ValueError(
-                        f"{table}.{fault} = {p}: a likelihood lies between {MIN_LIKELIHOOD} and {1 - MIN_LIKELIHOOD}"
+                        f"{table}.{fault} = {p}: a likelihood lies between {MIN_LIKELIHOOD} and "
+                        f"{1 - MIN_LIKELIHOOD}"
                     )
         for fault in set(self.if_low) | set(self.if_high):
             p_low = self.if_low.get(fault, self.healthy.low)
@@ -160,12 +162,8 @@ def load_pack(path: Path) -> list[Rule]:
     for i, rs in enumerate(spec.rule):
         at = line_for(lines, ("rule", i))
 
-        def expr(key: str, source: str | None) -> Any:
-            if source is None:
-                return None
-            return _compile(
-                source, str(path), line_for(lines, ("rule", i, key)) or at, f"rule.{i}.{key} ({rs.id})"
-            )
+        # The rule's place is bound now, not looked up when called (no loop variable in a closure).
+        expr = functools.partial(_rule_expression, path, lines, i, at, rs.id)
 
         value = expr("value", rs.value)
         low, high = expr("low", rs.low), expr("high", rs.high)
@@ -186,6 +184,17 @@ def load_pack(path: Path) -> list[Rule]:
             )
         rules.append(Rule(rs, value, low, high, str(path), at))
     return rules
+
+
+def _rule_expression(
+    path: Path, lines: Any, index: int, at: int | None, rule_id: str, key: str, source: str | None
+) -> Any:
+    """One expression of rule ``index`` compiled, with the line of its key (else of the rule)."""
+    if source is None:
+        return None
+    return _compile(
+        source, str(path), line_for(lines, ("rule", index, key)) or at, f"rule.{index}.{key} ({rule_id})"
+    )
 
 
 def _single_reading(names: frozenset[str]) -> bool:

@@ -43,7 +43,8 @@ DERIVED: dict[str, tuple[Kind, frozenset[Role], str]] = {
     "pump_case_drain_flow_at_ref": (
         Kind.FLOW,
         frozenset({Role.PUMP_CASE_DRAIN_FLOW}),
-        "pump case drain normalised to the reference oil temperature (laminar leakage ∝ 1/viscosity, ASTM D341 viscosity)",
+        "pump case drain normalised to the reference oil temperature (laminar leakage ∝ 1/viscosity, ASTM "
+        "D341 viscosity)",
     ),
     "motor_case_drain_flow_at_ref": (
         Kind.FLOW,
@@ -58,12 +59,14 @@ DERIVED: dict[str, tuple[Kind, frozenset[Role], str]] = {
     "relief_deadhead": (
         Kind.PRESSURE,
         frozenset(),
-        "what the pump outlet should read when deadheaded: the circuit's relief layout (series add, parallel lowest wins) plus measured return back pressure",
+        "what the pump outlet should read when deadheaded: the circuit's relief layout (series add, "
+        "parallel lowest wins) plus measured return back pressure",
     ),
     "cross_port_stall_expected": (
         Kind.PRESSURE,
         frozenset({Role.CHARGE_PRESSURE}),
-        "what a loop port gauge should read stalled on its cross-port relief: the setting, plus the low side's charge pressure when the profile states the setting as a differential",
+        "what a loop port gauge should read stalled on its cross-port relief: the setting, plus the low "
+        "side's charge pressure when the profile states the setting as a differential",
     ),
     "oil_viscosity": (
         Kind.VISCOSITY,

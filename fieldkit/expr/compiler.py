@@ -293,7 +293,9 @@ class Compiler:
         tag = None
         if is_temperature(dim):  # a temperature scaled by plain numbers keeps its meaning
             multiplied = [True] + [link[0] for link in links]
-            scaled = [(p, m) for p, m in zip(parts, multiplied) if not same_type(p.type, DIMENSIONLESS)]
+            scaled = [
+                (p, m) for p, m in zip(parts, multiplied, strict=True) if not same_type(p.type, DIMENSIONLESS)
+            ]
             lone = len(scaled) == 1 and scaled[0][1] and scaled[0][0].tag is not None
             tag = merge([scaled[0][0].tag]) if lone else TempTag.EITHER  # type: ignore[list-item]
         return self.fold(parts, Typed(dim, _product(first.fn, links, self.source), tag), node.start)
@@ -330,7 +332,7 @@ class Compiler:
 
     def logic(self, node: Logic) -> Typed:
         parts = [self.compile(operand) for operand in node.operands]
-        for operand, typed in zip(node.operands, parts):
+        for operand, typed in zip(node.operands, parts, strict=True):
             self.need_truth(operand, typed, f"'{node.op}'")
         fns = tuple(p.fn for p in parts)
         if len(fns) == 2:
@@ -395,7 +397,7 @@ class Compiler:
         self.calls.add(node.name)
         args = [self.compile(arg) for arg in node.args]
         alike: list[tuple[Node, Typed]] = []
-        for index, (arg, typed) in enumerate(zip(node.args, args)):
+        for index, (arg, typed) in enumerate(zip(node.args, args, strict=True)):
             param = spec.param_for(index)
             label = f"argument {index + 1} of {node.name}()"
             if is_marker(param, SAME) or is_marker(param, ANY):
@@ -452,7 +454,7 @@ def _sum(parts: list[Typed], signs: list[bool]) -> Fn:
         a, b = parts[0].fn, parts[1].fn
         return (lambda env: a(env) + b(env)) if signs[0] else (lambda env: a(env) - b(env))
     first = parts[0].fn
-    rest = tuple(zip(signs, (p.fn for p in parts[1:])))
+    rest = tuple(zip(signs, (p.fn for p in parts[1:]), strict=True))
 
     def total(env: Env) -> float:
         value = first(env)
@@ -494,7 +496,7 @@ def _call(spec: FunctionSpec, args: list[Typed], result: ValueType, node: Call, 
 
     def call(env: Env) -> float | bool:
         values = [f(env) for f in fns]
-        for value, is_number in zip(values, numeric):
+        for value, is_number in zip(values, numeric, strict=True):
             if is_number and not math.isfinite(value):
                 raise ExprError(f"an argument of {name}() is not a finite number (overflow)", source, at)
         try:

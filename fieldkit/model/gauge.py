@@ -34,7 +34,8 @@ class Gauge(Strict):
         kind = kind_of(self.full_scale)
         if kind is Kind.PRESSURE and self.standard == "EN 837-1" and self.accuracy_class not in EN837_CLASSES:
             raise ValueError(
-                f"accuracy class {self.accuracy_class} is not an EN 837-1 class ({', '.join(map(str, EN837_CLASSES))})"
+                f"accuracy class {self.accuracy_class} is not an EN 837-1 class "
+                f"({', '.join(map(str, EN837_CLASSES))})"
             )
         if self.scale_start is not None and kind_of(self.scale_start) is not kind:
             raise ValueError("scale_start and full_scale must be the same kind of quantity")

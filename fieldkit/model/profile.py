@@ -90,7 +90,8 @@ class TestPoint(Strict):
             for bound in (rng.low, rng.high):
                 if bound is not None and kind_of(bound) is not need:
                     raise ValueError(
-                        f"expected[{i}]: {self.role.value} needs a {need.value}, but a bound is a {kind_of(bound).value}"
+                        f"expected[{i}]: {self.role.value} needs a {need.value}, but a bound is a "
+                        f"{kind_of(bound).value}"
                     )
         if not self.label:
             self.label = ROLES[self.role].label

@@ -192,7 +192,7 @@ def _solve(
             for item in reversed(node.items[1:]):
                 outlets.append(_opens_at(item, outlets[-1], full_flow))
             outlets.reverse()
-            for item, outlet in zip(node.items, outlets):
+            for item, outlet in zip(node.items, outlets, strict=True):
                 _solve(item, outlet, _opens_at(item, outlet, full_flow), True, full_flow, points, path)
         else:
             for i, item in enumerate(node.items):

@@ -1,4 +1,5 @@
-"""The job card as one plain data structure: :func:`fieldkit.report.build.job_card` makes it, the writers lay it out.
+"""The job card as one plain data structure: :func:`fieldkit.report.build.job_card` makes it,
+the writers lay it out.
 
 The PDF, text and Markdown writers decide nothing: which findings lead, how many faults are
 shown, what the next test is and how a reading sits against its band are settled when the card

@@ -69,7 +69,7 @@ class Simulator:
         self.nominal = self._true_values(nominal)
         self.gauges: list[Gauge | None] = [
             kit.gauge_for(p.point.kind, p.point.role, v if v is not None else 0.0)
-            for p, v in zip(self.plan, self.nominal)
+            for p, v in zip(self.plan, self.nominal, strict=True)
         ]
         self._targets: dict[str, list[str | None]] = {}
         self.reasons: dict[str, str] = {}
@@ -95,14 +95,14 @@ class Simulator:
         if model.id == "gauge_error":
             return any(
                 p.point.kind is Kind.PRESSURE and (v or 0.0) >= GAUGE_FAULT_MIN_BAR
-                for p, v in zip(self.plan, self.nominal)
+                for p, v in zip(self.plan, self.nominal, strict=True)
             )
         machine = build_machine(self.profile, None, TABLE)
         model.change(machine, machine.circuits[circuit_id] if circuit_id else None, 1.0, Random(0))
         faulty = self._true_values(machine)
         return any(
             a is not None and b is not None and abs(a - b) > self._limit(i, a)
-            for i, (a, b) in enumerate(zip(self.nominal, faulty))
+            for i, (a, b) in enumerate(zip(self.nominal, faulty, strict=True))
         )
 
     def targets(self, fault_id: str) -> list[str | None]:
@@ -255,7 +255,7 @@ class Simulator:
             return None
         pool = [
             i
-            for i, (p, v) in enumerate(zip(self.plan, true))
+            for i, (p, v) in enumerate(zip(self.plan, true, strict=True))
             if p.point.kind is Kind.PRESSURE and v is not None and v >= GAUGE_FAULT_MIN_BAR
         ]
         return pool[min(int(fault["pick"] * len(pool)), len(pool) - 1)] if pool else None

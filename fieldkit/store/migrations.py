@@ -64,8 +64,10 @@ _V1 = Migration(
         "CREATE INDEX reading_by_time ON reading (visit_id, taken_at)",
         "CREATE INDEX reading_by_replaces ON reading (visit_id, replaces)",
         """CREATE TRIGGER reading_is_never_rewritten
-            BEFORE UPDATE OF seq, visit_id, id, test_point, taken_at, replaces, stored_at, reading_json ON reading
-            BEGIN SELECT RAISE(ABORT, 'a stored reading is never rewritten; add a correction instead'); END""",
+            BEFORE UPDATE OF seq, visit_id, id, test_point, taken_at, replaces, stored_at, reading_json
+            ON reading
+            BEGIN SELECT RAISE(ABORT, 'a stored reading is never rewritten; add a correction instead');
+            END""",
         """CREATE TRIGGER reading_deleted_once
             BEFORE UPDATE OF deleted_at ON reading WHEN OLD.deleted_at IS NOT NULL
             BEGIN SELECT RAISE(ABORT, 'this reading was already deleted'); END""",

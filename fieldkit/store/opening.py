@@ -78,7 +78,8 @@ def inspect_file(path: Path, migrations: tuple[Migration, ...] = MIGRATIONS) -> 
             raise _refuse(path, "this is an SQLite database made by another program, not a fieldkit store")
         raise _refuse(
             path,
-            f"this is an SQLite database of another program (application id 0x{app_id:08X}), not a fieldkit store",
+            f"this is an SQLite database of another program (application id 0x{app_id:08X}), not a fieldkit "
+            "store",
         )
     _check_version(path, int.from_bytes(header[60:64], "big", signed=True), migrations)
     _check_length(path, header, info.st_size)

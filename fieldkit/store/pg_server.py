@@ -49,7 +49,8 @@ def server_conninfo(explicit: str | None = None) -> str:
         return ""
     raise StoreError(
         f"no shop server is set up on this laptop: set {SERVER_ENV} to a postgresql:// address or "
-        "'service=NAME' (a libpq service file entry); see 'A shop server for several technicians' in the README"
+        "'service=NAME' (a libpq service file entry); see 'A shop server for several technicians' in the "
+        "README"
     )
 
 
@@ -86,11 +87,13 @@ def check_schema(
     ours = latest_server_version(tuple(migrations))
     if version == 0:
         raise StoreError(
-            "the shop server has no fieldkit tables yet; whoever runs the server sets it up with 'fieldkit server init URL'"
+            "the shop server has no fieldkit tables yet; whoever runs the server sets it up with 'fieldkit "
+            "server init URL'"
         )
     if version > ours:
         raise StoreError(
-            f"the shop server's layout is version {version}, newer than this fieldkit understands (up to {ours}); "
+            f"the shop server's layout is version {version}, newer than this fieldkit understands (up to "
+            f"{ours}); "
             "update fieldkit on this laptop before syncing. Nothing was sent or changed."
         )
     if version < ours:
@@ -269,7 +272,9 @@ class ShopServer:
                         sql.SQL(", ").join(sql.SQL("%b::text[]") for _ in cols),
                         sql.SQL(", ").join(map(sql.Identifier, cols)),
                     )
-                    columns = [[None if v is None else str(v) for v in column] for column in zip(*rows, strict=True)]
+                    columns = [
+                        [None if v is None else str(v) for v in column] for column in zip(*rows, strict=True)
+                    ]
                     cur.execute(statement, columns)  # %b: binary arrays, no text escaping
                     sent += len(rows)
             self.conn.commit()

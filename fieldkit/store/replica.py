@@ -77,7 +77,8 @@ class Replica:
     @staticmethod
     def _set(conn: sqlite3.Connection, key: str, value: str) -> None:
         conn.execute(
-            "INSERT INTO replica (key, value) VALUES (?, ?) ON CONFLICT (key) DO UPDATE SET value = excluded.value",
+            "INSERT INTO replica (key, value) VALUES (?, ?) ON CONFLICT (key) DO UPDATE SET value = "
+            "excluded.value",
             (key, value),
         )
 
@@ -205,7 +206,8 @@ class Replica:
                     continue
                 header = self._folded(conn, vid, machine)
                 conn.execute(
-                    "INSERT INTO visit (id, machine, status, visit_date, created_at, updated_at, header_json, "
+                    "INSERT INTO visit (id, machine, status, visit_date, created_at, updated_at, "
+                    "header_json, "
                     "origin, taken_by, from_server) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, 1)",
                     (
                         vid,
@@ -232,7 +234,8 @@ class Replica:
                     raise StoreError(f"the server sent header changes for visit '{vid}', which it never sent")
                 header = self._folded(conn, vid, str(machine[0]))
                 conn.execute(
-                    "UPDATE visit SET status = ?, visit_date = ?, updated_at = ?, header_json = ? WHERE id = ?",
+                    "UPDATE visit SET status = ?, visit_date = ?, updated_at = ?, header_json = ? WHERE id "
+                    "= ?",
                     (
                         header.status.value,
                         header.date.isoformat(),
@@ -257,7 +260,8 @@ class Replica:
                         f"nothing from this batch was saved ({exc.errors()[0]['msg']})"
                     ) from None
                 cur = conn.execute(
-                    "INSERT OR IGNORE INTO reading (visit_id, id, test_point, taken_at, replaces, deleted_at, "
+                    "INSERT OR IGNORE INTO reading (visit_id, id, test_point, taken_at, replaces, "
+                    "deleted_at, "
                     "stored_at, reading_json, origin, from_server) VALUES (?, ?, ?, ?, ?, NULL, ?, ?, ?, 1)",
                     (vid, rid, test_point, taken_at, replaces, now, text, origin),
                 )
@@ -270,7 +274,8 @@ class Replica:
         with self.store.transaction("sync") as conn:
             for vid, rid, deleted_at, origin, _author, _seq in rows:
                 conn.execute(
-                    "INSERT OR IGNORE INTO reading_deletion (visit_id, reading_id, deleted_at, origin, from_server) "
+                    "INSERT OR IGNORE INTO reading_deletion (visit_id, reading_id, deleted_at, origin, "
+                    "from_server) "
                     "VALUES (?, ?, ?, ?, 1)",
                     (vid, rid, deleted_at, origin),
                 )
@@ -337,7 +342,8 @@ class Replica:
         touched: set[str] = set()
         for cid, vid, field, value, changed_at, origin, author, _seq in rows:
             cur = conn.execute(
-                "INSERT OR IGNORE INTO header_change (id, visit_id, field, value_json, changed_at, origin, author, "
+                "INSERT OR IGNORE INTO header_change (id, visit_id, field, value_json, changed_at, origin, "
+                "author, "
                 "from_server) VALUES (?, ?, ?, ?, ?, ?, ?, 1)",
                 (cid, vid, field, value, changed_at, origin, author),
             )

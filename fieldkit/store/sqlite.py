@@ -281,7 +281,8 @@ class SqliteVisitStore:
         return int(
             conn.execute(
                 """SELECT count(*) FROM reading r WHERE r.visit_id = ? AND r.deleted_at IS NULL
-               AND NOT EXISTS (SELECT 1 FROM reading c WHERE c.visit_id = r.visit_id AND c.replaces = r.id)""",
+               AND NOT EXISTS (SELECT 1 FROM reading c
+                               WHERE c.visit_id = r.visit_id AND c.replaces = r.id)""",
                 (visit_id,),
             ).fetchone()[0]
         )
@@ -318,7 +319,8 @@ class SqliteVisitStore:
         before: dict[str, Any] | None = None
         if insert:
             conn.execute(
-                "INSERT INTO visit (id, machine, status, visit_date, created_at, updated_at, header_json, origin) "
+                "INSERT INTO visit (id, machine, status, visit_date, created_at, updated_at, header_json, "
+                "origin) "
                 "VALUES (?, ?, ?, ?, ?, ?, ?, ?)",
                 (
                     visit.id,
@@ -335,7 +337,8 @@ class SqliteVisitStore:
             row = conn.execute("SELECT header_json FROM visit WHERE id = ?", (visit.id,)).fetchone()
             before = json.loads(row[0]) if row else None
             conn.execute(
-                "UPDATE visit SET machine = ?, status = ?, visit_date = ?, updated_at = ?, header_json = ? WHERE id = ?",
+                "UPDATE visit SET machine = ?, status = ?, visit_date = ?, updated_at = ?, header_json = ? "
+                "WHERE id = ?",
                 (visit.machine, visit.status.value, visit.date.isoformat(), now, header, visit.id),
             )
         self._log_header(conn, visit.id, changed_fields(before, json.loads(header)), now)
@@ -363,7 +366,8 @@ class SqliteVisitStore:
 
     def _insert_reading(self, conn: sqlite3.Connection, visit_id: str, reading: Reading) -> None:
         conn.execute(
-            "INSERT INTO reading (visit_id, id, test_point, taken_at, replaces, deleted_at, stored_at, reading_json, "
+            "INSERT INTO reading (visit_id, id, test_point, taken_at, replaces, deleted_at, stored_at, "
+            "reading_json, "
             "origin) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)",
             (
                 visit_id,
@@ -395,7 +399,8 @@ class SqliteVisitStore:
         if checked.gauge is not None and header.gauge(checked.gauge) is None:
             known = ", ".join(g.id for g in header.gauges) or "none yet"
             raise StoreError(
-                f"reading '{checked.id}' names gauge '{checked.gauge}', which this visit does not have (gauges: {known})"
+                f"reading '{checked.id}' names gauge '{checked.gauge}', which this visit does not have "
+                f"(gauges: {known})"
             )
         exists = conn.execute(
             "SELECT 1 FROM reading WHERE visit_id = ? AND id = ?", (header.id, checked.id)
@@ -424,7 +429,8 @@ class SqliteVisitStore:
         with self._write("import") as conn:
             if conn.execute("SELECT 1 FROM visit WHERE id = ?", (visit.id,)).fetchone():
                 raise StoreError(
-                    f"a visit with id '{visit.id}' is already in {self.path}; import it as a new visit to keep both"
+                    f"a visit with id '{visit.id}' is already in {self.path}; import it as a new visit to "
+                    "keep both"
                 )
             self._write_header(conn, visit, insert=True)
             for reading in visit.readings:
@@ -466,7 +472,8 @@ class SqliteVisitStore:
         unknown = sorted(set(fields) - EDITABLE_FIELDS)
         if unknown:
             raise StoreError(
-                f"cannot change {', '.join(unknown)} of a visit here; changeable: {', '.join(sorted(EDITABLE_FIELDS))}"
+                f"cannot change {', '.join(unknown)} of a visit here; changeable: "
+                f"{', '.join(sorted(EDITABLE_FIELDS))}"
             )
         with self._write("update") as conn:
             self._open_header(conn, visit_id)
@@ -534,7 +541,8 @@ class SqliteVisitStore:
                 checked = self._check_new_reading(conn, header, reading, taken)
                 if checked.replaces is not None:
                     raise StoreError(
-                        f"reading '{checked.id}' says it replaces '{checked.replaces}'; use a correction for that"
+                        f"reading '{checked.id}' says it replaces '{checked.replaces}'; use a correction "
+                        "for that"
                     )
                 self._insert_reading(conn, visit_id, checked)
                 saved.append(checked)
@@ -611,7 +619,8 @@ class SqliteVisitStore:
         out: list[tuple[VisitSummary, list[Reading]]] = []
         with self._read() as conn:
             rows = conn.execute(
-                "SELECT id, updated_at, taken_by FROM visit WHERE machine = ? ORDER BY visit_date, created_at, id",
+                "SELECT id, updated_at, taken_by FROM visit WHERE machine = ? ORDER BY visit_date, "
+                "created_at, id",
                 (machine_id,),
             ).fetchall()
             for vid, updated, by in rows:

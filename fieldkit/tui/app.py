@@ -210,7 +210,10 @@ def settings_problem() -> str:
         Settings.model_validate(json.loads(path.read_text(encoding="utf-8")))
     except (OSError, ValueError, ValidationError) as exc:
         first = str(exc).splitlines()[0][:120]
-        return f"{path} could not be read ({first}); default settings are used and it is rewritten when you change one."
+        return (
+            f"{path} could not be read ({first}); default settings are used and it is rewritten when you "
+            "change one."
+        )
     return ""
 
 

@@ -1,9 +1,10 @@
 """fieldkit's commands in the command search (F3).
 
 A screen or the app offers commands by deriving from :class:`Commanded` and overriding
-``palette_commands()``; this provider lists the current screen's and then the app's. Names may hold a job number or a customer, so they are drawn as plain
-Content with the matched letters styled, never through markup (Textual's own highlighter
-parses markup, which a job number like ``[/`` would break).
+``palette_commands()``; this provider lists the current screen's and then the app's. Names may
+hold a job number or a customer, so they are drawn as plain Content with the matched letters
+styled, never through markup (Textual's own highlighter parses markup, which a job number like
+``[/`` would break).
 """
 
 from __future__ import annotations

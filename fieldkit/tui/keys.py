@@ -18,7 +18,8 @@ APP: list[BindingType] = [
         "Safety",
         id="fieldkit.general_caution",
         priority=True,
-        tooltip="The general caution: the machine's own procedures, local codes and licensed practice come first",
+        tooltip="The general caution: the machine's own procedures, local codes and licensed practice come "
+        "first",
     ),
     Binding(
         "f3",

@@ -107,10 +107,12 @@ def main(argv: list[str] | None = None) -> int:
     t_many, fast_many = timings_ms(visit, profile, many, max(10, args.runs // 3))
     print(f"visit: {READINGS} readings on {profile.id}")
     print(
-        f"bundled packs   : {len(base.rules):4d} rules  median {t_base:7.2f} ms  (fastest {fast_base:7.2f} ms)"
+        f"bundled packs   : {len(base.rules):4d} rules  median {t_base:7.2f} ms  (fastest {fast_base:7.2f} "
+        "ms)"
     )
     print(
-        f"replicated x{COPIES:<3d}: {len(many.rules):4d} rules  median {t_many:7.2f} ms  (fastest {fast_many:7.2f} ms)"
+        f"replicated x{COPIES:<3d}: {len(many.rules):4d} rules  median {t_many:7.2f} ms  (fastest "
+        f"{fast_many:7.2f} ms)"
     )
     print(
         f"ratio of medians {t_many / t_base:.2f} (fastest {fast_many / fast_base:.2f}) "

@@ -13,19 +13,20 @@ Run from the repository root (a script, not a test; pytest never collects it):
 from __future__ import annotations
 
 import argparse
+import importlib
 import statistics
 import sys
 import tempfile
 import time
 from pathlib import Path
 
-ROOT = Path(__file__).resolve().parents[2]
-sys.path.insert(0, str(ROOT / "tests" / "report"))
-
-from report_builders import WORN_CHARGE_PUMP, many_readings
-
 from fieldkit.report.jobcard import write_job_card
 from fieldkit.session import Workbench
+
+ROOT = Path(__file__).resolve().parents[2]
+sys.path.insert(0, str(ROOT / "tests" / "report"))
+_builders = importlib.import_module("report_builders")  # tests/report is a folder, not a package
+WORN_CHARGE_PUMP, many_readings = _builders.WORN_CHARGE_PUMP, _builders.many_readings
 
 READINGS = 40
 
@@ -61,7 +62,8 @@ def main() -> int:
             bench.close()
 
     print(
-        f"{args.format} job card, {READINGS} readings ({size:,} bytes{pages}); diagnosis once: {diagnose_s * 1000:.0f} ms"
+        f"{args.format} job card, {READINGS} readings ({size:,} bytes{pages}); diagnosis once: "
+        f"{diagnose_s * 1000:.0f} ms"
     )
     print(
         f"write_job_card over {len(times)} warm runs: median {statistics.median(times) * 1000:.0f} ms, "

@@ -31,8 +31,8 @@ development sandbox). Times are wall clock on this machine; medians and maxima a
 
 ``  of which the Enter handler``
     The part of the above spent inside ``ReadingEntry.save`` and ``VisitScreen.after_save`` (store
-    commit, reading the visit back, diagnosis, updating the widgets); the rest is key dispatch, Textual's layout,
-    rendering and frame pacing.
+    commit, reading the visit back, diagnosis, updating the widgets); the rest is key dispatch,
+    Textual's layout, rendering and frame pacing.
 
 ``enter → last frame of the round``
     The same clock, stopped at the last frame before the screen goes quiet (no frame for
@@ -443,7 +443,8 @@ def main() -> int:
     for name, values in rows:
         if values:
             print(
-                f"{name:<48}{len(values):>4}{statistics.median(values) * 1000:>11.1f}{max(values) * 1000:>9.1f}"
+                f"{name:<48}{len(values):>4}"
+                f"{statistics.median(values) * 1000:>11.1f}{max(values) * 1000:>9.1f}"
             )
     return 0
 

@@ -173,7 +173,7 @@ def _exact_repeat_gain(d: Diagnosis) -> float:
     observed = (f.p_low, f.p_in_range, f.p_high)
     post = {x.key: x.probability for x in d.faults}
     lik = {k: likelihood_for(rule, "travel", k) for k in post}
-    without = {k: p / sum(o * q for o, q in zip(observed, lik[k])) for k, p in post.items()}
+    without = {k: p / sum(o * q for o, q in zip(observed, lik[k], strict=True)) for k, p in post.items()}
     total = sum(without.values())
     without = {k: p / total for k, p in without.items()}
 

@@ -106,7 +106,8 @@ def test_taking_the_proposed_reading_moves_the_ranking_as_its_outcomes_said(outc
     after = diagnose(with_readings(visit, [reading], [gauge]), profile, knowledge())
 
     assert after.top.display_title == said["title"]
-    # The prediction assumed a hard outcome; with a class 0.1 test gauge this reading is well clear of the range.
+    # The prediction assumed a hard outcome; with a class 0.1 test gauge this reading is well clear of the
+    # range.
     assert after.top.probability == pytest.approx(int(said["pct"]) / 100, abs=0.01)
     if outcome == "low":
         assert after.top.key != d.top.key  # the ranking turned over, as predicted

@@ -97,7 +97,7 @@ def enumerate_posterior(visit: Visit, profile: MachineProfile, d: Diagnosis) -> 
         power = TEMPER if tempered else 1.0
         for key in joint:
             lik = likelihood_for(rule, f.circuit, key)
-            joint[key] *= sum(o * p for o, p in zip(observed, lik)) ** power
+            joint[key] *= sum(o * p for o, p in zip(observed, lik, strict=True)) ** power
     total = sum(joint.values())
     return {key: p / total for key, p in joint.items()}
 
@@ -165,7 +165,7 @@ def test_posterior_matches_pgmpy_variable_elimination_with_virtual_evidence(name
     model.add_cpds(*cpds)
     assert model.check_model()
     result = VariableElimination(model).query(["Fault"], virtual_evidence=virtual, show_progress=False)
-    reference = dict(zip(result.state_names["Fault"], result.values))
+    reference = dict(zip(result.state_names["Fault"], result.values, strict=True))
 
     assert any(f.verdict is Verdict.INCONCLUSIVE for f in findings) or name != "fellborer-charge-pump-worn"
     got = engine_posterior(d)

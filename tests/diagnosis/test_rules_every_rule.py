@@ -101,8 +101,8 @@ def test_rule_gives_its_verdict_and_the_evidence_its_tables_say(scene: Scene, si
     for key in scene.listed_keys:
         lik = likelihood_for(rule, scene.circuit_id, key)
         # Virtual evidence: P(finding | h) = Σ_o P(o observed) · P(o | h), as a ratio to healthy.
-        expected = math.log(sum(o * p for o, p in zip(outcome, lik))) - math.log(
-            sum(o * p for o, p in zip(outcome, healthy))
+        expected = math.log(sum(o * p for o, p in zip(outcome, lik, strict=True))) - math.log(
+            sum(o * p for o, p in zip(outcome, healthy, strict=True))
         )
         assert f.evidence.get(key, 0.0) == pytest.approx(expected, abs=1e-9), key
         # With a hard outcome the sign is the table's: more likely under the fault than healthy → for it.

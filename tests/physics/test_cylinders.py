@@ -29,7 +29,8 @@ def test_bore_and_annulus_areas():
 
 
 def test_field_notes_cylinder_example():
-    # Field notes [calc]: 200 bar, bore 100 mm, rod 70 mm, 40 L/min → 157.1 kN, 0.0849 m/s, return flow 20.4 L/min
+    # Field notes [calc]: 200 bar, bore 100 mm, rod 70 mm, 40 L/min → 157.1 kN, 0.0849 m/s, return flow 20.4
+    # L/min
     assert cylinder_force(q("200 bar"), BORE, ROD).m_as("kN") == pytest.approx(157.1, abs=0.05)
     assert cylinder_speed(q("40 L/min"), BORE, ROD).m_as("m/s") == pytest.approx(0.0849, abs=0.00005)
     assert return_flow(q("40 L/min"), BORE, ROD).m_as("L/min") == pytest.approx(20.4, abs=0.05)

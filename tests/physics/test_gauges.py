@@ -78,7 +78,8 @@ def test_fluctuating_pressure_above_two_thirds_of_scale_is_a_warning():
 
 
 def test_low_reading_on_a_big_gauge_warns_of_large_relative_error():
-    # Below 1/4 of the span (common practice); class 1.6 on 0–250 bar = ±4 bar, 20 % of a 20 bar reading [calc]
+    # Below 1/4 of the span (common practice); class 1.6 on 0–250 bar = ±4 bar, 20 % of a 20 bar reading
+    # [calc]
     check = gauge_suitability(q("250 bar"), q("20 bar"), accuracy_class=1.6)
     assert check.level is Level.WARNING
     assert "±4 bar, 20 % of the reading" in check.message

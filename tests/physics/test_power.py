@@ -46,7 +46,8 @@ def test_motor_delivers_less_shaft_power_than_it_takes():
 
 
 def test_all_flow_over_the_relief_becomes_heat():
-    # Field notes (throttling heat, calc): all Δp · Q over a relief becomes heat; 210 bar · 60 L/min / 600 = 21 kW
+    # Field notes (throttling heat, calc): all Δp · Q over a relief becomes heat; 210 bar · 60 L/min / 600 =
+    # 21 kW
     assert throttling_heat(q("210 bar"), q("60 L/min")).m_as("kW") == pytest.approx(21.0)
 
 
@@ -65,7 +66,8 @@ def test_throttling_warms_oil_about_0_6_kelvin_per_10_bar():
 
 
 def test_throttling_rise_with_rabie_specific_heat_is_the_default():
-    # Rabie, Fluid Power Engineering, p. 45: cp = 2060 J/(kg·K) at 50 °C; 1e6 / (870 · 2060) = 0.558 K per 10 bar [calc]
+    # Rabie, Fluid Power Engineering, p. 45: cp = 2060 J/(kg·K) at 50 °C; 1e6 / (870 · 2060) = 0.558 K per 10
+    # bar [calc]
     assert throttling_temperature_rise(q("10 bar")).m_as("K") == pytest.approx(1e6 / (870 * 2060))
 
 

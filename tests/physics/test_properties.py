@@ -159,7 +159,8 @@ def test_oil_thins_as_it_warms(name: str, t1: float, t2: float) -> None:
 @FAST
 @given(flows, st.floats(min_value=20.0, max_value=100.0), st.floats(min_value=20.0, max_value=100.0))
 def test_same_leakage_read_on_hotter_oil_normalises_lower(q_lpm: float, t1: float, t2: float) -> None:
-    # Hotter oil is thinner and leaks more at the same clearances, so the same reading means tighter clearances.
+    # Hotter oil is thinner and leaks more at the same clearances, so the same reading means tighter
+    # clearances.
     cold, hot = sorted((t1, t2))
     curve, ref = fluid.grade("VG46").curve, Q_(50.0, "degC")
     if hot - cold > 1e-6:

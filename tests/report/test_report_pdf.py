@@ -202,7 +202,8 @@ def test_importing_the_report_package_does_not_load_the_pdf_library() -> None:
 
     code = (
         "import sys, fieldkit.report, fieldkit.report.model, fieldkit.report.jobcard, "
-        "fieldkit.report.command, fieldkit.report.text, fieldkit.report.markdown; print('fpdf' in sys.modules)"
+        "fieldkit.report.command, fieldkit.report.text, fieldkit.report.markdown; print('fpdf' in "
+        "sys.modules)"
     )
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert out.stdout.strip() == "False"

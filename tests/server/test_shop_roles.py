@@ -64,7 +64,8 @@ def test_another_technician_reads_the_visit(shop: Shop, anas_visit: tuple[str, s
         ),
         (
             "add a reading",
-            "INSERT INTO fieldkit.reading (visit_id, id, test_point, taken_at, replaces, reading_json, origin) "
+            "INSERT INTO fieldkit.reading (visit_id, id, test_point, taken_at, replaces, reading_json, "
+            "origin) "
             "VALUES (%(v)s, 'r1', 'drive.charge', '2099-01-01T00:00:00Z', NULL, '{}', 'ben')",
             "row-level security",
         ),
@@ -76,7 +77,8 @@ def test_another_technician_reads_the_visit(shop: Shop, anas_visit: tuple[str, s
         ),
         (
             "forge the sender",
-            "INSERT INTO fieldkit.visit (id, machine, origin, created_at, owner) VALUES ('v9', 'm', 'o', 't', 'ana')",
+            "INSERT INTO fieldkit.visit (id, machine, origin, created_at, owner) VALUES ('v9', 'm', 'o', "
+            "'t', 'ana')",
             "permission denied",
         ),
         ("take over the numbering", "SELECT setval('fieldkit.change_seq', 1)", "permission denied"),

@@ -389,7 +389,9 @@ def test_gauge_error_spoils_exactly_one_pressure_reading(simulators):
         healthy = sim.simulate(None, 1.0, seed).visit.readings
         faulty = sim.simulate("gauge_error", 1.0, seed).visit
         differ = [
-            (a, b) for a, b in zip(healthy, faulty.readings) if a.value != b.value or a.gauge != b.gauge
+            (a, b)
+            for a, b in zip(healthy, faulty.readings, strict=True)
+            if a.value != b.value or a.gauge != b.gauge
         ]
         assert len(differ) == 1
         _good, bad = differ[0]

@@ -34,7 +34,7 @@ def test_same_seed_with_a_fault_is_the_same_machine_read_with_the_same_luck(simu
     faulty = sim.simulate("main_relief_low", 1.0, 3).visit
     untouched = [
         (a.value, b.value)
-        for a, b in zip(healthy.readings, faulty.readings)
+        for a, b in zip(healthy.readings, faulty.readings, strict=True)
         if a.test_point in ("main.oil_temp", "main.speed")
     ]
     assert untouched and all(a == b for a, b in untouched)
@@ -103,7 +103,7 @@ def test_readings_follow_a_technicians_order(simulators):
         )
         running = [
             r
-            for r, role in zip(visit.readings, roles)
+            for r, role in zip(visit.readings, roles, strict=True)
             if role
             not in (
                 Role.OIL_TEMPERATURE,
@@ -117,7 +117,7 @@ def test_readings_follow_a_technicians_order(simulators):
         assert stages == sorted(stages)
         times = [r.taken_at for r in visit.readings]
         assert times == sorted(times) and len(set(times)) == len(times)
-        for r, role in zip(visit.readings, roles):
+        for r, role in zip(visit.readings, roles, strict=True):
             if role is Role.ACCUMULATOR_PRECHARGE:  # engine off: no speed, no oil temperature recorded
                 assert r.condition.speed is None and r.condition.oil_temperature is None
 
@@ -126,7 +126,7 @@ def test_pressure_gauges_suit_their_points(simulators):
     # EN 837-2 (from memory): steady working pressure within 3/4 of the scale; field notes
     # (common practice): a range about 1.5-2 times the working value; class 1 or 1.6 gauges.
     for sim in simulators.values():
-        for planned, value, gauge in zip(sim.plan, sim.nominal, sim.gauges):
+        for planned, value, gauge in zip(sim.plan, sim.nominal, sim.gauges, strict=True):
             if planned.point.kind is not Kind.PRESSURE or value is None:
                 continue
             assert gauge is not None and gauge.accuracy_class in (1.0, 1.6)
@@ -149,7 +149,7 @@ def test_gauge_error_stays_within_the_class_limit(simulators):
             true = [v for v in sim.true_values(machine) if v is not None]
             visit = sim.simulate(None, 1.0, seed).visit
             assert len(true) == len(visit.readings)
-            for t, r in zip(true, visit.readings):
+            for t, r in zip(true, visit.readings, strict=True):
                 gauge = visit.gauge(r.gauge)
                 _c, tp = sim.profile.test_point(r.test_point)
                 written = to_canonical(r.value, tp.kind)

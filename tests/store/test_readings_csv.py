@@ -35,7 +35,8 @@ def test_a_logger_file_with_every_column_reads_as_it_was_meant() -> None:
     text = (
         "time,test_point,value,unit,function,speed,oil_temperature,gauge,note\n"
         "2024-05-14T08:30:00Z,drive.charge,24.5,bar,neutral,1800 rpm,52 °C,g60,warm idle\n"
-        '2024-05-14T10:31:00+02:00,drive.case_drain,3.2,L/min,full stroke,2200 rpm,55 °C,,"drain, after warm-up"\n'
+        '2024-05-14T10:31:00+02:00,drive.case_drain,3.2,L/min,full stroke,2200 rpm,55 °C,,"drain, after '
+        'warm-up"\n'
     )
     first, second = parse_readings_csv(text, test_points=POINTS, gauges={"g60"})
     assert (first.test_point, first.value, first.reference, first.gauge) == (

@@ -55,7 +55,7 @@ def test_two_fieldkits_logging_at_once_lose_no_reading(store_path: Path) -> None
         for kid in kids:
             if kid.poll() is None:
                 kid.kill()
-    for kid, (_out, err) in zip(kids, results):
+    for kid, (_out, err) in zip(kids, results, strict=True):
         assert kid.returncode == 0, err
     reported = [line for out, _err in results for line in out.split()]
     assert len(reported) == 2 * per_child

@@ -285,7 +285,8 @@ def test_a_damaged_row_is_named_instead_of_a_traceback(store: SqliteVisitStore, 
     conn = sqlite3.connect(store_path)
     try:
         conn.execute(
-            "INSERT INTO reading (visit_id, id, test_point, taken_at, stored_at, reading_json) VALUES (?, ?, ?, ?, ?, ?)",
+            "INSERT INTO reading (visit_id, id, test_point, taken_at, stored_at, reading_json) VALUES (?, "
+            "?, ?, ?, ?, ?)",
             (
                 v.id,
                 "hand-edit",

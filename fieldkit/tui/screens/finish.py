@@ -44,9 +44,11 @@ def draft_summary(diagnosis: Diagnosis) -> str:
     return " ".join(parts)
 
 
-def _format_select(id: str) -> Select:
+def _format_select(widget_id: str) -> Select:
     default = "pdf" if jobcard_available() else "text"
-    return Select([(Text(f), f) for f in FORMATS], value=default, allow_blank=False, id=id, compact=True)
+    return Select(
+        [(Text(f), f) for f in FORMATS], value=default, allow_blank=False, id=widget_id, compact=True
+    )
 
 
 class FinishScreen(FieldkitScreen):
@@ -113,7 +115,8 @@ class FinishScreen(FieldkitScreen):
             _path, what = export_job_card(closed, self.profile, diagnosis, folder, fmt, self.bench.system)
         except WRITE_ERRORS as exc:
             self.dismiss(
-                f"✓ Visit closed. ✗ The job card was not written ({exc}); Find (F3) → 'Write the job card' tries again."
+                f"✓ Visit closed. ✗ The job card was not written ({exc}); Find (F3) → 'Write the job card' "
+                "tries again."
             )
             return
         self.dismiss(f"✓ Visit closed. {what}")

@@ -30,7 +30,8 @@ class HistoryScreen(FieldkitScreen):
         yield Static(
             Text(
                 "Case drain flows are shown at the reference oil temperature (leakage scales with "
-                "1/viscosity), so hot and cold days compare. Trend: one mark per visit, low ▁ to high █, oldest visit on the left; the columns list the newest visit first.",
+                "1/viscosity), so hot and cold days compare. Trend: one mark per visit, low ▁ to high █, "
+                "oldest visit on the left; the columns list the newest visit first.",
                 end="",
             ),
             id="history-note",

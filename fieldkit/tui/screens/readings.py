@@ -131,7 +131,8 @@ class ReadingsScreen(FieldkitScreen):
             LinePrompt(
                 "Correct a reading",
                 literal(
-                    f"Reading {old.id} was entered as {old.entered!r} ({old.condition.describe()}). The corrected value:"
+                    f"Reading {old.id} was entered as {old.entered!r} ({old.condition.describe()}). The "
+                    "corrected value:"
                 ),
                 value=old.entered,
                 check=check,
@@ -160,7 +161,8 @@ class ReadingsScreen(FieldkitScreen):
             ConfirmDialog(
                 "Delete this reading?",
                 literal(
-                    f"{r.entered} ({r.condition.describe()}) will no longer count. It stays in the record as deleted."
+                    f"{r.entered} ({r.condition.describe()}) will no longer count. It stays in the record "
+                    "as deleted."
                 ),
                 yes="Delete",
                 no="Keep",

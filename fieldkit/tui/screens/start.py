@@ -310,7 +310,8 @@ class StartScreen(FieldkitScreen):
                 ConfirmDialog(
                     "Already in the store",
                     literal(
-                        f"Visit {visit.job_number} ({visit.id}) is already in the store. Import it again as a copy with new ids?"
+                        f"Visit {visit.job_number} ({visit.id}) is already in the store. Import it again as "
+                        "a copy with new ids?"
                     ),
                     yes="Import a copy",
                     no="Cancel",

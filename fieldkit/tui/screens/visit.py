@@ -440,7 +440,8 @@ class VisitScreen(FieldkitScreen):
             LinePrompt(
                 "Skip this test point",
                 literal(
-                    f"Why is {point.label} not measured? The reason goes into the visit notes and the job card."
+                    f"Why is {point.label} not measured? The reason goes into the visit notes and the job "
+                    "card."
                 ),
                 value="no access on this machine",
             ),
