@@ -127,7 +127,8 @@ _V2 = Migration(
             FROM visit v, json_each(v.header_json) j
             WHERE j.key NOT IN ('id', 'machine', 'readings', 'schema_version', 'gauges')""",
         f"""INSERT INTO header_change (id, visit_id, field, value_json, changed_at, origin)
-            SELECT 'm2-' || v.id || '-g' || printf('%04d', g.key), v.id, 'gauge:' || json_extract(g.value, '$.id'),
+            SELECT 'm2-' || v.id || '-g' || printf('%04d', g.key), v.id,
+                   'gauge:' || json_extract(g.value, '$.id'),
                    json(g.value),
                    v.created_at, {_ORIGIN}
             FROM visit v, json_each(v.header_json, '$.gauges') g""",

@@ -180,9 +180,11 @@ _V2 = ServerMigration(
             FOR EACH ROW EXECUTE FUNCTION {SCHEMA}.stamp_row()""",
         f"ALTER TABLE {SCHEMA}.profile_version ENABLE ROW LEVEL SECURITY",
         f"CREATE POLICY read_all ON {SCHEMA}.profile_version FOR SELECT TO {_BOTH} USING (true)",
-        f"CREATE POLICY signed ON {SCHEMA}.profile_version FOR INSERT TO {_BOTH} WITH CHECK (author = current_user)",
+        f"CREATE POLICY signed ON {SCHEMA}.profile_version FOR INSERT TO {_BOTH} WITH CHECK (author = "
+        "current_user)",
         f"GRANT SELECT ON {SCHEMA}.profile_version TO {_BOTH}",
-        f"GRANT INSERT (id, profile_id, parents_json, toml_text, made_at, origin) ON {SCHEMA}.profile_version "
+        "GRANT INSERT (id, profile_id, parents_json, toml_text, made_at, origin) ON "
+        f"{SCHEMA}.profile_version "
         f"TO {_BOTH}",
     ),
 )

@@ -262,7 +262,8 @@ class ShopServer:
                     # One statement per batch (a column of text per field, unnested on the server):
                     # far fewer round trips and plans than a row at a time.
                     statement = sql.SQL(
-                        "INSERT INTO {}.{} ({}) SELECT {} FROM unnest({}) WITH ORDINALITY AS t({}, n) ORDER BY n "
+                        "INSERT INTO {}.{} ({}) SELECT {} FROM unnest({}) WITH ORDINALITY AS t({}, n) ORDER "
+                        "BY n "
                         "ON CONFLICT DO NOTHING"
                     ).format(
                         sql.Identifier(SCHEMA),

@@ -106,7 +106,8 @@ class Replica:
                 )
             if kind == "profile_version":
                 conn.execute(
-                    "UPDATE profile_version SET author = ? WHERE from_server = 0 AND author = '' AND seq <= ?",
+                    "UPDATE profile_version SET author = ? "
+                    "WHERE from_server = 0 AND author = '' AND seq <= ?",
                     (login, last),
                 )
             self._set(conn, f"push:{kind}", str(int(last)))
@@ -291,7 +292,8 @@ class Replica:
         with self.store.transaction("sync") as conn:
             for vid, profile_id, parents, text, made_at, origin, author, _seq in rows:
                 cur = conn.execute(
-                    "INSERT OR IGNORE INTO profile_version (id, profile_id, parents_json, toml_text, made_at, origin, "
+                    "INSERT OR IGNORE INTO profile_version (id, profile_id, parents_json, toml_text, "
+                    "made_at, origin, "
                     "author, from_server) VALUES (?, ?, ?, ?, ?, ?, ?, 1)",
                     (vid, profile_id, parents, text, made_at, origin, author),
                 )
@@ -304,7 +306,8 @@ class Replica:
         where, args = ("WHERE profile_id = ?", (profile_id,)) if profile_id else ("", ())
         with self.store.snapshot() as conn:
             rows = conn.execute(
-                "SELECT id, profile_id, parents_json, toml_text, made_at, origin, author FROM profile_version "
+                "SELECT id, profile_id, parents_json, toml_text, made_at, origin, author FROM "
+                "profile_version "
                 f"{where} ORDER BY seq",
                 args,
             ).fetchall()
@@ -314,7 +317,8 @@ class Replica:
         """Record a version made here; False when the same version (same id) is known already."""
         with self.store.transaction("profile version") as conn:
             cur = conn.execute(
-                "INSERT OR IGNORE INTO profile_version (id, profile_id, parents_json, toml_text, made_at, origin) "
+                "INSERT OR IGNORE INTO profile_version (id, profile_id, parents_json, toml_text, made_at, "
+                "origin) "
                 "VALUES (?, ?, ?, ?, ?, ?)",
                 (
                     version.id,

@@ -19,6 +19,7 @@ from __future__ import annotations
 
 import argparse
 import datetime as dt
+import importlib
 import multiprocessing
 import statistics
 import sys
@@ -28,16 +29,16 @@ import uuid
 from datetime import UTC
 from pathlib import Path
 
-ROOT = Path(__file__).resolve().parents[2]
-sys.path.insert(0, str(ROOT / "tests" / "server"))
-
-from pg_cluster import Cluster, start_cluster
-
 from fieldkit.model.visit import Gauge, Reading, Visit
 from fieldkit.store.header_log import canonical
 from fieldkit.store.pg_server import ShopServer, add_technician, connect, init_server
 from fieldkit.store.sqlite import SqliteVisitStore
 from fieldkit.store.sync import sync
+
+ROOT = Path(__file__).resolve().parents[2]
+sys.path.insert(0, str(ROOT / "tests" / "server"))
+_pg_cluster = importlib.import_module("pg_cluster")  # tests/server is a folder, not a package
+Cluster, start_cluster = _pg_cluster.Cluster, _pg_cluster.start_cluster
 
 T0 = dt.datetime(2026, 3, 14, 9, 0, tzinfo=UTC)
 
@@ -126,7 +127,8 @@ def _bulk_load(cluster: Cluster, dbname: str, start: int, stop: int, machines: i
                 ):
                     cp.write_row((f"h{i}-{field}", f"v{i}", field, value, at, "bulk"))
         with cur.copy(
-            "COPY fieldkit.reading (visit_id, id, test_point, taken_at, replaces, reading_json, origin) FROM STDIN"
+            "COPY fieldkit.reading (visit_id, id, test_point, taken_at, replaces, reading_json, origin) "
+            "FROM STDIN"
         ) as cp:
             for i in range(start, stop):
                 for k in range(3):

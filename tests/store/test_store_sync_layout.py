@@ -50,7 +50,8 @@ def _layout_1_store(path: Path, v: Visit, r: Reading, deleted_at: str) -> None:
         (v.id, v.machine, v.date.isoformat(), at, at, v.model_dump_json(exclude={"readings"})),
     )
     conn.execute(
-        "INSERT INTO reading (visit_id, id, test_point, taken_at, replaces, deleted_at, stored_at, reading_json) "
+        "INSERT INTO reading (visit_id, id, test_point, taken_at, replaces, deleted_at, stored_at, "
+        "reading_json) "
         "VALUES (?, ?, ?, ?, NULL, ?, ?, ?)",
         (v.id, r.id, r.test_point, at, deleted_at, at, r.model_dump_json(exclude={"deleted_at"})),
     )
