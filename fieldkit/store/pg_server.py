@@ -320,6 +320,16 @@ class ServerSnapshot:
         )
         return list(self.conn.execute(statement, (after, skip_origin or "", limit)).fetchall())
 
+    def count_from(self, kind: str, origin: str) -> int:
+        """How many records of one kind came from one laptop."""
+        row = self.conn.execute(
+            sql.SQL("SELECT count(*) FROM {}.{} WHERE origin = %s").format(
+                sql.Identifier(SCHEMA), sql.Identifier(kind)
+            ),
+            (origin,),
+        ).fetchone()
+        return int(row[0]) if row else 0
+
     def count_after(self, cursors: dict[str, int], skip_origin: str) -> int:
         """How many records a pull will look at (for the progress bar)."""
         total = 0

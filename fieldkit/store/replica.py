@@ -150,6 +150,15 @@ class Replica:
         last = int(rows[-1][0]) if rows else after
         return [tuple(r[1:]) for r in rows], last
 
+    def own_count(self, kind: str) -> int:
+        """How many records of one kind this laptop made (and kept)."""
+        _, _, table = _OUTGOING[kind]
+        with self.store.snapshot() as conn:
+            row = conn.execute(
+                f"SELECT count(*) FROM {table} WHERE from_server = 0 AND origin = ?", (self.store.origin,)
+            ).fetchone()
+        return int(row[0])
+
     def header_changes_of(self, visit_ids: Sequence[str]) -> list[tuple[Any, ...]]:
         """Every local header change of these visits: a visit goes up with its header, in one
         server transaction, so nobody ever pulls a visit without one."""

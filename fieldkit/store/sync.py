@@ -116,12 +116,18 @@ def _pull(
     done = 0
     with server.pulling() as snap:
         total = snap.count_after({kind: replica.cursor(f"pull:{kind}") for kind in KINDS}, own)
+        # This laptop's own records need not come back down, unless the server holds more of them
+        # than the laptop does: a store restored from a backup gets back what it made since.
+        skip = {
+            kind: own if kind != "visit" and snap.count_from(kind, own) <= replica.own_count(kind) else None
+            for kind in KINDS
+        }
         for kind in KINDS:
             key = f"pull:{kind}"
             report.received[kind] = 0
             while True:
                 after = replica.cursor(key)
-                rows = snap.fetch(kind, after, batch, skip_origin=None if kind == "visit" else own)
+                rows = snap.fetch(kind, after, batch, skip_origin=skip[kind])
                 if not rows:
                     break
                 last = int(rows[-1][-1])

@@ -91,3 +91,28 @@ def test_a_server_with_a_newer_layout_is_refused_with_nothing_sent(shop: Shop, t
     with connect(shop.admin_url) as conn:
         assert conn.execute("SELECT count(*) FROM fieldkit.visit").fetchone() == (0,)
     assert Replica(a).status().waiting["visit"] == 1
+
+
+def test_a_store_restored_from_a_backup_gets_back_what_it_had_sent_since(shop: Shop, tmp_path: Path) -> None:
+    ana = shop.add("ana")
+    a = laptop(tmp_path, "a")
+    v = a.create_visit(visit())
+    first = a.add_reading(v.id, reading("24.5 bar", 0))
+    with ShopServer(shop.login(ana)) as server:
+        sync(a, server)
+    a.close()  # the backup: a plain copy of the closed store file
+    backup = a.path.read_bytes()
+    a = laptop(tmp_path, "a")
+    later = a.add_reading(v.id, reading("23.1 bar", 9))
+    a.delete_reading(v.id, later.id)
+    with ShopServer(shop.login(ana)) as server:
+        sync(a, server)
+    a.close()
+    a.path.write_bytes(backup)  # the laptop is restored from the backup
+    restored = laptop(tmp_path, "a")
+    assert len(restored.get_visit(v.id).readings) == 1
+    with ShopServer(shop.login(ana)) as server:
+        sync(restored, server)
+    back = restored.get_visit(v.id)
+    assert sorted(r.id for r in back.readings) == sorted([first.id, later.id])
+    assert [r.id for r in back.readings if r.deleted_at] == [later.id]
