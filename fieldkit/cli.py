@@ -114,8 +114,10 @@ def _parser() -> argparse.ArgumentParser:
     ev.add_argument("--cases", type=int, default=20)
     ev.add_argument("--seed", type=int, default=1)
 
+    from fieldkit.machine_command import add_parsers as add_machine_parsers
     from fieldkit.sync_command import add_parsers
 
+    add_machine_parsers(sub)
     add_parsers(sub)
     return p
 
@@ -134,7 +136,7 @@ def main(argv: Sequence[str] | None = None) -> int:
         return 0
 
 
-def _workbench(args: argparse.Namespace, store: str | None = None) -> Workbench:
+def _workbench(args: argparse.Namespace, store: str | None = None, demo: bool = True) -> Workbench:
     from fieldkit.session import Workbench
     from fieldkit.settings import Settings
 
@@ -144,7 +146,7 @@ def _workbench(args: argparse.Namespace, store: str | None = None) -> Workbench:
     if args.decimal_comma:
         settings = settings.model_copy(update={"decimal_comma": True})
     return Workbench.open(
-        store or args.store, profile_dirs=args.profiles, rules_folder=args.rules, settings=settings
+        store or args.store, profile_dirs=args.profiles, rules_folder=args.rules, settings=settings, demo=demo
     )
 
 
@@ -168,6 +170,10 @@ def _dispatch(args: argparse.Namespace) -> int:
         from fieldkit.simulate.command import run_evaluate
 
         return run_evaluate(args)
+    if cmd == "machine":
+        from fieldkit.machine_command import run_machine
+
+        return run_machine(args)
     if cmd in ("server", "sync"):
         from fieldkit.sync_command import run_server, run_sync
 
@@ -197,7 +203,7 @@ def _run_ui(args: argparse.Namespace, demo: bool) -> int:
     store = args.store
     if demo:
         store = str(demo_store_path())
-    bench = _workbench(args, store)
+    bench = _workbench(args, store, demo=demo)  # the user's own UI lists only the user's machines
     try:
         if demo:
             if demo_store_is_stale(bench.store, bench.library):
@@ -208,7 +214,7 @@ def _run_ui(args: argparse.Namespace, demo: bool) -> int:
                     "and a fresh demo is built",
                     file=sys.stderr,
                 )
-                bench = _workbench(args, store)
+                bench = _workbench(args, store, demo=demo)
             seed_demo(bench.store)
         from fieldkit.tui.app import make_app
 
@@ -320,7 +326,7 @@ def _import(bench: Workbench, args: argparse.Namespace) -> int:
 
     visit, _embedded = read_visit_file(path)
     # A visit can only be worked on with its machine's profile installed: refuse before storing.
-    if visit.machine not in bench.library.ids():
+    if not bench.library.has(visit.machine):
         from fieldkit.settings import user_profiles_dir
 
         raise FieldkitError(

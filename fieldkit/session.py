@@ -70,9 +70,14 @@ class Workbench:
         profile_dirs: list[Path] | None = None,
         rules_folder: Path | None = None,
         settings: Settings | None = None,
+        demo: bool = True,
     ) -> Workbench:
+        """``demo`` False leaves the bundled demo machines out (the user's own UI)."""
         return cls(
-            open_store(store_path), default_library(profile_dirs), settings or Settings.load(), rules_folder
+            open_store(store_path),
+            default_library(profile_dirs, demo=demo),
+            settings or Settings.load(),
+            rules_folder,
         )
 
     @property

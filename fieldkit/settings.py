@@ -13,6 +13,8 @@ from pathlib import Path
 from platformdirs import user_data_path
 from pydantic import Field, ValidationError
 
+from fieldkit.durable import sync_folder, write_temp
+from fieldkit.errors import FieldkitError
 from fieldkit.model.base import Strict
 from fieldkit.model.loading import ProfileLibrary
 from fieldkit.resources import rules_dir, samples_dir
@@ -66,7 +68,28 @@ class Settings(Strict):
         os.replace(tmp, path)
 
 
-def default_library(extra: list[Path] | None = None) -> ProfileLibrary:
-    """Bundled demo profiles plus the user's profile folder and any extra folders named."""
-    folders = [samples_dir() / "profiles", user_profiles_dir(), *(extra or [])]
-    return ProfileLibrary(folders, rules_dir() / "templates")
+def default_library(extra: list[Path] | None = None, *, demo: bool = True) -> ProfileLibrary:
+    """The user's profile folder and any extra folders named, plus the bundled demo profiles
+    unless ``demo`` is False (the user's own UI shows only the user's machines)."""
+    demo_folder = samples_dir() / "profiles"
+    folders = [*([demo_folder] if demo else []), user_profiles_dir(), *(extra or [])]
+    return ProfileLibrary(folders, rules_dir() / "templates", hidden_folders=[] if demo else [demo_folder])
+
+
+def save_profile_text(path: Path, text: str, *, replace: bool) -> Path:
+    """Write a machine profile whole or not at all (temporary file, fsync, rename). With
+    ``replace`` False an existing file is never overwritten: a new machine cannot eat an old one."""
+    path.parent.mkdir(parents=True, exist_ok=True)
+    tmp = write_temp(path.parent, text.encode("utf-8"), f".{path.stem}-")
+    try:
+        if replace:
+            os.replace(tmp, path)
+        else:
+            os.link(tmp, path)  # fails with FileExistsError instead of overwriting
+    except FileExistsError:
+        raise FieldkitError(f"{path} already exists; it is left as it is") from None
+    finally:
+        if tmp.exists():
+            tmp.unlink()
+    sync_folder(path.parent)
+    return path

@@ -423,10 +423,15 @@ def load_profile(path: Path, templates: Templates) -> MachineProfile:
 class ProfileLibrary:
     """The machine profiles fieldkit knows: bundled demo profiles and the user's own folders."""
 
-    def __init__(self, folders: list[Path], templates_folder: Path) -> None:
+    def __init__(
+        self, folders: list[Path], templates_folder: Path, hidden_folders: list[Path] | None = None
+    ) -> None:
         self.templates = load_templates(templates_folder)
         self._profiles: dict[str, tuple[MachineProfile, Path]] = {}
-        for folder in folders:
+        #: Profiles from ``hidden_folders`` (the bundled demo outside the demo): found by id, so
+        #: an old visit on one still opens, but never listed for a new visit.
+        self.hidden: set[str] = set()
+        for folder in [*(hidden_folders or []), *folders]:
             if not folder.is_dir():
                 continue
             for path in sorted(folder.glob("*.toml")):
@@ -437,6 +442,11 @@ class ProfileLibrary:
                         str(path), f"profile id '{profile.id}' is also used by {other}", key="id"
                     )
                 self._profiles[profile.id] = (profile, path)
+                if folder in (hidden_folders or []):
+                    self.hidden.add(profile.id)
+
+    def has(self, profile_id: str) -> bool:
+        return profile_id in self._profiles
 
     def get(self, profile_id: str) -> MachineProfile:
         try:
@@ -449,13 +459,15 @@ class ProfileLibrary:
         return self._profiles[profile_id][1]
 
     def ids(self) -> list[str]:
-        return sorted(self._profiles)
+        """The machines to list (hidden demo machines left out)."""
+        return sorted(p for p in self._profiles if p not in self.hidden)
 
     def profiles(self) -> list[MachineProfile]:
         return [self._profiles[i][0] for i in self.ids()]
 
     def add(self, profile: MachineProfile, path: Path) -> None:
         self._profiles[profile.id] = (profile, path)
+        self.hidden.discard(profile.id)
 
 
 __all__ = [

@@ -1,0 +1,160 @@
+"""`fieldkit machine new | check | show | list`: profiles without an editor's guesswork."""
+
+from __future__ import annotations
+
+import tomllib
+from pathlib import Path
+
+import pytest
+
+from fieldkit.cli import main
+from fieldkit.settings import user_profiles_dir
+
+
+def run(capsys: pytest.CaptureFixture[str], *argv: str) -> tuple[int, str, str]:
+    code = main(list(argv))
+    out, err = capsys.readouterr()
+    return code, out, err
+
+
+def line_of(text: str, needle: str) -> int:
+    return next(i for i, line in enumerate(text.splitlines(), start=1) if needle in line)
+
+
+GOOD = """id = "yard-crane"
+name = "Yard crane"
+rated_speed = "1800 rpm"
+rated_max_pressure = "250 bar"
+
+[[circuits]]
+id = "slew"
+name = "Slew drive"
+template = "closed_loop_drive"
+fitted_parts = ["cross_port_reliefs"]
+
+[circuits.parameters]
+charge_relief_setting = "24 bar"
+pump_displacement = "28 cc/rev"
+"""
+
+
+def test_new_writes_a_skeleton_that_checks_clean_and_shows_typical_ranges(
+    capsys: pytest.CaptureFixture[str],
+) -> None:
+    code, out, _ = run(
+        capsys, "machine", "new", "trial-rig", "-t", "closed_loop_drive", "-t", "closed_loop_drive"
+    )
+    assert code == 0
+    path = user_profiles_dir() / "trial-rig.toml"
+    raw = tomllib.loads(path.read_text(encoding="utf-8"))
+    assert [c["id"] for c in raw["circuits"]] == ["closed_loop_drive", "closed_loop_drive_2"]  # two of a kind
+    code, out, _ = run(capsys, "machine", "check", str(path))
+    assert code == 0 and "valid: 2 circuits" in out
+    code, out, _ = run(capsys, "machine", "show", "trial-rig")
+    assert code == 0
+    # With no figures, charge in neutral rests on the template's typical charge relief 24 bar:
+    # 24 ± 2 bar = 22 bar to 26 bar [calc], marked from memory.
+    assert "neutral: 22 bar to 26 bar [from memory]" in out
+    assert "source: from memory: charge relief setting 24 bar" in out
+
+
+def test_new_never_overwrites_a_machine(capsys: pytest.CaptureFixture[str]) -> None:
+    assert run(capsys, "machine", "new", "twice", "-t", "motor")[0] == 0
+    path = user_profiles_dir() / "twice.toml"
+    path.write_text(path.read_text(encoding="utf-8") + "# my notes\n", encoding="utf-8")
+    code, _out, err = run(capsys, "machine", "new", "twice", "-t", "pilot_supply")
+    assert code == 2 and "already exists" in err
+    assert path.read_text(encoding="utf-8").endswith("# my notes\n")
+
+
+def test_show_prints_the_makers_figure_as_the_source(capsys: pytest.CaptureFixture[str]) -> None:
+    user_profiles_dir().mkdir(parents=True, exist_ok=True)
+    (user_profiles_dir() / "yard-crane.toml").write_text(GOOD, encoding="utf-8")
+    code, out, _ = run(capsys, "machine", "show", "yard-crane")
+    assert code == 0
+    assert "source: from the maker's figure: charge relief setting 24 bar" in out
+    # The loop flushing valve is not ticked: in stroke, charge relief 24 − 4 = 20 to 24 + 2 = 26 bar [calc].
+    assert "full stroke, under load, stalled: 20 bar to 26 bar" in out
+
+
+def test_list_shows_your_machines_and_the_demo_only_when_asked(capsys: pytest.CaptureFixture[str]) -> None:
+    user_profiles_dir().mkdir(parents=True, exist_ok=True)
+    (user_profiles_dir() / "yard-crane.toml").write_text(GOOD, encoding="utf-8")
+    _code, out, _ = run(capsys, "machine", "list")
+    assert "yard-crane" in out and "tarnhollow-fellborer" not in out
+    _code, out, _ = run(capsys, "machine", "list", "--demo")
+    assert "yard-crane" in out and "tarnhollow-fellborer" in out
+
+
+BROKEN = [
+    # (what to change, the line it must name, the key it must name, words in the message)
+    (
+        'charge_relief_setting = "24 bar"',
+        'charge_relief_setting = "24 bra"',
+        "circuits.0.parameters.charge_relief_setting",
+        "bra",
+    ),
+    (
+        'charge_relief_setting = "24 bar"',
+        'charge_relif_setting = "24 bar"',
+        "circuits.0.parameters.charge_relif_setting",
+        "unknown parameter",
+    ),
+    (
+        'charge_relief_setting = "24 bar"',
+        'charge_relief_setting = "24 L/min"',
+        "circuits.0.parameters.charge_relief_setting",
+        "pressure",
+    ),
+    (
+        'fitted_parts = ["cross_port_reliefs"]',
+        'fitted_parts = ["cross_port_relief"]',
+        "circuits.0.fitted_parts",
+        "cross_port_relief",
+    ),
+    (
+        'template = "closed_loop_drive"',
+        'template = "closed_loop_drvie"',
+        "circuits.0.template",
+        "closed_loop_drvie",
+    ),
+    ('rated_speed = "1800 rpm"', 'rated_speed = "1800 bar"', "rated_speed", "speed"),
+]
+
+
+@pytest.mark.parametrize(("old", "new", "key", "words"), BROKEN)
+def test_check_names_file_line_and_key_of_each_mistake(
+    capsys: pytest.CaptureFixture[str], tmp_path: Path, old: str, new: str, key: str, words: str
+) -> None:
+    text = GOOD.replace(old, new)
+    assert text != GOOD
+    path = tmp_path / "broken.toml"
+    path.write_text(text, encoding="utf-8")
+    code, _out, err = run(capsys, "machine", "check", str(path))
+    assert code == 2
+    assert f"{path}:{line_of(text, new)} [{key}" in err, err
+    assert words in err
+
+
+def test_check_names_the_line_of_a_range_that_uses_an_unknown_figure(
+    capsys: pytest.CaptureFixture[str], tmp_path: Path
+) -> None:
+    text = (
+        GOOD
+        + """
+  [[circuits.test_points]]
+  id = "charge"
+    [[circuits.test_points.expected]]
+    when = { function = ["neutral"] }
+    low = "charge_setting - 2 bar"
+    source = "maker's sheet"
+"""
+    )
+    path = tmp_path / "broken.toml"
+    path.write_text(text, encoding="utf-8")
+    code, _out, err = run(capsys, "machine", "check", str(path))
+    assert code == 2
+    assert (
+        f"{path}:{line_of(text, 'charge_setting - 2 bar')} [circuits.0.test_points.0.expected.0.low]" in err
+    )
+    assert "charge_setting" in err
