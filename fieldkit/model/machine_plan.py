@@ -85,7 +85,7 @@ def skeleton(templates: Templates, chosen: list[str], machine_id: str, name: str
             lines.append("# optional parts: delete the ones this circuit does not have")
             lines.append("fitted_parts = [" + ", ".join(f'"{p.value}"' for p in tmpl.parts) + "]")
         lines += ["", "[circuits.parameters]"]
-        names = _figures_used(raw)
+        names = figures_used(raw)
         for pname in names:
             kind, label = PARAMETERS[pname]
             typical = tmpl.parameters.get(pname)
@@ -105,7 +105,7 @@ def skeleton(templates: Templates, chosen: list[str], machine_id: str, name: str
     return "\n".join(lines) + "\n"
 
 
-def _figures_used(raw: dict[str, Any]) -> list[str]:
+def figures_used(raw: dict[str, Any]) -> list[str]:
     """Parameters the template gives a typical for or names in a range, in a stable order."""
     names: list[str] = list(raw.get("parameters", {}) or {})
     for tp in raw.get("test_points", []) or []:
@@ -123,4 +123,4 @@ def _quote(text: str) -> str:
     return inline(text)
 
 
-__all__ = ["plan_lines", "range_words", "skeleton", "when_words"]
+__all__ = ["figures_used", "plan_lines", "range_words", "skeleton", "when_words"]

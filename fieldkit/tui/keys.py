@@ -46,6 +46,9 @@ START: list[BindingType] = [
         id="start.sync",
         tooltip="Exchange visits with the shop server in the background; keep working meanwhile",
     ),
+    Binding("m", "new_machine", "New machine", id="start.new_machine"),
+    Binding("e", "edit_machine", "Edit machine", id="start.edit_machine", show=False),
+    Binding("c", "copy_machine", "Copy machine", id="start.copy_machine", show=False),
     Binding("escape", "back", "Back", id="start.back", show=False),
 ]
 
@@ -132,6 +135,15 @@ JOB_CARD: list[BindingType] = [
 
 ADD_GAUGE: list[BindingType] = [
     Binding("ctrl+s", "add", "Add gauge", id="gauge.add"),
+]
+
+MACHINE_BUILDER: list[BindingType] = [
+    Binding("ctrl+s", "save", "Save", id="builder.save"),
+    Binding("ctrl+n", "add_circuit", "Add circuit", id="builder.add"),
+    Binding("ctrl+o", "next_circuit", "Next circuit", id="builder.next"),
+    Binding("ctrl+r", "remove_circuit", "Remove circuit", id="builder.remove"),
+    Binding("ctrl+p", "show_plan", "Plan", id="builder.plan"),
+    Binding("escape", "cancel", "Cancel", id="builder.cancel"),
 ]
 
 NEW_VISIT: list[BindingType] = [

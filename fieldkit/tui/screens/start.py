@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from collections.abc import Callable, Iterable
 from pathlib import Path
+from typing import Any
 
 from rich.text import Text
 from textual import on
@@ -16,6 +17,7 @@ from fieldkit.errors import FieldkitError
 from fieldkit.model.visit import VisitStatus
 from fieldkit.session import Workbench, read_visit_file
 from fieldkit.store.base import VisitSummary
+from fieldkit.tomlfile import parse_toml, read_text
 from fieldkit.tui import keys
 from fieldkit.tui.error_text import explain
 from fieldkit.tui.safe_text import literal
@@ -58,7 +60,10 @@ class StartScreen(FieldkitScreen):
             yield DataTable(id="open-visits", cursor_type="row")
             yield Label("Past visits", classes="section-title")
             yield DataTable(id="past-visits", cursor_type="row", zebra_stripes=True)
-            yield Label("Machines  (Enter starts a visit · h history)", classes="section-title")
+            yield Label(
+                "Machines  (Enter starts a visit · m new · e edit · c copy · h history)",
+                classes="section-title",
+            )
             yield DataTable(id="machines", cursor_type="row")
         yield Static("", id="start-msg")
         yield KeyBar()
@@ -220,6 +225,57 @@ class StartScreen(FieldkitScreen):
                 self.open_visit(visit_id)
 
         self.app.push_screen(NewVisitScreen(self.bench, machine), created)
+
+    # --- machines ---------------------------------------------------------------------------
+    def _selected_machine(self) -> str | None:
+        table = self.query_one("#machines", DataTable)
+        if not table.row_count:
+            return None
+        key = table.coordinate_to_cell_key(table.cursor_coordinate).row_key.value
+        return key.removeprefix("machine:") if key and key.startswith("machine:") else None
+
+    def open_builder(self, raw: dict[str, Any] | None = None, path: Path | None = None) -> None:
+        """The machine builder; a saved machine goes straight to a new visit on it."""
+        from fieldkit.tui.screens.machine_builder import MachineBuilderScreen
+
+        def saved(machine_id: str | None) -> None:
+            if machine_id:
+                self.refresh_lists()
+                self.action_new_visit(machine_id)
+
+        self.app.push_screen(MachineBuilderScreen(self.bench, raw, path), saved)
+
+    def action_new_machine(self) -> None:
+        self.open_builder()
+
+    def _machine_table(self, verb: str) -> tuple[str, dict[str, Any], Path] | None:
+        pid = self._selected_machine()
+        if pid is None:
+            self._say(f"Choose a machine in the Machines list first (Tab), then {verb}.")
+            return None
+        path = self.bench.library.path_of(pid)
+        try:
+            raw = parse_toml(read_text(path), str(path))
+        except FieldkitError as exc:
+            self._say(explain(exc, "✗ cannot read that machine"))
+            return None
+        return pid, raw, path
+
+    def action_edit_machine(self) -> None:
+        found = self._machine_table("e edits it")
+        if found is not None:
+            _pid, raw, path = found
+            self.open_builder(raw, path)
+
+    def action_copy_machine(self) -> None:
+        found = self._machine_table("c copies it")
+        if found is not None:
+            pid, raw, _path = found
+            n = 2
+            while self.bench.library.has(f"{pid}-{n}"):
+                n += 1
+            raw = {**raw, "id": f"{pid}-{n}", "name": f"{raw.get('name', pid)} (copy)"}
+            self.open_builder(raw, None)
 
     def action_open_demo(self) -> None:
         if self.demo:
