@@ -9,7 +9,7 @@ from __future__ import annotations
 
 from typing import Any
 
-from fieldkit.model.loading import Templates
+from fieldkit.model.loading import Templates, profile_from_raw
 from fieldkit.model.parameters import PARAMETERS
 from fieldkit.model.parts import PART_LABELS
 from fieldkit.model.profile import ExpectedRange, MachineProfile
@@ -123,4 +123,24 @@ def _quote(text: str) -> str:
     return inline(text)
 
 
-__all__ = ["figures_used", "plan_lines", "range_words", "skeleton", "when_words"]
+#: Machine figures for a machine described by one template and nothing else (an evaluation
+#: stand-in, not a real machine): a mid-size mobile machine (common practice).
+TEMPLATE_MACHINE_SPEED = "2000 rpm"
+TEMPLATE_MACHINE_PRESSURE = "250 bar"
+
+
+def template_machine(templates: Templates, template_id: str) -> MachineProfile:
+    """A machine made of one template with no figures: what a technician gets on a machine
+    fieldkit has never seen, and what ``fieldkit evaluate --templates`` measures."""
+    tmpl, _raw = templates[template_id]
+    raw = {
+        "id": f"template-{template_id.replace('_', '-')}",
+        "name": f"{tmpl.name} (template only)",
+        "rated_speed": TEMPLATE_MACHINE_SPEED,
+        "rated_max_pressure": TEMPLATE_MACHINE_PRESSURE,
+        "circuits": [{"id": "c", "name": tmpl.name, "template": template_id}],
+    }
+    return profile_from_raw(raw, templates, f"template {template_id}")
+
+
+__all__ = ["figures_used", "plan_lines", "range_words", "skeleton", "template_machine", "when_words"]
