@@ -113,6 +113,9 @@ def _parser() -> argparse.ArgumentParser:
     )
     ev.add_argument("--cases", type=int, default=20)
     ev.add_argument("--seed", type=int, default=1)
+    ev.add_argument(
+        "--templates", action="store_true", help="measure machines of one circuit template each (no figures)"
+    )
 
     from fieldkit.machine_command import add_parsers as add_machine_parsers
     from fieldkit.sync_command import add_parsers

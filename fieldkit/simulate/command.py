@@ -161,8 +161,19 @@ def run_evaluate(args: argparse.Namespace) -> int:
     from fieldkit.simulate.evaluate import evaluate
 
     rules = getattr(args, "rules", None)  # the global --rules folder, to measure a rule change
+    profiles = None
+    if getattr(args, "templates", False):
+        from fieldkit.model.loading import load_templates
+        from fieldkit.model.machine_plan import template_machine
+        from fieldkit.resources import rules_dir
+
+        templates = load_templates((rules or rules_dir()) / "templates")
+        profiles = [template_machine(templates, tid) for tid in sorted(templates)]
     report = evaluate(
-        cases_per_fault=args.cases, seed=args.seed, knowledge=default_knowledge(rules) if rules else None
+        profiles,
+        cases_per_fault=args.cases,
+        seed=args.seed,
+        knowledge=default_knowledge(rules) if rules else None,
     )
     console = Console(highlight=False)
     if not console.is_terminal:
