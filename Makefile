@@ -1,13 +1,13 @@
 # The gates of .ci/run, on the checkout you have (no fresh environment). Run `make check` before
-# landing: lint, format, import contracts, then the tests on two cores.
-.PHONY: check gates lint format imports test snapshots
+# landing: lint, format, import contracts, types, then the tests on two cores.
+.PHONY: check gates lint format imports types test snapshots
 
 PYTHON ?= python
 export PYTHONPATH := $(CURDIR)
 
 check: gates test
 
-gates: lint format imports
+gates: lint format imports types
 
 lint:
 	ruff check .
@@ -17,6 +17,9 @@ format:
 
 imports:
 	lint-imports --no-cache
+
+types:
+	mypy
 
 test:
 	$(PYTHON) -m pytest -q -x -n 2

@@ -15,8 +15,6 @@ from datetime import UTC, datetime
 from pathlib import Path
 from typing import TYPE_CHECKING
 
-import pint
-
 from fieldkit.errors import DataFileError, FieldkitError
 
 if TYPE_CHECKING:
@@ -29,7 +27,7 @@ from fieldkit.model.visit import Reading, Visit
 from fieldkit.settings import Settings, data_home, default_library
 from fieldkit.store import SqliteVisitStore, open_store
 from fieldkit.tomlfile import read_text, validation_error
-from fieldkit.units import DisplaySystem, Kind, ParsedValue, parse_value, to_canonical
+from fieldkit.units import DisplaySystem, Kind, ParsedValue, Quantity, parse_value, to_canonical
 
 MAX_VISIT_FILE = 20_000_000
 
@@ -160,7 +158,7 @@ class Workbench:
         return self.store.add_reading(visit_id, reading)
 
 
-def plausibility(point: TestPoint) -> Callable[[pint.Quantity], bool] | None:
+def plausibility(point: TestPoint) -> Callable[[Quantity], bool] | None:
     """A generous plausibility check for a point: within ten times its expected range or its
     highest pressure. It only decides between two readings of '2,500'; it never rejects a value."""
     highs = [r.high for r in point.expected if r.high is not None]
@@ -171,7 +169,7 @@ def plausibility(point: TestPoint) -> Callable[[pint.Quantity], bool] | None:
         return None
     ceiling = max(to_canonical(h, point.kind) for h in highs) * (1.5 if point.kind is Kind.PRESSURE else 3.0)
 
-    def plausible(q: pint.Quantity) -> bool:
+    def plausible(q: Quantity) -> bool:
         return abs(to_canonical(q, point.kind)) <= ceiling
 
     return plausible

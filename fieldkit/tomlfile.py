@@ -117,7 +117,9 @@ def validation_error(
     """One message from a pydantic error; ``prefix`` places a part validated on its own (a test
     point) back at its key path in the file."""
     lines = key_lines(text) if text else {}
-    errors = [{**err, "loc": prefix + _named_key(err)} for err in exc.errors(include_url=False)]
+    errors: list[dict[str, Any]] = [
+        {**err, "loc": prefix + _named_key(err)} for err in exc.errors(include_url=False)
+    ]
     first = errors[0]
     loc = tuple(first["loc"])
     key = ".".join(str(p) for p in loc)

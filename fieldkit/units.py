@@ -20,7 +20,7 @@ from dataclasses import dataclass
 from decimal import Decimal
 from enum import StrEnum
 from functools import lru_cache
-from typing import Any
+from typing import TYPE_CHECKING, Any, TypeAlias
 
 import pint
 
@@ -29,12 +29,19 @@ from fieldkit.errors import AmbiguousInputError, DimensionError, UnitInputError
 # One registry for the whole program: building it costs ~0.3 s cold, ~0.06 s from its cache,
 # and pint's lazy default registry is not thread-safe.
 try:
-    ureg = pint.UnitRegistry(cache_folder=":auto:")
+    ureg: pint.UnitRegistry[Any] = pint.UnitRegistry(cache_folder=":auto:")
 except Exception:  # an unwritable cache folder must not stop the program; build without it
     ureg = pint.UnitRegistry()
 ureg.formatter.default_format = "~P"
 Q_ = ureg.Quantity
-Quantity = pint.Quantity
+
+if TYPE_CHECKING:
+    #: A pint quantity as fieldkit passes it around. Its magnitude is a Python number (a float,
+    #: an int, or a Decimal straight from typed text); pint types the magnitude with an
+    #: invariant type variable, so "any real number" can only be said as Any.
+    Quantity: TypeAlias = pint.Quantity[Any]
+else:
+    Quantity = pint.Quantity
 
 #: Standard atmosphere, 101 325 Pa exactly (SI Brochure, 9th ed., table 8).
 STANDARD_ATMOSPHERE = Q_(101_325.0, "pascal")
@@ -336,7 +343,7 @@ def _dimensionality(kind: Kind) -> Any:
 class ParsedValue:
     """A typed value after parsing: the quantity as entered, its kind and, for pressures, its reference."""
 
-    quantity: pint.Quantity
+    quantity: Quantity
     kind: Kind
     reference: PressureReference | None
     text: str
@@ -443,7 +450,7 @@ def parse_value(
     *,
     decimal_comma: bool = False,
     role_name: str | None = None,
-    plausible: Callable[[pint.Quantity], bool] | None = None,
+    plausible: Callable[[Quantity], bool] | None = None,
 ) -> ParsedValue:
     """Parse a value as a technician writes it (``3,500 psi``, ``24,5 bar``, ``0.75 bar abs``).
 
@@ -493,12 +500,12 @@ def parse_value(
     return ParsedValue(value, kind, reference, cleaned)
 
 
-def parse_quantity(text: str, expect: Kind | None = None, **kwargs: Any) -> pint.Quantity:
+def parse_quantity(text: str, expect: Kind | None = None, **kwargs: Any) -> Quantity:
     """Shorthand for :func:`parse_value` when only the quantity matters (profiles, rule files)."""
     return parse_value(text, expect, **kwargs).quantity
 
 
-def kind_of(q: pint.Quantity) -> Kind:
+def kind_of(q: Quantity) -> Kind:
     """The kind of a quantity that arrived from code. Volume and displacement share a dimension
     once revolutions cancel; displacement wins only when the unit says 'per revolution'."""
     kind = _kind_of_units(q.units)
@@ -511,7 +518,10 @@ def kind_of(q: pint.Quantity) -> Kind:
 def _kind_of_units(units: pint.Unit) -> Kind | None:
     q = Q_(1.0, units)
     dim = q.dimensionality
-    per_rev = any(name in ("revolution", "turn") and power < 0 for name, power in q.unit_items())
+    per_rev = any(
+        name in ("revolution", "turn") and isinstance(power, int | float) and power < 0
+        for name, power in q.unit_items()
+    )
     if per_rev and dim == _dimensionality(Kind.DISPLACEMENT):
         return Kind.DISPLACEMENT
     for kind in Kind:
@@ -522,7 +532,7 @@ def _kind_of_units(units: pint.Unit) -> Kind | None:
     return None
 
 
-def require(q: Any, kind: Kind, what: str = "value") -> pint.Quantity:
+def require(q: Any, kind: Kind, what: str = "value") -> Quantity:
     """Check that a quantity handed in from code is of the expected kind; a wrong one raises a
     clear error instead of giving a silently wrong number."""
     if not isinstance(q, pint.Quantity):
@@ -544,13 +554,13 @@ def _affine(source: pint.Unit, target: pint.Unit) -> tuple[float, float]:
     return scale, offset
 
 
-def magnitude_in(q: pint.Quantity, target: pint.Unit) -> float:
+def magnitude_in(q: Quantity, target: pint.Unit) -> float:
     """The magnitude of ``q`` in ``target`` (raises pint.DimensionalityError on a wrong kind)."""
     scale, offset = _affine(q.units, target)
     return offset + scale * float(q.magnitude)
 
 
-def to_canonical(q: pint.Quantity, kind: Kind) -> float:
+def to_canonical(q: Quantity, kind: Kind) -> float:
     """Magnitude in the kind's canonical unit (bar, L/min, °C…): what ranges and rules compare."""
     return magnitude_in(q, unit(CANONICAL_UNIT[kind]))
 
@@ -559,24 +569,26 @@ def to_canonical(q: pint.Quantity, kind: Kind) -> float:
 
 
 def to_gauge(
-    q: pint.Quantity, reference: PressureReference | None, barometric: pint.Quantity | None = None
-) -> pint.Quantity:
+    q: Quantity, reference: PressureReference | None, barometric: Quantity | None = None
+) -> Quantity:
     """Gauge pressure of a reading. Absolute readings subtract the local barometric pressure
     (the standard atmosphere if none was recorded); gauge and differential pass unchanged."""
     require(q, Kind.PRESSURE, "pressure")
     if reference is PressureReference.ABSOLUTE:
-        return (q - (barometric if barometric is not None else STANDARD_ATMOSPHERE)).to(q.units)
+        gauge: Quantity = (q - (barometric if barometric is not None else STANDARD_ATMOSPHERE)).to(q.units)
+        return gauge
     return q
 
 
 def to_absolute(
-    q: pint.Quantity, reference: PressureReference | None, barometric: pint.Quantity | None = None
-) -> pint.Quantity:
+    q: Quantity, reference: PressureReference | None, barometric: Quantity | None = None
+) -> Quantity:
     """Absolute pressure of a reading (what suction limits for piston pumps are written in)."""
     require(q, Kind.PRESSURE, "pressure")
     if reference is PressureReference.ABSOLUTE:
         return q
-    return (q + (barometric if barometric is not None else STANDARD_ATMOSPHERE)).to(q.units)
+    absolute: Quantity = (q + (barometric if barometric is not None else STANDARD_ATMOSPHERE)).to(q.units)
+    return absolute
 
 
 # --- display ------------------------------------------------------------------------------
@@ -633,7 +645,7 @@ _FIXED_SPELLING: dict[Kind, str] = {
 METRIC = DisplaySystem()
 
 
-def convert(q: pint.Quantity, spelling: str) -> pint.Quantity:
+def convert(q: Quantity, spelling: str) -> Quantity:
     """Convert to a unit named by one of our spellings (``bar``, ``gpm``, ``°F``…)."""
     if spelling not in SPELLINGS:
         raise UnitInputError(f"'{spelling}' is not a unit fieldkit knows; try {_suggest(spelling)}")
@@ -655,7 +667,7 @@ def _decimals(magnitude: float, significant: int) -> int:
 
 
 def format_value(
-    q: pint.Quantity,
+    q: Quantity,
     system: DisplaySystem = METRIC,
     *,
     kind: Kind | None = None,
@@ -677,7 +689,7 @@ def format_value(
 
 @lru_cache(maxsize=None)
 def _si_unit(kind: Kind) -> pint.Unit:
-    return Q_(1.0, unit(CANONICAL_UNIT[kind])).to_base_units().units
+    return ureg.Unit(Q_(1.0, unit(CANONICAL_UNIT[kind])).to_base_units().units)
 
 
 def display_scale(source: pint.Unit, kind: Kind, system: DisplaySystem = METRIC) -> tuple[float, float, str]:
@@ -718,7 +730,7 @@ def _with_unit(mag: float, spelling: str, significant: int, exact: bool) -> str:
     return f"{number}{sep}{spelling}"
 
 
-def _plain(q: pint.Quantity) -> str:
+def _plain(q: Quantity) -> str:
     try:
         return format_value(q)
     except Exception:

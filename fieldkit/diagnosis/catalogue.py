@@ -6,6 +6,7 @@ their text, severity and source, and say which roles and operating conditions ra
 
 from __future__ import annotations
 
+from collections.abc import Sequence
 from enum import StrEnum
 from pathlib import Path
 from typing import Annotated
@@ -90,7 +91,7 @@ class _CautionFile(Strict):
     caution: list[Caution] = Field(min_length=1)
 
 
-def _unique(items: list[Fault] | list[Caution], path: Path, text: str, table: str) -> None:
+def _unique(items: Sequence[Fault | Caution], path: Path, text: str, table: str) -> None:
     seen: set[str] = set()
     lines = key_lines(text)
     for i, item in enumerate(items):

@@ -275,7 +275,7 @@ class Evaluator:
         disp = self.parameter(scope, "pump_displacement")
         try:
             flow = self.latest(scope, Role.PUMP_FLOW, states)
-            same = (flow.reading.condition.function,)
+            same: tuple[FunctionState, ...] = (flow.reading.condition.function,)
         except Missing:
             same = states
         try:
@@ -536,7 +536,7 @@ class Evaluator:
     def run(
         self, rules: list[Rule], hypotheses: list[Hypothesis]
     ) -> tuple[list[Finding], list[tuple[Rule, Scope, Finding]]]:
-        self.missing_roles: dict[str, list[tuple[Role, FunctionState | None]]] = {}
+        self.missing_roles = {}
         findings: list[Finding] = []
         pairs: list[tuple[Rule, Scope, Finding]] = []
         for rule in rules:

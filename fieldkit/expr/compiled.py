@@ -7,12 +7,10 @@ from collections.abc import Mapping
 from numbers import Real
 from typing import Any
 
-import pint
-
 from fieldkit.expr.compiler import Fn, is_temperature
-from fieldkit.expr.dims import BOOLEAN, TempTag, ValueType, describe, kind_for, to_quantity
+from fieldkit.expr.dims import BOOLEAN, Dim, TempTag, ValueType, describe, kind_for, to_quantity
 from fieldkit.expr.errors import ExprError
-from fieldkit.units import Kind
+from fieldkit.units import Kind, Quantity
 
 # Central-difference step for sensitivity coefficients: a small fraction of the input's
 # standard uncertainty, never below float resolution of the input itself.
@@ -133,10 +131,10 @@ class Compiled:
             raise ExprError("the uncertainty is not a finite number (overflow)", self.source, 0)
         return value, math.sqrt(variance)
 
-    def to_quantity(self, value: float) -> pint.Quantity:
+    def to_quantity(self, value: float) -> Quantity:
         """A numeric result as a pint quantity in SI base units (a temperature difference in
         delta_degC), for messages and display."""
-        if self.result is BOOLEAN:
+        if not isinstance(self.result, Dim):
             raise ExprError("a true/false result has no unit", self.source, 0)
         return to_quantity(value, self.result, self.temperature_difference)
 

@@ -19,6 +19,7 @@ from fieldkit.errors import FieldkitError
 from fieldkit.expr.dims import (
     BOOLEAN,
     DIMENSIONLESS,
+    Dim,
     TempTag,
     ValueType,
     describe,
@@ -132,11 +133,13 @@ class Compiler:
     def what(self, node: Node, typed: Typed) -> str:
         return f"{self.quote(node)} ({describe(typed.type)})"
 
-    def need_number(self, node: Node, typed: Typed, role: str) -> None:
-        if typed.type is BOOLEAN:
+    def need_number(self, node: Node, typed: Typed, role: str) -> Dim:
+        """The dimension of a number; a true/false value here is an error."""
+        if not isinstance(typed.type, Dim):
             raise self.error(
                 f"{role} needs numbers, but {self.quote(node)} is a true/false value", node.start
             )
+        return typed.type
 
     def need_truth(self, node: Node, typed: Typed, role: str) -> None:
         if typed.type is not BOOLEAN:
@@ -229,7 +232,7 @@ class Compiler:
 
     def power(self, node: Power) -> Typed:
         base = self.compile(node.base)
-        self.need_number(node.base, base, "'^'")
+        base_dim = self.need_number(node.base, base, "'^'")
         n = node.exponent
         if n == 0:  # still evaluate the base, so its own errors (a / 0) are not hidden
             return self.fold([base], Typed(DIMENSIONLESS, _one_after(base.fn)), node.op_at)
@@ -246,7 +249,7 @@ class Compiler:
                 raise ExprError("the power is too large to compute", source, at) from None
 
         tag = base.tag if n == 1 else None
-        return self.fold([base], Typed(normalise(base.type**n), power, tag), node.op_at)
+        return self.fold([base], Typed(normalise(base_dim**n), power, tag), node.op_at)
 
     def additive(self, node: Chain) -> Typed:
         first = self.compile(node.first)
@@ -279,15 +282,15 @@ class Compiler:
 
     def product(self, node: Chain) -> Typed:
         first = self.compile(node.first)
-        self.need_number(node.first, first, f"'{node.steps[0].op}'")
-        parts, dim = [first], first.type
+        dim = self.need_number(node.first, first, f"'{node.steps[0].op}'")
+        parts = [first]
         links: list[tuple[bool, Fn, int, str]] = []
         for step in node.steps:
             right = self.compile(step.operand)
-            self.need_number(step.operand, right, f"'{step.op}'")
+            right_dim = self.need_number(step.operand, right, f"'{step.op}'")
             if step.op == "/" and right.const == 0.0:
                 raise self.error("division by zero", step.at)
-            dim = normalise(dim * right.type if step.op == "*" else dim / right.type)
+            dim = normalise(dim * right_dim if step.op == "*" else dim / right_dim)
             parts.append(right)
             links.append((step.op == "*", right.fn, step.at, self.quote(step.operand)))
         tag = None

@@ -16,7 +16,7 @@ import pint
 from pint.util import UnitsContainer
 
 from fieldkit.expr.errors import ExprError
-from fieldkit.units import CANONICAL_UNIT, Q_, SPELLINGS, Kind, unit
+from fieldkit.units import CANONICAL_UNIT, Q_, SPELLINGS, Kind, Quantity, unit
 
 Dim: TypeAlias = UnitsContainer
 DIMENSIONLESS: Dim = UnitsContainer()
@@ -102,9 +102,9 @@ def kind_for(dim: ValueType) -> Kind | None:
 
 def describe(dim: ValueType) -> str:
     """'a pressure', 'an area', 'a true/false value', or the pint dimension for the rest."""
-    if dim is BOOLEAN:
+    if not isinstance(dim, Dim):
         return "a true/false value"
-    name = _KIND_NAMES.get(dim)  # type: ignore[call-overload]
+    name = _KIND_NAMES.get(dim)
     if name is None:
         return f"a quantity of dimension {dim}"
     return ("an " if name[0] in "aeiou" else "a ") + name
@@ -150,7 +150,7 @@ def base_unit(dim: Dim) -> pint.Unit:
     return unit(" * ".join(parts) if parts else "dimensionless")
 
 
-def to_quantity(value: float, dim: Dim, temperature_difference: bool = False) -> pint.Quantity:
+def to_quantity(value: float, dim: Dim, temperature_difference: bool = False) -> Quantity:
     """A result float back as a pint quantity, for messages and display: in the canonical unit
     of its kind (bar, L/min, °C, %) when it has one, else in SI base units.
 
@@ -164,7 +164,7 @@ def to_quantity(value: float, dim: Dim, temperature_difference: bool = False) ->
     return quantity if kind is None else quantity.to(unit(CANONICAL_UNIT[kind]))
 
 
-def si_value(q: pint.Quantity) -> float:
+def si_value(q: Quantity) -> float:
     """The float an expression expects for a quantity: its magnitude in SI base units
     (temperatures absolute, in kelvin; ratios as fractions; speeds in rad/s)."""
     value = float(q.to_base_units().magnitude)

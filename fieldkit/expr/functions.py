@@ -121,9 +121,17 @@ def _sqrt(x: float) -> float:
 def _sqrt_result(types: tuple[ValueType, ...]) -> Dim:
     (dim,) = types
     assert isinstance(dim, Dim)
-    if any(power % 2 for _, power in dim.items()):
+    powers = {name: _whole(power) for name, power in dim.items()}
+    if any(power % 2 for power in powers.values()):
         raise ValueError(f"the square root of a quantity of dimension {dim} has no unit fieldkit uses")
-    return Dim({name: power // 2 for name, power in dim.items()})
+    return Dim({name: power // 2 for name, power in powers.items()})
+
+
+def _whole(power: object) -> int:
+    """A dimension's exponent as a whole number (the units fieldkit uses have no others)."""
+    if isinstance(power, int) or (isinstance(power, float) and power.is_integer()):
+        return int(power)
+    raise ValueError(f"a dimension with the exponent {power} has no unit fieldkit uses")
 
 
 BUILTIN_FUNCTIONS: Mapping[str, FunctionSpec] = MappingProxyType(

@@ -4,10 +4,10 @@ Validated by pydantic; the same models validate the data files people edit (prof
 templates) and the visits fieldkit saves, so a file is right exactly when the program can use it.
 """
 
+from fieldkit.model.condition import ConditionSpec
 from fieldkit.model.profile import (
     Circuit,
     CircuitKind,
-    ConditionSpec,
     ExpectedRange,
     MachineProfile,
     TestPoint,

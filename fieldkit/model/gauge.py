@@ -6,12 +6,11 @@ so it is part of every reading's record.
 
 from __future__ import annotations
 
-import pint
 from pydantic import Field, model_validator
 
 from fieldkit.model.base import Strict
 from fieldkit.model.quantity import AnyQuantity
-from fieldkit.units import Kind, kind_of
+from fieldkit.units import Kind, Quantity, kind_of
 
 #: EN 837-1 accuracy classes for Bourdon-tube pressure gauges (limit of error, % of span).
 EN837_CLASSES = (0.1, 0.25, 0.6, 1.0, 1.6, 2.5, 4.0)
@@ -48,6 +47,7 @@ class Gauge(Strict):
         return kind_of(self.full_scale)
 
     @property
-    def span(self) -> pint.Quantity:
+    def span(self) -> Quantity:
         start = self.scale_start if self.scale_start is not None else 0 * self.full_scale
-        return self.full_scale - start
+        span: Quantity = self.full_scale - start
+        return span

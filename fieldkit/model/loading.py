@@ -286,7 +286,7 @@ def _merge_circuit(
         circuit.get("test_points", []) if isinstance(circuit.get("test_points"), list) else []
     ):
         for k, rng in enumerate(tp.get("expected", []) if isinstance(tp, dict) else []):
-            loc = ("circuits", index, "test_points", j, "expected", k)
+            loc: tuple[str | int, ...] = ("circuits", index, "test_points", j, "expected", k)
             where[id(rng)] = (
                 path,
                 {b: line_for(lines, (*loc, b)) for b in ("low", "high")},

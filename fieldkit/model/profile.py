@@ -10,7 +10,6 @@ from __future__ import annotations
 from enum import StrEnum
 from typing import Any, Literal
 
-import pint
 from pydantic import Field, field_serializer, field_validator, model_validator
 
 from fieldkit.model.base import SCHEMA_VERSION, Strict
@@ -19,7 +18,7 @@ from fieldkit.model.parameters import PARAMETERS
 from fieldkit.model.parts import Part
 from fieldkit.model.quantity import AnyQuantity, Pressure, Speed, Temperature, parse_for_kind, quantity_text
 from fieldkit.model.roles import ROLES, Role
-from fieldkit.units import Kind, kind_of
+from fieldkit.units import Kind, Quantity, kind_of
 
 ID_PATTERN = r"^[a-z0-9][a-z0-9_\-]*$"
 TP_ID_PATTERN = r"^[a-z0-9][a-z0-9_\-]*(\.[a-z0-9][a-z0-9_\-]*)?$"
@@ -187,13 +186,13 @@ class Circuit(Strict):
         return self
 
     @field_serializer("parameters")
-    def _write_parameters(self, value: dict[str, pint.Quantity]) -> dict[str, str]:
+    def _write_parameters(self, value: dict[str, Quantity]) -> dict[str, str]:
         return {name: quantity_text(q) for name, q in value.items()}
 
     @field_validator("parameters")
     @classmethod
-    def _known_parameters(cls, value: dict[str, Any]) -> dict[str, pint.Quantity]:
-        out: dict[str, pint.Quantity] = {}
+    def _known_parameters(cls, value: dict[str, Any]) -> dict[str, Quantity]:
+        out: dict[str, Quantity] = {}
         for name, raw in value.items():
             if name not in PARAMETERS:
                 raise ValueError(f"unknown parameter '{name}'; known: {', '.join(sorted(PARAMETERS))}")

@@ -22,6 +22,7 @@ from fieldkit.units import (
     SPELLINGS,
     Kind,
     PressureReference,
+    Quantity,
     format_value,
     kind_of,
     parse_value,
@@ -37,7 +38,7 @@ def _spelling_for(units: pint.Unit) -> str | None:
     return None
 
 
-def quantity_text(q: pint.Quantity) -> str:
+def quantity_text(q: Quantity) -> str:
     """Exact text for a quantity, in the unit it was entered in when we know a spelling for it."""
     spelling = _spelling_for(q.units)
     return (
@@ -47,7 +48,7 @@ def quantity_text(q: pint.Quantity) -> str:
     )
 
 
-def _gauge_only(text: str, kind: Kind | None) -> pint.Quantity:
+def _gauge_only(text: str, kind: Kind | None) -> Quantity:
     """Parse a value for a field that has no reference of its own (limits, settings, scales):
     they are gauge pressures, so '0.8 bar abs' here is refused rather than silently read as gauge."""
     parsed = parse_value(text, kind)
@@ -59,8 +60,8 @@ def _gauge_only(text: str, kind: Kind | None) -> pint.Quantity:
     return parsed.quantity
 
 
-def _parser(kind: Kind) -> Callable[[Any], pint.Quantity]:
-    def parse(value: Any) -> pint.Quantity:
+def _parser(kind: Kind) -> Callable[[Any], Quantity]:
+    def parse(value: Any) -> Quantity:
         if isinstance(value, pint.Quantity):
             if kind_of(value) is not kind and value.dimensionality != Q_(1, unit_for(kind)).dimensionality:
                 raise ValueError(f"{value:~P} is not a {kind.value}")
@@ -84,7 +85,7 @@ def unit_for(kind: Kind) -> pint.Unit:
 
 def _typed(kind: Kind) -> Any:
     return Annotated[
-        pint.Quantity,
+        Quantity,
         BeforeValidator(_parser(kind)),
         PlainSerializer(quantity_text, return_type=str),
         WithJsonSchema(
@@ -118,12 +119,12 @@ TYPED_BY_KIND: dict[Kind, Any] = {
 }
 
 
-def parse_for_kind(kind: Kind, value: Any) -> pint.Quantity:
+def parse_for_kind(kind: Kind, value: Any) -> Quantity:
     """Validate one value of a kind outside a model (circuit parameters are a name → value table)."""
     return _parser(kind)(value)
 
 
-def quantity_or_error(value: Any, what: str = "value") -> pint.Quantity:
+def quantity_or_error(value: Any, what: str = "value") -> Quantity:
     """Any kind of quantity (a gauge's scale, a reading before its test point is known)."""
     if isinstance(value, pint.Quantity):
         kind_of(value)  # refuses quantities of no kind we use
@@ -137,7 +138,7 @@ def quantity_or_error(value: Any, what: str = "value") -> pint.Quantity:
 
 
 AnyQuantity = Annotated[
-    pint.Quantity,
+    Quantity,
     BeforeValidator(quantity_or_error),
     PlainSerializer(quantity_text, return_type=str),
     WithJsonSchema({"type": "string", "description": "a value with its unit, e.g. '22 bar'"}),

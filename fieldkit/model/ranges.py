@@ -19,11 +19,9 @@ from collections.abc import Iterable, Mapping
 from dataclasses import dataclass
 from functools import lru_cache
 
-import pint
-
 from fieldkit.expr import Compiled, ExprError, compile_expression, si_value
 from fieldkit.model.parameters import PARAMETERS
-from fieldkit.units import METRIC, Kind, format_si, format_value
+from fieldkit.units import METRIC, Kind, Quantity, format_si, format_value
 
 #: Machine-wide figures a range may use besides the circuit's parameters.
 MACHINE_FIGURES: dict[str, tuple[Kind, str]] = {
@@ -62,7 +60,7 @@ def weakest(marks: Iterable[str]) -> str:
 class Figure:
     """One figure a range may use: its value and where it came from."""
 
-    value: pint.Quantity
+    value: Quantity
     kind: Kind
     label: str
     typical_source: str = ""  # empty when the maker gave it

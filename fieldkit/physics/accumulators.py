@@ -11,10 +11,8 @@ oil and gas must be released before any line is opened (WorkSafeNB hazard alert,
 
 from __future__ import annotations
 
-import pint
-
 from fieldkit.physics.common import Check, Level, OutOfRangeError, Ratio, fraction, out, percent, shown, si
-from fieldkit.units import Kind, PressureReference, to_absolute
+from fieldkit.units import Kind, PressureReference, Quantity, to_absolute
 
 #: Gas precharge ≈ 90 % of the minimum working pressure for energy storage (from memory).
 PRECHARGE_RATIO = 0.9
@@ -24,7 +22,7 @@ ISOTHERMAL = 1.0
 ADIABATIC_NITROGEN = 1.4
 
 
-def _absolute(gauge: pint.Quantity, what: str, barometric: pint.Quantity | None) -> float:
+def _absolute(gauge: Quantity, what: str, barometric: Quantity | None) -> float:
     """Absolute pressure in Pa of a gauge reading; a reading below vacuum is refused."""
     si(gauge, Kind.PRESSURE, what)
     if barometric is not None:
@@ -35,7 +33,7 @@ def _absolute(gauge: pint.Quantity, what: str, barometric: pint.Quantity | None)
     return value
 
 
-def expected_precharge(min_working_pressure: pint.Quantity, ratio: Ratio = PRECHARGE_RATIO) -> pint.Quantity:
+def expected_precharge(min_working_pressure: Quantity, ratio: Ratio = PRECHARGE_RATIO) -> Quantity:
     """Gas precharge for energy storage: about 0.9 × the minimum working pressure (from memory).
 
     Just below the minimum working pressure, so a little oil stays in the shell when the
@@ -48,14 +46,14 @@ def expected_precharge(min_working_pressure: pint.Quantity, ratio: Ratio = PRECH
     return out(p_min * fraction(ratio, "precharge ratio"), Kind.PRESSURE)
 
 
-def precharge_ratio(precharge: pint.Quantity, min_working_pressure: pint.Quantity) -> pint.Quantity:
+def precharge_ratio(precharge: Quantity, min_working_pressure: Quantity) -> Quantity:
     """Measured precharge as a share of the minimum working pressure (gauge readings)."""
     p0 = si(precharge, Kind.PRESSURE, "gas precharge", non_negative=True)
     p_min = si(min_working_pressure, Kind.PRESSURE, "minimum working pressure", positive=True)
     return percent(p0 / p_min)
 
 
-def check_precharge(precharge: pint.Quantity, min_working_pressure: pint.Quantity) -> Check:
+def check_precharge(precharge: Quantity, min_working_pressure: Quantity) -> Check:
     """Whether a measured precharge lets the accumulator work down to the minimum pressure.
 
     At or above the minimum working pressure the accumulator is empty before the system
@@ -77,13 +75,13 @@ def check_precharge(precharge: pint.Quantity, min_working_pressure: pint.Quantit
 
 
 def delivered_volume(
-    size: pint.Quantity,
-    precharge: pint.Quantity,
-    min_pressure: pint.Quantity,
-    max_pressure: pint.Quantity,
+    size: Quantity,
+    precharge: Quantity,
+    min_pressure: Quantity,
+    max_pressure: Quantity,
     exponent: float = ISOTHERMAL,
-    barometric: pint.Quantity | None = None,
-) -> pint.Quantity:
+    barometric: Quantity | None = None,
+) -> Quantity:
     """Oil an accumulator gives out as the pressure falls from ``max_pressure`` to ``min_pressure``.
 
     Boyle's law, polytropic: p0 · V0ⁿ = p · Vⁿ, so the gas fills V = V0 · (p0 / p)^(1/n) and
@@ -105,6 +103,6 @@ def delivered_volume(
     inverse = 1.0 / exponent
 
     def gas_volume(p: float) -> float:
-        return v0 * (p0 / max(p, p0)) ** inverse
+        return v0 * float((p0 / max(p, p0)) ** inverse)
 
     return out(gas_volume(p_low) - gas_volume(p_high), Kind.VOLUME)

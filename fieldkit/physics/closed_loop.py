@@ -10,13 +10,11 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-import pint
-
 from fieldkit.physics.common import OutOfRangeError, Ratio, fraction, out, shown, si
-from fieldkit.units import Kind
+from fieldkit.units import Kind, Quantity
 
 
-def net_charge_pressure(charge_pressure: pint.Quantity, case_pressure: pint.Quantity) -> pint.Quantity:
+def net_charge_pressure(charge_pressure: Quantity, case_pressure: Quantity) -> Quantity:
     """Charge pressure above case pressure.
 
     The charge relief and the pump's control work against the case (the charge relief commonly
@@ -34,15 +32,15 @@ def net_charge_pressure(charge_pressure: pint.Quantity, case_pressure: pint.Quan
 class ChargePressures:
     """Expected charge pressure gauge readings in neutral and in stroke."""
 
-    neutral: pint.Quantity
-    in_stroke: pint.Quantity
+    neutral: Quantity
+    in_stroke: Quantity
     in_stroke_governed_by: str  # "flushing relief" or "charge relief"
 
 
 def expected_charge_pressure(
-    charge_relief_setting: pint.Quantity,
-    flushing_relief_setting: pint.Quantity | None = None,
-    case_pressure: pint.Quantity | None = None,
+    charge_relief_setting: Quantity,
+    flushing_relief_setting: Quantity | None = None,
+    case_pressure: Quantity | None = None,
 ) -> ChargePressures:
     """Charge pressure a healthy loop should show in neutral and in stroke.
 
@@ -74,9 +72,9 @@ def expected_charge_pressure(
 class ChargeBudget:
     """Charge pump supply against what the loop loses."""
 
-    supply: pint.Quantity
-    demand: pint.Quantity
-    surplus: pint.Quantity  # negative: a deficit
+    supply: Quantity
+    demand: Quantity
+    surplus: Quantity  # negative: a deficit
     keeps_loop_full: bool
 
     @property
@@ -92,12 +90,12 @@ class ChargeBudget:
 
 
 def charge_flow_budget(
-    charge_displacement: pint.Quantity,
-    speed: pint.Quantity,
+    charge_displacement: Quantity,
+    speed: Quantity,
     charge_volumetric_efficiency: Ratio,
-    pump_case_drain: pint.Quantity,
-    motor_case_drain: pint.Quantity,
-    flushing_flow: pint.Quantity | None = None,
+    pump_case_drain: Quantity,
+    motor_case_drain: Quantity,
+    flushing_flow: Quantity | None = None,
     flushing_through_motor_case: bool = False,
 ) -> ChargeBudget:
     """Whether the charge pump can keep the loop full: V · n · ηv against the case drains plus flushing.
@@ -129,8 +127,8 @@ def charge_flow_budget(
 
 
 def cross_port_stall_reading(
-    setting: pint.Quantity, low_side_pressure: pint.Quantity, convention: str = "differential"
-) -> pint.Quantity:
+    setting: Quantity, low_side_pressure: Quantity, convention: str = "differential"
+) -> Quantity:
     """What a loop port gauge reads with the drive stalled against its cross-port relief.
 
     The cross-port relief discharges from the high side into the low side, which the charge

@@ -27,7 +27,7 @@ from typing import Any
 import pint
 
 from fieldkit.errors import DimensionError, FieldkitError
-from fieldkit.units import CANONICAL_UNIT, Q_, Kind, require, unit, ureg
+from fieldkit.units import CANONICAL_UNIT, Q_, Kind, Quantity, require, unit, ureg
 
 
 class OutOfRangeError(FieldkitError, ValueError):
@@ -116,7 +116,7 @@ def si(q: Any, kind: Kind, what: str, *, positive: bool = False, non_negative: b
     return value
 
 
-def out(value_si: float, kind: Kind) -> pint.Quantity:
+def out(value_si: float, kind: Kind) -> Quantity:
     """A result in the kind's canonical unit (bar, L/min, kW…), the unit ranges and rules compare in."""
     scale, canonical = _from_si(kind)
     return Q_(value_si * scale, canonical)
@@ -150,13 +150,13 @@ def kelvin(q: Any, what: str) -> float:
     return value
 
 
-def celsius(value_kelvin: float) -> pint.Quantity:
+def celsius(value_kelvin: float) -> Quantity:
     """A temperature result in °C, the canonical temperature unit."""
     return Q_(value_kelvin - KELVIN_OFFSET, unit("degC"))
 
 
 #: A ratio as callers give it: a plain number from 0 to 1, or a dimensionless quantity (``Q_(90, "%")``).
-Ratio = float | pint.Quantity
+Ratio = float | Quantity
 
 
 def fraction(x: Any, what: str) -> float:
@@ -179,7 +179,7 @@ def fraction(x: Any, what: str) -> float:
     return value
 
 
-def percent(value: float) -> pint.Quantity:
+def percent(value: float) -> Quantity:
     """A ratio result in percent, the canonical ratio unit."""
     return out(value, Kind.RATIO)
 

@@ -12,10 +12,8 @@ import math
 from dataclasses import dataclass
 from enum import StrEnum
 
-import pint
-
 from fieldkit.physics.common import OutOfRangeError, out, shown, si
-from fieldkit.units import Kind
+from fieldkit.units import Kind, Quantity
 
 
 class Stroke(StrEnum):
@@ -28,7 +26,7 @@ class Side(StrEnum):
     ROD = "rod"
 
 
-def _areas(bore: pint.Quantity, rod: pint.Quantity) -> tuple[float, float]:
+def _areas(bore: Quantity, rod: Quantity) -> tuple[float, float]:
     """Cap and annulus areas in m² after checking that the rod fits inside the bore."""
     d = si(bore, Kind.LENGTH, "bore", positive=True)
     r = si(rod, Kind.LENGTH, "rod diameter", positive=True)
@@ -52,24 +50,24 @@ def _side(side: Side | str) -> Side:
         raise OutOfRangeError(f"side must be 'cap' or 'rod'; got {side!r}") from None
 
 
-def bore_area(bore: pint.Quantity) -> pint.Quantity:
+def bore_area(bore: Quantity) -> Quantity:
     """Full piston area on the cap side, A = π · D² / 4."""
     d = si(bore, Kind.LENGTH, "bore", positive=True)
     return out(math.pi / 4.0 * d * d, Kind.AREA)
 
 
-def annulus_area(bore: pint.Quantity, rod: pint.Quantity) -> pint.Quantity:
+def annulus_area(bore: Quantity, rod: Quantity) -> Quantity:
     """Rod-side area, A = π · (D² − d²) / 4: the piston area less what the rod covers."""
     return out(_areas(bore, rod)[1], Kind.AREA)
 
 
 def cylinder_force(
-    pressure: pint.Quantity,
-    bore: pint.Quantity,
-    rod: pint.Quantity,
+    pressure: Quantity,
+    bore: Quantity,
+    rod: Quantity,
     stroke: Stroke | str = Stroke.EXTEND,
-    back_pressure: pint.Quantity | None = None,
-) -> pint.Quantity:
+    back_pressure: Quantity | None = None,
+) -> Quantity:
     """Net force from the pressures, F = p · A_driven − p_back · A_other.
 
     ``pressure`` acts on the side being fed; ``back_pressure`` is what the meter-out side holds
@@ -84,8 +82,8 @@ def cylinder_force(
 
 
 def cylinder_speed(
-    flow: pint.Quantity, bore: pint.Quantity, rod: pint.Quantity, stroke: Stroke | str = Stroke.EXTEND
-) -> pint.Quantity:
+    flow: Quantity, bore: Quantity, rod: Quantity, stroke: Stroke | str = Stroke.EXTEND
+) -> Quantity:
     """Piston speed for the flow into the fed side, v = Q / A (leak-free seals assumed)."""
     cap, ann = _areas(bore, rod)
     q = si(flow, Kind.FLOW, "flow", non_negative=True)
@@ -93,8 +91,8 @@ def cylinder_speed(
 
 
 def flow_for_speed(
-    speed: pint.Quantity, bore: pint.Quantity, rod: pint.Quantity, stroke: Stroke | str = Stroke.EXTEND
-) -> pint.Quantity:
+    speed: Quantity, bore: Quantity, rod: Quantity, stroke: Stroke | str = Stroke.EXTEND
+) -> Quantity:
     """Flow the fed side needs for a piston speed, Q = v · A."""
     cap, ann = _areas(bore, rod)
     v = si(speed, Kind.VELOCITY, "piston speed", non_negative=True)
@@ -102,8 +100,8 @@ def flow_for_speed(
 
 
 def return_flow(
-    flow: pint.Quantity, bore: pint.Quantity, rod: pint.Quantity, stroke: Stroke | str = Stroke.EXTEND
-) -> pint.Quantity:
+    flow: Quantity, bore: Quantity, rod: Quantity, stroke: Stroke | str = Stroke.EXTEND
+) -> Quantity:
     """Flow leaving the other side, Q_out = Q_in · A_out / A_in.
 
     On retraction the cap side returns more than the pump delivers (by the area ratio), which
@@ -119,11 +117,11 @@ def return_flow(
 class Motion:
     """Speed and force of a cylinder stroke."""
 
-    speed: pint.Quantity
-    force: pint.Quantity
+    speed: Quantity
+    force: Quantity
 
 
-def regenerative_extension(pressure: pint.Quantity, flow: pint.Quantity, rod: pint.Quantity) -> Motion:
+def regenerative_extension(pressure: Quantity, flow: Quantity, rod: Quantity) -> Motion:
     """Extension with the rod side joined to the cap side: v = Q / A_rod, F = p · A_rod.
 
     The rod-side oil joins the pump flow, so only the rod's own volume has to be supplied: the
@@ -138,8 +136,8 @@ def regenerative_extension(pressure: pint.Quantity, flow: pint.Quantity, rod: pi
 
 
 def leakage_from_drift(
-    drift_rate: pint.Quantity, bore: pint.Quantity, rod: pint.Quantity, side: Side | str = Side.CAP
-) -> pint.Quantity:
+    drift_rate: Quantity, bore: Quantity, rod: Quantity, side: Side | str = Side.CAP
+) -> Quantity:
     """Leakage that would let a loaded cylinder drift at the measured rate, Q_leak = v · A.
 
     ``side`` is the side holding the load and losing oil (the cap side of a boom held up, the
@@ -152,9 +150,7 @@ def leakage_from_drift(
     return out(v * (cap if _side(side) is Side.CAP else ann), Kind.FLOW)
 
 
-def intensified_rod_pressure(
-    cap_pressure: pint.Quantity, bore: pint.Quantity, rod: pint.Quantity
-) -> pint.Quantity:
+def intensified_rod_pressure(cap_pressure: Quantity, bore: Quantity, rod: Quantity) -> Quantity:
     """Rod-side pressure when the cap side is pressurised and the rod side is blocked:
     p_rod = p_cap · A_cap / A_annulus.
 

@@ -12,10 +12,8 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-import pint
-
 from fieldkit.physics.common import Check, Level, OutOfRangeError, celsius, kelvin, out, shown, si
-from fieldkit.units import Q_, Kind
+from fieldkit.units import Q_, Kind, Quantity
 
 #: Mineral hydraulic oil density, kg/m³: 850–890 is the usual range; 870 is mid-range (from memory).
 OIL_DENSITY = Q_(870.0, "kilogram / meter ** 3")
@@ -50,13 +48,13 @@ class ViscosityCurve:
 
     def cst_at_kelvin(self, t_kelvin: float) -> float:
         """Viscosity in cSt at a temperature in kelvin: the float form for hot loops."""
-        return 10.0 ** (10.0 ** (self.a - self.b * math.log10(t_kelvin))) - _WALTHER_SHIFT
+        return float(10.0 ** (10.0 ** (self.a - self.b * math.log10(t_kelvin)))) - _WALTHER_SHIFT
 
-    def at(self, temperature: pint.Quantity) -> pint.Quantity:
+    def at(self, temperature: Quantity) -> Quantity:
         """Kinematic viscosity at a temperature."""
         return out(self.cst_at_kelvin(kelvin(temperature, "oil temperature")) * _CST, Kind.VISCOSITY)
 
-    def temperature_for(self, viscosity: pint.Quantity) -> pint.Quantity:
+    def temperature_for(self, viscosity: Quantity) -> Quantity:
         """The temperature at which the oil reaches a viscosity, e.g. how warm it must be to
         fall below a pump's cold-start limit."""
         nu = si(viscosity, Kind.VISCOSITY, "viscosity", positive=True) / _CST
@@ -71,10 +69,10 @@ def _loglog(nu_cst: float) -> float:
 
 
 def viscosity_curve(
-    viscosity_1: pint.Quantity,
-    temperature_1: pint.Quantity,
-    viscosity_2: pint.Quantity,
-    temperature_2: pint.Quantity,
+    viscosity_1: Quantity,
+    temperature_1: Quantity,
+    viscosity_2: Quantity,
+    temperature_2: Quantity,
 ) -> ViscosityCurve:
     """Fit the ASTM D341 line through two points, usually the data sheet's 40 °C and 100 °C values."""
     t1, t2 = kelvin(temperature_1, "first temperature"), kelvin(temperature_2, "second temperature")
@@ -96,8 +94,8 @@ class Grade:
     """An ISO 3448 viscosity grade: its 40 °C midpoint and a typical 100 °C value at VI ≈ 100."""
 
     name: str
-    at_40c: pint.Quantity
-    at_100c: pint.Quantity
+    at_40c: Quantity
+    at_100c: Quantity
     note: str
     curve: ViscosityCurve
 
@@ -136,11 +134,11 @@ def grade(name: str) -> Grade:
 
 
 def normalised_leakage(
-    measured: pint.Quantity,
-    oil_temperature: pint.Quantity,
-    reference_temperature: pint.Quantity,
+    measured: Quantity,
+    oil_temperature: Quantity,
+    reference_temperature: Quantity,
     curve: ViscosityCurve,
-) -> pint.Quantity:
+) -> Quantity:
     """The leakage the same clearances would pass at the reference temperature.
 
     Leakage through the tight clearances of a pump or valve is laminar (Hagen–Poiseuille,
@@ -160,10 +158,10 @@ class ViscosityWindow:
     """A pump's viscosity limits. The defaults are typical figures (from memory / common
     practice); a machine profile should pass its maker's own."""
 
-    optimum_low: pint.Quantity = OPTIMUM_VISCOSITY[0]
-    optimum_high: pint.Quantity = OPTIMUM_VISCOSITY[1]
-    minimum: pint.Quantity = MIN_VISCOSITY
-    cold_start_max: pint.Quantity = COLD_START_MAX_VISCOSITY
+    optimum_low: Quantity = OPTIMUM_VISCOSITY[0]
+    optimum_high: Quantity = OPTIMUM_VISCOSITY[1]
+    minimum: Quantity = MIN_VISCOSITY
+    cold_start_max: Quantity = COLD_START_MAX_VISCOSITY
 
     def __post_init__(self) -> None:
         bounds = [
@@ -184,7 +182,7 @@ class ViscosityWindow:
 DEFAULT_WINDOW = ViscosityWindow()
 
 
-def check_viscosity(viscosity: pint.Quantity, window: ViscosityWindow = DEFAULT_WINDOW) -> Check:
+def check_viscosity(viscosity: Quantity, window: ViscosityWindow = DEFAULT_WINDOW) -> Check:
     """Whether the oil is thin or thick enough for the pump.
 
     Below the minimum the lubricating film under the pistons and plates is too thin (wear,
@@ -219,9 +217,7 @@ def check_viscosity(viscosity: pint.Quantity, window: ViscosityWindow = DEFAULT_
     return Check(Level.OK, f"{oil} is within the optimum viscosity")
 
 
-def check_test_temperature(
-    temperature: pint.Quantity, minimum: pint.Quantity = MIN_TEST_TEMPERATURE
-) -> Check:
+def check_test_temperature(temperature: Quantity, minimum: Quantity = MIN_TEST_TEMPERATURE) -> Check:
     """Whether the oil is warm enough for a leakage or efficiency test to mean anything.
 
     Cold oil is thick and leaks little, so a worn pump can pass a cold test; readings are
@@ -237,7 +233,7 @@ def check_test_temperature(
     return Check(Level.OK, f"oil at {shown(temperature)} is warm enough to test")
 
 
-def viscosity_at(oil: Grade | ViscosityCurve, temperature: pint.Quantity) -> pint.Quantity:
+def viscosity_at(oil: Grade | ViscosityCurve, temperature: Quantity) -> Quantity:
     """Viscosity of a grade or a fitted curve at a temperature."""
     curve = oil.curve if isinstance(oil, Grade) else oil
     return curve.at(temperature)

@@ -11,10 +11,8 @@ from __future__ import annotations
 
 import math
 
-import pint
-
 from fieldkit.physics.common import Check, Level, OutOfRangeError, out, shown, si
-from fieldkit.units import Q_, Kind, unit
+from fieldkit.units import Q_, Kind, Quantity, unit
 
 #: EN 837-1 accuracy classes: limit of error in % of span, anywhere on the scale.
 ACCURACY_CLASSES: tuple[float, ...] = (0.1, 0.25, 0.6, 1.0, 1.6, 2.5, 4.0)
@@ -32,7 +30,7 @@ _SQRT3 = math.sqrt(3.0)
 _SQRT2 = math.sqrt(2.0)
 
 
-def _span(full_scale: pint.Quantity, scale_start: pint.Quantity | None) -> tuple[float, float]:
+def _span(full_scale: Quantity, scale_start: Quantity | None) -> tuple[float, float]:
     top = si(full_scale, Kind.PRESSURE, "gauge full scale")
     start = 0.0 if scale_start is None else si(scale_start, Kind.PRESSURE, "gauge scale start")
     if top <= start:
@@ -65,8 +63,8 @@ def _percent_of_span(accuracy_class: float) -> float:
 
 
 def limit_of_error(
-    accuracy_class: float, full_scale: pint.Quantity, scale_start: pint.Quantity | None = None
-) -> pint.Quantity:
+    accuracy_class: float, full_scale: Quantity, scale_start: Quantity | None = None
+) -> Quantity:
     """EN 837-1 limit of error: class % of the span (full scale − scale start).
 
     The span, not the reading, sets the error, so a compound gauge (−1 to +9 bar) has a span
@@ -76,13 +74,13 @@ def limit_of_error(
     return out(_class(accuracy_class) / 100.0 * span, Kind.PRESSURE)
 
 
-def standard_uncertainty(limit: pint.Quantity) -> pint.Quantity:
+def standard_uncertainty(limit: Quantity) -> Quantity:
     """u = a / √3: a limit of error ±a read as a rectangular distribution, every value
     within it equally likely (JCGM 100:2008, GUM 4.3.7), since the class says nothing more."""
     return out(si(limit, Kind.PRESSURE, "limit of error", non_negative=True) / _SQRT3, Kind.PRESSURE)
 
 
-def combined_uncertainty(*uncertainties: pint.Quantity) -> pint.Quantity:
+def combined_uncertainty(*uncertainties: Quantity) -> Quantity:
     """Combined standard uncertainty of a sum or difference of independent readings,
     u = √(Σ uᵢ²) (GUM 5.1.2 with sensitivity coefficients ±1, no correlation): e.g. a pressure
     difference read on two gauges."""
@@ -96,7 +94,7 @@ def combined_uncertainty(*uncertainties: pint.Quantity) -> pint.Quantity:
 
 
 def probability_beyond(
-    reading: pint.Quantity, limit: pint.Quantity, standard_uncertainty: pint.Quantity, above: bool = True
+    reading: Quantity, limit: Quantity, standard_uncertainty: Quantity, above: bool = True
 ) -> float:
     """Probability that the true pressure lies beyond ``limit`` (above it, or below with
     ``above=False``), given the reading and its standard uncertainty.
@@ -115,9 +113,7 @@ def probability_beyond(
     return 0.5 * math.erfc(distance / (u * _SQRT2))
 
 
-def _working_and_peak(
-    working_pressure: pint.Quantity, highest_pressure: pint.Quantity | None
-) -> tuple[float, float]:
+def _working_and_peak(working_pressure: Quantity, highest_pressure: Quantity | None) -> tuple[float, float]:
     """Working and highest gauge pressure in Pa; the highest is never below the working pressure."""
     work = si(working_pressure, Kind.PRESSURE, "working pressure")
     if highest_pressure is None:
@@ -126,11 +122,11 @@ def _working_and_peak(
 
 
 def smallest_gauge(
-    working_pressure: pint.Quantity,
-    highest_pressure: pint.Quantity | None = None,
+    working_pressure: Quantity,
+    highest_pressure: Quantity | None = None,
     ranges_bar: tuple[float, ...] = STANDARD_RANGES_BAR,
     fluctuating: bool = False,
-) -> pint.Quantity:
+) -> Quantity:
     """The smallest standard 0–X bar gauge that reads ``working_pressure`` within 3/4 of its
     scale (2/3 if it fluctuates) and whose full scale exceeds ``highest_pressure``: the
     smallest suitable range gives the smallest absolute error."""
@@ -146,10 +142,10 @@ def smallest_gauge(
 
 
 def gauge_suitability(
-    full_scale: pint.Quantity,
-    working_pressure: pint.Quantity,
-    highest_pressure: pint.Quantity | None = None,
-    scale_start: pint.Quantity | None = None,
+    full_scale: Quantity,
+    working_pressure: Quantity,
+    highest_pressure: Quantity | None = None,
+    scale_start: Quantity | None = None,
     accuracy_class: float | None = None,
     fluctuating: bool = False,
 ) -> Check:

@@ -9,11 +9,9 @@ from __future__ import annotations
 
 import math
 
-import pint
-
 from fieldkit.physics.common import OutOfRangeError, Ratio, fraction, out, si
 from fieldkit.physics.fluid import OIL_DENSITY
-from fieldkit.units import Kind
+from fieldkit.units import Kind, Quantity
 
 #: Discharge coefficient of a sharp-edged orifice, π / (π + 2) ≈ 0.61
 #: (Rabie, Fluid Power Engineering, McGraw-Hill 2009, p. 27).
@@ -25,17 +23,17 @@ TURBULENT_EXPONENT = 2.0
 LAMINAR_EXPONENT = 1.0
 
 
-def _area(diameter: pint.Quantity) -> float:
+def _area(diameter: Quantity) -> float:
     d = si(diameter, Kind.LENGTH, "orifice diameter", positive=True)
     return math.pi / 4.0 * d * d
 
 
 def orifice_flow(
-    diameter: pint.Quantity,
-    pressure_drop: pint.Quantity,
+    diameter: Quantity,
+    pressure_drop: Quantity,
     discharge_coefficient: Ratio = SHARP_EDGED_CD,
-    density: pint.Quantity = OIL_DENSITY,
-) -> pint.Quantity:
+    density: Quantity = OIL_DENSITY,
+) -> Quantity:
     """Q = Cd · A · √(2 Δp / ρ): the orifice equation for turbulent flow through a short hole.
 
     Valid when the flow through the hole is turbulent (high pressure drop, short hole); at low
@@ -48,11 +46,11 @@ def orifice_flow(
 
 
 def orifice_pressure_drop(
-    flow: pint.Quantity,
-    diameter: pint.Quantity,
+    flow: Quantity,
+    diameter: Quantity,
     discharge_coefficient: Ratio = SHARP_EDGED_CD,
-    density: pint.Quantity = OIL_DENSITY,
-) -> pint.Quantity:
+    density: Quantity = OIL_DENSITY,
+) -> Quantity:
     """Δp = (ρ / 2) · (Q / (Cd · A))²: the orifice equation solved for the pressure drop."""
     q = si(flow, Kind.FLOW, "flow", non_negative=True)
     rho = si(density, Kind.DENSITY, "oil density", positive=True)
@@ -62,11 +60,11 @@ def orifice_pressure_drop(
 
 
 def orifice_diameter(
-    flow: pint.Quantity,
-    pressure_drop: pint.Quantity,
+    flow: Quantity,
+    pressure_drop: Quantity,
     discharge_coefficient: Ratio = SHARP_EDGED_CD,
-    density: pint.Quantity = OIL_DENSITY,
-) -> pint.Quantity:
+    density: Quantity = OIL_DENSITY,
+) -> Quantity:
     """Hole diameter that passes a flow at a pressure drop:
     A = Q / (Cd · √(2 Δp / ρ)), d = √(4 A / π).
 
@@ -81,11 +79,11 @@ def orifice_diameter(
 
 
 def restriction_pressure_drop(
-    flow: pint.Quantity,
-    known_flow: pint.Quantity,
-    known_pressure_drop: pint.Quantity,
+    flow: Quantity,
+    known_flow: Quantity,
+    known_pressure_drop: Quantity,
     exponent: float = TURBULENT_EXPONENT,
-) -> pint.Quantity:
+) -> Quantity:
     """Pressure drop across a filter, line or valve at a flow, scaled from one known point:
     Δp = Δp_known · (Q / Q_known)^n.
 

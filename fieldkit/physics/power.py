@@ -8,17 +8,15 @@ explained by the readings.
 
 from __future__ import annotations
 
-import pint
-
 from fieldkit.physics.common import Ratio, fraction, in_unit, out, si
 from fieldkit.physics.fluid import OIL_DENSITY, OIL_SPECIFIC_HEAT
-from fieldkit.units import Q_, Kind, unit
+from fieldkit.units import Q_, Kind, Quantity, unit
 
 _CP_UNIT = "joule / kilogram / kelvin"
 _CP_EXAMPLE = "2060 J/(kg·K)"
 
 
-def hydraulic_power(pressure: pint.Quantity, flow: pint.Quantity) -> pint.Quantity:
+def hydraulic_power(pressure: Quantity, flow: Quantity) -> Quantity:
     """Power carried by the oil, P = p · Q (kW = bar · L/min / 600).
 
     ``pressure`` is the pressure rise across the pump or the drop across the consumer; a gauge
@@ -27,9 +25,7 @@ def hydraulic_power(pressure: pint.Quantity, flow: pint.Quantity) -> pint.Quanti
     return out(si(pressure, Kind.PRESSURE, "pressure") * si(flow, Kind.FLOW, "flow"), Kind.POWER)
 
 
-def pump_input_power(
-    pressure: pint.Quantity, flow: pint.Quantity, overall_efficiency: Ratio
-) -> pint.Quantity:
+def pump_input_power(pressure: Quantity, flow: Quantity, overall_efficiency: Ratio) -> Quantity:
     """Shaft power the prime mover must supply, P_in = p · Q / ηt.
 
     ``flow`` is the pump's actual (measured) outlet flow; ηt is the overall efficiency, which
@@ -39,16 +35,14 @@ def pump_input_power(
     return out(si(pressure, Kind.PRESSURE, "pressure") * si(flow, Kind.FLOW, "flow") / eta, Kind.POWER)
 
 
-def motor_output_power(
-    pressure_drop: pint.Quantity, flow: pint.Quantity, overall_efficiency: Ratio
-) -> pint.Quantity:
+def motor_output_power(pressure_drop: Quantity, flow: Quantity, overall_efficiency: Ratio) -> Quantity:
     """Shaft power a hydraulic motor delivers, P_out = Δp · Q · ηt, with Q the flow fed to it."""
     eta = fraction(overall_efficiency, "overall efficiency")
     dp = si(pressure_drop, Kind.PRESSURE, "pressure drop")
     return out(dp * si(flow, Kind.FLOW, "flow") * eta, Kind.POWER)
 
 
-def throttling_heat(pressure_drop: pint.Quantity, flow: pint.Quantity) -> pint.Quantity:
+def throttling_heat(pressure_drop: Quantity, flow: Quantity) -> Quantity:
     """Heat made when flow passes a relief, throttle or leakage path with no work done: all of
     Δp · Q turns into heat in the oil. A pump blowing its whole flow over the relief at full
     pressure heats the oil by its full hydraulic power."""
@@ -60,11 +54,11 @@ def throttling_heat(pressure_drop: pint.Quantity, flow: pint.Quantity) -> pint.Q
 
 
 def oil_heating_rate(
-    heat: pint.Quantity,
-    oil_volume: pint.Quantity,
-    density: pint.Quantity = OIL_DENSITY,
-    specific_heat: pint.Quantity = OIL_SPECIFIC_HEAT,
-) -> pint.Quantity:
+    heat: Quantity,
+    oil_volume: Quantity,
+    density: Quantity = OIL_DENSITY,
+    specific_heat: Quantity = OIL_SPECIFIC_HEAT,
+) -> Quantity:
     """How fast the oil in a circuit warms, dT/dt = P / (ρ · V · cp), in K/min.
 
     Assumes no heat leaves (no cooler, tank walls and pipes ignored) and only the oil is heated,
@@ -79,10 +73,10 @@ def oil_heating_rate(
 
 
 def throttling_temperature_rise(
-    pressure_drop: pint.Quantity,
-    density: pint.Quantity = OIL_DENSITY,
-    specific_heat: pint.Quantity = OIL_SPECIFIC_HEAT,
-) -> pint.Quantity:
+    pressure_drop: Quantity,
+    density: Quantity = OIL_DENSITY,
+    specific_heat: Quantity = OIL_SPECIFIC_HEAT,
+) -> Quantity:
     """Temperature rise of the oil as it passes a throttle or relief, ΔT = Δp / (ρ · cp).
 
     Follows from the throttling heat shared by the same flow (Δp · Q = ρ · Q · cp · ΔT), so it

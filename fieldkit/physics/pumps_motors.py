@@ -14,23 +14,21 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-import pint
-
 from fieldkit.physics.common import Ratio, fraction, out, percent, si
-from fieldkit.units import Kind
+from fieldkit.units import Kind, Quantity
 
 _TWO_PI = 2.0 * math.pi
 
 
-def _v(displacement: pint.Quantity) -> float:
+def _v(displacement: Quantity) -> float:
     return si(displacement, Kind.DISPLACEMENT, "displacement", positive=True)
 
 
-def _n(speed: pint.Quantity, what: str = "shaft speed") -> float:
+def _n(speed: Quantity, what: str = "shaft speed") -> float:
     return si(speed, Kind.SPEED, what, positive=True)
 
 
-def theoretical_flow(displacement: pint.Quantity, speed: pint.Quantity) -> pint.Quantity:
+def theoretical_flow(displacement: Quantity, speed: Quantity) -> Quantity:
     """Flow a pump would deliver (or a motor would swallow) with no leakage, Q = V · n."""
     return out(_v(displacement) * si(speed, Kind.SPEED, "shaft speed", non_negative=True), Kind.FLOW)
 
@@ -38,9 +36,7 @@ def theoretical_flow(displacement: pint.Quantity, speed: pint.Quantity) -> pint.
 # --- efficiencies, pump --------------------------------------------------------------------
 
 
-def pump_volumetric_efficiency(
-    actual_flow: pint.Quantity, displacement: pint.Quantity, speed: pint.Quantity
-) -> pint.Quantity:
+def pump_volumetric_efficiency(actual_flow: Quantity, displacement: Quantity, speed: Quantity) -> Quantity:
     """ηv = Q_actual / (V · n): the share of the displaced oil that reaches the outlet; the
     rest leaks back inside the pump. Measured data can give slightly over 100 %; it is returned
     as measured so the caller can judge the meters."""
@@ -49,8 +45,8 @@ def pump_volumetric_efficiency(
 
 
 def pump_hydromechanical_efficiency(
-    pressure_difference: pint.Quantity, displacement: pint.Quantity, input_torque: pint.Quantity
-) -> pint.Quantity:
+    pressure_difference: Quantity, displacement: Quantity, input_torque: Quantity
+) -> Quantity:
     """ηhm = (Δp · V / 2π) / T_in: the torque the pressure alone would need over the torque the
     shaft actually takes; friction and churning make up the difference."""
     dp = si(pressure_difference, Kind.PRESSURE, "pressure difference", non_negative=True)
@@ -59,11 +55,11 @@ def pump_hydromechanical_efficiency(
 
 
 def pump_overall_efficiency(
-    pressure_difference: pint.Quantity,
-    actual_flow: pint.Quantity,
-    input_torque: pint.Quantity,
-    speed: pint.Quantity,
-) -> pint.Quantity:
+    pressure_difference: Quantity,
+    actual_flow: Quantity,
+    input_torque: Quantity,
+    speed: Quantity,
+) -> Quantity:
     """ηt = Δp · Q / (T · 2π · n): hydraulic power out over shaft power in (= ηv · ηhm)."""
     hydraulic = si(pressure_difference, Kind.PRESSURE, "pressure difference", non_negative=True) * si(
         actual_flow, Kind.FLOW, "pump flow", non_negative=True
@@ -75,9 +71,7 @@ def pump_overall_efficiency(
 # --- efficiencies, motor (each ratio the other way up) ------------------------------------
 
 
-def motor_volumetric_efficiency(
-    input_flow: pint.Quantity, displacement: pint.Quantity, speed: pint.Quantity
-) -> pint.Quantity:
+def motor_volumetric_efficiency(input_flow: Quantity, displacement: Quantity, speed: Quantity) -> Quantity:
     """ηv = V · n / Q_in: the share of the oil fed in that turns the shaft; the rest leaks past
     to the case or the other port."""
     q = si(input_flow, Kind.FLOW, "motor inlet flow", positive=True)
@@ -85,8 +79,8 @@ def motor_volumetric_efficiency(
 
 
 def motor_hydromechanical_efficiency(
-    pressure_difference: pint.Quantity, displacement: pint.Quantity, output_torque: pint.Quantity
-) -> pint.Quantity:
+    pressure_difference: Quantity, displacement: Quantity, output_torque: Quantity
+) -> Quantity:
     """ηhm = T_out / (Δp · V / 2π): the torque delivered over the torque the pressure difference
     across the motor could give with no friction."""
     dp = si(pressure_difference, Kind.PRESSURE, "pressure difference", positive=True)
@@ -95,11 +89,11 @@ def motor_hydromechanical_efficiency(
 
 
 def motor_overall_efficiency(
-    pressure_difference: pint.Quantity,
-    input_flow: pint.Quantity,
-    output_torque: pint.Quantity,
-    speed: pint.Quantity,
-) -> pint.Quantity:
+    pressure_difference: Quantity,
+    input_flow: Quantity,
+    output_torque: Quantity,
+    speed: Quantity,
+) -> Quantity:
     """ηt = T · 2π · n / (Δp · Q): shaft power out over hydraulic power in (= ηv · ηhm)."""
     hydraulic = si(pressure_difference, Kind.PRESSURE, "pressure difference", positive=True) * si(
         input_flow, Kind.FLOW, "motor inlet flow", positive=True
@@ -116,11 +110,11 @@ def motor_overall_efficiency(
 
 
 def volumetric_efficiency_from_flow_test(
-    no_load_flow: pint.Quantity,
-    no_load_speed: pint.Quantity,
-    loaded_flow: pint.Quantity,
-    loaded_speed: pint.Quantity,
-) -> pint.Quantity:
+    no_load_flow: Quantity,
+    no_load_speed: Quantity,
+    loaded_flow: Quantity,
+    loaded_speed: Quantity,
+) -> Quantity:
     """ηv from a flow meter test: loaded flow per revolution over no-load flow per revolution.
 
     Engines and electric motors slow down under load, so comparing raw flows would blame the
@@ -137,15 +131,15 @@ def volumetric_efficiency_from_flow_test(
 class Leakage:
     """Internal leakage estimated from a case drain reading."""
 
-    flow: pint.Quantity
-    fraction_of_theoretical: pint.Quantity
+    flow: Quantity
+    fraction_of_theoretical: Quantity
 
 
 def case_drain_leakage(
-    case_drain_flow: pint.Quantity,
-    displacement: pint.Quantity,
-    speed: pint.Quantity,
-    other_case_flow: pint.Quantity | None = None,
+    case_drain_flow: Quantity,
+    displacement: Quantity,
+    speed: Quantity,
+    other_case_flow: Quantity | None = None,
 ) -> Leakage:
     """Internal leakage estimated from case drain flow, and as a share of theoretical flow.
 
@@ -170,13 +164,13 @@ def case_drain_leakage(
 class MotorOutput:
     """Torque and speed a hydraulic motor gives for a pressure difference and an inlet flow."""
 
-    torque: pint.Quantity
-    speed: pint.Quantity
+    torque: Quantity
+    speed: Quantity
 
 
 def motor_torque(
-    pressure_difference: pint.Quantity, displacement: pint.Quantity, hydromechanical_efficiency: Ratio = 1.0
-) -> pint.Quantity:
+    pressure_difference: Quantity, displacement: Quantity, hydromechanical_efficiency: Ratio = 1.0
+) -> Quantity:
     """T = Δp · V / (2π) · ηhm. ``pressure_difference`` is inlet minus outlet; a gauge on the
     inlet alone overstates the torque by the return back pressure."""
     dp = si(pressure_difference, Kind.PRESSURE, "pressure difference")
@@ -184,9 +178,7 @@ def motor_torque(
     return out(dp * _v(displacement) / _TWO_PI * eta, Kind.TORQUE)
 
 
-def motor_speed(
-    flow: pint.Quantity, displacement: pint.Quantity, volumetric_efficiency: Ratio = 1.0
-) -> pint.Quantity:
+def motor_speed(flow: Quantity, displacement: Quantity, volumetric_efficiency: Ratio = 1.0) -> Quantity:
     """n = Q · ηv / V: the oil that does not leak past, divided by what one revolution swallows."""
     q = si(flow, Kind.FLOW, "motor inlet flow", non_negative=True)
     eta = fraction(volumetric_efficiency, "volumetric efficiency")
@@ -194,9 +186,9 @@ def motor_speed(
 
 
 def motor_output(
-    pressure_difference: pint.Quantity,
-    flow: pint.Quantity,
-    displacement: pint.Quantity,
+    pressure_difference: Quantity,
+    flow: Quantity,
+    displacement: Quantity,
     volumetric_efficiency: Ratio = 1.0,
     hydromechanical_efficiency: Ratio = 1.0,
 ) -> MotorOutput:
@@ -208,9 +200,9 @@ def motor_output(
 
 
 def two_speed_motor_output(
-    pressure_difference: pint.Quantity,
-    flow: pint.Quantity,
-    full_displacement: pint.Quantity,
+    pressure_difference: Quantity,
+    flow: Quantity,
+    full_displacement: Quantity,
     displacement_ratio: Ratio,
     volumetric_efficiency: Ratio = 1.0,
     hydromechanical_efficiency: Ratio = 1.0,

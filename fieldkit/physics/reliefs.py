@@ -23,16 +23,14 @@ A circuit's reliefs are described as a small tree: :class:`ReliefValve` leaves j
 
 from __future__ import annotations
 
-from collections.abc import Sequence
+from collections.abc import Iterable, Sequence
 from dataclasses import dataclass, field
 from enum import StrEnum
 from typing import Union
 
-import pint
-
 from fieldkit.model.profile import Relief, ReliefLayout
 from fieldkit.physics.common import OutOfRangeError, out, shown, si
-from fieldkit.units import Q_, Kind
+from fieldkit.units import Q_, Kind, Quantity
 
 _ZERO_BAR = Q_(0.0, "bar")
 
@@ -49,8 +47,8 @@ class ReliefValve:
     """One relief valve as the circuit diagram shows it."""
 
     name: str
-    setting: pint.Quantity
-    override: pint.Quantity = _ZERO_BAR
+    setting: Quantity
+    override: Quantity = _ZERO_BAR
     drain: Drain | str = Drain.INTERNAL
     _setting_pa: float = field(init=False, repr=False, compare=False)
     _override_pa: float = field(init=False, repr=False, compare=False)
@@ -78,23 +76,24 @@ class ReliefValve:
             return own + back_pa
         return max(own, back_pa)
 
-    def cracking_pressure(self, back_pressure: pint.Quantity | None = None) -> pint.Quantity:
+    def cracking_pressure(self, back_pressure: Quantity | None = None) -> Quantity:
         """Inlet pressure at which the valve starts to pass oil, with this back pressure on its outlet."""
         return out(self._opens_at(_back(back_pressure), full_flow=False), Kind.PRESSURE)
 
-    def full_flow_pressure(self, back_pressure: pint.Quantity | None = None) -> pint.Quantity:
+    def full_flow_pressure(self, back_pressure: Quantity | None = None) -> Quantity:
         """Inlet pressure with the whole pump flow passing: cracking pressure plus override."""
         return out(self._opens_at(_back(back_pressure), full_flow=True), Kind.PRESSURE)
 
 
-def _nodes(items: object, kind: str) -> tuple[Arrangement, ...]:
-    nodes = tuple(items)  # type: ignore[call-overload]
-    if not nodes:
-        raise OutOfRangeError(f"a {kind} group needs at least one relief")
-    for node in nodes:
+def _nodes(items: Iterable[object], kind: str) -> tuple[Arrangement, ...]:
+    nodes: list[Arrangement] = []
+    for node in items:
         if not isinstance(node, (ReliefValve, Series, Parallel)):
             raise OutOfRangeError(f"a {kind} group holds relief valves or groups; got {node!r}")
-    return nodes
+        nodes.append(node)
+    if not nodes:
+        raise OutOfRangeError(f"a {kind} group needs at least one relief")
+    return tuple(nodes)
 
 
 @dataclass(frozen=True)
@@ -116,7 +115,7 @@ class Parallel:
     def __post_init__(self) -> None:
         object.__setattr__(self, "branches", _nodes(self.branches, "parallel"))
 
-    def governing(self, back_pressure: pint.Quantity | None = None) -> Arrangement:
+    def governing(self, back_pressure: Quantity | None = None) -> Arrangement:
         """The branch that opens first: the lowest opening pressure governs."""
         return _lowest(self, _back(back_pressure))
 
@@ -124,7 +123,7 @@ class Parallel:
 Arrangement = Union[ReliefValve, Series, Parallel]
 
 
-def _back(back_pressure: pint.Quantity | None) -> float:
+def _back(back_pressure: Quantity | None) -> float:
     return 0.0 if back_pressure is None else si(back_pressure, Kind.PRESSURE, "back pressure")
 
 
@@ -147,8 +146,8 @@ def _opens_at(node: Arrangement, back_pa: float, full_flow: bool) -> float:
 
 
 def opening_pressure(
-    arrangement: Arrangement, back_pressure: pint.Quantity | None = None, at_full_flow: bool = False
-) -> pint.Quantity:
+    arrangement: Arrangement, back_pressure: Quantity | None = None, at_full_flow: bool = False
+) -> Quantity:
     """Pressure upstream of a relief arrangement when oil starts to pass (or, with
     ``at_full_flow``, when the whole pump flow passes)."""
     return out(_opens_at(arrangement, _back(back_pressure), at_full_flow), Kind.PRESSURE)
@@ -164,9 +163,9 @@ class DeadheadResult:
     """
 
     governing: tuple[ReliefValve, ...]
-    upstream: pint.Quantity
-    points: dict[str, pint.Quantity | None]
-    return_pressure: pint.Quantity
+    upstream: Quantity
+    points: dict[str, Quantity | None]
+    return_pressure: Quantity
 
     def summary(self) -> str:
         path = " then ".join(v.name for v in self.governing)
@@ -211,7 +210,7 @@ def _valve_names(node: Arrangement) -> list[str]:
 
 
 def deadhead(
-    arrangement: Arrangement, return_pressure: pint.Quantity | None = None, at_full_flow: bool = True
+    arrangement: Arrangement, return_pressure: Quantity | None = None, at_full_flow: bool = True
 ) -> DeadheadResult:
     """Expected readings when the pump is deadheaded and its whole flow goes over the reliefs.
 

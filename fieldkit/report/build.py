@@ -339,13 +339,13 @@ def _actions(leading: list[RankedFault], findings: list[Finding]) -> list[Action
         else:
             add("Confirm: " + f.confirm if f.confirm else "", reason)
             add("If confirmed: " + f.fix if f.fix else "", reason)
-    for f in findings:
-        if f.verdict in (Verdict.LOW, Verdict.HIGH) and f.action:
-            add(f.action, f"{one_line(f.title)} (finding)")
+    for finding in findings:
+        if finding.verdict in (Verdict.LOW, Verdict.HIGH) and finding.action:
+            add(finding.action, f"{one_line(finding.title)} (finding)")
     unsure = [f for f in findings if f.verdict is Verdict.INCONCLUSIVE]
-    for f in unsure:
-        if f.action:
-            add(f.action, f"{one_line(f.title)} (inconclusive finding)")
+    for finding in unsure:
+        if finding.action:
+            add(finding.action, f"{one_line(finding.title)} (inconclusive finding)")
     generic = [one_line(f.title) for f in unsure if not f.action]
     if generic:
         add(

@@ -62,16 +62,18 @@ def print_diagnosis(
     faults.add_column("%", justify="right")
     faults.add_column("fault")
     faults.add_column("why")
-    for f in result.faults[:5]:
-        why = "; ".join(e.title for e in f.supporting[:3]) or "prior only"
-        faults.add_row(_t(f"{f.probability:.0%}"), _t(f.display_title), _t(why))
+    for fault in result.faults[:5]:
+        why = "; ".join(e.title for e in fault.supporting[:3]) or "prior only"
+        faults.add_row(_t(f"{fault.probability:.0%}"), _t(fault.display_title), _t(why))
     console.print(faults)
 
     if result.next_tests:
         console.print(_t("Next test", "bold"))
         console.print(_t(result.next_tests[0].why))
     console.print(_t("Cautions", "bold"))
-    for c in result.cautions:
-        console.print(_t(f"• {c.title}: ", "bold" if c.severity == "danger" else ""), _t(c.text))
+    for caution in result.cautions:
+        console.print(
+            _t(f"• {caution.title}: ", "bold" if caution.severity == "danger" else ""), _t(caution.text)
+        )
     for note in result.notes:
         console.print(_t(f"note: {note}", "dim"))

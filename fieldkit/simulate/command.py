@@ -112,12 +112,12 @@ def render(report: object, console: Console) -> None:
     console.print(conf)
 
     rel = _table("Reliability of the top probability", "top probability", "visits", "mean stated", "right")
-    for b in r.reliability():
+    for bin_ in r.reliability():
         rel.add_row(
-            Text(f"{b.low:.1f}–{b.high:.1f}"),
-            Text(str(b.n), justify="right"),
-            _pct(b.mean_probability) if b.n else Text("—"),
-            _pct(b.accuracy) if b.n else Text("—"),
+            Text(f"{bin_.low:.1f}–{bin_.high:.1f}"),
+            Text(str(bin_.n), justify="right"),
+            _pct(bin_.mean_probability) if bin_.n else Text("—"),
+            _pct(bin_.accuracy) if bin_.n else Text("—"),
         )
     console.print(rel)
 

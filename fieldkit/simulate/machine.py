@@ -19,18 +19,16 @@ from collections.abc import Callable, Mapping
 from dataclasses import dataclass, field
 from random import Random
 
-import pint
-
 from fieldkit.model.condition import Condition, FunctionState
 from fieldkit.model.parameters import PARAMETERS
 from fieldkit.model.profile import Circuit, CircuitKind, MachineProfile, TestPoint
 from fieldkit.model.roles import Role
 from fieldkit.physics.fluid import ViscosityCurve, grade
 from fieldkit.simulate.constants import KELVIN, RESTRICTION_SCATTER, TYPICAL_SCATTER
-from fieldkit.units import Q_, Kind, to_canonical, unit
+from fieldkit.units import Q_, Kind, Quantity, to_canonical, unit
 
 
-def qty(value: float, expr: str) -> pint.Quantity:
+def qty(value: float, expr: str) -> Quantity:
     """A quantity for the physics core from a float and one of pint's own unit expressions
     (cached; never text a person typed)."""
     return Q_(value, unit(expr))

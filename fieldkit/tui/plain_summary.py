@@ -59,8 +59,8 @@ def summary_text(visit: Visit, profile: MachineProfile, diagnosis: Diagnosis) ->
     if not measured:
         lines.append("None.")
     lines += ["", "LIKELY FAULTS", "-------------"]
-    for f in diagnosis.faults[:5]:
-        lines.append(wrap(f"{f.probability:6.0%}  {f.display_title}"))
+    for fault in diagnosis.faults[:5]:
+        lines.append(wrap(f"{fault.probability:6.0%}  {fault.display_title}"))
     if diagnosis.faults:
         top = diagnosis.faults[0]
         lines += ["", wrap(f"Confirm: {top.confirm}"), wrap(f"Usual fix: {top.fix}")]
@@ -71,8 +71,8 @@ def summary_text(visit: Visit, profile: MachineProfile, diagnosis: Diagnosis) ->
     lines += ["", "SUMMARY", "-------", wrap(visit.summary or "—")]
     lines += ["", "NOTES", "-----", wrap(visit.notes or "—")]
     lines += ["", "CAUTIONS", "--------"]
-    for c in diagnosis.cautions:
-        lines.append(wrap(f"* {c.title}: {c.text}"))
+    for caution in diagnosis.cautions:
+        lines.append(wrap(f"* {caution.title}: {caution.text}"))
     lines += [
         "",
         wrap(

@@ -9,8 +9,6 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-import pint
-
 from fieldkit.diagnosis.catalogue import Caution, Severity
 from fieldkit.diagnosis.engine import Knowledge
 from fieldkit.diagnosis.results import NextTest
@@ -22,7 +20,7 @@ from fieldkit.model.roles import Role
 from fieldkit.model.visit import Visit
 from fieldkit.physics.common import Level
 from fieldkit.physics.gauges import gauge_suitability, smallest_gauge
-from fieldkit.units import DisplaySystem, Kind, format_value, to_canonical
+from fieldkit.units import DisplaySystem, Kind, Quantity, format_value, to_canonical
 
 SHORT_STATE = {
     FunctionState.NEUTRAL: "neutral",
@@ -74,7 +72,7 @@ def range_for(point: TestPoint, function: FunctionState) -> ExpectedRange | None
     return None
 
 
-def working_value(point: TestPoint, function: FunctionState) -> pint.Quantity | None:
+def working_value(point: TestPoint, function: FunctionState) -> Quantity | None:
     """What the point should read in this condition, for judging a gauge before connecting:
     the top of the expected range (the bottom when only a floor is given)."""
     rng = range_for(point, function)
@@ -112,7 +110,8 @@ def gauge_fit(
         )
     work = working_value(point, function)
     if point.kind is Kind.PRESSURE:
-        if work is None and point.max_pressure is None:
+        working = work if work is not None else point.max_pressure
+        if working is None:
             return GaugeFit(
                 Level.NOTE,
                 "no expected range or highest pressure for this point: check the gauge range yourself",
@@ -120,7 +119,7 @@ def gauge_fit(
         try:
             check = gauge_suitability(
                 gauge.full_scale,
-                work if work is not None else point.max_pressure,
+                working,
                 point.max_pressure,
                 gauge.scale_start,
                 gauge.accuracy_class if gauge.standard == "EN 837-1" else None,
@@ -194,14 +193,12 @@ def general_caution(knowledge: Knowledge) -> Caution:
     return next(c for c in knowledge.cautions.values() if c.always)
 
 
-def last_condition_values(
-    visit: Visit, profile: MachineProfile
-) -> tuple[pint.Quantity | None, pint.Quantity | None]:
+def last_condition_values(visit: Visit, profile: MachineProfile) -> tuple[Quantity | None, Quantity | None]:
     """Speed and oil temperature to offer for the next reading: what the last reading stated
     (or the last oil temperature reading), else the rated speed and nothing."""
 
-    speed: pint.Quantity | None = profile.rated_speed
-    oil: pint.Quantity | None = None
+    speed: Quantity | None = profile.rated_speed
+    oil: Quantity | None = None
     points = {tp.id: tp for _c, tp in profile.all_test_points()}
     for r in visit.current_readings():
         if r.condition.speed is not None:

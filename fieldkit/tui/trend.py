@@ -9,8 +9,6 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 
-import pint
-
 from fieldkit.errors import FieldkitError
 from fieldkit.model.condition import FunctionState
 from fieldkit.model.profile import MachineProfile, TestPoint
@@ -20,7 +18,7 @@ from fieldkit.physics.fluid import grade, normalised_leakage
 from fieldkit.store.base import VisitSummary
 from fieldkit.store.sqlite import SqliteVisitStore
 from fieldkit.tui.step import SHORT_STATE
-from fieldkit.units import DisplaySystem, format_value, to_canonical
+from fieldkit.units import DisplaySystem, Quantity, format_value, to_canonical
 
 NORMALISED_ROLES = {Role.PUMP_CASE_DRAIN_FLOW, Role.MOTOR_CASE_DRAIN_FLOW}
 SPARKS = "▁▂▃▄▅▆▇█"
@@ -72,7 +70,7 @@ def sparkline(values: list[float | None]) -> str:
     return "".join(out)
 
 
-def _oil_at(reading: Reading, oil_readings: list[Reading]) -> pint.Quantity | None:
+def _oil_at(reading: Reading, oil_readings: list[Reading]) -> Quantity | None:
     if reading.condition.oil_temperature is not None:
         return reading.condition.oil_temperature
     if not oil_readings:
@@ -80,7 +78,7 @@ def _oil_at(reading: Reading, oil_readings: list[Reading]) -> pint.Quantity | No
     return min(oil_readings, key=lambda r: abs((r.taken_at - reading.taken_at).total_seconds())).value
 
 
-def _normalised(reading: Reading, oil: pint.Quantity | None, profile: MachineProfile) -> pint.Quantity | None:
+def _normalised(reading: Reading, oil: Quantity | None, profile: MachineProfile) -> Quantity | None:
     if oil is None:
         return None
 

@@ -17,6 +17,7 @@ import hashlib
 from datetime import UTC, datetime
 
 from fpdf import FPDF
+from fpdf.fonts import TTFFont
 
 from fieldkit.diagnosis.results import Verdict
 from fieldkit.report.model import JobCard, Note
@@ -91,6 +92,7 @@ class JobCardPDF(FPDF):
         self.add_font(FAMILY, "", REGULAR_FONT)
         self.add_font(FAMILY, "B", BOLD_FONT)
         regular, bold = self.fonts[FAMILY], self.fonts[FAMILY + "B"]
+        assert isinstance(regular, TTFFont) and isinstance(bold, TTFFont)  # added from files above
         self._glyphs = set(regular.cmap) & set(bold.cmap)
         self.set_margins(MARGIN, MARGIN, MARGIN)
         self.set_auto_page_break(True, margin=FOOT)
@@ -264,8 +266,9 @@ def _readings(pdf: JobCardPDF, card: JobCard) -> None:
 
     def draw_band(pdf: FPDF, i: int, x: float, y: float, w: float, h: float) -> None:
         k = owner[i]
-        if k is not None and card.readings[k].band is not None:
-            band_picture(pdf, card.readings[k].band, card.readings[k].verdict, x, y, w, h)
+        band = card.readings[k].band if k is not None else None
+        if k is not None and band is not None:
+            band_picture(pdf, band, card.readings[k].verdict, x, y, w, h)
 
     measured_table(
         pdf,
@@ -335,7 +338,7 @@ def _findings(pdf: FPDF, card: JobCard) -> None:
 
 
 def _faults(pdf: FPDF, card: JobCard) -> None:
-    rows = [
+    rows: list[list[Cell | str]] = [
         [str(f.rank), Cell(f.title, bold=True), Cell(f.probability_text, bold=True), "", f.evidence_text]
         for f in card.faults.top
     ]
@@ -364,7 +367,8 @@ def _actions(pdf: FPDF, card: JobCard) -> None:
     title = "Recommended actions and parts"
     if card.actions:
         # A reason is printed once for a run of actions it explains; the run shares one block.
-        rows, joined = [], []
+        rows: list[list[Cell | str]] = []
+        joined: list[bool] = []
         for i, a in enumerate(card.actions, start=1):
             same = i > 1 and card.actions[i - 2].reason == a.reason
             rows.append([str(i), a.text, Cell("" if same else a.reason, color=MUTED, size=REASON)])

@@ -71,7 +71,9 @@ def fit(
         pdf.cell(w, h, text, align=align)
     else:
         lh = line_height(size)
-        lines = len(pdf.multi_cell(w, lh, text, dry_run=True, output="LINES"))
+        broken = pdf.multi_cell(w, lh, text, dry_run=True, output="LINES")
+        assert isinstance(broken, list)  # output="LINES" gives the list of lines
+        lines = len(broken)
         pdf.set_xy(x, y + max(0.0, (h - lines * lh) / 2))
         pdf.multi_cell(w, lh, text, align=align)
 

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import functools
 from collections.abc import Callable, Iterable
 from pathlib import Path
 from typing import Any
@@ -424,11 +425,11 @@ class StartScreen(FieldkitScreen):
             yield (
                 f"Open visit {s.job_number} · {s.machine} · {s.date.isoformat()}",
                 f"{state} visit",
-                lambda vid=s.id: self.open_visit(vid),
+                functools.partial(self.open_visit, s.id),
             )
         for pid in self.bench.library.ids():
             yield (
                 f"New visit on {pid}",
                 "start a visit on this machine",
-                lambda p=pid: self.action_new_visit(p),
+                functools.partial(self.action_new_visit, pid),
             )

@@ -17,6 +17,7 @@ history, finishing, CSV import) are at the end; their store edits are in
 
 from __future__ import annotations
 
+import functools
 from collections.abc import Callable, Iterable
 from pathlib import Path
 from typing import ClassVar
@@ -56,7 +57,7 @@ from fieldkit.tui.widgets.keybar import KeyBar
 from fieldkit.tui.widgets.plan_list import PlanList
 from fieldkit.tui.widgets.reading_entry import ReadingEntry
 from fieldkit.tui.widgets.step_panel import StepPanel, StepView
-from fieldkit.units import format_value, percent
+from fieldkit.units import ParsedValue, format_value, percent
 
 WIDE_FROM = 118  # columns from which the ranked faults and findings are shown beside the step
 # s: one turn of the event loop, for the widgets changed by a save to report to the screen
@@ -74,7 +75,7 @@ class VisitScreen(FieldkitScreen):
         ("Enter", "save the reading (in any entry field)"),
         ("Esc", "back to the visit list"),
     ]
-    HORIZONTAL_BREAKPOINTS: ClassVar[list[tuple[int, str]]] = [(0, "-narrow"), (WIDE_FROM, "-wide")]
+    HORIZONTAL_BREAKPOINTS = [(0, "-narrow"), (WIDE_FROM, "-wide")]
 
     def __init__(self, bench: Workbench, visit_id: str, *, demo: bool = False) -> None:
         super().__init__()
@@ -276,6 +277,7 @@ class VisitScreen(FieldkitScreen):
         labels = [
             Text(f"{quantity_text(c.quantity)}   (= {format_value(c.quantity, self.bench.system)})", end="")
             for c in event.error.choices
+            if isinstance(c, ParsedValue)
         ]
         self.app.push_screen(
             ChoiceDialog("Which value?", literal(str(event.error)), labels),
@@ -586,12 +588,12 @@ class VisitScreen(FieldkitScreen):
                 yield (
                     f"Go to {point.label} ({circuit.id})",
                     "select this test point",
-                    lambda pid=point.id: self.select_point(pid),
+                    functools.partial(self.select_point, point.id),
                 )
         if self.diagnosis is not None:
             for f in self.diagnosis.faults[:8]:
                 yield (
                     f"Why: {f.display_title}",
                     "findings for and against",
-                    lambda key=f.key: self.open_fault(key),
+                    functools.partial(self.open_fault, f.key),
                 )

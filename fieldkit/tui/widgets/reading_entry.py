@@ -29,7 +29,7 @@ from fieldkit.session import Workbench
 from fieldkit.tui.safe_text import literal
 from fieldkit.tui.step import SHORT_STATE, last_condition_values, suggest_gauge
 from fieldkit.tui.widgets.drawn import DrawnBlock
-from fieldkit.units import EXAMPLE, Kind, format_value, parse_value
+from fieldkit.units import EXAMPLE, Kind, ParsedValue, format_value, parse_value
 
 _BARE_NUMBER = re.compile(r"^\s*[+\-]?\d[\d.,]*\s*$")
 VALUE_HINT = "type the value as the gauge shows it (e.g. 24,5 bar · 3,500 psi · 0.75 bar abs); Enter saves it"
@@ -310,6 +310,8 @@ class ReadingEntry(Vertical):
         if index is None:
             self.say("Not saved: choose which value the gauge showed, or retype it.", "ask")
             return
+        choice = ask.error.choices[index]
+        assert isinstance(choice, ParsedValue)  # the units parser offers parsed values
         try:
             saved = self.bench.record(
                 self.visit_id,
@@ -317,7 +319,7 @@ class ReadingEntry(Vertical):
                 "",
                 ask.condition,
                 gauge=ask.gauge.id if ask.gauge else None,
-                chosen=ask.error.choices[index],
+                chosen=choice,
             )
         except FieldkitError as err:
             self.say(f"✗ {err} (nothing saved)", "error")
