@@ -83,12 +83,3 @@ def test_the_faults_view(snap_compare, snapshot_app: FieldkitApp) -> None:
         await _steady(pilot)
 
     assert snap_compare(snapshot_app, terminal_size=(100, 30), run_before=faults)
-
-
-def test_the_finish_screen(snap_compare, snapshot_app: FieldkitApp) -> None:
-    async def finish(pilot: Pilot) -> None:
-        await _open_visit(pilot)
-        await pilot.press("ctrl+o")
-        await _steady(pilot)
-
-    assert snap_compare(snapshot_app, terminal_size=(100, 30), run_before=finish)
