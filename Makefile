@@ -26,4 +26,4 @@ test:
 
 # Accept the current UI and job cards as the new reference (read the diff before committing).
 snapshots:
-	$(PYTHON) -m pytest -q tests/tui/test_snapshots.py tests/report/test_golden_cards.py --snapshot-update
+	$(PYTHON) -m pytest -q -p no:xdist tests/tui/test_snapshots.py tests/report/test_golden_cards.py --snapshot-update
