@@ -11,13 +11,14 @@ from enum import StrEnum
 from pathlib import Path
 from typing import Annotated
 
-from pydantic import AfterValidator, Field
+from pydantic import AfterValidator, Field, model_validator
 
 from fieldkit.errors import DataFileError
 from fieldkit.model.base import Strict
 from fieldkit.model.condition import FunctionState
 from fieldkit.model.parts import Part
-from fieldkit.model.profile import CircuitKind
+from fieldkit.model.profile import CircuitKind, Position
+from fieldkit.model.quantity import Pressure
 from fieldkit.model.roles import Role
 from fieldkit.tomlfile import key_lines, line_for, parse_toml, read_text, validate
 
@@ -35,6 +36,7 @@ def _known_kinds(kinds: list[str]) -> list[str]:
 
 #: Circuit kinds a fault or rule applies to ("*" for any machine), checked against CircuitKind.
 CircuitKinds = Annotated[list[str], Field(min_length=1), AfterValidator(_known_kinds)]
+CircuitKindList = Annotated[list[str], AfterValidator(_known_kinds)]
 
 
 class Fault(Strict):
@@ -69,6 +71,51 @@ class Severity(StrEnum):
     DANGER = "danger"
 
 
+class Engine(StrEnum):
+    """Whether the engine runs while a reading is taken."""
+
+    RUNNING = "running"
+    STOPPED = "stopped"
+
+
+class CautionWhen(Strict):
+    """One situation that raises a caution: every key given must hold (an empty list is no test).
+
+    Situations are what the step does, not which file it came from: the circuit kind, the
+    function state, the point's role, the parts fitted, the point's pressure rating, whether the
+    engine runs, and where the technician stands."""
+
+    circuits: CircuitKindList = Field(default_factory=list)
+    functions: list[FunctionState] = Field(default_factory=list)
+    roles: list[Role] = Field(default_factory=list)
+    parts: list[Part] = Field(default_factory=list, description="any of these fitted (Circuit.has_part)")
+    rated_at_least: Pressure | None = Field(
+        default=None, description="the point's rating or highest expected pressure is at least this"
+    )
+    engine: Engine | None = None
+    positions: list[Position] = Field(default_factory=list)
+
+    @model_validator(mode="after")
+    def _not_empty(self) -> CautionWhen:
+        if not (
+            self.circuits
+            or self.functions
+            or self.roles
+            or self.parts
+            or self.rated_at_least is not None
+            or self.engine is not None
+            or self.positions
+        ):
+            raise ValueError(
+                "a 'when' table needs at least one of circuits, functions, roles, parts, "
+                "rated_at_least, engine, positions"
+            )
+        return self
+
+
+FINDING_REF = r"^[a-z][a-z0-9\-_]*(:(low|high|inconclusive))?$"
+
+
 class Caution(Strict):
     id: str = Field(pattern=r"^[a-z][a-z0-9\-]*$")
     title: str
@@ -76,11 +123,37 @@ class Caution(Strict):
     severity: Severity
     source: str = Field(min_length=3)
     always: bool = False
+    #: Raised at any point of these roles, or any step in these function states (either suffices).
     roles: list[Role] = Field(default_factory=list)
     functions: list[FunctionState] = Field(default_factory=list)
     needs: list[Part] = Field(
         default_factory=list, description="optional parts this caution is about (any one); see model.fitted"
     )
+    #: Raised when any of these situations holds.
+    when: list[CautionWhen] = Field(default_factory=list)
+    #: Raised by a finding: a rule id, optionally with the verdict (``oil-in-test-window:high``).
+    findings: list[Annotated[str, Field(pattern=FINDING_REF)]] = Field(default_factory=list)
+    #: Its text tells the technician to stop the engine for the step: never shown on a step that
+    #: needs the engine running; ``running_instead`` is shown there instead.
+    stops_engine: bool = False
+    running_instead: str | None = None
+    #: The step is unsafe for one person alone.
+    two_people: bool = False
+    #: Left out where any of these cautions is also shown: they say all it says.
+    covered_by: list[str] = Field(default_factory=list)
+
+    @model_validator(mode="after")
+    def _instead(self) -> Caution:
+        if self.running_instead is not None and not self.stops_engine:
+            raise ValueError("running_instead is only for a caution with stops_engine = true")
+        return self
+
+    def raised_by_finding(self, rule_id: str, verdict: str) -> bool:
+        for ref in self.findings:
+            rid, _, want = ref.partition(":")
+            if rid == rule_id and (not want or want == verdict):
+                return True
+        return False
 
 
 class _FaultFile(Strict):
@@ -118,6 +191,24 @@ def load_cautions(path: Path) -> dict[str, Caution]:
     text = read_text(path)
     cautions = validate(_CautionFile, parse_toml(text, str(path)), str(path), text).caution
     _unique(cautions, path, text, "caution")
+    ids = {c.id for c in cautions}
+    lines = key_lines(text)
+    for i, c in enumerate(cautions):
+        for other in c.covered_by:
+            if other not in ids:
+                raise DataFileError(
+                    str(path),
+                    f"caution '{c.id}': covered_by names unknown caution '{other}'",
+                    line_for(lines, ("caution", i, "covered_by")),
+                    f"caution.{i}.covered_by",
+                )
+        if c.running_instead is not None and c.running_instead not in ids:
+            raise DataFileError(
+                str(path),
+                f"caution '{c.id}': running_instead names unknown caution '{c.running_instead}'",
+                line_for(lines, ("caution", i, "running_instead")),
+                f"caution.{i}.running_instead",
+            )
     if not any(c.always for c in cautions):
         raise DataFileError(
             str(path),

@@ -202,11 +202,52 @@ def _gauge_findings(measured: list[Measured], hyps: list[Hypothesis]) -> list[Fi
                     readings=[m.reading.id],
                     p_high=1.0,
                     action="Repeat with a gauge rated above the point's highest pressure.",
-                    cautions=["gauge-rating"],
+                    cautions=["gauge-rating", "gauge-overranged"],
                     source="EN 837-1 (readings beyond the scale carry no class accuracy)",
                     evidence=ev,
                 )
             )
+    return out
+
+
+def _over_pressure_findings(measured: list[Measured]) -> list[Finding]:
+    """Built-in check: a reading above the point's rating, or well above its relief setting,
+    is a danger to act on at once (diagnosis.over_pressure). It is not evidence for a fault:
+    the rules that read the same gauge already weigh it."""
+    from fieldkit.diagnosis.over_pressure import back_pressure_role, check_over_pressure
+
+    # The highest back pressure read in each circuit, by role: it lifts every relief it sits behind.
+    back: dict[tuple[str, str], float] = {}
+    for m in measured:
+        key = (m.circuit.id, m.point.role.value)
+        back[key] = max(back.get(key, 0.0), m.canonical)
+    out: list[Finding] = []
+    for m in measured:
+        if m.kind is not Kind.PRESSURE:
+            continue
+        role = back_pressure_role(m.point)
+        behind = back.get((m.circuit.id, role.value), 0.0) if role is not None else 0.0
+        over = check_over_pressure(m.canonical, m.u_canonical * math.sqrt(3.0), m.circuit, m.point, behind)
+        if over is None:
+            continue
+        out.append(
+            Finding(
+                rule_id="over-pressure",
+                title=f"Over-pressure at {m.point.label}",
+                circuit=m.circuit.id,
+                verdict=Verdict.HIGH,
+                message=f"{over.message} The relief did not open as it should.",
+                value=format_value(m.reading.value),
+                readings=[m.reading.id],
+                p_high=1.0,
+                action="Stop the test now and do not repeat it; find why the relief did not open.",
+                cautions=["over-pressure"],
+                source=(
+                    "common practice: beyond the relief setting plus the gauge's error and a margin, "
+                    "or beyond the point's rating"
+                ),
+            )
+        )
     return out
 
 
@@ -217,37 +258,47 @@ def _cautions(
     findings: list[Finding],
     next_tests: list[NextTest],
 ) -> list[CautionNote]:
-    notes: dict[str, CautionNote] = {}
+    """The cautions of every step taken, of the next test, and of the findings (diagnosis.cautions)."""
+    from fieldkit.diagnosis.cautions import SEVERITY_RANK, cautions_for_step
 
-    def add(cid: str, because: str, circuit: Circuit | None = None) -> None:
-        c = knowledge.cautions.get(cid)
-        if c is not None and cid not in notes and applies(c.needs, circuit, profile):
-            notes[cid] = CautionNote(c.id, c.title, c.text, c.severity.value, c.source, because)
+    notes: dict[str, CautionNote] = {}
+    urgent: set[str] = set()  # raised by what a reading showed (over-pressure): shown first
+
+    def add(c: Caution, because: str, circuit: Circuit | None = None) -> None:
+        if c.id not in notes and applies(c.needs, circuit, profile):
+            notes[c.id] = CautionNote(c.id, c.title, c.text, c.severity.value, c.source, because)
 
     for c in knowledge.cautions.values():
         if c.always:
-            add(c.id, "always")
-    points: list[tuple[TestPoint, str]] = [(m.point, "reading taken") for m in measured]
-    for t in next_tests[:1]:
-        _circuit, tp = profile.test_point(t.test_point)
-        points.append((tp, "next test"))
-    for tp, why in points:
-        circuit, _tp = profile.test_point(tp.id)
-        for cid in tp.cautions:
-            add(cid, f"{why} at {tp.label}", circuit)
-        for c in knowledge.cautions.values():
-            if tp.role in c.roles:
-                add(c.id, f"{why} at {tp.label}", circuit)
-    for m in measured:
-        if m.reading.condition.function is FunctionState.STALLED:
-            for c in knowledge.cautions.values():
-                if FunctionState.STALLED in c.functions:
-                    add(c.id, f"{m.point.label} read with the function stalled")
+            add(c, "always")
+    circuits = {c.id: c for c in profile.circuits}
     for f in findings:
+        where = circuits.get(f.circuit) if f.circuit else None
         for cid in f.cautions:
-            add(cid, f"finding: {f.title}")
-    order = {"danger": 0, "warning": 1, "notice": 2}
-    return sorted(notes.values(), key=lambda n: (n.id != "general", order.get(n.severity, 3)))
+            if cid in knowledge.cautions:
+                add(knowledge.cautions[cid], f"finding: {f.title}", where)
+        for c in knowledge.cautions.values():
+            if c.raised_by_finding(f.rule_id, f.verdict.value):
+                add(c, f"finding: {f.title}", where)
+                urgent.add(c.id)
+    steps: list[tuple[Circuit, TestPoint, FunctionState, str]] = [
+        (m.circuit, m.point, m.reading.condition.function, "reading taken") for m in measured
+    ]
+    for t in next_tests[:1]:
+        circuit, tp = profile.test_point(t.test_point)
+        state = next((s for s in FunctionState if s.label == t.condition), FunctionState.NEUTRAL)
+        steps.append((circuit, tp, state, "next test"))
+    for circuit, tp, state, why in steps:
+        for r in cautions_for_step(knowledge.cautions, circuit, tp, state):
+            add(r.caution, f"{why} at {r.because}")
+    order = {s.value: n for s, n in SEVERITY_RANK.items()}
+    for cid in [cid for cid in notes if set(knowledge.cautions[cid].covered_by) & notes.keys()]:
+        del notes[cid]
+    for cid in urgent & notes.keys():
+        notes[cid].urgent = True
+    return sorted(
+        notes.values(), key=lambda n: (n.id != "general", order.get(n.severity, 3), n.id not in urgent)
+    )
 
 
 def diagnose(
@@ -260,6 +311,7 @@ def diagnose(
     evaluator = Evaluator(profile, measured, system)
     findings, pairs = evaluator.run(knowledge.rules, hyps)
     findings.extend(_gauge_findings(measured, hyps))
+    findings.extend(_over_pressure_findings(measured))
     ranked, posterior = rank(hyps, findings)
     logs = log_posterior(hyps, findings)
     next_tests = suggest(evaluator, pairs, hyps, posterior, logs)

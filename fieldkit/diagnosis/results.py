@@ -137,6 +137,8 @@ class CautionNote:
     severity: str
     source: str
     because: str
+    #: Raised by what a reading showed (over-pressure, an overranged gauge): act on it at once.
+    urgent: bool = False
 
 
 @dataclass(slots=True)

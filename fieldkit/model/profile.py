@@ -36,6 +36,14 @@ class CircuitKind(StrEnum):
     MOTOR = "motor"  # includes two-speed motors (motor_low_displacement set)
 
 
+class Position(StrEnum):
+    """Where the technician is while the reading is taken: it decides which cautions apply."""
+
+    CLEAR = "clear"  # outside the machine's footprint, at a compartment door or on a platform
+    UNDER = "under_machine"  # under the machine or its frame
+    RUNNING_GEAR = "beside_running_gear"  # beside the tracks or wheels, within their reach
+
+
 class ExpectedRange(Strict):
     """Where a healthy machine reads at this point under a condition, and who says so."""
 
@@ -76,6 +84,10 @@ class TestPoint(Strict):
     access: str = Field(default="", description="how to reach it (panels, guards, ladders)")
     fitting: str = Field(default="", description="test coupling or port thread")
     max_pressure: Pressure | None = Field(default=None, description="highest pressure this point can see")
+    position: Position = Field(
+        default=Position.CLEAR,
+        description="where the technician is while reading (clear, under, beside tracks)",
+    )
     expected: list[ExpectedRange] = Field(default_factory=list)
     minutes: float = Field(default=10.0, gt=0, le=480, description="time to set up and take this reading")
     cautions: list[str] = Field(default_factory=list)
@@ -99,6 +111,20 @@ class TestPoint(Strict):
     @property
     def kind(self) -> Kind:
         return ROLES[self.role].kind
+
+    @property
+    def pressure_rating(self) -> pint.Quantity | None:
+        """The highest pressure this point can see: its stated maximum, else the top of its
+        highest expected pressure range. Used for injection cautions and over-pressure."""
+        if self.max_pressure is not None:
+            return self.max_pressure
+        tops = [
+            b
+            for rng in self.expected
+            for b in (rng.high, rng.low)
+            if b is not None and kind_of(b) is Kind.PRESSURE
+        ]
+        return max(tops, key=lambda q: q.to("bar").magnitude) if tops else None
 
     def expected_for(self, condition: Condition) -> ExpectedRange | None:
         """The first expected range whose condition matches: profiles list specific ranges first."""

@@ -43,6 +43,8 @@ class RoleInfo:
     label: str
     #: Readings of these roles can be hazardous to take (high pressure at the fitting).
     high_pressure: bool = False
+    #: Read with the engine running (most readings); False for readings taken with it stopped.
+    engine_running: bool = True
 
 
 ROLES: dict[Role, RoleInfo] = {
@@ -63,12 +65,14 @@ ROLES: dict[Role, RoleInfo] = {
     Role.LS_STANDBY_PRESSURE: RoleInfo(Kind.PRESSURE, "LS standby pressure"),
     Role.PILOT_PRESSURE: RoleInfo(Kind.PRESSURE, "pilot pressure"),
     Role.BRAKE_RELEASE_PRESSURE: RoleInfo(Kind.PRESSURE, "brake release pressure"),
-    Role.ACCUMULATOR_PRECHARGE: RoleInfo(Kind.PRESSURE, "accumulator gas precharge", high_pressure=True),
+    Role.ACCUMULATOR_PRECHARGE: RoleInfo(
+        Kind.PRESSURE, "accumulator gas precharge", high_pressure=True, engine_running=False
+    ),
     Role.OIL_TEMPERATURE: RoleInfo(Kind.TEMPERATURE, "oil temperature"),
     Role.PUMP_SPEED: RoleInfo(Kind.SPEED, "pump speed"),
     Role.PUMP_FLOW: RoleInfo(Kind.FLOW, "pump flow", high_pressure=True),
-    Role.CYLINDER_DRIFT: RoleInfo(Kind.VELOCITY, "cylinder drift rate"),
+    Role.CYLINDER_DRIFT: RoleInfo(Kind.VELOCITY, "cylinder drift rate", engine_running=False),
     Role.CYLINDER_SEAL_DRIFT: RoleInfo(
-        Kind.VELOCITY, "cylinder drift with the rod side vented (piston seal test)"
+        Kind.VELOCITY, "cylinder drift with the rod side vented (piston seal test)", engine_running=False
     ),
 }

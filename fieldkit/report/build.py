@@ -443,8 +443,10 @@ def _cautions(notes: list[CautionNote]) -> list[Caution]:
             raised_by="always shown" if c.because == "always" else plain(c.because),
             source=one_line(c.source),
             general=c.id == GENERAL_CAUTION_ID,
+            note=n,
+            urgent=c.urgent,
         )
-        for c in general[:1] + rest
+        for n, c in enumerate(general[:1] + rest, start=1)
     ]
 
 

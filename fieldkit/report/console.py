@@ -34,6 +34,11 @@ def print_diagnosis(
 ) -> None:
     console = console or Console(no_color=bool(os.environ.get("NO_COLOR")), highlight=False)
     console.print(_t(f"{profile.name} — job {visit.job_number} — {visit.customer}", "bold"))
+    for c in result.cautions:
+        if c.urgent:  # before anything else: a reading says stop now
+            console.print(
+                _t(f"{c.severity.upper()}: {c.title}. ", "bold red"), _t(c.text), _t(f" ({c.because})", "dim")
+            )
 
     readings = Table(title="Readings", title_justify="left", expand=False)
     for col in ("test point", "condition", "reading", "expected", "gauge ±", "verdict"):

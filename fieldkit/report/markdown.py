@@ -70,9 +70,12 @@ def render_markdown(card: JobCard) -> str:
     h = card.header
     out = [f"# {inline(card.title)}: job {inline(h.job_number)}", ""]
     out += table(["Field", "Value"], [[f.label, f.value] for f in h.fields()])
+    out += ["", f"*{inline(card.units)}*"]
+    for c in card.stop_now:  # a reading says stop now: before the summary
+        out += ["", f"> **{inline(c.severity.upper())}: {inline(c.title)}**", ">"]
+        out += [f"> {line}" for line in paragraph(c.text)]
+        out += [">", f"> *{inline(c.raised_by)}*"]
     out += [
-        "",
-        f"*{inline(card.units)}*",
         "",
         "## Summary",
         "",
@@ -156,7 +159,7 @@ def render_markdown(card: JobCard) -> str:
     for c in card.cautions:
         out += ["", f"> **{inline(c.title)}** ({inline(c.severity)})", ">"]
         out += [f"> {line}" for line in paragraph(c.text)]
-        out += [">", f"> *Raised: {inline(c.raised_by)}. Source: {inline(c.source)}.*"]
+        out += [">", f"> *Raised: {inline(c.raised_by)}. See {inline(c.note_ref)}.*"]
 
     out += ["", "## Notes"]
     if not card.notes:
@@ -166,5 +169,9 @@ def render_markdown(card: JobCard) -> str:
 
     out += ["", "## Sign-off", ""]
     out += table(["Role", "Name", "Signature", "Date"], [[s.role, s.name, "", ""] for s in card.sign_off])
+
+    # The appendix: where each caution comes from, with the marks kept.
+    out += ["", "## Appendix: sources of the safety cautions", ""]
+    out += [f"{c.note}. **{inline(c.title)}**: {inline(c.source)}" for c in card.sources]
     out += ["", f"*Job card {inline(h.job_number)}, made by {inline(card.generator)}.*", ""]
     return "\n".join(out)

@@ -303,12 +303,21 @@ class NextStep:
 
 @dataclass(frozen=True, slots=True)
 class Caution:
+    """A caution as the customer's card shows it: plain words up front; its source, with the
+    honest marks ("[from memory]", "[quoted second-hand]"), only in the appendix under ``note``."""
+
     title: str
     text: str
     severity: str
     raised_by: str
     source: str
     general: bool
+    note: int = 0  # its number in the appendix of sources
+    urgent: bool = False  # a reading says stop now (over-pressure): also at the top of the card
+
+    @property
+    def note_ref(self) -> str:
+        return f"appendix, note {self.note}"
 
 
 @dataclass(frozen=True, slots=True)
@@ -347,6 +356,16 @@ class JobCard:
     def low_on_scale_key(self) -> str:
         """The key to gauge-error shares, when any reading has one."""
         return LOW_ON_SCALE_KEY if any(r.low_share for r in self.readings) else ""
+
+    @property
+    def stop_now(self) -> list[Caution]:
+        """Cautions a reading raised (over-pressure, an overranged gauge): first thing on the card."""
+        return [c for c in self.cautions if c.urgent]
+
+    @property
+    def sources(self) -> list[Caution]:
+        """The appendix: each caution's source under its number, in the card's order."""
+        return sorted(self.cautions, key=lambda c: c.note)
 
     @property
     def remarks(self) -> list[ReadingRow]:

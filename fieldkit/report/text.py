@@ -31,6 +31,11 @@ def render_text(card: JobCard) -> str:
     for f in card.header.fields():
         _para(out, f.value, f"{f.label:<{label_width}}", " " * label_width)
     _para(out, card.units)
+    for c in card.stop_now:
+        out.append("")
+        _para(out, f"{c.severity.upper()}: {c.title}", "!! ", "   ")
+        _para(out, c.text, "   ")
+        _para(out, f"({c.raised_by})", "   ")
 
     _section(out, "Summary")
     _para(out, card.conclusion)
@@ -44,6 +49,7 @@ def render_text(card: JobCard) -> str:
     _cautions(out, card)
     _notes(out, card)
     _sign_off(out, card)
+    _sources(out, card)
     out.extend(["", RULE])
     _para(out, f"Job card {card.header.job_number}, made by {card.generator}.")
     return "\n".join(out) + "\n"
@@ -127,7 +133,14 @@ def _cautions(out: list[str], card: JobCard) -> None:
         mark = "!!" if c.severity == "danger" else " !"
         _para(out, f"{c.title} [{c.severity}]", f"{mark} ", "   ")
         _para(out, c.text, "   ")
-        _para(out, f"Raised: {c.raised_by}. Source: {c.source}.", "   ")
+        _para(out, f"Raised: {c.raised_by}. See {c.note_ref}.", "   ")
+
+
+def _sources(out: list[str], card: JobCard) -> None:
+    """The appendix: where each caution comes from, marks kept ("[from memory]" and the like)."""
+    _section(out, "Appendix: sources of the safety cautions")
+    for c in card.sources:
+        _para(out, f"{c.title}: {c.source}", f"{c.note:>2}. ", "    ")
 
 
 def _notes(out: list[str], card: JobCard) -> None:

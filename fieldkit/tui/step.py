@@ -9,13 +9,13 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from fieldkit.diagnosis.catalogue import Caution, Severity
+from fieldkit.diagnosis.catalogue import Caution
 from fieldkit.diagnosis.engine import Knowledge
-from fieldkit.diagnosis.results import NextTest
+from fieldkit.diagnosis.results import Diagnosis, NextTest
 from fieldkit.errors import FieldkitError
 from fieldkit.model.condition import ConditionSpec, FunctionState
 from fieldkit.model.gauge import Gauge
-from fieldkit.model.profile import ExpectedRange, MachineProfile, TestPoint
+from fieldkit.model.profile import Circuit, ExpectedRange, MachineProfile, TestPoint
 from fieldkit.model.roles import Role
 from fieldkit.model.visit import Visit
 from fieldkit.physics.common import Level
@@ -174,19 +174,38 @@ def suggest_gauge(
 
 
 def step_cautions(
-    knowledge: Knowledge, point: TestPoint, function: FunctionState, *, include_general: bool = False
+    knowledge: Knowledge,
+    circuit: Circuit,
+    point: TestPoint,
+    function: FunctionState,
+    *,
+    include_general: bool = False,
+    diagnosis: Diagnosis | None = None,
 ) -> list[Caution]:
-    """The cautions for taking this reading: named by the point, raised by its role, or by the
-    function state (a stall over relief). Worst first."""
-    found: dict[str, Caution] = {}
-    for cid in point.cautions:
-        if cid in knowledge.cautions:
-            found[cid] = knowledge.cautions[cid]
-    for c in knowledge.cautions.values():
-        if point.role in c.roles or function in c.functions or (include_general and c.always):
-            found.setdefault(c.id, c)
-    rank = {Severity.DANGER: 0, Severity.WARNING: 1, Severity.NOTICE: 2}
-    return sorted(found.values(), key=lambda c: (rank[c.severity], c.title))
+    """The cautions for taking this reading (diagnosis.cautions decides, from what the step
+    does), and those raised by findings on readings already taken here (an over-pressure
+    reading stays in front of the technician). Worst first."""
+    from fieldkit.diagnosis.cautions import Raised, cautions_for_step, sort_raised
+
+    raised = cautions_for_step(knowledge.cautions, circuit, point, function, include_general=include_general)
+    if diagnosis is not None:
+        urgent: set[str] = set()
+        here = {c.reading_id for c in diagnosis.checks if c.test_point == point.id}
+        have = {r.caution.id for r in raised}
+        for f in diagnosis.findings:
+            if not here.intersection(f.readings):
+                continue
+            for c in knowledge.cautions.values():
+                if c.id not in have and (
+                    c.id in f.cautions or c.raised_by_finding(f.rule_id, f.verdict.value)
+                ):
+                    raised.append(Raised(c, f.title))
+                    have.add(c.id)
+                if c.raised_by_finding(f.rule_id, f.verdict.value):
+                    urgent.add(c.id)
+        # What a reading here showed (over-pressure) goes first, after the general caution.
+        raised = sorted(sort_raised(raised), key=lambda r: (not r.caution.always, r.caution.id not in urgent))
+    return [r.caution for r in raised]
 
 
 def general_caution(knowledge: Knowledge) -> Caution:

@@ -137,11 +137,11 @@ def test_gauge_fit_refuses_an_overranged_gauge_and_a_meter_of_the_wrong_kind(ope
 
 def test_a_stall_over_relief_adds_the_stall_caution_to_the_step(open_bench) -> None:
     bench = open_bench()
-    _c, loop_a = bench.library.get("tarnhollow-fellborer").test_point("travel.loop_a")
-    stalled = {c.id for c in step_cautions(bench.knowledge, loop_a, FunctionState.STALLED)}
+    circuit, loop_a = bench.library.get("tarnhollow-fellborer").test_point("travel.loop_a")
+    stalled = {c.id for c in step_cautions(bench.knowledge, circuit, loop_a, FunctionState.STALLED)}
     assert "stall-duration" in stalled and "fluid-injection" in stalled
-    _c, charge = bench.library.get("tarnhollow-fellborer").test_point("travel.charge")
-    neutral = {c.id for c in step_cautions(bench.knowledge, charge, FunctionState.NEUTRAL)}
+    circuit, charge = bench.library.get("tarnhollow-fellborer").test_point("travel.charge")
+    neutral = {c.id for c in step_cautions(bench.knowledge, circuit, charge, FunctionState.NEUTRAL)}
     assert "stall-duration" not in neutral
 
 

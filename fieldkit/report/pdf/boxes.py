@@ -27,31 +27,31 @@ from fieldkit.report.pdf.text import Run, block_height, draw_block, draw_runs, r
 SEVERITY = {"danger": (OUT, OUT_FILL), "warning": (UNSURE, UNSURE_FILL), "notice": (ACCENT, (226, 238, 243))}
 
 
-TITLE, TEXT = 6.8, 6.2  # type sizes in a caution box: its title, and its text with why and source
+TITLE, TEXT = 6.8, 6.2  # type sizes in a caution box: its numbered title, and its plain words
 COLUMNS = 3
 GAP = 1.2
 STRIPE = 1.6
 INSET = STRIPE + 0.6  # text starts this far from the box's left edge
 
 
-def _meta(c: Caution) -> str:
-    """Why the caution is on this card and where it comes from, in one muted line."""
-    raised = (
+def _raised(c: Caution) -> str:
+    return (
         "always shown"
         if c.general
         else "raised by the " + c.raised_by.replace("reading taken at", "reading at")
     )
-    return f"({raised}; source: {c.source})"
 
 
-def _body(c: Caution) -> tuple[Run, ...]:
-    """The caution's text with why and where from after it, muted, in the same paragraph."""
-    return (Run(c.text), Run(_meta(c), colour=MUTED))
+def _heading(c: Caution) -> str:
+    """The caution's number (its source and why it is here are under it in the appendix) and title."""
+    return f"{c.note}. {c.title}"
 
 
 def _caution_height(pdf: FPDF, c: Caution, w: float) -> float:
     return (
-        block_height(pdf, c.title, w - INSET, TITLE, True) + runs_height(pdf, _body(c), w - INSET, TEXT) + 1.0
+        block_height(pdf, _heading(c), w - INSET, TITLE, True)
+        + block_height(pdf, c.text, w - INSET, TEXT)
+        + 1.0
     )
 
 
@@ -63,8 +63,8 @@ def _caution_box(pdf: FPDF, c: Caution, x: float, y: float, w: float, h: float) 
     pdf.set_fill_color(*edge)
     pdf.rect(x, y, STRIPE, h, style="F")
     top = y + 0.5
-    top += draw_block(pdf, x + INSET, top, w - INSET, c.title, TITLE, True, edge)
-    draw_runs(pdf, x + INSET, top, w - INSET, _body(c), TEXT)
+    top += draw_block(pdf, x + INSET, top, w - INSET, _heading(c), TITLE, True, edge)
+    draw_block(pdf, x + INSET, top, w - INSET, c.text, TEXT)
 
 
 def _balanced(heights: list[float], columns: int) -> list[int]:
@@ -180,3 +180,45 @@ def _sign_off_boxes(pdf: FPDF, card: JobCard, y: float, height: float) -> None:
             pdf.set_draw_color(*MUTED)
             pdf.set_line_width(0.2)
             pdf.line(fx + label_w, line_y, fx + fw, line_y)
+
+
+def sources_appendix(pdf: FPDF, card: JobCard) -> None:
+    """The appendix after the sign-off: each caution's source under its number, with the honest
+    marks kept ("[from memory]", "[quoted second-hand]"), and why it is on this card."""
+    section(pdf, "Appendix: sources of the safety cautions", keep=8)
+    for c in card.sources:
+        runs = (
+            Run(f"{c.note}. {c.title}: ", bold=True),
+            Run(c.source),
+            Run(f" ({_raised(c)})", colour=MUTED),
+        )
+        h = runs_height(pdf, runs, pdf.epw, TEXT)
+        with placed(pdf, h) as top:
+            draw_runs(pdf, pdf.l_margin, top, pdf.epw, runs, TEXT)
+        pdf.set_y(top + h)
+
+
+def stop_now(pdf: FPDF, card: JobCard) -> None:
+    """A reading that says stop now (over-pressure, an overranged gauge) goes under the header,
+    in the danger colour, before anything else on the card."""
+    for c in card.stop_now:
+        edge, fill = SEVERITY.get(c.severity, SEVERITY["danger"])
+        heading = f"{c.severity.upper()}: {c.title}"
+        w = pdf.epw
+        h = block_height(pdf, heading, w - INSET - 2, BODY + 0.5, True) + block_height(
+            pdf, c.text, w - INSET - 2, BODY
+        )
+        h += block_height(pdf, c.raised_by, w - INSET - 2, SMALL) + 1.5
+        pdf.ln(1.5)
+        with placed(pdf, h) as y:
+            pdf.set_fill_color(*fill)
+            pdf.rect(pdf.l_margin, y, w, h, style="F")
+            pdf.set_fill_color(*edge)
+            pdf.rect(pdf.l_margin, y, STRIPE * 1.5, h, style="F")
+            top = y + 0.6
+            top += draw_block(
+                pdf, pdf.l_margin + INSET + 1, top, w - INSET - 2, heading, BODY + 0.5, True, edge
+            )
+            top += draw_block(pdf, pdf.l_margin + INSET + 1, top, w - INSET - 2, c.text, BODY)
+            draw_block(pdf, pdf.l_margin + INSET + 1, top, w - INSET - 2, c.raised_by, SMALL, colour=MUTED)
+        pdf.set_xy(pdf.l_margin, y + h)

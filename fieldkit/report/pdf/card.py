@@ -21,7 +21,7 @@ from fpdf.fonts import TTFFont
 
 from fieldkit.diagnosis.results import Verdict
 from fieldkit.report.model import JobCard, Note
-from fieldkit.report.pdf.boxes import cautions, sign_off
+from fieldkit.report.pdf.boxes import cautions, sign_off, sources_appendix, stop_now
 from fieldkit.report.pdf.draw import band_legend, band_picture, probability_bar
 from fieldkit.report.pdf.layout import FOOT, MARGIN, fit, placed, runs_block, section, text_block
 from fieldkit.report.pdf.style import (
@@ -161,6 +161,7 @@ def render_pdf(card: JobCard, *, letter: bool = False, fixed_date: datetime | No
         pdf.set_creation_date(fixed_date if fixed_date.tzinfo else fixed_date.replace(tzinfo=UTC))
     pdf.add_page()
     _header(pdf, card)
+    stop_now(pdf, card)
     _summary(pdf, card)
     _readings(pdf, card)
     _findings(pdf, card)
@@ -170,6 +171,7 @@ def render_pdf(card: JobCard, *, letter: bool = False, fixed_date: datetime | No
     cautions(pdf, card)
     _notes(pdf, card)
     sign_off(pdf, card)
+    sources_appendix(pdf, card)
     return bytes(pdf.output())
 
 

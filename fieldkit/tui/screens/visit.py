@@ -227,7 +227,7 @@ class VisitScreen(FieldkitScreen):
         circuit, point, plan_point = self.current()
         entry = self.entry
         function = entry.function
-        cautions = step_cautions(self.bench.knowledge, point, function)
+        cautions = step_cautions(self.bench.knowledge, circuit, point, function, diagnosis=self.diagnosis)
         view = StepView(
             profile=self.profile,
             circuit=circuit,
@@ -247,8 +247,11 @@ class VisitScreen(FieldkitScreen):
         """The current step's cautions and where, for the general caution screen (F2)."""
         if self.profile is None or self.point_id is None:
             return [], ""
-        _c, point, _p = self.current()
-        return step_cautions(self.bench.knowledge, point, self.entry.function), point.label
+        circuit, point, _p = self.current()
+        cautions = step_cautions(
+            self.bench.knowledge, circuit, point, self.entry.function, diagnosis=self.diagnosis
+        )
+        return cautions, point.label
 
     # --- what the widgets say -----------------------------------------------------------------
     def on_plan_list_point_chosen(self, event: PlanList.PointChosen) -> None:
