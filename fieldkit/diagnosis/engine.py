@@ -214,7 +214,11 @@ def _over_pressure_findings(measured: list[Measured]) -> list[Finding]:
     """Built-in check: a reading above the point's rating, or well above its relief setting,
     is a danger to act on at once (diagnosis.over_pressure). It is not evidence for a fault:
     the rules that read the same gauge already weigh it."""
-    from fieldkit.diagnosis.over_pressure import back_pressure_role, check_over_pressure
+    from fieldkit.diagnosis.over_pressure import (
+        assumed_back_pressure,
+        back_pressure_role,
+        check_over_pressure,
+    )
 
     # The highest back pressure read in each circuit, by role: it lifts every relief it sits behind.
     back: dict[tuple[str, str], float] = {}
@@ -225,8 +229,9 @@ def _over_pressure_findings(measured: list[Measured]) -> list[Finding]:
     for m in measured:
         if m.kind is not Kind.PRESSURE:
             continue
-        role = back_pressure_role(m.point)
-        behind = back.get((m.circuit.id, role.value), 0.0) if role is not None else 0.0
+        role = back_pressure_role(m.circuit, m.point)
+        read = back.get((m.circuit.id, role.value)) if role is not None else None
+        behind = read if read is not None else assumed_back_pressure(m.circuit, m.point)
         over = check_over_pressure(m.canonical, m.u_canonical * math.sqrt(3.0), m.circuit, m.point, behind)
         if over is None:
             continue

@@ -7,8 +7,9 @@ from a relief that failed to open (a danger: stop the test, do not repeat it).
 
 The governing setting comes from the circuit: its relief layout (series settings add, in parallel
 the lowest opens first, each at full flow with its override), and the setting parameters the
-profile gives. Settings are read as gauge pressures at the point; a profile whose cross-port
-figure is a differential must add the charge pressure itself (field notes, independent audit).
+profile gives, plus the back pressure where the relief discharges: the return line, the pump case
+for a charge relief, and the low side (charge pressure) for a cross-port relief stated as a
+differential (the circuit's ``cross_port_relief_convention``).
 """
 
 from __future__ import annotations
@@ -30,15 +31,38 @@ HIGH_SIDE_SETTINGS = ("high_pressure_relief_setting", "main_relief_setting", "co
 OWN_RELIEF = {Role.CHARGE_PRESSURE: "charge_relief_setting", Role.PILOT_PRESSURE: "pilot_relief_setting"}
 
 
-def back_pressure_role(point: TestPoint) -> Role | None:
+def _differential_loop(circuit: Circuit, point: TestPoint) -> bool:
+    """A closed loop's port whose cross-port relief is stated as a differential: it holds the
+    setting above the low side, which sits at charge pressure (field notes, independent audit)."""
+    return (
+        circuit.kind.value == "closed_loop_drive"
+        and circuit.cross_port_relief_convention == "differential"
+        and point.role in (Role.LOOP_A_PRESSURE, Role.LOOP_B_PRESSURE)
+    )
+
+
+def back_pressure_role(circuit: Circuit, point: TestPoint) -> Role | None:
     """Where the relief governing this point discharges, as a reading: its pressure adds to the
     setting one for one (field notes, relief valves). A charge relief dumps into the pump case;
-    the main reliefs into the return line."""
+    a differential cross-port relief into the low side at charge pressure; main reliefs into the
+    return line."""
     if point.role is Role.CHARGE_PRESSURE:
         return Role.CASE_PRESSURE
+    if _differential_loop(circuit, point):
+        return Role.CHARGE_PRESSURE
     if ROLES[point.role].high_pressure and point.kind is Kind.PRESSURE:
         return Role.RETURN_PRESSURE
     return None
+
+
+def assumed_back_pressure(circuit: Circuit, point: TestPoint) -> float:
+    """The back pressure to assume (bar) when none was read: the charge relief setting under a
+    differential cross-port relief (the low side cannot sit above it), else none."""
+    if _differential_loop(circuit, point):
+        q = circuit.parameters.get("charge_relief_setting")
+        if q is not None:
+            return to_canonical(q, Kind.PRESSURE)
+    return 0.0
 
 
 @dataclass(frozen=True, slots=True)
@@ -74,10 +98,12 @@ def relief_limit(circuit: Circuit, point: TestPoint) -> Limit | None:
             for r in circuit.reliefs
         }
         if circuit.relief_layout is not None:
-            candidates.append(Limit(_layout_bar(circuit.relief_layout, full), "the circuit's relief layout"))
+            candidates.append(
+                Limit(_layout_bar(circuit.relief_layout, full), "setting of the circuit's reliefs")
+            )
         elif full:
             rid = max(full, key=full.__getitem__)
-            candidates.append(Limit(full[rid], f"relief '{rid}'"))
+            candidates.append(Limit(full[rid], f"setting of relief '{rid}'"))
         names = HIGH_SIDE_SETTINGS
     else:
         names = (OWN_RELIEF[point.role],) if point.role in OWN_RELIEF else ()
@@ -110,20 +136,21 @@ def check_over_pressure(
                 f"{point.label} read {value_bar:.4g} bar, above the point's rating of "
                 f"{shown(point.max_pressure)}.",
             )
-    limit = relief_limit(circuit, point)
-    if limit is None:
+    relief = relief_limit(circuit, point)
+    if relief is None:
         return None
+    limit = relief
+    said = f"{relief.what} ({relief.bar:.4g} bar)"
     if back_pressure_bar > 0:
-        limit = Limit(
-            limit.bar + back_pressure_bar, f"{limit.what} plus {back_pressure_bar:.3g} bar back pressure"
-        )
+        limit = Limit(relief.bar + back_pressure_bar, f"{relief.what} plus back pressure")
+        said += f" plus {back_pressure_bar:.3g} bar where it discharges, {limit.bar:.4g} bar,"
     allowance = gauge_error_bar + MARGIN_SHARE * limit.bar
     if value_bar > limit.bar + allowance:
         return OverPressure(
             value_bar,
             limit,
             allowance,
-            f"{point.label} read {value_bar:.4g} bar, above {limit.what} ({limit.bar:.4g} bar) by more "
-            f"than the gauge's error and a {MARGIN_SHARE:.0%} margin ({allowance:.2g} bar together).",
+            f"{point.label} read {value_bar:.4g} bar, above the {said} by more than the gauge's "
+            f"error and a {MARGIN_SHARE:.0%} margin ({allowance:.2g} bar together).",
         )
     return None

@@ -51,8 +51,11 @@ async def test_visit_screen_at_80_by_24_shows_plan_step_entry_cautions_and_every
         assert "G60 0–60 bar cl 1" in text and "neutral" in text and "2200 rpm" in text and "50 °C" in text
         assert "Enter saves" in text
 
-        # Cautions for this step, and the general caution one key away.
-        assert "Bleed pressure before breaking a connection" in text and "F2" in text
+        # Cautions for this step, worst first: the engine asks for charge with the drive at full
+        # stroke, so the machine can move; the port can see 50 bar, and fluid injection is
+        # possible from about 7 bar (UK HSE RR976). The general caution is one key away.
+        assert "Drive engaged: the machine can move (two people)" in text
+        assert "Fluid injection: keep" in text and "f2 Safety" in text
 
         # Every key hint fits: none falls off the right edge at 80 columns.
         for hint in (
