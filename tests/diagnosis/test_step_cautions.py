@@ -23,7 +23,7 @@ from diagnosis_helpers import RULES, knowledge, library
 from fieldkit.diagnosis.catalogue import Caution
 from fieldkit.diagnosis.cautions import cautions_for_step
 from fieldkit.model.condition import FunctionState
-from fieldkit.model.loading import load_templates
+from fieldkit.model.loading import load_templates, profile_from_raw
 from fieldkit.model.parts import Part
 from fieldkit.model.profile import Circuit, CircuitKind, TestPoint
 from fieldkit.model.roles import Role
@@ -44,18 +44,19 @@ STOP_ENGINE = re.compile(
 
 
 def _template_circuits() -> list[tuple[str, Circuit]]:
+    """Each template as a machine with no maker's figures gets it: its points and typical ranges."""
     out = []
-    for name, (tmpl, _raw) in load_templates(RULES / "templates").items():
-        circuit = Circuit(
-            id=tmpl.id,
-            name=tmpl.name,
-            kind=tmpl.kind,
-            parameters=dict(tmpl.parameters),
-            reliefs=list(tmpl.reliefs),
-            test_points=[tp.model_copy(deep=True) for tp in tmpl.test_points],
-            fitted_parts=getattr(tmpl, "fitted_parts", None),
-        )
-        out.append((f"template {name}", circuit))
+    templates = load_templates(RULES / "templates")
+    for name, (tmpl, _raw) in templates.items():
+        raw = {
+            "id": f"bare-{name}".replace("_", "-"),
+            "name": f"Bare {tmpl.name}",
+            "rated_speed": "2000 rpm",
+            "rated_max_pressure": "400 bar",
+            "circuits": [{"id": "c", "name": tmpl.name, "template": name}],
+        }
+        profile = profile_from_raw(raw, templates, f"template {name}")
+        out.append((f"template {name}", profile.circuits[0]))
     return out
 
 
