@@ -13,6 +13,7 @@ from functools import lru_cache
 from pathlib import Path
 
 from fieldkit.diagnosis.catalogue import Caution, Fault, load_cautions, load_faults
+from fieldkit.diagnosis.cautions import SEVERITY_RANK, cautions_for_step
 from fieldkit.diagnosis.findings import (
     Evaluator,
     Hypothesis,
@@ -23,6 +24,7 @@ from fieldkit.diagnosis.findings import (
 from fieldkit.diagnosis.lint import check_references
 from fieldkit.diagnosis.measure import Measured, measure_visit
 from fieldkit.diagnosis.next_test import suggest
+from fieldkit.diagnosis.over_pressure import assumed_back_pressure, back_pressure_role, check_over_pressure
 from fieldkit.diagnosis.ranking import entropy_bits, hypotheses_for, log_posterior, rank
 from fieldkit.diagnosis.results import CautionNote, Diagnosis, Finding, NextTest, ReadingCheck, Verdict
 from fieldkit.diagnosis.rulepack import Rule, load_packs
@@ -214,11 +216,6 @@ def _over_pressure_findings(measured: list[Measured]) -> list[Finding]:
     """Built-in check: a reading above the point's rating, or well above its relief setting,
     is a danger to act on at once (diagnosis.over_pressure). It is not evidence for a fault:
     the rules that read the same gauge already weigh it."""
-    from fieldkit.diagnosis.over_pressure import (
-        assumed_back_pressure,
-        back_pressure_role,
-        check_over_pressure,
-    )
 
     # The highest back pressure read in each circuit, by role: it lifts every relief it sits behind.
     back: dict[tuple[str, str], float] = {}
@@ -264,8 +261,6 @@ def _cautions(
     next_tests: list[NextTest],
 ) -> list[CautionNote]:
     """The cautions of every step taken, of the next test, and of the findings (diagnosis.cautions)."""
-    from fieldkit.diagnosis.cautions import SEVERITY_RANK, cautions_for_step
-
     notes: dict[str, CautionNote] = {}
     urgent: set[str] = set()  # raised by what a reading showed (over-pressure): shown first
 

@@ -10,6 +10,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from fieldkit.diagnosis.catalogue import Caution
+from fieldkit.diagnosis.cautions import Raised, cautions_for_step, sort_raised
 from fieldkit.diagnosis.engine import Knowledge
 from fieldkit.diagnosis.results import Diagnosis, NextTest
 from fieldkit.errors import FieldkitError
@@ -185,8 +186,6 @@ def step_cautions(
     """The cautions for taking this reading (diagnosis.cautions decides, from what the step
     does), and those raised by findings on readings already taken here (an over-pressure
     reading stays in front of the technician). Worst first."""
-    from fieldkit.diagnosis.cautions import Raised, cautions_for_step, sort_raised
-
     raised = cautions_for_step(knowledge.cautions, circuit, point, function, include_general=include_general)
     if diagnosis is not None:
         urgent: set[str] = set()

@@ -217,20 +217,39 @@ def test_a_raised_load_step_carries_the_raised_load_caution() -> None:
 
 
 PART_CAUTIONS = [
-    (CircuitKind.BRAKE_RELEASE, Role.BRAKE_RELEASE_PRESSURE, Part.SPRING_APPLIED_BRAKE, "spring-brake"),
-    (CircuitKind.CYLINDER, Role.STALL_PRESSURE, Part.COUNTERBALANCE_VALVE, "load-holding-valve"),
+    # a closed loop's travel brake: released (free to move) whenever the drive is engaged
+    (
+        CircuitKind.CLOSED_LOOP_DRIVE,
+        Role.LOOP_A_PRESSURE,
+        FunctionState.STALLED,
+        Part.SPRING_APPLIED_BRAKE,
+        "spring-brake",
+    ),
+    (
+        CircuitKind.CYLINDER,
+        Role.STALL_PRESSURE,
+        FunctionState.STALLED,
+        Part.COUNTERBALANCE_VALVE,
+        "load-holding-valve",
+    ),
     # the brake valve's supply point: stored-energy (which says all it says) is not on it
-    (CircuitKind.BRAKE_RELEASE, Role.PILOT_PRESSURE, Part.ACCUMULATOR, "accumulator-fitted"),
+    (
+        CircuitKind.BRAKE_RELEASE,
+        Role.PILOT_PRESSURE,
+        FunctionState.NEUTRAL,
+        Part.ACCUMULATOR,
+        "accumulator-fitted",
+    ),
 ]
 
 
 @pytest.mark.parametrize(
-    ("kind", "role", "part", "caution"), PART_CAUTIONS, ids=[p[3] for p in PART_CAUTIONS]
+    ("kind", "role", "state", "part", "caution"), PART_CAUTIONS, ids=[p[4] for p in PART_CAUTIONS]
 )
 def test_a_part_caution_follows_what_the_circuit_has_fitted(
-    kind: CircuitKind, role: Role, part: Part, caution: str
+    kind: CircuitKind, role: Role, state: FunctionState, part: Part, caution: str
 ) -> None:
-    _w, circuit, tp, state = next(
+    _w, circuit, tp, _s = next(
         s for s in all_steps() if s[1].kind is kind and s[2].role is role and s[0].startswith("template")
     )
     stated = circuit.model_copy(update={"fitted_parts": [part]})
