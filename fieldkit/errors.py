@@ -27,6 +27,22 @@ class AmbiguousInputError(UnitInputError):
         self.choices = choices
 
 
+class ImpossibleValueError(UnitInputError):
+    """A value no instrument can show (below a perfect vacuum, below absolute zero, negative
+    flow, too large to compute with): refused with the reason."""
+
+
+class ConfirmValueError(FieldkitError):
+    """A possible but unlikely value (past the gauge, far above the point's maximum): the caller
+    must ask, and save only when the person confirms. ``choice`` is what would be saved."""
+
+    def __init__(self, message: str, choice: object, danger: str = "") -> None:
+        super().__init__(message)
+        self.choice = choice
+        #: id of a danger caution the value raises at once (an over-pressure), or ""
+        self.danger = danger
+
+
 class DataFileError(FieldkitError):
     """A profile, rule, visit or CSV file is wrong; the message names file and line or key."""
 

@@ -15,6 +15,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
+from fieldkit.errors import FieldkitError
 from fieldkit.expr.dims import si_value
 from fieldkit.model.gauge import Gauge
 from fieldkit.model.profile import Circuit, MachineProfile, TestPoint
@@ -169,13 +170,38 @@ def _oil_temperature_at(
     return t, u
 
 
+def unusable(reading: Reading, kind: Kind) -> str:
+    """Why a stored reading cannot be computed with ("" when it can). An earlier version, a
+    hand-edited file or an import may have stored a value no gauge shows (infinite once in SI
+    units, or its condition so); such a reading is skipped with a note, never allowed to stop
+    the diagnosis of the whole visit."""
+    checks = [("value", reading.value, kind)]
+    if reading.condition.speed is not None:
+        checks.append(("speed in its condition", reading.condition.speed, Kind.SPEED))
+    if reading.condition.oil_temperature is not None:
+        checks.append(("oil temperature in its condition", reading.condition.oil_temperature, Kind.TEMPERATURE))
+    for what, q, need in checks:
+        try:
+            if kind_of(q) is not need:
+                return f"its {what} is a {kind_of(q).value}, not a {need.value}"
+            if not math.isfinite(to_canonical(q, need)) or not math.isfinite(si_value(q)):
+                return f"its {what} is not a finite number once converted"
+        except (FieldkitError, ArithmeticError, ValueError, TypeError) as exc:
+            return f"its {what} cannot be converted ({exc})"
+    return ""
+
+
 def measure_visit(visit: Visit, profile: MachineProfile) -> tuple[list[Measured], list[str]]:
     """Every standing reading of the visit, ready for rules; plus notes on readings it had to skip."""
     points = {tp.id: (c, tp) for c, tp in profile.all_test_points()}
     current = visit.current_readings()
     notes: list[str] = []
     oil = [
-        r for r in current if r.test_point in points and points[r.test_point][1].role is Role.OIL_TEMPERATURE
+        r
+        for r in current
+        if r.test_point in points
+        and points[r.test_point][1].role is Role.OIL_TEMPERATURE
+        and not unusable(r, Kind.TEMPERATURE)
     ]
     window = profile.test_window
     oil_min = to_canonical(window.oil_min, Kind.TEMPERATURE)
@@ -195,6 +221,13 @@ def measure_visit(visit: Visit, profile: MachineProfile) -> tuple[list[Measured]
         if kind_of(r.value) is not kind:
             notes.append(
                 f"reading {r.id} at {point.label} is a {kind_of(r.value).value}, not a {kind.value}; skipped"
+            )
+            continue
+        problem = unusable(r, kind)
+        if problem:
+            notes.append(
+                f"reading {r.id} at {point.label} (entered '{r.entered or r.value}') cannot be used: "
+                f"{problem}; skipped — correct or delete it (readings trail, ^r)"
             )
             continue
         q = r.value
