@@ -221,9 +221,19 @@ def _run_ui(args: argparse.Namespace, demo: bool) -> int:
             seed_demo(bench.store)
         from fieldkit.tui.app import make_app
 
-        make_app(bench, demo=demo).run()
+        app = make_app(bench, demo=demo)
+        app.run()
     finally:
         bench.close()
+    code = getattr(app, "return_code", 0)
+    if code:
+        crash = getattr(app, "crash", None)
+        if crash is not None:
+            from fieldkit.crash_log import plain_message
+
+            error, log = crash
+            print(f"fieldkit: {plain_message(error, log, 'running the terminal UI')}", file=sys.stderr)
+        return code
     return 0
 
 

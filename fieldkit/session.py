@@ -15,12 +15,13 @@ from datetime import UTC, datetime
 from pathlib import Path
 from typing import TYPE_CHECKING
 
-from fieldkit.errors import DataFileError, FieldkitError
+from fieldkit.errors import ConfirmValueError, DataFileError, FieldkitError, ImpossibleValueError
 
 if TYPE_CHECKING:
     from fieldkit.diagnosis.engine import Knowledge
     from fieldkit.diagnosis.results import Diagnosis
 from fieldkit.model.condition import Condition
+from fieldkit.model.gauge import Gauge
 from fieldkit.model.loading import ProfileLibrary
 from fieldkit.model.profile import MachineProfile, TestPoint
 from fieldkit.model.visit import Reading, Visit
@@ -123,6 +124,18 @@ class Workbench:
             plausible=plausibility(point),
         )
 
+    def check_entry(
+        self, visit: Visit, point: TestPoint, parsed: ParsedValue, gauge_id: str | None = None
+    ) -> Question | None:
+        """Refuse a value no instrument can show (ImpossibleValueError, with the reason); return
+        the question to ask about a possible but unlikely one, or None when it can be saved."""
+        from fieldkit.model.bounds import impossible
+
+        why = impossible(parsed.quantity, point.kind, parsed.reference, visit.barometric_pressure)
+        if why:
+            raise ImpossibleValueError(f"'{parsed.text}' refused: {why}")
+        return entry_question(visit, point, parsed, visit.gauge(gauge_id))
+
     def record(
         self,
         visit_id: str,
@@ -134,16 +147,25 @@ class Workbench:
         note: str = "",
         replaces: str | None = None,
         chosen: ParsedValue | None = None,
+        confirmed: bool = False,
     ) -> Reading:
         """Parse and save one reading at once (committed before this returns). ``chosen`` is the
-        reading a person picked after :class:`~fieldkit.errors.AmbiguousInputError` asked."""
+        reading a person picked after :class:`~fieldkit.errors.AmbiguousInputError` asked;
+        ``confirmed`` says the person answered yes to :class:`~fieldkit.errors.ConfirmValueError`
+        (a value past the gauge or far above the point's maximum). An impossible value is never
+        saved (:class:`~fieldkit.errors.ImpossibleValueError`)."""
         visit = self.store.get_visit(visit_id)
         profile = self.profile_for(visit)
         try:
             _circuit, point = profile.test_point(point_id)
         except KeyError:
             raise FieldkitError(f"machine '{profile.id}' has no test point '{point_id}'") from None
+        if gauge is not None and visit.gauge(gauge) is None:
+            raise FieldkitError(f"visit {visit.id} has no gauge '{gauge}'")
         parsed = chosen if chosen is not None else self.parse_for_point(point, text)
+        question = self.check_entry(visit, point, parsed, gauge)
+        if question is not None and not confirmed:
+            raise ConfirmValueError(question.text, parsed, danger=question.danger)
         reading = Reading(
             test_point=point.id,
             value=parsed.quantity,
@@ -156,6 +178,74 @@ class Workbench:
         if replaces:
             return self.store.correct_reading(visit_id, replaces, reading)
         return self.store.add_reading(visit_id, reading)
+
+
+@dataclass(frozen=True)
+class Question:
+    """What to ask before saving a possible but unlikely value."""
+
+    text: str
+    #: id of a danger caution to raise at once (the value is above the point's rated maximum)
+    danger: str = ""
+
+
+OVER_PRESSURE = "over-pressure"
+
+
+def entry_question(
+    visit: Visit, point: TestPoint, parsed: ParsedValue, gauge: Gauge | None
+) -> Question | None:
+    """The question a value raises at this point, or None. Past the chosen gauge's span: the
+    gauge may be overranged and damaged, and what it shows only means 'at least' (EN 837-2 keeps
+    steady pressure within 3/4 of the scale, from memory). Above the point's rated maximum: the
+    over-pressure danger, at once. Far above the point's ranges, or above 2000 bar: a slip?"""
+    from fieldkit.model.bounds import implausible
+    from fieldkit.units import PressureReference, format_value, to_gauge
+
+    q, kind = parsed.quantity, point.kind
+    asks: list[str] = []
+    danger = ""
+    gauge_q = q
+    if kind is Kind.PRESSURE and parsed.reference is PressureReference.ABSOLUTE:
+        gauge_q = to_gauge(q, parsed.reference, visit.barometric_pressure)
+    value = to_canonical(gauge_q, kind)
+    if kind is Kind.PRESSURE and point.max_pressure is not None:
+        top = to_canonical(point.max_pressure, kind)
+        if value > top:
+            danger = OVER_PRESSURE
+            asks.append(
+                f"DANGER: {format_value(gauge_q)} is above the {format_value(point.max_pressure)} this "
+                "point is rated for; stop, unload the circuit and check the relief before going on"
+            )
+    if gauge is not None and gauge.kind is kind:
+        start = to_canonical(gauge.scale_start, kind) if gauge.scale_start is not None else 0.0
+        end = to_canonical(gauge.full_scale, kind)
+        if value > end or value < start:
+            where = "past the top" if value > end else "below the bottom"
+            bound = gauge.full_scale if value > end else (gauge.scale_start or 0 * gauge.full_scale)
+            asks.append(
+                f"{format_value(gauge_q, kind=kind)} is {where} of {gauge.id}'s scale "
+                f"({gauge_span_text(gauge)}): the gauge may be overranged and damaged, and it "
+                f"only shows that the value is at {'least' if value > end else 'most'} "
+                f"{format_value(bound, kind=kind)}"
+            )
+    highs = [r.high for r in point.expected if r.high is not None]
+    if kind is Kind.PRESSURE and point.max_pressure is not None:
+        highs.append(point.max_pressure)
+    unlikely = implausible(q, kind, parsed.reference, highs, visit.barometric_pressure)
+    if unlikely and not danger:
+        asks.append(unlikely)
+    if not asks:
+        return None
+    return Question("; ".join(asks) + ". Save it as read?", danger)
+
+
+def gauge_span_text(gauge: Gauge) -> str:
+    """A gauge's true span as printed on its dial: '-1–1.5 bar', '30 inHg vac–0', '0–600 bar'."""
+    from fieldkit.units import format_value
+
+    start = format_value(gauge.scale_start) if gauge.scale_start is not None else "0"
+    return f"{start}–{format_value(gauge.full_scale)}"
 
 
 def plausibility(point: TestPoint) -> Callable[[Quantity], bool] | None:

@@ -472,9 +472,20 @@ def parse_value(
         )
     sign = -1.0 if match.group("sign") in {"-", "−", "–"} else 1.0
     raw = match.group("num").strip(_THIN_SPACES)
+    if any(ch.isdigit() and not "0" <= ch <= "9" for ch in raw):
+        # Python's \d and float() read Arabic-Indic, Devanagari… digits too; a rule file or a
+        # profile would not, so neither does a reading: one meaning for a number everywhere.
+        raise UnitInputError(
+            f"'{cleaned}' has digits from another script; type the digits 0-9, "
+            f"e.g. '{EXAMPLE[expect or Kind.PRESSURE]}'"
+        )
     # The number pattern may swallow a trailing space before the unit; give it back.
     rest = cleaned[match.end() :]
     first, second = _number_readings(raw, decimal_comma)
+    if first == 0.0 and any(ch in "123456789" for ch in raw.split("e")[0].split("E")[0]):
+        raise UnitInputError(
+            f"'{cleaned}' is too small to tell from zero; type the value as the gauge shows it"
+        )
     unit_expr, kind, reference = _split_unit(rest)
     if expect is not None and kind is not expect:
         need = f"{role_name} needs" if role_name else "this needs"

@@ -15,8 +15,11 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
+import pint
+
 from fieldkit.errors import FieldkitError
 from fieldkit.expr.dims import si_value
+from fieldkit.model.bounds import impossible
 from fieldkit.model.gauge import Gauge
 from fieldkit.model.profile import Circuit, MachineProfile, TestPoint
 from fieldkit.model.roles import Role
@@ -170,24 +173,29 @@ def _oil_temperature_at(
     return t, u
 
 
-def unusable(reading: Reading, kind: Kind) -> str:
+def unusable(reading: Reading, kind: Kind, barometric: pint.Quantity | None = None) -> str:
     """Why a stored reading cannot be computed with ("" when it can). An earlier version, a
-    hand-edited file or an import may have stored a value no gauge shows (infinite once in SI
-    units, or its condition so); such a reading is skipped with a note, never allowed to stop
-    the diagnosis of the whole visit."""
-    checks = [("value", reading.value, kind)]
+    hand-edited file or an import may have stored a value no gauge shows (below a perfect
+    vacuum, too large to compute with, or a condition so); such a reading is skipped with a note,
+    never allowed to stop the diagnosis of the whole visit."""
+    checks = [("value", reading.value, kind, reading.reference)]
     if reading.condition.speed is not None:
-        checks.append(("speed in its condition", reading.condition.speed, Kind.SPEED))
+        checks.append(("speed in its condition", reading.condition.speed, Kind.SPEED, None))
     if reading.condition.oil_temperature is not None:
-        checks.append(("oil temperature in its condition", reading.condition.oil_temperature, Kind.TEMPERATURE))
-    for what, q, need in checks:
+        checks.append(
+            ("oil temperature in its condition", reading.condition.oil_temperature, Kind.TEMPERATURE, None)
+        )
+    for what, q, need, reference in checks:
         try:
             if kind_of(q) is not need:
                 return f"its {what} is a {kind_of(q).value}, not a {need.value}"
-            if not math.isfinite(to_canonical(q, need)) or not math.isfinite(si_value(q)):
-                return f"its {what} is not a finite number once converted"
+            why = impossible(q, need, reference, barometric)
+            if not why and not math.isfinite(si_value(q)):
+                why = "it is not a finite number in SI units"
         except (FieldkitError, ArithmeticError, ValueError, TypeError) as exc:
-            return f"its {what} cannot be converted ({exc})"
+            why = f"it cannot be converted ({exc})"
+        if why:
+            return f"its {what}: {why}" if what != "value" else why
     return ""
 
 
@@ -201,7 +209,7 @@ def measure_visit(visit: Visit, profile: MachineProfile) -> tuple[list[Measured]
         for r in current
         if r.test_point in points
         and points[r.test_point][1].role is Role.OIL_TEMPERATURE
-        and not unusable(r, Kind.TEMPERATURE)
+        and not unusable(r, Kind.TEMPERATURE, visit.barometric_pressure)
     ]
     window = profile.test_window
     oil_min = to_canonical(window.oil_min, Kind.TEMPERATURE)
@@ -223,7 +231,7 @@ def measure_visit(visit: Visit, profile: MachineProfile) -> tuple[list[Measured]
                 f"reading {r.id} at {point.label} is a {kind_of(r.value).value}, not a {kind.value}; skipped"
             )
             continue
-        problem = unusable(r, kind)
+        problem = unusable(r, kind, visit.barometric_pressure)
         if problem:
             notes.append(
                 f"reading {r.id} at {point.label} (entered '{r.entered or r.value}') cannot be used: "

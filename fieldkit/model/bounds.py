@@ -91,7 +91,10 @@ def implausible(
         atmosphere = to_canonical(barometric if barometric is not None else STANDARD_ATMOSPHERE, kind)
         value -= atmosphere
     if kind is Kind.PRESSURE and value > HIGHEST_PLAUSIBLE_BAR:
-        return f"{_shown(q, kind)} is above {HIGHEST_PLAUSIBLE_BAR:g} bar, more than any hydraulic test point sees"
+        return (
+            f"{_shown(q, kind)} is above {HIGHEST_PLAUSIBLE_BAR:g} bar, "
+            "more than any hydraulic test point sees"
+        )
     if kind is Kind.TEMPERATURE and value > HOTTEST_PLAUSIBLE_C:
         return f"{_shown(q, kind)} is hotter than hydraulic oil runs (above {HOTTEST_PLAUSIBLE_C:g} °C)"
     tops = [to_canonical(h, kind) for h in highest]

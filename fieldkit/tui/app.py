@@ -8,6 +8,7 @@ through the Workbench to the store, which commits it before the screen says it i
 from __future__ import annotations
 
 from collections.abc import Callable, Iterable
+from pathlib import Path
 
 from textual.app import App, SystemCommand
 from textual.screen import Screen
@@ -35,6 +36,8 @@ class FieldkitApp(Commanded, App[None]):
         self.bench = bench
         self.demo = demo
         self._own_benches: list[Workbench] = []
+        #: the error that stopped the app and the log file it was written to, if one did
+        self.crash: tuple[BaseException, Path] | None = None
 
     def on_mount(self) -> None:
         for theme in THEMES:
@@ -46,6 +49,23 @@ class FieldkitApp(Commanded, App[None]):
         problem = settings_problem()
         if problem:
             self.notify(problem, title="Settings", severity="warning", timeout=12, markup=False)
+
+    def _handle_exception(self, error: Exception) -> None:
+        """The app's last edge (Textual calls this for any error no screen handled): the details
+        go to a log file, the person gets one plain sentence naming it, and the process exits
+        non-zero. Every reading was committed before it was shown as saved, so none is lost.
+        Under the test pilot the error is also handed on, so a test sees it."""
+        from rich.text import Text
+
+        from fieldkit.crash_log import plain_message, write_crash_log
+
+        log = write_crash_log(error, "running the terminal UI")
+        self.crash = (error, log)
+        if self.is_headless:
+            super()._handle_exception(error)
+            return
+        self.exit(return_code=1)
+        self.panic(Text(plain_message(error, log, "running the terminal UI") + "\nfieldkit had to stop."))
 
     def on_unmount(self) -> None:
         for bench in self._own_benches:

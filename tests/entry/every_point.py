@@ -102,9 +102,11 @@ def typical(point: TestPoint) -> pint.Quantity:
             Kind.SPEED: Q_(1800.0, "rpm"),
             Kind.VELOCITY: Q_(2.0, "mm/min"),
         }[point.kind]
-    u = unit({"bar": "bar", "L/min": "liter/minute", "°C": "degC", "rpm": "rpm", "mm/min": "mm/min"}[
-        METRIC_SPELLING[point.kind]
-    ])
+    u = unit(
+        {"bar": "bar", "L/min": "liter/minute", "°C": "degC", "rpm": "rpm", "mm/min": "mm/min"}[
+            METRIC_SPELLING[point.kind]
+        ]
+    )
     low = magnitude_in(rng.low, u) if rng.low is not None else None
     high = magnitude_in(rng.high, u) if rng.high is not None else None
     if low is not None and high is not None:
@@ -118,13 +120,25 @@ def typical(point: TestPoint) -> pint.Quantity:
 
 
 def beyond(point: TestPoint, gauge: Gauge | None) -> pint.Quantity:
-    """A value a third past the top of the chosen gauge (or of the point's rating, or range)."""
+    """A value a third past the top of the chosen gauge (or of the point's rating), or three
+    times the top of its expected range where the kit has no meter of its kind."""
     if gauge is not None:
         return Q_(gauge.full_scale.magnitude * 1.33, gauge.full_scale.units)
     if point.max_pressure is not None and point.kind is Kind.PRESSURE:
         return Q_(point.max_pressure.magnitude * 1.33, point.max_pressure.units)
-    top = typical(point)
-    return Q_(abs(top.magnitude) * 4 + 1.0, top.units)
+    # No meter of this kind in the kit: three times the top of the point's expected ranges.
+    tops = [r.high for r in point.expected if r.high is not None] or [typical(point)]
+    top = max(tops, key=lambda q: abs(q.magnitude))
+    return Q_(abs(top.magnitude) * 3 + 1.0, top.units)
+
+
+def _has_ceiling(point: TestPoint, gauge: Gauge | None) -> bool:
+    """Whether anything says how high this point goes: a gauge, its rating or an expected range."""
+    return (
+        gauge is not None
+        or (point.kind is Kind.PRESSURE and point.max_pressure is not None)
+        or any(r.high is not None for r in point.expected)
+    )
 
 
 def inputs_for(point: TestPoint, gauge: Gauge | None) -> list[Typed]:
@@ -134,7 +148,10 @@ def inputs_for(point: TestPoint, gauge: Gauge | None) -> list[Typed]:
     return [
         Typed("typical", _text(usual, METRIC_SPELLING[kind])),
         Typed("other-system", _text(usual, OTHER_SYSTEM[kind])),
-        Typed("beyond-gauge", _text(beyond(point, gauge), METRIC_SPELLING[kind])),
+        Typed(
+            "beyond-gauge" if _has_ceiling(point, gauge) else "large, nothing to judge it by",
+            _text(beyond(point, gauge), METRIC_SPELLING[kind]),
+        ),
         Typed("wrong-kind", wrong),
         Typed("garbage", "[b]zz[/b] ;[@click=app.quit]"),
         Typed("extreme", f"9.9e307 {METRIC_SPELLING[kind]}"),

@@ -37,6 +37,7 @@ from fieldkit.model.quantity import quantity_text
 from fieldkit.model.visit import Visit, VisitStatus
 from fieldkit.session import Workbench
 from fieldkit.tui import keys
+from fieldkit.tui.guard import guarded
 from fieldkit.tui.plan import (
     PlanCircuit,
     PlanPoint,
@@ -129,6 +130,10 @@ class VisitScreen(FieldkitScreen):
     def _message(self, text: str, mood: str) -> None:
         self.entry.say(text, mood)
 
+    def show_problem(self, text: str) -> None:
+        """An unexpected error, in plain words, where the technician is looking (tui/guard.py)."""
+        self.entry.show_problem(text)
+
     # --- data ---------------------------------------------------------------------------------
     @property
     def closed(self) -> bool:
@@ -180,6 +185,7 @@ class VisitScreen(FieldkitScreen):
         self._show_point(reset_entry=first)
         self.entry.closed = self.closed
 
+    @guarded("redrawing the visit")
     def _show_rest_later(self) -> None:
         if self.is_attached and self.visit is not None:
             self._show_rest()
@@ -211,6 +217,7 @@ class VisitScreen(FieldkitScreen):
         return circuit, point, plan_point
 
     # --- the selected step --------------------------------------------------------------------
+    @guarded("showing the test point")
     def _show_point(self, *, reset_entry: bool) -> None:
         assert self.visit is not None
         _circuit, point, _pp = self.current()
@@ -287,6 +294,29 @@ class VisitScreen(FieldkitScreen):
             lambda index: self.entry.save_choice(event, index),
         )
 
+    def on_reading_entry_confirm(self, event: ReadingEntry.Confirm) -> None:
+        from fieldkit.tui.screens.dialogs import ConfirmDialog
+
+        self.app.push_screen(
+            ConfirmDialog(
+                "Save this value?", literal(str(event.error)), yes="Save as read", no="Do not save"
+            ),
+            lambda yes: self.entry.save_confirmed(event, yes),
+        )
+
+    def on_reading_entry_danger(self, event: ReadingEntry.Danger) -> None:
+        """A typed value above the point's rating raises its danger caution in the strip at once."""
+        if self.profile is not None and self.point_id is not None:
+            self._show_cautions(event.caution)
+
+    def _show_cautions(self, danger: str = "") -> None:
+        _c, point, _p = self.current()
+        cautions = step_cautions(self.bench.knowledge, point, self.entry.function)
+        extra = self.bench.knowledge.cautions.get(danger) if danger else None
+        if extra is not None and extra not in cautions:
+            cautions = [extra, *cautions]
+        self.query_one("#cautions", DrawnLine).data = (tuple(cautions),)
+
     # --- saving -------------------------------------------------------------------------------
     def unsaved_value(self) -> tuple[str, str] | None:
         """A value typed but not saved, and where (for the quit and leave prompts)."""
@@ -298,6 +328,7 @@ class VisitScreen(FieldkitScreen):
         """Save the typed value now; True when it is in the store."""
         return self.entry.save()
 
+    @guarded("saving the reading")
     def after_save(self, saved: ReadingEntry.Saved) -> None:
         """A reading is in the store: diagnose again and show the ranking in the next frame."""
         assert self.visit is not None

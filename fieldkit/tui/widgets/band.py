@@ -12,6 +12,7 @@ The scale is linear and chosen per reading so the band and the reading both fit 
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 from typing import ClassVar
 
@@ -49,6 +50,9 @@ def draw_band(
 ) -> list[Cell]:
     """The picture as cells, one per character column."""
     width = max(width, 8)
+    numbers = [value, uncertainty, *(b for b in (low, high) if b is not None)]
+    if not all(math.isfinite(n) and abs(n) < 1e12 for n in numbers):
+        return [Cell(TRACK, "track") for _ in range(width)]  # nothing sensible to place
     u = abs(uncertainty)
     points = [value - u, value + u] + [b for b in (low, high) if b is not None]
     lo, hi = min(points), max(points)

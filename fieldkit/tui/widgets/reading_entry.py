@@ -20,12 +20,13 @@ from textual.message import Message
 from textual.reactive import reactive
 from textual.widgets import Input, Select
 
-from fieldkit.errors import AmbiguousInputError, FieldkitError
+from fieldkit.errors import AmbiguousInputError, ConfirmValueError, FieldkitError
 from fieldkit.model.condition import Condition, FunctionState
 from fieldkit.model.gauge import Gauge
 from fieldkit.model.profile import MachineProfile, TestPoint
 from fieldkit.model.visit import Reading, Visit
 from fieldkit.session import Workbench
+from fieldkit.tui.guard import guarded
 from fieldkit.tui.safe_text import literal
 from fieldkit.tui.step import SHORT_STATE, last_condition_values, suggest_gauge
 from fieldkit.tui.widgets.drawn import DrawnBlock
@@ -67,6 +68,23 @@ class ReadingEntry(Vertical):
         gauge: Gauge | None
 
     @dataclass
+    class Confirm(Message):
+        """A possible but unlikely value (past the gauge, above the point's rating): the screen
+        asks, then calls :meth:`ReadingEntry.save_confirmed`."""
+
+        error: ConfirmValueError
+        point: TestPoint
+        condition: Condition
+        gauge: Gauge | None
+
+    @dataclass
+    class Danger(Message):
+        """The typed value calls for a danger caution at once (``over-pressure``), or no longer
+        does (``caution`` is "")."""
+
+        caution: str
+
+    @dataclass
     class ConditionChanged(Message):
         """The machine state or the gauge was changed: the step's advice may differ."""
 
@@ -82,6 +100,7 @@ class ReadingEntry(Vertical):
         #: The visit as last read from the store (its gauges), set by the screen.
         self.visit: Visit | None = None
         self._keep_message = False  # a 'saved' line stays until the next keystroke
+        self._danger = ""  # the danger caution the typed value raised
 
     def compose(self) -> ComposeResult:
         with Horizontal(classes="entry-row"):
@@ -206,6 +225,16 @@ class ReadingEntry(Vertical):
                 raise FieldkitError(f"oil field: {exc}") from None
         return Condition(function=self.function, speed=speed, oil_temperature=oil)
 
+    def show_problem(self, text: str) -> None:
+        """An unexpected error, in plain words, where the technician is looking (tui/guard.py)."""
+        self.say(f"✗ {text}", "error", keep=True)
+
+    def _raise_danger(self, caution: str) -> None:
+        if caution != self._danger:
+            self._danger = caution
+            self.post_message(self.Danger(caution))
+
+    @guarded("checking the typed value")
     def update_message(self) -> None:
         """Say what Enter would save, or what is wrong with what is typed."""
         point = self.point
@@ -223,6 +252,7 @@ class ReadingEntry(Vertical):
             return
         if not text.strip():
             value_input.remove_class("-bad")
+            self._raise_danger("")
             self.say(VALUE_HINT, "info")
             return
         try:
@@ -235,7 +265,19 @@ class ReadingEntry(Vertical):
             value_input.add_class("-bad")
             self.say(f"✗ {exc} (nothing saved)", "error")
             return
+        try:
+            question = self.bench.check_entry(
+                self.visit, point, parsed, self.gauge.id if self.gauge else None
+            )
+        except FieldkitError as exc:
+            value_input.add_class("-bad")
+            self.say(f"✗ {exc} (nothing saved)", "error")
+            return
+        self._raise_danger(question.danger if question else "")
         value_input.remove_class("-bad")
+        if question is not None:
+            self.say(f"? {question.text} Enter asks.", "ask")
+            return
         ref = (
             f" ({parsed.reference.value})"
             if parsed.reference is not None and parsed.reference.value != "gauge"
@@ -263,6 +305,7 @@ class ReadingEntry(Vertical):
         self.save()
 
     # --- saving -------------------------------------------------------------------------------
+    @guarded("saving the reading")
     def save(self) -> bool:
         """Save the typed value now; True when it is in the store (then :class:`Saved` is posted)."""
         value_input = self.query_one("#value", Input)
@@ -288,6 +331,11 @@ class ReadingEntry(Vertical):
             )
         except AmbiguousInputError as exc:
             self.post_message(self.Ambiguous(exc, point, condition, gauge))
+            return False
+        except ConfirmValueError as exc:
+            self._raise_danger(exc.danger)
+            self.say(f"? {exc} Answer the question to save it.", "ask")
+            self.post_message(self.Confirm(exc, point, condition, gauge))
             return False
         except FieldkitError as exc:
             value_input.add_class("-bad")
@@ -320,6 +368,26 @@ class ReadingEntry(Vertical):
                 ask.condition,
                 gauge=ask.gauge.id if ask.gauge else None,
                 chosen=choice,
+            )
+        except FieldkitError as err:
+            self.say(f"✗ {err} (nothing saved)", "error")
+            return
+        self._saved(saved, ask.point)
+
+    def save_confirmed(self, ask: ReadingEntry.Confirm, yes: bool | None) -> None:
+        """Save the value after a :class:`Confirm` only when the technician said yes."""
+        if not yes:
+            self.say("Not saved: retype the value, or press Enter again and confirm it.", "ask")
+            return
+        try:
+            saved = self.bench.record(
+                self.visit_id,
+                ask.point.id,
+                "",
+                ask.condition,
+                gauge=ask.gauge.id if ask.gauge else None,
+                chosen=ask.error.choice,  # type: ignore[arg-type]
+                confirmed=True,
             )
         except FieldkitError as err:
             self.say(f"✗ {err} (nothing saved)", "error")
