@@ -17,11 +17,10 @@ from datetime import UTC, datetime
 from pathlib import Path
 
 from fieldkit import __version__
+from fieldkit.settings import data_home
 
 
 def logs_dir() -> Path:
-    from fieldkit.settings import data_home
-
     return data_home() / "logs"
 
 

@@ -20,6 +20,7 @@ from fieldkit.errors import ConfirmValueError, DataFileError, FieldkitError, Imp
 if TYPE_CHECKING:
     from fieldkit.diagnosis.engine import Knowledge
     from fieldkit.diagnosis.results import Diagnosis
+from fieldkit.model.bounds import implausible, impossible
 from fieldkit.model.condition import Condition
 from fieldkit.model.gauge import Gauge
 from fieldkit.model.loading import ProfileLibrary
@@ -28,7 +29,17 @@ from fieldkit.model.visit import Reading, Visit
 from fieldkit.settings import Settings, data_home, default_library
 from fieldkit.store import SqliteVisitStore, open_store
 from fieldkit.tomlfile import read_text, validation_error
-from fieldkit.units import DisplaySystem, Kind, ParsedValue, Quantity, parse_value, to_canonical
+from fieldkit.units import (
+    DisplaySystem,
+    Kind,
+    ParsedValue,
+    PressureReference,
+    Quantity,
+    format_value,
+    parse_value,
+    to_canonical,
+    to_gauge,
+)
 
 MAX_VISIT_FILE = 20_000_000
 
@@ -129,8 +140,6 @@ class Workbench:
     ) -> Question | None:
         """Refuse a value no instrument can show (ImpossibleValueError, with the reason); return
         the question to ask about a possible but unlikely one, or None when it can be saved."""
-        from fieldkit.model.bounds import impossible
-
         why = impossible(parsed.quantity, point.kind, parsed.reference, visit.barometric_pressure)
         if why:
             raise ImpossibleValueError(f"'{parsed.text}' refused: {why}")
@@ -199,9 +208,6 @@ def entry_question(
     gauge may be overranged and damaged, and what it shows only means 'at least' (EN 837-2 keeps
     steady pressure within 3/4 of the scale, from memory). Above the point's rated maximum: the
     over-pressure danger, at once. Far above the point's ranges, or above 2000 bar: a slip?"""
-    from fieldkit.model.bounds import implausible
-    from fieldkit.units import PressureReference, format_value, to_gauge
-
     q, kind = parsed.quantity, point.kind
     asks: list[str] = []
     danger = ""
@@ -242,8 +248,6 @@ def entry_question(
 
 def gauge_span_text(gauge: Gauge) -> str:
     """A gauge's true span as printed on its dial: '-1–1.5 bar', '30 inHg vac–0', '0–600 bar'."""
-    from fieldkit.units import format_value
-
     start = format_value(gauge.scale_start) if gauge.scale_start is not None else "0"
     return f"{start}–{format_value(gauge.full_scale)}"
 

@@ -10,9 +10,11 @@ from __future__ import annotations
 from collections.abc import Callable, Iterable
 from pathlib import Path
 
+from rich.text import Text
 from textual.app import App, SystemCommand
 from textual.screen import Screen
 
+from fieldkit.crash_log import plain_message, write_crash_log
 from fieldkit.session import Workbench
 from fieldkit.tui import keys
 from fieldkit.tui.commands import Commanded, FieldkitCommands
@@ -55,10 +57,6 @@ class FieldkitApp(Commanded, App[None]):
         go to a log file, the person gets one plain sentence naming it, and the process exits
         non-zero. Every reading was committed before it was shown as saved, so none is lost.
         Under the test pilot the error is also handed on, so a test sees it."""
-        from rich.text import Text
-
-        from fieldkit.crash_log import plain_message, write_crash_log
-
         log = write_crash_log(error, "running the terminal UI")
         self.crash = (error, log)
         if self.is_headless:
