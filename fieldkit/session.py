@@ -30,6 +30,7 @@ from fieldkit.settings import Settings, data_home, default_library
 from fieldkit.store import SqliteVisitStore, open_store
 from fieldkit.tomlfile import read_text, validation_error
 from fieldkit.units import (
+    Q_,
     DisplaySystem,
     Kind,
     ParsedValue,
@@ -228,7 +229,11 @@ def entry_question(
         end = to_canonical(gauge.full_scale, kind)
         if value > end or value < start:
             where = "past the top" if value > end else "below the bottom"
-            bound = gauge.full_scale if value > end else (gauge.scale_start or 0 * gauge.full_scale)
+            bound = (
+                gauge.full_scale
+                if value > end
+                else (gauge.scale_start if gauge.scale_start is not None else Q_(0.0, gauge.full_scale.units))
+            )
             asks.append(
                 f"{format_value(gauge_q, kind=kind)} is {where} of {gauge.id}'s scale "
                 f"({gauge_span_text(gauge)}): the gauge may be overranged and damaged, and it "
