@@ -118,10 +118,12 @@ def _parser() -> argparse.ArgumentParser:
     )
 
     from fieldkit.machine_command import add_parsers as add_machine_parsers
+    from fieldkit.kit_command import add_parsers as add_kit_parsers
     from fieldkit.sync_command import add_parsers
 
     add_machine_parsers(sub)
     add_parsers(sub)
+    add_kit_parsers(sub)
     return p
 
 
@@ -191,6 +193,10 @@ def _dispatch(args: argparse.Namespace) -> int:
             return _import(bench, args)
         if cmd == "diagnose":
             return _diagnose(bench, args)
+        if cmd == "kit":
+            from fieldkit.kit_command import run_kit
+
+            return run_kit(bench, args)
         if cmd == "report":
             from fieldkit.report.command import run_report
 
@@ -312,7 +318,8 @@ def _export(bench: Workbench, args: argparse.Namespace) -> int:
 
     visit = bench.store.get_visit(args.visit)
     profile = bench.library.get(visit.machine)
-    path = write_export(export_visit_json(visit, profile), args.out, export_file_name(visit))
+    text = export_visit_json(visit, profile, bench.kit_for_export(visit))
+    path = write_export(text, args.out, export_file_name(visit))
     print(f"wrote {path}")
     return 0
 
@@ -346,8 +353,10 @@ def _import(bench: Workbench, args: argparse.Namespace) -> int:
             f"{path}: machine profile '{visit.machine}' is not installed; put its TOML file in "
             f"{user_profiles_dir()} (or pass --profiles DIR) and import again"
         )
-    stored = bench.store.import_visit(visit, as_new=args.as_new)
+    stored, kit_added = bench.import_visit_file(path, as_new=args.as_new)
     print(f"imported visit {stored.id} ({stored.job_number}, {len(stored.readings)} readings)")
+    if kit_added:
+        print(f"added to the kit: {', '.join(kit_added)}")
     return 0
 
 

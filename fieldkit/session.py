@@ -23,6 +23,7 @@ if TYPE_CHECKING:
 from fieldkit.model.bounds import implausible, impossible
 from fieldkit.model.condition import Condition
 from fieldkit.model.gauge import Gauge
+from fieldkit.model.kit import KitItem, calibration_warning
 from fieldkit.model.loading import ProfileLibrary
 from fieldkit.model.profile import MachineProfile, TestPoint
 from fieldkit.model.visit import Reading, Visit
@@ -47,9 +48,15 @@ MAX_VISIT_FILE = 20_000_000
 
 def read_visit_file(path: Path) -> tuple[Visit, MachineProfile | None]:
     """A visit from a file: a fieldkit export (with its profile) or a bare visit JSON (the samples)."""
+    visit, profile, _kit = read_visit_file_with_kit(path)
+    return visit, profile
+
+
+def read_visit_file_with_kit(path: Path) -> tuple[Visit, MachineProfile | None, list[KitItem]]:
+    """As :func:`read_visit_file`, with the kit items an export carries."""
     from pydantic import ValidationError
 
-    from fieldkit.store.transfer import FORMAT_KEY, read_visit_json
+    from fieldkit.store.transfer import FORMAT_KEY, read_export
 
     text = read_text(path, MAX_VISIT_FILE)
     try:
@@ -59,9 +66,9 @@ def read_visit_file(path: Path) -> tuple[Visit, MachineProfile | None]:
             str(path), f"not valid JSON: {exc.msg} (column {exc.colno})", line=exc.lineno
         ) from None
     if isinstance(data, dict) and FORMAT_KEY in data:
-        return read_visit_json(text, name=str(path))
+        return read_export(text, name=str(path))
     try:
-        return Visit.model_validate(data), None
+        return Visit.model_validate(data), None, []
     except ValidationError as exc:
         raise validation_error(exc, str(path), None) from None
 
@@ -123,6 +130,50 @@ class Workbench:
         from fieldkit.diagnosis.engine import diagnose
 
         return diagnose(visit, profile or self.profile_for(visit), self.knowledge, self.system)
+
+    # --- the kit ------------------------------------------------------------------------
+    def pick_gauge(self, visit_id: str, item_id: str) -> tuple[Visit, str]:
+        """Put a kit instrument on a visit (a copy of it as it is today). Returns the visit and a
+        calibration warning ('' when the instrument is in date on the visit's day)."""
+        item = self.store.kit_item(item_id)
+        if item.retired:
+            raise FieldkitError(
+                f"instrument '{item_id}' was retired on {item.retired_on}; pick one in service"
+            )
+        visit = self.store.add_gauge(visit_id, item.as_gauge())
+        return visit, calibration_warning(item, visit.date)
+
+    def keep_in_kit(self, gauge: Gauge) -> Gauge:
+        """A gauge typed in on a visit joins the kit (when its id is free and its kind is one the
+        kit holds), so the next visit picks it from the list. Returns the gauge as the visit keeps it."""
+        from fieldkit.model.kit import InstrumentKind
+
+        kind = next((k for k in InstrumentKind if k.measures is gauge.kind), None)
+        if kind is None or any(item.id == gauge.id for item in self.store.kit(include_retired=True)):
+            return gauge
+        item = KitItem(
+            id=gauge.id,
+            kind=kind,
+            label=gauge.label,
+            full_scale=gauge.full_scale,
+            scale_start=gauge.scale_start,
+            accuracy_class=gauge.accuracy_class,
+            standard=gauge.standard,
+            serial=gauge.serial,
+            calibration_due=gauge.calibration_due,
+        )
+        return self.store.add_kit_item(item).as_gauge()
+
+    def kit_for_export(self, visit: Visit) -> list[KitItem]:
+        """The kit items (retired ones too) the visit's gauges came from."""
+        ids = {g.kit_item for g in visit.gauges if g.kit_item}
+        return [item for item in self.store.kit(include_retired=True) if item.id in ids]
+
+    def import_visit_file(self, path: Path, *, as_new: bool = False) -> tuple[Visit, list[str]]:
+        """Import an export: the visit, and any of its kit items this store does not have yet."""
+        visit, _profile, kit = read_visit_file_with_kit(path)
+        stored = self.store.import_visit(visit, as_new=as_new)
+        return stored, self.store.merge_kit(kit)
 
     # --- readings -----------------------------------------------------------------------
     def parse_for_point(self, point: TestPoint, text: str) -> ParsedValue:

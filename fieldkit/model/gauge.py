@@ -6,6 +6,8 @@ so it is part of every reading's record.
 
 from __future__ import annotations
 
+import datetime as dt
+
 from pydantic import Field, model_validator
 
 from fieldkit.model.base import Strict
@@ -27,6 +29,11 @@ class Gauge(Strict):
         gt=0, le=10, description="limit of error as % of span (EN 837-1 class for pressure gauges)"
     )
     standard: str = "EN 837-1"
+    #: Copied from the technician's kit (fieldkit.model.kit) when the gauge was picked, so an
+    #: old visit keeps what the gauge was on the day even after it is retired.
+    serial: str = Field(default="", max_length=60)
+    calibration_due: dt.date | None = None
+    kit_item: str | None = None
 
     @model_validator(mode="after")
     def _check(self) -> Gauge:

@@ -177,7 +177,31 @@ _V3 = Migration(
     ),
 )
 
-MIGRATIONS: tuple[Migration, ...] = (_V1, _V2, _V3)
+# Layout 4: the technician's instrument kit, kept once per store (not per visit). One row per
+# instrument with a stable id; an edit rewrites the row, a retirement sets retired_on (the row
+# stays, so a visit that copied the gauge can still be traced to it). The origin says which
+# laptop made the item, for the shop server.
+_V4 = Migration(
+    4,
+    "the instrument kit: gauges, thermometers, flow meters and tachometers kept once",
+    (
+        """CREATE TABLE kit_item (
+            id TEXT PRIMARY KEY NOT NULL,
+            kind TEXT NOT NULL,
+            retired_on TEXT,
+            created_at TEXT NOT NULL,
+            updated_at TEXT NOT NULL,
+            origin TEXT NOT NULL DEFAULT '',
+            item_json TEXT NOT NULL
+        )""",
+        "CREATE INDEX kit_item_by_kind ON kit_item (retired_on, kind, id)",
+        """CREATE TRIGGER kit_item_row_is_kept
+            BEFORE DELETE ON kit_item
+            BEGIN SELECT RAISE(ABORT, 'kit items are retired, never deleted'); END""",
+    ),
+)
+
+MIGRATIONS: tuple[Migration, ...] = (_V1, _V2, _V3, _V4)
 
 
 def latest_version(migrations: Sequence[Migration] = MIGRATIONS) -> int:

@@ -29,7 +29,9 @@ from typing import Any
 from pydantic import BaseModel, ValidationError
 
 from fieldkit.errors import StoreError
+from fieldkit.model.kit import KitItem
 from fieldkit.model.visit import Gauge, Reading, Visit, VisitStatus, new_id
+from fieldkit.store import kit_table
 from fieldkit.store.base import EDITABLE_FIELDS, VisitSummary
 from fieldkit.store.header_log import changed_fields
 from fieldkit.store.migrations import MIGRATIONS, Migration, apply_pending, latest_version
@@ -524,6 +526,62 @@ class SqliteVisitStore:
                 raise StoreError(f"visit {header.job_number} was not {status.value}: {_why(exc)}") from None
             self._write_header(conn, changed, insert=False)
             return self._load(conn, visit_id)
+
+    # --- the instrument kit (fieldkit.store.kit_table) ---------------------------------------
+
+    def kit(self, *, include_retired: bool = False) -> list[KitItem]:
+        """The technician's instruments, in service ones only unless asked."""
+        with self._read() as conn:
+            return kit_table.list_items(conn, include_retired=include_retired)
+
+    def kit_item(self, item_id: str) -> KitItem:
+        with self._read() as conn:
+            return kit_table.get_item(conn, item_id)
+
+    def add_kit_item(self, item: KitItem) -> KitItem:
+        checked: KitItem = self._checked(KitItem, item, f"kit item '{getattr(item, 'id', '?')}'")
+        with self._write("kit") as conn:
+            kit_table.insert_item(conn, checked, self.origin)
+            return kit_table.get_item(conn, checked.id)
+
+    def edit_kit_item(self, item_id: str, **fields: Any) -> KitItem:
+        """Change an instrument (a new calibration date, a corrected serial). Visits that already
+        picked it keep their copy."""
+        if "id" in fields:
+            raise StoreError("an instrument keeps its id; retire it and add a new one instead")
+        with self._write("kit") as conn:
+            current = kit_table.get_item(conn, item_id)
+            try:
+                changed = KitItem.model_validate({**current.model_dump(), **_field_values(fields)})
+            except ValidationError as exc:
+                raise StoreError(f"instrument '{item_id}' was not changed: {_why(exc)}") from None
+            kit_table.replace_item(conn, changed)
+            return changed
+
+    def retire_kit_item(self, item_id: str, on: dt.date | None = None) -> KitItem:
+        """Take an instrument out of service; it stays on the visits that used it."""
+        with self._write("kit") as conn:
+            current = kit_table.get_item(conn, item_id)
+            if current.retired_on is not None:
+                raise StoreError(
+                    f"instrument '{item_id}' was already retired on {current.retired_on.isoformat()}"
+                )
+            changed = current.model_copy(update={"retired_on": on or dt.datetime.now(dt.UTC).date()})
+            kit_table.replace_item(conn, changed)
+            return changed
+
+    def merge_kit(self, items: Iterable[KitItem]) -> list[str]:
+        """Bring in instruments from an import: new ids are added, ids already here are kept as
+        they are (this laptop's record wins). Returns the ids added."""
+        added: list[str] = []
+        with self._write("kit") as conn:
+            for item in items:
+                checked: KitItem = self._checked(KitItem, item, f"kit item '{getattr(item, 'id', '?')}'")
+                if conn.execute("SELECT 1 FROM kit_item WHERE id = ?", (checked.id,)).fetchone():
+                    continue
+                kit_table.insert_item(conn, checked, self.origin)
+                added.append(checked.id)
+        return added
 
     # --- readings ------------------------------------------------------------------------------
 

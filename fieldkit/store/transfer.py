@@ -1,6 +1,7 @@
 """One visit as a JSON file of our own: hand-over between laptops, e-mail to the office, backup.
 
-The file is an envelope ``{"fieldkit_visit": 1, "exported_at": …, "visit": {…}, "profile": {…} | null}``.
+The file is an envelope ``{"fieldkit_visit": 1, "exported_at": …, "visit": {…}, "profile": {…} | null,
+"kit": […]}``.
 ``fieldkit_visit`` is the envelope's format version (a file from a newer fieldkit is refused with
 a message saying so); ``visit`` and ``profile`` are the models' own JSON, with every quantity as
 the text a person would type (``"24.5 bar"``) written exactly, so export → import gives back
@@ -28,6 +29,7 @@ from pydantic import ValidationError
 from fieldkit.durable import sync_folder, write_temp
 from fieldkit.errors import DataFileError
 from fieldkit.model.base import SCHEMA_VERSION, Strict
+from fieldkit.model.kit import KitItem
 from fieldkit.model.profile import MachineProfile
 from fieldkit.model.quantity import quantity_text
 from fieldkit.model.visit import Visit
@@ -45,6 +47,9 @@ class _Envelope(Strict):
     exported_at: dt.datetime
     visit: Visit
     profile: MachineProfile | None = None
+    #: The kit items the visit's gauges were picked from, so the office (or the next laptop)
+    #: learns the instruments too. Older exports have none.
+    kit: list[KitItem] = []
 
 
 def _plain(value: Any) -> Any:
@@ -58,8 +63,11 @@ def _plain(value: Any) -> Any:
     raise TypeError(f"cannot write {type(value).__name__} to a visit export")
 
 
-def export_visit_json(visit: Visit, profile: MachineProfile | None = None) -> str:
-    """The export text for a visit (and the profile it was measured against, if given)."""
+def export_visit_json(
+    visit: Visit, profile: MachineProfile | None = None, kit: list[KitItem] | None = None
+) -> str:
+    """The export text for a visit (and the profile it was measured against, and the kit items
+    its gauges came from, if given)."""
     envelope = {
         FORMAT_KEY: FORMAT_VERSION,
         "exported_at": dt.datetime.now(UTC).isoformat(timespec="seconds").replace("+00:00", "Z"),
@@ -67,6 +75,7 @@ def export_visit_json(visit: Visit, profile: MachineProfile | None = None) -> st
         "profile": json.loads(json.dumps(profile.model_dump(), default=_plain))
         if profile is not None
         else None,
+        "kit": [json.loads(item.model_dump_json()) for item in kit or []],
     }
     return json.dumps(envelope, ensure_ascii=False, indent=2) + "\n"
 
@@ -174,6 +183,14 @@ def _check_versions(data: Any, label: str) -> None:
 def read_visit_json(
     source: str | bytes | os.PathLike[str], *, name: str | None = None
 ) -> tuple[Visit, MachineProfile | None]:
+    """Read an export (without its kit; see :func:`read_export`)."""
+    visit, profile, _kit = read_export(source, name=name)
+    return visit, profile
+
+
+def read_export(
+    source: str | bytes | os.PathLike[str], *, name: str | None = None
+) -> tuple[Visit, MachineProfile | None, list[KitItem]]:
     """Read an export. ``source`` is the JSON text (``str``/``bytes``) or a path (``pathlib.Path``);
     a plain ``str`` is always taken as text, never as a file name. ``name`` labels messages."""
     label, text = _source_text(source, name)
@@ -183,7 +200,7 @@ def read_visit_json(
         envelope = _Envelope.model_validate(data)
     except ValidationError as exc:
         raise validation_error(exc, label, None) from None
-    return envelope.visit, envelope.profile
+    return envelope.visit, envelope.profile, envelope.kit
 
 
 # --- writing -------------------------------------------------------------------------------

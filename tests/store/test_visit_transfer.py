@@ -41,7 +41,7 @@ def test_a_visit_and_its_profile_come_back_equal() -> None:
 
 def test_the_export_is_our_envelope_with_values_as_typed_text() -> None:
     data = json.loads(export_visit_json(visit_with_readings(1)))
-    assert list(data) == ["fieldkit_visit", "exported_at", "visit", "profile"]
+    assert list(data) == ["fieldkit_visit", "exported_at", "visit", "profile", "kit"]
     assert data["fieldkit_visit"] == 1 and data["profile"] is None
     assert data["exported_at"].endswith("Z")
     assert data["visit"]["readings"][0]["value"] == "22.5 bar"

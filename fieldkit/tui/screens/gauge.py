@@ -1,6 +1,9 @@
-"""Add a gauge or meter to the visit: id, range, accuracy class."""
+"""Add a gauge or meter to the visit: picked from the technician's kit, or typed in (and then
+kept in the kit for the next visit)."""
 
 from __future__ import annotations
+
+import datetime as dt
 
 from pydantic import ValidationError
 from rich.text import Text
@@ -11,6 +14,7 @@ from textual.widgets import Button, Input, Label, Select, Static
 
 from fieldkit.errors import FieldkitError
 from fieldkit.model.gauge import EN837_CLASSES, Gauge
+from fieldkit.model.kit import KitItem, calibration_warning
 from fieldkit.tui import keys
 from fieldkit.tui.error_text import explain
 from fieldkit.tui.safe_text import literal
@@ -63,14 +67,38 @@ def build_gauge(
 class AddGaugeDialog(Dialog):
     BINDINGS = keys.ADD_GAUGE
 
-    def __init__(self, taken: set[str], decimal_comma: bool = False) -> None:
+    def __init__(
+        self,
+        taken: set[str],
+        decimal_comma: bool = False,
+        kit: list[KitItem] | None = None,
+        on_day: dt.date | None = None,
+    ) -> None:
         super().__init__()
         self._taken, self._decimal_comma = taken, decimal_comma
+        self._kit = [k for k in kit or [] if k.id not in taken and not k.retired]
+        self._day = on_day
+
+    def _kit_label(self, item: KitItem) -> Text:
+        overdue = self._day is not None and calibration_warning(item, self._day)
+        text = f"{item.id}  {item.kind.label} {item.span_text()} class {item.accuracy_class:g}"
+        if item.serial:
+            text += f"  s/n {item.serial}"
+        if overdue:
+            text += "  calibration overdue"
+        return Text(text, end="")
 
     def compose(self) -> ComposeResult:
         with Vertical(classes="dialog"):
             yield Label(Text("Add a gauge or meter", style="bold"), classes="dialog-title")
             with Grid(classes="form"):
+                yield Label("From kit")
+                yield Select(
+                    [(self._kit_label(k), k.id) for k in self._kit],
+                    prompt="type a new one below" if self._kit else "kit is empty: type one below",
+                    id="g-kit",
+                    compact=True,
+                )
                 yield Label("Id")
                 yield Input(placeholder="e.g. G250", id="g-id", compact=True)
                 yield Label("Full scale")
@@ -94,7 +122,10 @@ class AddGaugeDialog(Dialog):
         yield KeyBar()
 
     def on_mount(self) -> None:
-        self.query_one("#g-id", Input).focus()
+        if self._kit:
+            self.query_one("#g-kit", Select).focus()
+        else:
+            self.query_one("#g-id", Input).focus()
 
     @on(Input.Submitted)
     def _enter(self, event: Input.Submitted) -> None:
@@ -109,6 +140,11 @@ class AddGaugeDialog(Dialog):
         self.action_add()
 
     def action_add(self) -> None:
+        picked = self.query_one("#g-kit", Select).value
+        if isinstance(picked, str):
+            item = next(k for k in self._kit if k.id == picked)
+            self.dismiss(item.as_gauge())
+            return
         value = {
             w: self.query_one(f"#{w}", Input).value
             for w in ("g-id", "g-top", "g-start", "g-class", "g-label")

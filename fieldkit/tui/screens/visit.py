@@ -414,7 +414,11 @@ class VisitScreen(FieldkitScreen):
         def added(gauge: Gauge | None) -> None:
             if gauge is None:
                 return
+            from fieldkit.model.kit import calibration_warning
+
             try:
+                if gauge.kit_item is None:
+                    gauge = self.bench.keep_in_kit(gauge)
                 self.bench.store.add_gauge(self.visit_id, gauge)
             except FieldkitError as exc:
                 self._message(f"✗ {exc}", "error")
@@ -422,10 +426,22 @@ class VisitScreen(FieldkitScreen):
             self.reload()
             _c, point, _p = self.current()
             self.entry.offer_gauges(point, self.entry.function, choose=gauge.id)
-            self._message(f"✓ gauge {gauge.id} added to the visit", "ok")
+            warning = calibration_warning(gauge, self.visit.date) if self.visit is not None else ""
+            if warning:
+                # A toast as well: the step panel redraws for the new gauge.
+                self.app.notify(f"⚠ {warning}", title="Calibration", severity="warning", timeout=12, markup=False)
+                self._message(f"⚠ {warning}", "error")
+            else:
+                self._message(f"✓ gauge {gauge.id} added to the visit", "ok")
 
         self.app.push_screen(
-            AddGaugeDialog({g.id for g in self.visit.gauges}, self.bench.settings.decimal_comma), added
+            AddGaugeDialog(
+                {g.id for g in self.visit.gauges},
+                self.bench.settings.decimal_comma,
+                self.bench.store.kit(),
+                self.visit.date,
+            ),
+            added,
         )
 
     def action_skip_point(self) -> None:

@@ -1,0 +1,130 @@
+"""The technician's own instruments, kept once and picked for each visit.
+
+A gauge belongs to the technician, not to a visit: its serial, its span and its calibration date
+stay the same from one machine to the next. A visit takes a *copy* of the item when it is picked
+(:meth:`KitItem.as_gauge`), so a visit closed years ago still reads the same after the gauge is
+retired or re-calibrated.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+import re
+from enum import StrEnum
+
+import pint
+from pydantic import Field, model_validator
+
+from fieldkit.errors import FieldkitError
+from fieldkit.model.base import Strict
+from fieldkit.model.gauge import EN837_CLASSES, Gauge
+from fieldkit.model.quantity import AnyQuantity
+from fieldkit.units import Kind, kind_of, parse_value
+
+MAX_LABEL = 120
+
+
+class InstrumentKind(StrEnum):
+    PRESSURE_GAUGE = "pressure_gauge"
+    THERMOMETER = "thermometer"
+    FLOW_METER = "flow_meter"
+    TACHOMETER = "tachometer"
+
+    @property
+    def measures(self) -> Kind:
+        return _MEASURES[self]
+
+    @property
+    def label(self) -> str:
+        return self.value.replace("_", " ")
+
+
+_MEASURES = {
+    InstrumentKind.PRESSURE_GAUGE: Kind.PRESSURE,
+    InstrumentKind.THERMOMETER: Kind.TEMPERATURE,
+    InstrumentKind.FLOW_METER: Kind.FLOW,
+    InstrumentKind.TACHOMETER: Kind.SPEED,
+}
+
+
+class KitItem(Strict):
+    """One instrument of the kit. ``scale_start`` below zero makes a compound gauge
+    (``-1..15 bar``); a scale ending at zero is a vacuum gauge (``-1..0 bar``)."""
+
+    id: str = Field(min_length=1, max_length=40, pattern=r"^[A-Za-z0-9_.\-]+$")
+    kind: InstrumentKind
+    label: str = Field(default="", max_length=MAX_LABEL)
+    full_scale: AnyQuantity
+    scale_start: AnyQuantity | None = None
+    accuracy_class: float = Field(gt=0, le=10, description="limit of error as % of span")
+    standard: str = Field(default="EN 837-1", max_length=80)
+    serial: str = Field(default="", max_length=60)
+    calibration_due: dt.date | None = None
+    retired_on: dt.date | None = None
+
+    @model_validator(mode="after")
+    def _check(self) -> KitItem:
+        if kind_of(self.full_scale) is not self.kind.measures:
+            raise ValueError(
+                f"a {self.kind.label} measures {self.kind.measures.value}; "
+                f"its scale cannot end at a {kind_of(self.full_scale).value}"
+            )
+        # The gauge model carries the span rules (class list, start below end); check once here.
+        self.as_gauge()
+        return self
+
+    def as_gauge(self) -> Gauge:
+        """The copy a visit keeps: span, class, serial and calibration date as they were."""
+        return Gauge(
+            id=self.id,
+            label=self.label or f"{self.kind.label} {self.serial}".strip(),
+            full_scale=self.full_scale,
+            scale_start=self.scale_start,
+            accuracy_class=self.accuracy_class,
+            standard=self.standard,
+            serial=self.serial,
+            calibration_due=self.calibration_due,
+            kit_item=self.id,
+        )
+
+    @property
+    def retired(self) -> bool:
+        return self.retired_on is not None
+
+    def span_text(self) -> str:
+        from fieldkit.units import format_value
+
+        start = format_value(self.scale_start) if self.scale_start is not None else "0"
+        return f"{start} to {format_value(self.full_scale)}"
+
+
+def calibration_warning(gauge: Gauge | KitItem, on: dt.date) -> str:
+    """Why a gauge should not be trusted on ``on`` without a check, or '' when it is in date."""
+    due = gauge.calibration_due
+    if due is None or due >= on:
+        return ""
+    return (
+        f"gauge {gauge.id}: calibration was due on {due.isoformat()}; "
+        "its readings are not backed by a calibration"
+    )
+
+
+def parse_span(text: str, decimal_comma: bool = False) -> tuple[pint.Quantity | None, pint.Quantity]:
+    """``'0..60 bar'``, ``'-1..15 bar'`` (compound), ``'-30..0 inHg'`` (vacuum), or ``'60 bar'``
+    (from zero) → (start or None, full scale). The unit after the upper end serves both ends."""
+    raw = text.strip()
+    if ".." not in raw:
+        return None, parse_value(raw, decimal_comma=decimal_comma).quantity
+    low_text, high_text = (part.strip() for part in raw.split("..", 1))
+    high = parse_value(high_text, decimal_comma=decimal_comma).quantity
+    try:
+        low = parse_value(low_text, decimal_comma=decimal_comma).quantity
+    except FieldkitError:
+        unit_text = re.sub(r"^[-+]?[\d.,\s]+", "", high_text)
+        low = parse_value(f"{low_text} {unit_text}", decimal_comma=decimal_comma).quantity
+    if low.magnitude == 0 and kind_of(high) is not Kind.TEMPERATURE:
+        return None, high
+    return low, high
+
+
+__all__ = ["EN837_CLASSES", "InstrumentKind", "KitItem", "calibration_warning", "parse_span"]
