@@ -19,6 +19,7 @@ from fieldkit.errors import ConfirmValueError, DataFileError, FieldkitError, Imp
 
 if TYPE_CHECKING:
     from fieldkit.diagnosis.engine import Knowledge
+    from fieldkit.diagnosis.evidence import EvidenceBook
     from fieldkit.diagnosis.results import Diagnosis
 from fieldkit.model.bounds import implausible, impossible
 from fieldkit.model.condition import Condition
@@ -26,6 +27,7 @@ from fieldkit.model.gauge import Gauge
 from fieldkit.model.kit import KitItem, calibration_warning
 from fieldkit.model.loading import ProfileLibrary
 from fieldkit.model.profile import MachineProfile, TestPoint
+from fieldkit.model.repair import Departure, WorkItem
 from fieldkit.model.visit import Reading, Visit
 from fieldkit.settings import Settings, data_home, default_library
 from fieldkit.store import SqliteVisitStore, open_store
@@ -129,7 +131,70 @@ class Workbench:
     def diagnose(self, visit: Visit, profile: MachineProfile | None = None) -> Diagnosis:
         from fieldkit.diagnosis.engine import diagnose
 
-        return diagnose(visit, profile or self.profile_for(visit), self.knowledge, self.system)
+        # The diagnosis reads what found the fault; after-repair readings are the re-test's.
+        return diagnose(
+            visit.diagnosis_view(), profile or self.profile_for(visit), self.knowledge, self.system
+        )
+
+    # --- complaint and observations -------------------------------------------------------
+    @property
+    def evidence(self) -> EvidenceBook:
+        """The symptoms and observation checks of the rules folder in use."""
+        from fieldkit.diagnosis.evidence import evidence_book
+
+        k = self.knowledge
+        return evidence_book(k.folder, set(k.faults))
+
+    def set_complaint(self, visit_id: str, complaint: str, symptoms: list[str]) -> Visit:
+        unknown = [s for s in symptoms if s not in self.evidence.symptoms]
+        if unknown:
+            raise FieldkitError(
+                f"unknown symptom(s) {', '.join(unknown)}; known: {', '.join(self.evidence.symptoms)}"
+            )
+        return self.store.update_visit(visit_id, complaint=complaint, symptoms=list(dict.fromkeys(symptoms)))
+
+    def observe(self, visit_id: str, check_id: str, answer: str, *, test_point: str | None = None) -> Visit:
+        """Record one answered check (saved at once). Answering again adds a newer answer; the
+        newest stands and the earlier one stays in the record."""
+        from fieldkit.model.visit import Observation
+
+        check = self.evidence.observations.get(check_id)
+        if check is None:
+            raise FieldkitError(f"unknown check '{check_id}'; known: {', '.join(self.evidence.observations)}")
+        if check.answer(answer) is None:
+            raise FieldkitError(
+                f"'{answer}' is not an answer to '{check_id}'; "
+                f"answers: {', '.join(a.id for a in check.answers)}"
+            )
+        visit = self.store.get_visit(visit_id)
+        circuit = None
+        if test_point is not None:
+            circuit, _point = self.profile_for(visit).test_point(test_point)
+        obs = Observation(
+            check=check_id, answer=answer, circuit=circuit.id if circuit else None, test_point=test_point
+        )
+        return self.store.update_visit(visit_id, observations=[*visit.observations, obs])
+
+    # --- repair, re-test, departure ---------------------------------------------------------
+    def add_work(self, visit_id: str, work: WorkItem) -> Visit:
+        visit = self.store.get_visit(visit_id)
+        return self.store.update_visit(visit_id, work=[*visit.work, work])
+
+    def set_departure(self, visit_id: str, departure: Departure) -> Visit:
+        return self.store.update_visit(visit_id, departure=departure)
+
+    def completion_problems(self, visit: Visit) -> list[str]:
+        """Why the visit cannot be closed yet (an open danger finding the status does not answer)."""
+        from fieldkit.diagnosis.retest import completion_problems, open_dangers
+
+        return completion_problems(visit, open_dangers(visit, self.profile_for(visit), self.knowledge))
+
+    def finish(self, visit_id: str, summary: str) -> Visit:
+        """Close the visit, refusing while a danger finding is open and the status does not say why."""
+        problems = self.completion_problems(self.store.get_visit(visit_id))
+        if problems:
+            raise FieldkitError("; ".join(problems))
+        return self.store.close_visit(visit_id, summary)
 
     # --- the kit ------------------------------------------------------------------------
     def pick_gauge(self, visit_id: str, item_id: str) -> tuple[Visit, str]:
@@ -209,6 +274,8 @@ class Workbench:
         replaces: str | None = None,
         chosen: ParsedValue | None = None,
         confirmed: bool = False,
+        after_repair: bool = False,
+        reason: str = "",
     ) -> Reading:
         """Parse and save one reading at once (committed before this returns). ``chosen`` is the
         reading a person picked after :class:`~fieldkit.errors.AmbiguousInputError` asked;
@@ -235,8 +302,14 @@ class Workbench:
             condition=condition,
             gauge=gauge,
             note=note,
+            after_repair=after_repair,
+            reason=reason,
         )
         if replaces:
+            if not reason.strip():
+                raise FieldkitError(
+                    "a correction needs a reason (e.g. 'misread the scale'); it is kept with the value"
+                )
             return self.store.correct_reading(visit_id, replaces, reading)
         return self.store.add_reading(visit_id, reading)
 

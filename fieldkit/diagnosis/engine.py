@@ -14,6 +14,7 @@ from pathlib import Path
 
 from fieldkit.diagnosis.catalogue import Caution, Fault, load_cautions, load_faults
 from fieldkit.diagnosis.cautions import SEVERITY_RANK, cautions_for_step
+from fieldkit.diagnosis.evidence import evidence_book, evidence_findings
 from fieldkit.diagnosis.findings import (
     Evaluator,
     Hypothesis,
@@ -312,6 +313,7 @@ def diagnose(
     findings, pairs = evaluator.run(knowledge.rules, hyps)
     findings.extend(_gauge_findings(measured, hyps))
     findings.extend(_over_pressure_findings(measured))
+    findings.extend(evidence_findings(visit, evidence_book(knowledge.folder, set(knowledge.faults)), hyps))
     ranked, posterior = rank(hyps, findings)
     logs = log_posterior(hyps, findings)
     next_tests = suggest(evaluator, pairs, hyps, posterior, logs)

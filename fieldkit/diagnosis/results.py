@@ -19,6 +19,8 @@ class Verdict(StrEnum):
     HIGH = "high"
     INCONCLUSIVE = "inconclusive"
     NOT_MEASURED = "not_measured"
+    #: A symptom the operator reported or an observation answered (diagnosis.evidence).
+    REPORTED = "reported"
 
     @property
     def label(self) -> str:
@@ -28,6 +30,7 @@ class Verdict(StrEnum):
             "high": "high",
             "inconclusive": "inconclusive",
             "not_measured": "not measured",
+            "reported": "reported",
         }[self.value]
 
 

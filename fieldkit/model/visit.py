@@ -18,6 +18,7 @@ from fieldkit.model.base import SCHEMA_VERSION, Strict
 from fieldkit.model.condition import Condition, ConditionSpec, FunctionState
 from fieldkit.model.gauge import Gauge
 from fieldkit.model.quantity import AnyQuantity, Pressure
+from fieldkit.model.repair import Departure, WorkItem
 from fieldkit.units import Kind, PressureReference, kind_of, parse_value
 
 __all__ = [
@@ -25,6 +26,7 @@ __all__ = [
     "ConditionSpec",
     "FunctionState",
     "Gauge",
+    "Observation",
     "Reading",
     "Scenario",
     "Visit",
@@ -59,6 +61,10 @@ class Reading(Strict):
     note: str = Field(default="", max_length=MAX_TEXT)
     replaces: str | None = Field(default=None, description="id of the reading this one corrects")
     deleted_at: datetime | None = None
+    #: Why a correction was made (asked for when a reading is corrected; kept with the new value).
+    reason: str = Field(default="", max_length=MAX_TEXT)
+    #: Taken after the repair, to prove it; the diagnosis reads only the readings before it.
+    after_repair: bool = False
 
     @model_validator(mode="before")
     @classmethod
@@ -95,6 +101,18 @@ class Reading(Strict):
         return value.astimezone(UTC) if value is not None else None
 
 
+class Observation(Strict):
+    """One answered check (rules/observations.toml): a finding from eyes, ears or a thermometer."""
+
+    id: str = Field(default_factory=new_id, pattern=r"^[A-Za-z0-9_\-]{1,40}$")
+    check: str = Field(min_length=1, max_length=60, description="the observation's id in the rules")
+    answer: str = Field(min_length=1, max_length=40)
+    circuit: str | None = Field(default=None, max_length=40)
+    test_point: str | None = Field(default=None, max_length=40)
+    at: datetime = Field(default_factory=utc_now)
+    note: str = Field(default="", max_length=MAX_TEXT)
+
+
 class Scenario(Strict):
     """Demo and test data only: the fault a sample visit was written to show."""
 
@@ -121,6 +139,27 @@ class Visit(Strict):
     status: VisitStatus = VisitStatus.OPEN
     summary: str = Field(default="", max_length=MAX_TEXT)
     scenario: Scenario | None = None
+    #: What the operator reports, in their words, and the symptoms picked (rules/symptoms.toml).
+    complaint: str = Field(default="", max_length=MAX_TEXT)
+    symptoms: list[str] = Field(default_factory=list)
+    observations: list[Observation] = Field(default_factory=list)
+    #: The repair and the machine's state on departure (fieldkit.model.repair).
+    work: list[WorkItem] = Field(default_factory=list)
+    departure: Departure | None = None
+    #: IANA time zone of the site (e.g. 'Europe/London'); the card prints times in it. '' = UTC.
+    time_zone: str = Field(default="", max_length=60)
+
+    @field_validator("time_zone")
+    @classmethod
+    def _known_zone(cls, value: str) -> str:
+        if value:
+            from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
+
+            try:
+                ZoneInfo(value)
+            except (ZoneInfoNotFoundError, ValueError):
+                raise ValueError(f"'{value}' is not a time zone name such as 'Europe/London'") from None
+        return value
 
     @model_validator(mode="after")
     def _consistent(self) -> Visit:
@@ -145,6 +184,35 @@ class Visit(Strict):
         """Readings that stand: not deleted and not replaced by a correction."""
         replaced = {r.replaces for r in self.readings if r.replaces}
         return [r for r in self.readings if r.deleted_at is None and r.id not in replaced]
+
+    def diagnosis_view(self) -> Visit:
+        """The visit as it stood before the repair: what found the fault."""
+        if not any(r.after_repair for r in self.readings):
+            return self
+        keep = [r for r in self.readings if not r.after_repair]
+        kept = {r.id for r in keep}
+        return self.model_copy(
+            update={"readings": [r for r in keep if r.replaces is None or r.replaces in kept]}
+        )
+
+    def retest_view(self) -> Visit:
+        """The visit as the machine stands after the repair: at every point re-tested, the
+        after-repair readings replace the earlier ones; other points keep what was found."""
+        after = [r for r in self.current_readings() if r.after_repair]
+        if not after:
+            return self
+        retested = {r.test_point for r in after}
+        standing = [r for r in self.current_readings() if r.after_repair or r.test_point not in retested]
+        return self.model_copy(update={"readings": standing})
+
+    def retest_readings(self) -> list[Reading]:
+        """Readings that stand and were taken after the repair."""
+        return [r for r in self.current_readings() if r.after_repair]
+
+    def local_zone(self) -> dt.tzinfo:
+        from zoneinfo import ZoneInfo
+
+        return ZoneInfo(self.time_zone) if self.time_zone else UTC
 
     def gauge(self, gauge_id: str | None) -> Gauge | None:
         return next((g for g in self.gauges if g.id == gauge_id), None)

@@ -158,6 +158,7 @@ _VERDICT_TEXT = {
     Verdict.HIGH: "HIGH",
     Verdict.INCONCLUSIVE: "inconclusive",
     Verdict.NOT_MEASURED: "no range",
+    Verdict.REPORTED: "reported",
 }
 
 

@@ -22,6 +22,7 @@ VERDICT_STYLE = {
     Verdict.HIGH: "bold red",
     Verdict.INCONCLUSIVE: "yellow",
     Verdict.NOT_MEASURED: "dim",
+    Verdict.REPORTED: "cyan",
 }
 
 

@@ -28,6 +28,12 @@ EDITABLE_FIELDS: frozenset[str] = frozenset(
         "barometric_pressure",
         "notes",
         "gauges",
+        "complaint",
+        "symptoms",
+        "observations",
+        "work",
+        "departure",
+        "time_zone",
     }
 )
 

@@ -72,6 +72,15 @@ VISIT: list[BindingType] = [
     ),
     Binding("ctrl+l", "machine_history", "History", id="visit.history"),
     Binding("ctrl+t", "edit_notes", "Notes", id="visit.notes"),
+    Binding(
+        "f4", "complaint", "Complaint", id="visit.complaint", tooltip="The operator's complaint and symptoms"
+    ),
+    Binding(
+        "f5", "observe", "Seen/heard", id="visit.observe", tooltip="Yes/no checks for this step, one key each"
+    ),
+    Binding(
+        "f6", "repair", "Repair", id="visit.repair", tooltip="Work done, re-test mode, the machine's status"
+    ),
     Binding("ctrl+o", "finish_visit", "Finish", id="visit.finish"),
     Binding("escape", "leave", "Visits", id="visit.leave"),
     Binding("up", "move_point(-1)", "Previous point", id="visit.point_up", show=False),
@@ -144,6 +153,10 @@ MACHINE_BUILDER: list[BindingType] = [
     Binding("ctrl+r", "remove_circuit", "Remove circuit", id="builder.remove"),
     Binding("ctrl+p", "show_plan", "Plan", id="builder.plan"),
     Binding("escape", "cancel", "Cancel", id="builder.cancel"),
+]
+
+COMPLAINT: list[BindingType] = [
+    Binding("ctrl+s", "save", "Save", id="complaint.save"),
 ]
 
 NEW_VISIT: list[BindingType] = [

@@ -136,6 +136,13 @@ async def test_a_correction_and_a_deletion_keep_every_value_in_the_trail(demo_ap
         await wait_until(pilot, lambda: isinstance(app.screen, LinePrompt))
         await pilot.press("ctrl+u")
         await type_text(pilot, "26,8 bar")  # decimal comma, as written on a job sheet
+        value_prompt = app.screen
+        await pilot.press("enter")
+        await wait_until(pilot, lambda: isinstance(app.screen, LinePrompt) and app.screen is not value_prompt)
+        await pilot.press("enter")  # a correction without a reason is refused
+        await pilot.pause()
+        assert isinstance(app.screen, LinePrompt)
+        await type_text(pilot, "read the psi scale by mistake")
         await pilot.press("enter")
         await wait_until(pilot, lambda: isinstance(app.screen, ReadingsScreen))
         await pilot.pause()
@@ -143,6 +150,7 @@ async def test_a_correction_and_a_deletion_keep_every_value_in_the_trail(demo_ap
         assert "corrected by" in text and "(corrects r03)" in text
         charge = [r for r in _visit(store_path).current_readings() if r.test_point == "travel.charge"]
         assert len(charge) == 1 and abs(to_canonical(charge[0].value, Kind.PRESSURE) - 26.8) < 1e-9
+        assert charge[0].reason == "read the psi scale by mistake"
 
         await pilot.press("down", "x")  # the correction is the second row
         await wait_until(pilot, lambda: isinstance(app.screen, ConfirmDialog))

@@ -106,7 +106,7 @@ class FinishScreen(FieldkitScreen):
         try:
             if notes != self.visit.notes:
                 store.update_visit(self.visit.id, notes=notes)
-            closed = store.close_visit(self.visit.id, summary)
+            closed = self.bench.finish(self.visit.id, summary)
         except FieldkitError as exc:
             self._say(f"✗ the visit was not closed: {exc}")
             return

@@ -111,21 +111,41 @@ class ReadingsScreen(FieldkitScreen):
         def corrected(text: str | None) -> None:
             if text is None:
                 return
-            try:
-                new = self.bench.record(
-                    self.visit_id,
-                    self.point.id,
-                    text,
-                    old.condition,
-                    gauge=old.gauge,
-                    note=old.note,
-                    replaces=old.id,
+
+            def because(reason: str | None) -> None:
+                if reason is None:
+                    self._say("Not corrected: a correction needs its reason.")
+                    return
+                try:
+                    new = self.bench.record(
+                        self.visit_id,
+                        self.point.id,
+                        text,
+                        old.condition,
+                        gauge=old.gauge,
+                        note=old.note,
+                        replaces=old.id,
+                        after_repair=old.after_repair,
+                        reason=reason.strip(),
+                    )
+                except FieldkitError as exc:
+                    self._say(f"✗ {exc} (nothing saved)")
+                    return
+                self.refresh_table()
+                self._say(
+                    f"✓ {old.entered} corrected to {new.entered}; "
+                    "the old value and the reason stay in the trail"
                 )
-            except FieldkitError as exc:
-                self._say(f"✗ {exc} (nothing saved)")
-                return
-            self.refresh_table()
-            self._say(f"✓ {old.entered} corrected to {new.entered}; the old value stays in the trail")
+
+            self.app.push_screen(
+                LinePrompt(
+                    "Why is it corrected?",
+                    "The reason is kept with the corrected value (e.g. misread the inner scale).",
+                    placeholder="reason",
+                    check=lambda t: "" if t.strip() else "type the reason for the correction",
+                ),
+                because,
+            )
 
         self.app.push_screen(
             LinePrompt(

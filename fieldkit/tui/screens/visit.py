@@ -404,6 +404,21 @@ class VisitScreen(FieldkitScreen):
         _c, point, _p = self.current()
         self.app.push_screen(ReadingsScreen(self.bench, self.visit_id, point), lambda _r: self.reload())
 
+    def action_complaint(self) -> None:
+        from fieldkit.tui.screens.visit_story import open_complaint
+
+        open_complaint(self)
+
+    def action_observe(self) -> None:
+        from fieldkit.tui.screens.visit_story import open_observations
+
+        open_observations(self)
+
+    def action_repair(self) -> None:
+        from fieldkit.tui.screens.visit_story import open_repair
+
+        open_repair(self)
+
     def action_add_gauge(self) -> None:
         from fieldkit.tui.screens.gauge import AddGaugeDialog
 

@@ -32,6 +32,7 @@ VERDICT_WORD = {
     Verdict.HIGH: "HIGH",
     Verdict.INCONCLUSIVE: "can't call",
     Verdict.NOT_MEASURED: "no range",
+    Verdict.REPORTED: "reported",
 }
 
 

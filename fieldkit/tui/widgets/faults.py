@@ -22,6 +22,7 @@ FINDING_GLYPH = {
     Verdict.HIGH: "▲",
     Verdict.INCONCLUSIVE: "?",
     Verdict.NOT_MEASURED: "·",
+    Verdict.REPORTED: "•",
 }
 
 

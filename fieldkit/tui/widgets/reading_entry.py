@@ -92,6 +92,8 @@ class ReadingEntry(Vertical):
     point: reactive[TestPoint | None] = reactive(None, init=False)
     #: A closed visit takes no readings: the fields are disabled.
     closed: reactive[bool] = reactive(False, init=False)
+    #: Re-test mode (F6): readings saved now are after-repair readings.
+    retest: bool = False
 
     def __init__(self, bench: Workbench, visit_id: str, *, id: str | None = None) -> None:
         super().__init__(id=id)
@@ -327,7 +329,12 @@ class ReadingEntry(Vertical):
         gauge = self.gauge
         try:
             reading = self.bench.record(
-                self.visit_id, point.id, text, condition, gauge=gauge.id if gauge else None
+                self.visit_id,
+                point.id,
+                text,
+                condition,
+                gauge=gauge.id if gauge else None,
+                after_repair=self.retest,
             )
         except AmbiguousInputError as exc:
             self.post_message(self.Ambiguous(exc, point, condition, gauge))
@@ -368,6 +375,7 @@ class ReadingEntry(Vertical):
                 ask.condition,
                 gauge=ask.gauge.id if ask.gauge else None,
                 chosen=choice,
+                after_repair=self.retest,
             )
         except FieldkitError as err:
             self.say(f"✗ {err} (nothing saved)", "error")
