@@ -6,8 +6,11 @@ import argparse
 import datetime as dt
 from typing import TYPE_CHECKING, Any
 
+from pydantic import ValidationError
+
 from fieldkit.errors import FieldkitError
 from fieldkit.model.kit import InstrumentKind, KitItem, calibration_warning, parse_span
+from fieldkit.tomlfile import validation_error
 
 if TYPE_CHECKING:
     from fieldkit.session import Workbench
@@ -85,10 +88,6 @@ def _line(item: KitItem, today: dt.date) -> str:
 
 
 def run_kit(bench: Workbench, args: argparse.Namespace) -> int:
-    from pydantic import ValidationError
-
-    from fieldkit.tomlfile import validation_error
-
     today = dt.datetime.now(dt.UTC).date()
     store = bench.store
     action = args.kit_command

@@ -126,7 +126,7 @@ def check_reading(m: Measured, system: DisplaySystem, window: TestWindow | None 
         test_point=m.point.id,
         test_point_label=m.point.label,
         circuit=m.circuit.id,
-        condition=m.reading.condition.describe(),
+        condition=m.reading.condition.describe(system),
         value=format_value(m.reading.value, system),
         expected=(
             _range_text(low, high, unit_text) + (f" {rng.typical}" if rng.typical else "")

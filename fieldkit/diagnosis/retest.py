@@ -9,6 +9,7 @@ still shows it.
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 from fieldkit.diagnosis.engine import Knowledge, diagnose
@@ -17,6 +18,37 @@ from fieldkit.model.profile import MachineProfile
 from fieldkit.model.repair import MachineStatus
 from fieldkit.model.visit import Visit
 from fieldkit.units import METRIC, DisplaySystem
+
+
+def decimals_for(limit: float) -> int:
+    """Decimals that show a value no finer than the gauge can tell: the first significant figure
+    of its limit of error (±0.6 → 1 decimal, ±6 → none). common practice."""
+    if limit <= 0 or not math.isfinite(limit):
+        return 1
+    return max(0, -math.floor(math.log10(limit)))
+
+
+def limit_text(limit: float) -> str:
+    """A class limit as printed on the card: two significant figures at most (±0.16, ±0.6, ±6)."""
+    if limit <= 0 or not math.isfinite(limit):
+        return "±0"
+    d = max(0, 1 - math.floor(math.log10(limit)))
+    return "±" + f"{round(limit, d):.{d}f}".rstrip("0").rstrip(".")
+
+
+def at_resolution(value: float, limit: float) -> str:
+    return f"{value:.{decimals_for(limit)}f}"
+
+
+#: u = a/√3 for a limit of error a read as a rectangular distribution (JCGM 100:2008, 4.3.7).
+RECTANGULAR = 3**0.5
+
+
+def as_read(check: ReadingCheck) -> str:
+    """A checked reading to its gauge's resolution (the first figure of its limit of error)."""
+    if check.value_num is None or not check.uncertainty_num:
+        return check.value
+    return f"{at_resolution(check.value_num, check.uncertainty_num * RECTANGULAR)} {check.unit}"
 
 
 @dataclass(frozen=True, slots=True)
@@ -62,9 +94,9 @@ def retest_rows(
                 label=a.test_point_label,
                 condition=a.condition,
                 expected=a.expected,
-                before=b.value if b else "not measured",
+                before=as_read(b) if b else "not measured",
                 before_verdict=b.verdict if b else None,
-                after=a.value,
+                after=as_read(a),
                 after_verdict=a.verdict,
             )
         )
@@ -105,4 +137,13 @@ def completion_problems(visit: Visit, dangers: list[Finding]) -> list[str]:
     return problems
 
 
-__all__ = ["RetestRow", "completion_problems", "danger_findings", "open_dangers", "retest_rows"]
+__all__ = [
+    "RetestRow",
+    "as_read",
+    "decimals_for",
+    "limit_text",
+    "completion_problems",
+    "danger_findings",
+    "open_dangers",
+    "retest_rows",
+]

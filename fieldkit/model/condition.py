@@ -12,7 +12,7 @@ from pydantic import Field
 
 from fieldkit.model.base import Strict
 from fieldkit.model.quantity import Speed, Temperature
-from fieldkit.units import format_value
+from fieldkit.units import METRIC, DisplaySystem, format_value
 
 
 class FunctionState(StrEnum):
@@ -43,13 +43,14 @@ class Condition(Strict):
     speed: Speed | None = Field(default=None, description="engine or pump speed while reading")
     oil_temperature: Temperature | None = Field(default=None, description="oil temperature while reading")
 
-    def describe(self) -> str:
-
+    def describe(self, system: DisplaySystem | None = None) -> str:
+        """In words, temperatures in the display system given (the metric default otherwise)."""
+        shown = system or METRIC
         parts = [self.function.short]
         if self.speed is not None:
-            parts.append(format_value(self.speed, significant=4))
+            parts.append(format_value(self.speed, shown, significant=4))
         if self.oil_temperature is not None:
-            parts.append(format_value(self.oil_temperature, significant=2))
+            parts.append(format_value(self.oil_temperature, shown, significant=2))
         return ", ".join(parts)
 
 

@@ -19,7 +19,7 @@ from fieldkit.errors import FieldkitError
 from fieldkit.model.base import Strict
 from fieldkit.model.gauge import EN837_CLASSES, Gauge
 from fieldkit.model.quantity import AnyQuantity
-from fieldkit.units import Kind, kind_of, parse_value
+from fieldkit.units import Kind, format_value, kind_of, parse_value
 
 MAX_LABEL = 120
 
@@ -92,8 +92,6 @@ class KitItem(Strict):
         return self.retired_on is not None
 
     def span_text(self) -> str:
-        from fieldkit.units import format_value
-
         start = format_value(self.scale_start) if self.scale_start is not None else "0"
         return f"{start} to {format_value(self.full_scale)}"
 

@@ -15,6 +15,7 @@ from pydantic import Field, model_validator
 
 from fieldkit.model.base import Strict
 from fieldkit.model.quantity import AnyQuantity
+from fieldkit.units import format_value
 
 MAX_TEXT = 4000
 
@@ -50,11 +51,14 @@ class WorkItem(Strict):
     done_at: datetime = Field(default_factory=_now)
 
     def describe(self) -> str:
-        from fieldkit.units import format_value
+        return self.describe_in(None)
 
+    def describe_in(self, system: object) -> str:
+        """In words, the new setting in the display system given (None: as typed)."""
         text = f"{self.part}: {self.kind.value}"
         if self.setting is not None:
-            text += f", set to {format_value(self.setting)}"
+            shown = format_value(self.setting, system) if system is not None else format_value(self.setting)
+            text += f", set to {shown}"
         if self.note:
             text += f" ({self.note})"
         return text

@@ -10,6 +10,7 @@ import datetime as dt
 import uuid
 from datetime import UTC, datetime
 from enum import StrEnum
+from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
 
 from pydantic import Field, field_validator, model_validator
 
@@ -153,8 +154,6 @@ class Visit(Strict):
     @classmethod
     def _known_zone(cls, value: str) -> str:
         if value:
-            from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
-
             try:
                 ZoneInfo(value)
             except (ZoneInfoNotFoundError, ValueError):
@@ -210,8 +209,6 @@ class Visit(Strict):
         return [r for r in self.current_readings() if r.after_repair]
 
     def local_zone(self) -> dt.tzinfo:
-        from zoneinfo import ZoneInfo
-
         return ZoneInfo(self.time_zone) if self.time_zone else UTC
 
     def gauge(self, gauge_id: str | None) -> Gauge | None:

@@ -7,6 +7,7 @@ and its diagnosis; :mod:`fieldkit.report.model` holds the result's shape.
 from __future__ import annotations
 
 from fieldkit.diagnosis.catalogue import NO_FAULT
+from fieldkit.diagnosis.engine import Knowledge
 from fieldkit.diagnosis.results import (
     CautionNote,
     Diagnosis,
@@ -17,6 +18,7 @@ from fieldkit.diagnosis.results import (
     ReadingCheck,
     Verdict,
 )
+from fieldkit.diagnosis.retest import decimals_for, limit_text
 from fieldkit.model.profile import MachineProfile
 from fieldkit.model.visit import Visit
 from fieldkit.report.gauge_use import GaugeUse, gauge_uses
@@ -44,6 +46,7 @@ from fieldkit.report.model import (
     SignOff,
     make_band,
 )
+from fieldkit.report.story import build_story, plain_why
 from fieldkit.report.usertext import one_line, percent, plain
 from fieldkit.units import METRIC, DisplaySystem, Kind, format_value, to_canonical
 
@@ -62,7 +65,11 @@ _FALLBACK_GENERAL = CautionNote(
 
 
 def job_card(
-    visit: Visit, profile: MachineProfile, diagnosis: Diagnosis, system: DisplaySystem | None = None
+    visit: Visit,
+    profile: MachineProfile,
+    diagnosis: Diagnosis,
+    system: DisplaySystem | None = None,
+    knowledge: Knowledge | None = None,
 ) -> JobCard:
     """Everything the job card says, from the visit, its machine and its diagnosis.
 
@@ -93,6 +100,7 @@ def job_card(
         cautions=_cautions(diagnosis.cautions),
         notes=_notes(visit, diagnosis),
         sign_off=[SignOff("Technician", one_line(visit.technician)), SignOff("Customer", "")],
+        story=build_story(visit, profile, diagnosis, system, knowledge),
     )
 
 
@@ -168,12 +176,14 @@ def _readings(visit: Visit, diagnosis: Diagnosis, uses: dict[str, GaugeUse]) -> 
         t.test_point: t.gauge_advice for t in diagnosis.next_tests if t.repeat and t.gauge_advice
     }
     rows = []
+    told: set[str] = set()  # "gauge too small" is said once per gauge (and in Gauges used)
     for i, c in enumerate(diagnosis.checks, start=1):
         band = None
         if c.value_num is not None and (c.low_num is not None or c.high_num is not None):
-            band = make_band(c.value_num, c.uncertainty_num, c.low_num, c.high_num, c.unit)
+            band = make_band(c.value_num, c.uncertainty_num * _RECTANGULAR, c.low_num, c.high_num, c.unit)
         use = uses.get(c.reading_id, GaugeUse())
         share = _low_share(c, use)
+        reading_text, limit_text = _as_read(c)
         rows.append(
             ReadingRow(
                 number=i,
@@ -181,13 +191,13 @@ def _readings(visit: Visit, diagnosis: Diagnosis, uses: dict[str, GaugeUse]) -> 
                 test_point=one_line(c.test_point_label),
                 circuit=c.circuit,
                 condition=one_line(c.condition),
-                reading=one_line(c.value),
+                reading=one_line(reading_text),
                 expected=one_line(c.expected),
-                uncertainty=c.uncertainty,
-                gauge=one_line(c.gauge),
+                uncertainty=limit_text,
+                gauge=one_line(c.gauge.split(":", 1)[0]),
                 verdict=c.verdict,
                 verdict_text=_VERDICT_TEXT[c.verdict],
-                remark=_remark(c, repeat_advice.get(c.test_point, ""), use, bool(share)),
+                remark=_once(_remark(c, repeat_advice.get(c.test_point, ""), use, bool(share)), use, c, told),
                 note=notes.get(c.reading_id, ""),
                 band=band,
                 low_share=share,
@@ -196,11 +206,35 @@ def _readings(visit: Visit, diagnosis: Diagnosis, uses: dict[str, GaugeUse]) -> 
     return rows
 
 
+#: u = a/√3 for a limit of error a read as a rectangular distribution (JCGM 100:2008, 4.3.7):
+#: the card prints the limit a technician reads off the dial, the "why" view keeps u.
+_RECTANGULAR = 3**0.5
+
+
+def _as_read(c: ReadingCheck) -> tuple[str, str]:
+    """The value to the gauge's resolution and its EN 837-1 class limit (±a), in the card's units."""
+    if c.value_num is None or not c.uncertainty_num:
+        return c.value, c.uncertainty
+    limit = c.uncertainty_num * _RECTANGULAR
+    d = decimals_for(limit)
+    return f"{c.value_num:.{d}f} {c.unit}", f"{limit_text(limit)} {c.unit}"
+
+
+def _once(remark: str, use: GaugeUse, c: ReadingCheck, told: set[str]) -> str:
+    if not use.overrange or use.overrange not in remark:
+        return remark
+    gauge = c.gauge.split(":", 1)[0]
+    if gauge in told:
+        return " ".join(remark.replace(use.overrange, "").split())
+    told.add(gauge)
+    return remark
+
+
 def _low_share(c: ReadingCheck, use: GaugeUse) -> str:
     """The printed gauge error as a share of the reading, for a reading low on its gauge's scale."""
     if not (use.low and c.gauge_advice and c.value_num):
         return ""
-    return f"{100.0 * c.uncertainty_num / abs(c.value_num):.0f} %"
+    return f"{100.0 * c.uncertainty_num * _RECTANGULAR / abs(c.value_num):.0f} %"
 
 
 def _remark(c: ReadingCheck, repeat_advice: str, use: GaugeUse, share_shown: bool) -> str:
@@ -213,7 +247,7 @@ def _remark(c: ReadingCheck, repeat_advice: str, use: GaugeUse, share_shown: boo
     parts = []
     if c.verdict is Verdict.INCONCLUSIVE:
         parts.append(
-            f"Inconclusive: within the gauge's error ({c.uncertainty}) of a limit, so it cannot be "
+            f"Inconclusive: within the gauge's error ({_as_read(c)[1]}) of a limit, so it cannot be "
             "called in or out of range."
         )
         parts.append(
@@ -226,7 +260,8 @@ def _remark(c: ReadingCheck, repeat_advice: str, use: GaugeUse, share_shown: boo
             "The machine profile has no expected range for this condition: compare it with the "
             "maker's figure by hand."
         )
-    if c.gauge_advice and c.gauge_advice not in repeat_advice:
+    # EN 837-2 range advice is said once per gauge, under Gauges used, not on every row.
+    if c.gauge_advice and c.gauge_advice not in repeat_advice and not use.high_on_scale:
         # Said briefly only when every concern has a brief form; otherwise in the diagnosis's words.
         brief = bool(use.overrange or use.low) and (share_shown or not use.low) and not use.high_on_scale
         if not brief:
@@ -381,13 +416,13 @@ def _next_step(diagnosis: Diagnosis, settled: bool) -> tuple[NextStep | None, st
             "use the confirm checks under Recommended actions."
         )
     t: NextTest = diagnosis.next_tests[0]
-    minutes = f"{t.minutes:.0f} min"
+    minutes = f"{max(1, round(t.minutes))} minutes"
     step = NextStep(
         test_point=one_line(t.label),
         condition=one_line(t.condition),
         minutes=minutes,
         repeat=t.repeat,
-        why=plain(t.why),
+        why=plain(plain_why(t)),
         outcomes=[(one_line(k), one_line(v)) for k, v in t.outcomes.items()],
     )
     return (

@@ -66,6 +66,60 @@ def table(headings: list[str], rows: list[list[str]], align: str = "") -> list[s
     return out
 
 
+def _story(card: JobCard) -> list[str]:
+    story = card.story
+    if story is None:
+        return []
+    out: list[str] = []
+    if story.tag_out:
+        out += ["", f"> **{inline(story.tag_out)}**"]
+    out += ["", "## The visit", ""]
+    out += table(["", ""], [[label, text] for label, text in story.first_page])
+    if story.open_dangers:
+        out += ["", inline("Still open after the repair (danger): " + "; ".join(story.open_dangers) + ".")]
+    if story.symptoms:
+        out += ["", inline("Symptoms reported: " + "; ".join(story.symptoms) + ".")]
+    if story.observations:
+        out += ["", "Seen and heard:", ""] + [f"- {inline(o)}" for o in story.observations]
+    if story.retest:
+        out += ["", "## Before and after the repair", ""]
+        out += table(
+            ["Test point", "Condition", "Expected", "Before", "After"],
+            [
+                [
+                    r.point,
+                    r.condition,
+                    r.expected,
+                    f"{r.before} ({r.before_verdict})",
+                    f"{r.after} ({r.after_verdict})",
+                ]
+                for r in story.retest
+            ],
+        )
+    return out
+
+
+def _gauges(card: JobCard) -> list[str]:
+    if card.story is None or not card.story.gauges:
+        return []
+    out = ["", "## Gauges used", ""]
+    out += table(
+        ["Gauge", "Instrument", "Limit of error", "Serial", "Calibration", "Range advice"],
+        [
+            [
+                g.id,
+                g.instrument,
+                g.limit,
+                g.serial,
+                ("OVERDUE — " if g.overdue else "") + g.calibration,
+                g.advice,
+            ]
+            for g in card.story.gauges
+        ],
+    )
+    return out
+
+
 def render_markdown(card: JobCard) -> str:
     h = card.header
     out = [f"# {inline(card.title)}: job {inline(h.job_number)}", ""]
@@ -75,6 +129,7 @@ def render_markdown(card: JobCard) -> str:
         out += ["", f"> **{inline(c.severity.upper())}: {inline(c.title)}**", ">"]
         out += [f"> {line}" for line in paragraph(c.text)]
         out += [">", f"> *{inline(c.raised_by)}*"]
+    out += _story(card)
     out += [
         "",
         "## Summary",
@@ -109,6 +164,8 @@ def render_markdown(card: JobCard) -> str:
         for r in card.remarks:
             text = " ".join(t for t in (r.remark, f"Note: {r.note}" if r.note else "") if t)
             out.append(f"- **{r.number}. {inline(r.test_point)}**: {inline(text)}")
+
+    out += _gauges(card)
 
     out += ["", "## Findings", ""]
     if card.findings.flagged:

@@ -15,6 +15,7 @@ from dataclasses import dataclass, field
 from fieldkit import __version__
 from fieldkit.diagnosis.results import Verdict
 from fieldkit.errors import FieldkitError
+from fieldkit.report.story import Story
 from fieldkit.report.usertext import percent
 
 #: A top fault at or above this probability counts as settled: no further test is suggested.
@@ -30,7 +31,7 @@ GENERAL_CAUTION_ID = "general"
 
 #: Explains the share printed after a gauge error, once per card.
 LOW_ON_SCALE_KEY = (
-    "A share after a gauge error, as in ±0.35 bar (6 %): read below a quarter of the gauge's "
+    "A share after a gauge error, as in ±0.6 bar (6 %): read below a quarter of the gauge's "
     "span, where its error is that share of the reading; a smaller range reads it better."
 )
 
@@ -351,6 +352,8 @@ class JobCard:
     notes: list[Note]
     sign_off: list[SignOff]
     generator: str = field(default=f"fieldkit {__version__}")
+    #: The first page: complaint, cause, work, re-test, status; and the gauges used, once each.
+    story: Story | None = None
 
     @property
     def low_on_scale_key(self) -> str:

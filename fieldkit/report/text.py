@@ -37,11 +37,14 @@ def render_text(card: JobCard) -> str:
         _para(out, c.text, "   ")
         _para(out, f"({c.raised_by})", "   ")
 
+    _story(out, card)
+
     _section(out, "Summary")
     _para(out, card.conclusion)
     _para(out, card.counts)
 
     _readings(out, card)
+    _gauges(out, card)
     _findings(out, card)
     _faults(out, card)
     _actions(out, card)
@@ -53,6 +56,50 @@ def render_text(card: JobCard) -> str:
     out.extend(["", RULE])
     _para(out, f"Job card {card.header.job_number}, made by {card.generator}.")
     return "\n".join(out) + "\n"
+
+
+def _story(out: list[str], card: JobCard) -> None:
+    story = card.story
+    if story is None:
+        return
+    if story.tag_out:
+        out.extend(["", "!" * COLUMNS])
+        _para(out, story.tag_out, "!! ", "!! ")
+        out.append("!" * COLUMNS)
+    _section(out, "The visit")
+    width = max(len(label) for label, _ in story.first_page) + 2
+    for label, text in story.first_page:
+        _para(out, text, f"{label:<{width}}", " " * width)
+    if story.open_dangers:
+        _para(out, "Still open after the repair (danger): " + "; ".join(story.open_dangers) + ".")
+    if story.symptoms:
+        _para(out, "Symptoms reported: " + "; ".join(story.symptoms) + ".")
+    if story.observations:
+        out.append("")
+        _para(out, "Seen and heard:")
+        for o in story.observations:
+            _para(out, o, "  - ", "    ")
+    if story.retest:
+        _section(out, "Before and after the repair")
+        for r in story.retest:
+            _para(out, f"{r.point} - {r.condition}; expected {r.expected}")
+            _para(
+                out,
+                f"before {r.before} ({r.before_verdict})  ->  after {r.after} ({r.after_verdict})",
+                "    ",
+            )
+
+
+def _gauges(out: list[str], card: JobCard) -> None:
+    if card.story is None or not card.story.gauges:
+        return
+    _section(out, "Gauges used")
+    for g in card.story.gauges:
+        flag = "  ** CALIBRATION OVERDUE **" if g.overdue else ""
+        _para(out, f"{g.instrument}{flag}", f"{g.id:<7}", " " * 7)
+        _para(out, f"limit of error {g.limit}; serial {g.serial}; calibration {g.calibration}", " " * 7)
+        if g.advice:
+            _para(out, g.advice, " " * 7)
 
 
 def _readings(out: list[str], card: JobCard) -> None:

@@ -16,6 +16,7 @@ from markdown_it import MarkdownIt
 from markdown_it.token import Token
 from report_builders import HOSTILE, SAMPLE_VISITS, load, with_reading_note, with_text
 
+from fieldkit.diagnosis.retest import as_read
 from fieldkit.report.build import job_card
 from fieldkit.report.markdown import block_line, inline, paragraph, render_markdown
 from fieldkit.report.model import JobCard
@@ -158,7 +159,8 @@ def test_sample_visits_give_well_formed_tables(bench, path: Path) -> None:
     md = render_markdown(job_card(visit, profile, diagnosis))
     tables = _tables(PARSER.parse(md))
     readings = next(rows for head, rows in tables if head and head[1] == "Test point")
-    assert [row[3] for row in readings] == [c.value for c in diagnosis.checks]
+    # Each value as printed: to its gauge's resolution (diagnosis.retest.as_read).
+    assert [row[3] for row in readings] == [as_read(c) for c in diagnosis.checks]
 
 
 def test_a_row_with_the_wrong_number_of_cells_is_a_bug_caught_at_once() -> None:

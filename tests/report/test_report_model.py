@@ -12,6 +12,7 @@ from fieldkit.diagnosis.results import Diagnosis, Verdict
 from fieldkit.model.visit import Visit
 from fieldkit.report.build import job_card
 from fieldkit.report.model import SETTLED, TOP_FAULTS, ReportError, make_band
+from fieldkit.report.story import plain_why
 from fieldkit.report.usertext import plain
 from fieldkit.units import DisplaySystem
 
@@ -20,7 +21,11 @@ def test_every_current_reading_gets_a_row_in_diagnosis_order(worn) -> None:
     visit, profile, diagnosis = worn
     card = job_card(visit, profile, diagnosis)
     assert [r.reading_id for r in card.readings] == [c.reading_id for c in diagnosis.checks]
-    assert [r.reading for r in card.readings] == [c.value for c in diagnosis.checks]
+    # Printed to the gauge's resolution: the same value, rounded to the decimals shown.
+    for r, c in zip(card.readings, diagnosis.checks, strict=True):
+        number = r.reading.split()[0]
+        decimals = len(number.split(".")[1]) if "." in number else 0
+        assert float(number) == round(c.value_num, decimals), (r.reading, c.value)
     assert [r.number for r in card.readings] == list(range(1, len(diagnosis.checks) + 1))
 
 
@@ -92,7 +97,9 @@ def test_next_test_is_shown_only_while_the_diagnosis_is_not_settled(worn) -> Non
     unsettled = job_card(visit, profile, _with_top_probability(diagnosis, SETTLED - 0.2))
     assert not unsettled.settled
     assert unsettled.next_test is not None
-    assert unsettled.next_test.why == diagnosis.next_tests[0].why
+    # The customer's words: minutes and outcomes, without the ranking's information measure.
+    assert unsettled.next_test.why == plain_why(diagnosis.next_tests[0])
+    assert "bits" not in unsettled.next_test.why
     settled = job_card(visit, profile, _with_top_probability(diagnosis, SETTLED + 0.05))
     assert settled.settled
     assert settled.next_test is None

@@ -8,6 +8,7 @@ from pathlib import Path
 import pytest
 from report_builders import HOSTILE, SAMPLE_VISITS, UNICODE_NOTE, load, with_reading_note, with_text
 
+from fieldkit.diagnosis.retest import as_read
 from fieldkit.report.build import job_card
 from fieldkit.report.columns import width, wrap
 from fieldkit.report.text import COLUMNS, render_text
@@ -27,11 +28,13 @@ def _assert_fits(text: str) -> None:
 def test_text_fits_80_columns_and_holds_each_reading_and_the_top_fault(bench, path: Path) -> None:
     visit, profile = load(bench, path)
     diagnosis = bench.diagnose(visit, profile)
-    text = render_text(job_card(visit, profile, diagnosis))
+    card = job_card(visit, profile, diagnosis)
+    text = render_text(card)
     _assert_fits(text)
     flat = _flat(text)
-    for check in diagnosis.checks:
-        assert _flat(f"{check.value} (gauge error {check.uncertainty}); expected {check.expected}") in flat
+    for check, row in zip(diagnosis.checks, card.readings, strict=True):
+        # The value to its gauge's resolution, the error as the gauge's class limit (±a).
+        assert _flat(f"{as_read(check)} (gauge error {row.uncertainty}); expected {check.expected}") in flat
         assert _flat(check.test_point_label) in flat
     assert _flat(diagnosis.top.display_title) in flat
 

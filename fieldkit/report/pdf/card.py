@@ -162,8 +162,10 @@ def render_pdf(card: JobCard, *, letter: bool = False, fixed_date: datetime | No
     pdf.add_page()
     _header(pdf, card)
     stop_now(pdf, card)
+    _story(pdf, card)
     _summary(pdf, card)
     _readings(pdf, card)
+    _gauges(pdf, card)
     _findings(pdf, card)
     _faults(pdf, card)
     _actions(pdf, card)
@@ -207,6 +209,90 @@ def _header(pdf: FPDF, card: JobCard) -> None:
         for a, b in zip(h.visit_fields(), h.machine_fields(), strict=True)
     ]
     measured_table(pdf, None, rows, [15, 82, 21, 72], size=SMALL + 0.3, padding=TIGHT)
+
+
+def _story(pdf: FPDF, card: JobCard) -> None:
+    """The first page a customer reads: complaint, cause, work, status, next action; the
+    tag-out notice in a box of its own; the re-test before and after."""
+    story = card.story
+    if story is None:
+        return
+    x, w = pdf.l_margin, pdf.epw
+    if story.tag_out:
+        pdf.ln(2)
+        height = block_height(pdf, story.tag_out, w - 8, BODY + 1.5, True) + 5
+        with placed(pdf, height) as y:
+            pdf.set_draw_color(*OUT)
+            pdf.set_line_width(1.2)
+            pdf.set_fill_color(*OUT_FILL)
+            pdf.rect(x, y, w, height, style="DF")
+            draw_block(pdf, x + 4, y + 2.5, w - 8, story.tag_out, BODY + 1.5, True, OUT)
+        pdf.set_xy(pdf.l_margin, y + height)
+    status_colour = {"fit_to_run": OK, "fit_with_limits": UNSURE, "do_not_operate": OUT}.get(
+        story.status_kind, INK
+    )
+    rows = [
+        [
+            Cell(label, bold=True, color=MUTED),
+            Cell(text, bold=label == "Status", color=status_colour if label == "Status" else INK),
+        ]
+        for label, text in story.first_page
+    ]
+    if story.open_dangers:
+        rows.append(
+            [
+                Cell("Still open", bold=True, color=OUT),
+                Cell("Danger finding(s) after the repair: " + "; ".join(story.open_dangers), color=OUT),
+            ]
+        )
+    if story.symptoms:
+        rows.append([Cell("Symptoms", color=MUTED), "; ".join(story.symptoms)])
+    if story.observations:
+        rows.append([Cell("Seen and heard", color=MUTED), "\n".join(story.observations)])
+    measured_table(pdf, None, rows, [26, 164], size=BODY, title="The visit")
+    if story.retest:
+        measured_table(
+            pdf,
+            ["Test point", "Condition", "Expected", "Before the repair", "After the repair"],
+            [
+                [
+                    Cell(r.point, bold=True),
+                    r.condition,
+                    r.expected,
+                    Cell(f"{r.before}  {r.before_verdict}"),
+                    Cell(f"{r.after}  {r.after_verdict}", bold=True, color=OK if r.passed else OUT),
+                ]
+                for r in story.retest
+            ],
+            [34, 40, 36, 40, 40],
+            size=SMALL,
+            title="Re-test: before and after the repair",
+        )
+
+
+def _gauges(pdf: FPDF, card: JobCard) -> None:
+    if card.story is None or not card.story.gauges:
+        return
+    rows = []
+    for g in card.story.gauges:
+        cal = ("OVERDUE: " if g.overdue else "") + g.calibration.removeprefix("OVERDUE: ")
+        rows.append(
+            [
+                Cell(g.id, bold=True),
+                g.instrument + (f"\n{g.advice}" if g.advice else ""),
+                g.limit,
+                g.serial,
+                Cell(cal, bold=g.overdue, color=OUT if g.overdue else INK),
+            ]
+        )
+    measured_table(
+        pdf,
+        ["Gauge", "Instrument (and range advice)", "Limit of error", "Serial", "Calibration"],
+        rows,
+        [14, 90, 34, 22, 30],
+        size=SMALL,
+        title="Gauges used",
+    )
 
 
 def _summary(pdf: FPDF, card: JobCard) -> None:
