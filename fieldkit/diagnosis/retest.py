@@ -33,7 +33,8 @@ def limit_text(limit: float) -> str:
     if limit <= 0 or not math.isfinite(limit):
         return "±0"
     d = max(0, 1 - math.floor(math.log10(limit)))
-    return "±" + f"{round(limit, d):.{d}f}".rstrip("0").rstrip(".")
+    text = f"{round(limit, d):.{d}f}"
+    return "±" + (text.rstrip("0").rstrip(".") if "." in text else text)
 
 
 def at_resolution(value: float, limit: float) -> str:
