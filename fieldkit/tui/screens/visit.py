@@ -310,8 +310,10 @@ class VisitScreen(FieldkitScreen):
             self._show_cautions(event.caution)
 
     def _show_cautions(self, danger: str = "") -> None:
-        _c, point, _p = self.current()
-        cautions = step_cautions(self.bench.knowledge, point, self.entry.function)
+        circuit, point, _p = self.current()
+        cautions = step_cautions(
+            self.bench.knowledge, circuit, point, self.entry.function, diagnosis=self.diagnosis
+        )
         extra = self.bench.knowledge.cautions.get(danger) if danger else None
         if extra is not None and extra not in cautions:
             cautions = [extra, *cautions]
