@@ -117,8 +117,8 @@ def _parser() -> argparse.ArgumentParser:
         "--templates", action="store_true", help="measure machines of one circuit template each (no figures)"
     )
 
-    from fieldkit.machine_command import add_parsers as add_machine_parsers
     from fieldkit.kit_command import add_parsers as add_kit_parsers
+    from fieldkit.machine_command import add_parsers as add_machine_parsers
     from fieldkit.sync_command import add_parsers
 
     add_machine_parsers(sub)

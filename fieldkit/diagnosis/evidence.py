@@ -13,6 +13,7 @@ like any rule's, entered in the same naive-Bayes product (:mod:`ranking`):
 from __future__ import annotations
 
 import math
+from collections.abc import Sequence
 from functools import lru_cache
 from pathlib import Path
 
@@ -124,7 +125,7 @@ class EvidenceBook(Strict):
 
 
 def _check_faults(
-    path: Path, text: str, table: str, items: list[Symptom] | list[ObservationCheck], faults: set[str]
+    path: Path, text: str, table: str, items: Sequence[Symptom | ObservationCheck], faults: set[str]
 ) -> None:
     lines = key_lines(text)
     seen: set[str] = set()

@@ -15,8 +15,6 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-import pint
-
 from fieldkit.errors import FieldkitError
 from fieldkit.expr.dims import si_value
 from fieldkit.model.bounds import impossible
@@ -24,7 +22,17 @@ from fieldkit.model.gauge import Gauge
 from fieldkit.model.profile import Circuit, MachineProfile, TestPoint
 from fieldkit.model.roles import Role
 from fieldkit.model.visit import Reading, Visit
-from fieldkit.units import CANONICAL_UNIT, Q_, Kind, PressureReference, kind_of, to_canonical, to_gauge, unit
+from fieldkit.units import (
+    CANONICAL_UNIT,
+    Q_,
+    Kind,
+    PressureReference,
+    Quantity,
+    kind_of,
+    to_canonical,
+    to_gauge,
+    unit,
+)
 
 ASSUMED_CLASS = 2.5
 _SQRT3 = math.sqrt(3.0)
@@ -173,7 +181,7 @@ def _oil_temperature_at(
     return t, u
 
 
-def unusable(reading: Reading, kind: Kind, barometric: pint.Quantity | None = None) -> str:
+def unusable(reading: Reading, kind: Kind, barometric: Quantity | None = None) -> str:
     """Why a stored reading cannot be computed with ("" when it can). An earlier version, a
     hand-edited file or an import may have stored a value no gauge shows (below a perfect
     vacuum, too large to compute with, or a condition so); such a reading is skipped with a note,

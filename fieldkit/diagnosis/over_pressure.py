@@ -104,7 +104,7 @@ def relief_limit(circuit: Circuit, point: TestPoint) -> Limit | None:
         elif full:
             rid = max(full, key=full.__getitem__)
             candidates.append(Limit(full[rid], f"setting of relief '{rid}'"))
-        names = HIGH_SIDE_SETTINGS
+        names: tuple[str, ...] = HIGH_SIDE_SETTINGS
     else:
         names = (OWN_RELIEF[point.role],) if point.role in OWN_RELIEF else ()
     for name in names:

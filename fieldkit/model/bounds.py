@@ -17,7 +17,7 @@ import math
 
 import pint
 
-from fieldkit.units import STANDARD_ATMOSPHERE, Kind, PressureReference, format_value, to_canonical
+from fieldkit.units import STANDARD_ATMOSPHERE, Kind, PressureReference, Quantity, format_value, to_canonical
 
 #: Absolute zero, −273.15 °C (SI Brochure, 9th ed., 2.3.1: 0 K = −273.15 °C).
 ABSOLUTE_ZERO_C = -273.15
@@ -37,10 +37,10 @@ PLAUSIBLE_FACTOR = 2.0
 
 
 def impossible(
-    q: pint.Quantity,
+    q: Quantity,
     kind: Kind,
     reference: PressureReference | None = None,
-    barometric: pint.Quantity | None = None,
+    barometric: Quantity | None = None,
 ) -> str:
     """Why this value cannot be a reading ("" when it can)."""
     try:
@@ -77,11 +77,11 @@ def impossible(
 
 
 def implausible(
-    q: pint.Quantity,
+    q: Quantity,
     kind: Kind,
     reference: PressureReference | None,
-    highest: list[pint.Quantity],
-    barometric: pint.Quantity | None = None,
+    highest: list[Quantity],
+    barometric: Quantity | None = None,
 ) -> str:
     """Why a possible value is unlikely enough at this point to ask before saving ("" if not).
 
@@ -109,7 +109,7 @@ def implausible(
     return ""
 
 
-def _shown(q: pint.Quantity, kind: Kind) -> str:
+def _shown(q: Quantity, kind: Kind) -> str:
     try:
         return format_value(q, kind=kind)
     except Exception:  # a value that cannot even be formatted is still named plainly

@@ -12,14 +12,13 @@ import datetime as dt
 import re
 from enum import StrEnum
 
-import pint
 from pydantic import Field, model_validator
 
 from fieldkit.errors import FieldkitError
 from fieldkit.model.base import Strict
 from fieldkit.model.gauge import EN837_CLASSES, Gauge
 from fieldkit.model.quantity import AnyQuantity
-from fieldkit.units import Kind, format_value, kind_of, parse_value
+from fieldkit.units import Kind, Quantity, format_value, kind_of, parse_value
 
 MAX_LABEL = 120
 
@@ -107,7 +106,7 @@ def calibration_warning(gauge: Gauge | KitItem, on: dt.date) -> str:
     )
 
 
-def parse_span(text: str, decimal_comma: bool = False) -> tuple[pint.Quantity | None, pint.Quantity]:
+def parse_span(text: str, decimal_comma: bool = False) -> tuple[Quantity | None, Quantity]:
     """``'0..60 bar'``, ``'-1..15 bar'`` (compound), ``'-30..0 inHg'`` (vacuum), or ``'60 bar'``
     (from zero) → (start or None, full scale). The unit after the upper end serves both ends."""
     raw = text.strip()

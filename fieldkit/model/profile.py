@@ -113,12 +113,13 @@ class TestPoint(Strict):
         return ROLES[self.role].kind
 
     @property
-    def pressure_rating(self) -> pint.Quantity | None:
+    def pressure_rating(self) -> Quantity | None:
         """The highest pressure this point can see: its stated maximum, else the top of its
         highest expected pressure range. Used for injection cautions and over-pressure."""
         if self.max_pressure is not None:
-            return self.max_pressure
-        tops = [
+            rating: Quantity = self.max_pressure
+            return rating
+        tops: list[Quantity] = [
             b
             for rng in self.expected
             for b in (rng.high, rng.low)

@@ -15,7 +15,7 @@ from pydantic import Field, model_validator
 
 from fieldkit.model.base import Strict
 from fieldkit.model.quantity import AnyQuantity
-from fieldkit.units import format_value
+from fieldkit.units import DisplaySystem, format_value
 
 MAX_TEXT = 4000
 
@@ -53,7 +53,7 @@ class WorkItem(Strict):
     def describe(self) -> str:
         return self.describe_in(None)
 
-    def describe_in(self, system: object) -> str:
+    def describe_in(self, system: DisplaySystem | None) -> str:
         """In words, the new setting in the display system given (None: as typed)."""
         text = f"{self.part}: {self.kind.value}"
         if self.setting is not None:

@@ -44,14 +44,14 @@ def print_diagnosis(
     readings = Table(title="Readings", title_justify="left", expand=False)
     for col in ("test point", "condition", "reading", "expected", "gauge ±", "verdict"):
         readings.add_column(col)
-    for c in result.checks:
+    for check in result.checks:
         readings.add_row(
-            _t(c.test_point_label),
-            _t(c.condition),
-            _t(c.value),
-            _t(c.expected),
-            _t(c.uncertainty),
-            _t(c.verdict.label, VERDICT_STYLE[c.verdict]),
+            _t(check.test_point_label),
+            _t(check.condition),
+            _t(check.value),
+            _t(check.expected),
+            _t(check.uncertainty),
+            _t(check.verdict.label, VERDICT_STYLE[check.verdict]),
         )
     console.print(readings)
 

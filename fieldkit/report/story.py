@@ -200,7 +200,9 @@ def _range_advice(
         return f"{bar * per_bar:.{d}f} {spelling}"
 
     share = round(100 * highest / full)
-    suits = format_value(Q_(highest / FLUCTUATING_SHARE, unit("bar")), system, kind=Kind.PRESSURE, significant=2)
+    suits = format_value(
+        Q_(highest / FLUCTUATING_SHARE, unit("bar")), system, kind=Kind.PRESSURE, significant=2
+    )
     return (
         f"{where} can reach {shown(highest)} on this machine, {share} % of this gauge's scale. EN 837-2 "
         f"(from memory): a steady pressure within ¾ of the span ({shown(STEADY_SHARE * full)} here), a "

@@ -14,6 +14,7 @@ columns; body text stays at 6.8 pt or more and remarks and keys at 6 pt or more.
 from __future__ import annotations
 
 import hashlib
+from collections.abc import Sequence
 from datetime import UTC, datetime
 
 from fpdf import FPDF
@@ -231,7 +232,7 @@ def _story(pdf: FPDF, card: JobCard) -> None:
     status_colour = {"fit_to_run": OK, "fit_with_limits": UNSURE, "do_not_operate": OUT}.get(
         story.status_kind, INK
     )
-    rows = [
+    rows: list[list[Cell | str]] = [
         [
             Cell(label, bold=True, color=MUTED),
             Cell(text, bold=label == "Status", color=status_colour if label == "Status" else INK),
@@ -273,7 +274,7 @@ def _story(pdf: FPDF, card: JobCard) -> None:
 def _gauges(pdf: FPDF, card: JobCard) -> None:
     if card.story is None or not card.story.gauges:
         return
-    rows = []
+    rows: list[Sequence[Cell | str]] = []
     for g in card.story.gauges:
         cal = ("OVERDUE: " if g.overdue else "") + g.calibration.removeprefix("OVERDUE: ")
         rows.append(

@@ -13,7 +13,7 @@ from textual.widgets import Button, Input, Label, Select, Static
 from fieldkit.errors import FieldkitError
 from fieldkit.model.repair import Departure, MachineStatus, WorkItem, WorkKind
 from fieldkit.tui import keys
-from fieldkit.tui.messages import explain
+from fieldkit.tui.error_text import explain
 from fieldkit.tui.safe_text import literal
 from fieldkit.tui.screens.dialogs import Dialog
 from fieldkit.tui.widgets.keybar import KeyBar

@@ -446,7 +446,9 @@ class VisitScreen(FieldkitScreen):
             warning = calibration_warning(gauge, self.visit.date) if self.visit is not None else ""
             if warning:
                 # A toast as well: the step panel redraws for the new gauge.
-                self.app.notify(f"⚠ {warning}", title="Calibration", severity="warning", timeout=12, markup=False)
+                self.app.notify(
+                    f"⚠ {warning}", title="Calibration", severity="warning", timeout=12, markup=False
+                )
                 self._message(f"⚠ {warning}", "error")
             else:
                 self._message(f"✓ gauge {gauge.id} added to the visit", "ok")

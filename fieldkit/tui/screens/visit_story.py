@@ -28,9 +28,7 @@ def open_complaint(screen: Any) -> None:
             screen._message(f"✗ {exc}", "error")
             return
         screen.reload()
-        screen._message(
-            f"✓ complaint saved with {len(symptoms)} symptom(s); the ranking counts them", "ok"
-        )
+        screen._message(f"✓ complaint saved with {len(symptoms)} symptom(s); the ranking counts them", "ok")
 
     visit = screen.visit
     screen.app.push_screen(ComplaintDialog(screen.bench.evidence, visit.complaint, visit.symptoms), saved)

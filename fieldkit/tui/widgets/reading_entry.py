@@ -267,6 +267,8 @@ class ReadingEntry(Vertical):
             value_input.add_class("-bad")
             self.say(f"✗ {exc} (nothing saved)", "error")
             return
+        if self.visit is None:
+            return
         try:
             question = self.bench.check_entry(
                 self.visit, point, parsed, self.gauge.id if self.gauge else None
