@@ -192,7 +192,12 @@ def _solve(
                 outlets.append(_opens_at(item, outlets[-1], full_flow))
             outlets.reverse()
             for item, outlet in zip(node.items, outlets, strict=True):
-                _solve(item, outlet, _opens_at(item, outlet, full_flow), True, full_flow, points, path)
+                inlet = _opens_at(item, outlet, full_flow)
+                if inlet_pa is not None:
+                    # A series branch beside a lower full-flow branch passes only part of the flow:
+                    # nothing in it can read above the pressure the parallel group is capped at.
+                    inlet = min(inlet, inlet_pa)
+                _solve(item, outlet, inlet, True, full_flow, points, path)
         else:
             for i, item in enumerate(node.items):
                 _solve(item, None, inlet_pa if i == 0 else None, False, full_flow, points, path)
