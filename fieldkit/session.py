@@ -24,7 +24,7 @@ if TYPE_CHECKING:
 from fieldkit.model.bounds import implausible, impossible
 from fieldkit.model.condition import Condition
 from fieldkit.model.gauge import Gauge
-from fieldkit.model.kit import KitItem, calibration_warning
+from fieldkit.model.kit import InstrumentKind, KitItem, calibration_warning
 from fieldkit.model.loading import ProfileLibrary
 from fieldkit.model.profile import MachineProfile, TestPoint
 from fieldkit.model.repair import Departure, WorkItem
@@ -211,23 +211,10 @@ class Workbench:
     def keep_in_kit(self, gauge: Gauge) -> Gauge:
         """A gauge typed in on a visit joins the kit (when its id is free and its kind is one the
         kit holds), so the next visit picks it from the list. Returns the gauge as the visit keeps it."""
-        from fieldkit.model.kit import InstrumentKind
-
         kind = next((k for k in InstrumentKind if k.measures is gauge.kind), None)
         if kind is None or any(item.id == gauge.id for item in self.store.kit(include_retired=True)):
             return gauge
-        item = KitItem(
-            id=gauge.id,
-            kind=kind,
-            label=gauge.label,
-            full_scale=gauge.full_scale,
-            scale_start=gauge.scale_start,
-            accuracy_class=gauge.accuracy_class,
-            standard=gauge.standard,
-            serial=gauge.serial,
-            calibration_due=gauge.calibration_due,
-        )
-        return self.store.add_kit_item(item).as_gauge()
+        return self.store.add_kit_item(KitItem.from_gauge(gauge, kind)).as_gauge()
 
     def kit_for_export(self, visit: Visit) -> list[KitItem]:
         """The kit items (retired ones too) the visit's gauges came from."""

@@ -86,6 +86,22 @@ class KitItem(Strict):
             kit_item=self.id,
         )
 
+    @classmethod
+    def from_gauge(cls, gauge: Gauge, kind: InstrumentKind) -> KitItem:
+        """The kit entry for a gauge typed in on a visit: the inverse of :meth:`as_gauge`, kept
+        beside it so the two field lists cannot drift apart."""
+        return cls(
+            id=gauge.id,
+            kind=kind,
+            label=gauge.label,
+            full_scale=gauge.full_scale,
+            scale_start=gauge.scale_start,
+            accuracy_class=gauge.accuracy_class,
+            standard=gauge.standard,
+            serial=gauge.serial,
+            calibration_due=gauge.calibration_due,
+        )
+
     @property
     def retired(self) -> bool:
         return self.retired_on is not None
