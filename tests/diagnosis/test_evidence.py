@@ -17,6 +17,7 @@ from fieldkit.diagnosis.evidence import evidence_book, evidence_findings, load_e
 from fieldkit.diagnosis.findings import Hypothesis
 from fieldkit.diagnosis.ranking import rank
 from fieldkit.errors import DataFileError
+from fieldkit.model.profile import MachineProfile
 from fieldkit.model.visit import Observation, Visit
 
 SYMPTOMS = """
@@ -62,15 +63,20 @@ def book(tmp_path: Path):
     return load_evidence(tmp_path, {"no_fault", "load_holding_valve_leak", "cylinder_seal_bypass"})
 
 
-def test_a_reported_symptom_and_an_observation_give_the_hand_computed_posterior(book) -> None:
+def _lift_hypotheses() -> tuple[MachineProfile, list[Hypothesis]]:
+    """The loader's lift circuit with three hypotheses. Priors 0.30 / 0.05 / 0.05, normalised by
+    hand: 0.75, 0.125, 0.125."""
     profile = library().get("oskerfield-loamshifter")
     lift = next(c for c in profile.circuits if c.id == "lift")
-    # Priors 0.30 / 0.05 / 0.05, normalised: 0.75, 0.125, 0.125.
-    hyps = [
+    return profile, [
         Hypothesis("no_fault", _fault("no_fault", 0.75), None, 0.75),
         Hypothesis("load_holding_valve_leak@lift", _fault("load_holding_valve_leak", 0.05), lift, 0.125),
         Hypothesis("cylinder_seal_bypass@lift", _fault("cylinder_seal_bypass", 0.05), lift, 0.125),
     ]
+
+
+def test_a_reported_symptom_and_an_observation_give_the_hand_computed_posterior(book) -> None:
+    profile, hyps = _lift_hypotheses()
     visit = Visit(
         job_number="T-1",
         machine=profile.id,
@@ -89,13 +95,7 @@ def test_a_reported_symptom_and_an_observation_give_the_hand_computed_posterior(
 
 
 def test_an_answer_the_table_gives_to_the_seal_moves_the_ranking_towards_the_seal(book) -> None:
-    profile = library().get("oskerfield-loamshifter")
-    lift = next(c for c in profile.circuits if c.id == "lift")
-    hyps = [
-        Hypothesis("no_fault", _fault("no_fault", 0.75), None, 0.75),
-        Hypothesis("load_holding_valve_leak@lift", _fault("load_holding_valve_leak", 0.05), lift, 0.125),
-        Hypothesis("cylinder_seal_bypass@lift", _fault("cylinder_seal_bypass", 0.05), lift, 0.125),
-    ]
+    profile, hyps = _lift_hypotheses()
     visit = Visit(
         job_number="T-2",
         machine=profile.id,
