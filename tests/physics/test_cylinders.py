@@ -1,6 +1,5 @@
 """Cylinder areas, forces, speeds, flows, regeneration, drift and intensification."""
 
-import math
 
 import pytest
 
@@ -23,9 +22,10 @@ BORE, ROD = q("100 mm"), q("70 mm")
 
 
 def test_bore_and_annulus_areas():
-    # A = π·D²/4 = 78.54 cm²; annulus π·(D² − d²)/4 = 40.06 cm² [calc]
-    assert bore_area(BORE).m_as("cm**2") == pytest.approx(math.pi * 10**2 / 4)
-    assert annulus_area(BORE, ROD).m_as("cm**2") == pytest.approx(math.pi * (10**2 - 7**2) / 4)
+    # [calc] bore 10 cm: 10² = 100 cm², · 0.785398 (π/4) = 78.540 cm²;
+    # rod 7 cm: 7² = 49 cm², · 0.785398 = 38.485 cm²; annulus 78.540 − 38.485 = 40.055 cm²
+    assert bore_area(BORE).m_as("cm**2") == pytest.approx(78.540, abs=0.001)
+    assert annulus_area(BORE, ROD).m_as("cm**2") == pytest.approx(40.055, abs=0.001)
 
 
 def test_field_notes_cylinder_example():
@@ -37,25 +37,24 @@ def test_field_notes_cylinder_example():
 
 
 def test_force_in_newtons_is_bar_times_square_millimetres_over_ten():
-    # F[N] = p[bar] · A[mm²] / 10 (field notes) [calc]
-    area_mm2 = math.pi * 100**2 / 4
-    assert cylinder_force(q("150 bar"), BORE, ROD).m_as("N") == pytest.approx(150 * area_mm2 / 10)
+    # F[N] = p[bar] · A[mm²] / 10 (field notes) [calc]: bore 100 mm → 7853.98 mm²; 150 · 7853.98 / 10
+    # = 117 809.7 N; the same in SI: 1.5e7 Pa · 7.85398e-3 m² = 117 809.7 N
+    assert cylinder_force(q("150 bar"), BORE, ROD).m_as("N") == pytest.approx(117_809.7, abs=0.1)
 
 
 def test_retracting_pushes_on_the_annulus_and_runs_faster():
-    # v[m/s] = Q[L/min] / (6 · A[cm²]) (field notes) [calc]; retract: A = 40.06 cm²
-    annulus_cm2 = math.pi * (10**2 - 7**2) / 4
-    assert cylinder_force(q("200 bar"), BORE, ROD, "retract").m_as("kN") == pytest.approx(
-        200e5 * annulus_cm2 * 1e-4 / 1e3
-    )
+    # v[m/s] = Q[L/min] / (6 · A[cm²]) (field notes) [calc]; retract on the annulus A = 40.055 cm²:
+    # force 2.0e7 Pa · 4.0055e-3 m² = 80 110.6 N = 80.11 kN;
+    # speed 40 / (6 · 40.055) = 40 / 240.33 = 0.16644 m/s
+    assert cylinder_force(q("200 bar"), BORE, ROD, "retract").m_as("kN") == pytest.approx(80.11, abs=0.005)
     assert cylinder_speed(q("40 L/min"), BORE, ROD, "retract").m_as("m/s") == pytest.approx(
-        40 / (6 * annulus_cm2)
+        0.16644, abs=0.00001
     )
 
 
 def test_retracting_returns_more_oil_than_the_pump_gives():
-    # Q_out = Q_in · A_cap / A_annulus = 40 · 78.54 / 40.06 = 78.4 L/min [calc]
-    assert return_flow(q("40 L/min"), BORE, ROD, "retract").m_as("L/min") == pytest.approx(40 / 0.51)
+    # Q_out = Q_in · A_cap / A_annulus = 40 · 78.540 / 40.055 = 3141.6 / 40.055 = 78.43 L/min [calc]
+    assert return_flow(q("40 L/min"), BORE, ROD, "retract").m_as("L/min") == pytest.approx(78.43, abs=0.005)
 
 
 def test_back_pressure_on_the_rod_side_takes_force_off_the_extend_stroke():
@@ -98,8 +97,8 @@ def test_drift_of_a_held_boom_gives_the_leak_from_the_cap_side():
 
 
 def test_blocked_rod_side_is_intensified_above_system_pressure():
-    # p_rod = p_cap · A_cap / A_annulus = 200 · 1 / 0.51 = 392.2 bar [calc]
-    assert intensified_rod_pressure(q("200 bar"), BORE, ROD).m_as("bar") == pytest.approx(200 / 0.51)
+    # p_rod = p_cap · A_cap / A_annulus = 200 · 78.540 / 40.055 = 392.16 bar [calc]
+    assert intensified_rod_pressure(q("200 bar"), BORE, ROD).m_as("bar") == pytest.approx(392.16, abs=0.005)
 
 
 def test_intensification_is_documented_as_a_hazard():

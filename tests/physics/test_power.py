@@ -15,10 +15,20 @@ from fieldkit.units import Q_
 from fieldkit.units import parse_quantity as q
 
 
-@pytest.mark.parametrize(("bar", "lpm"), [(200, 60), (350, 120), (25, 18), (1, 1)])
-def test_kilowatts_are_bar_times_litres_per_minute_over_600(bar, lpm):
-    # P[kW] = p[bar] · Q[L/min] / 600, exact from the units [calc]
-    assert hydraulic_power(q(f"{bar} bar"), q(f"{lpm} L/min")).m_as("kW") == pytest.approx(bar * lpm / 600)
+@pytest.mark.parametrize(
+    ("bar", "lpm", "kw"),
+    [
+        # Hand calculation in SI: 200 bar = 2.0e7 Pa, 60 L/min = 1.0e-3 m³/s, P = 2.0e7 · 1.0e-3 = 20 000 W
+        (200, 60, 20.0),
+        # 350 bar = 3.5e7 Pa, 120 L/min = 2.0e-3 m³/s, P = 7.0e4 W = 70 kW
+        (350, 120, 70.0),
+        # 25 bar = 2.5e6 Pa, 18 L/min = 3.0e-4 m³/s, P = 750 W
+        (25, 18, 0.75),
+    ],
+)
+def test_hydraulic_power_worked_in_pascals_and_cubic_metres(bar, lpm, kw):
+    # [calc] each row worked by hand in SI units (1 bar = 1e5 Pa, 1 L/min = 1/60 000 m³/s), written out above
+    assert hydraulic_power(q(f"{bar} bar"), q(f"{lpm} L/min")).m_as("kW") == pytest.approx(kw)
 
 
 def test_twenty_gpm_at_1500_psi_is_about_17_5_hp():
@@ -33,15 +43,15 @@ def test_us_units_follow_the_scipy_psi_and_gallon():
 
 
 def test_pump_needs_more_shaft_power_than_it_delivers():
-    # P_in = p · Q / ηt [calc, definition of overall efficiency]: 20 kW hydraulic at 85 % → 23.53 kW
-    assert pump_input_power(q("200 bar"), q("60 L/min"), 0.85).m_as("kW") == pytest.approx(20 / 0.85)
-    assert pump_input_power(q("200 bar"), q("60 L/min"), Q_(85, "percent")).m_as("kW") == pytest.approx(
-        20 / 0.85
-    )
+    # [calc] 200 bar · 60 L/min = 2.0e7 Pa · 1.0e-3 m³/s = 20 000 W carried by the oil;
+    # overall efficiency 85 % means the shaft gives 20 000 / 0.85 = 23 529 W (definition of ηt)
+    assert pump_input_power(q("200 bar"), q("60 L/min"), 0.85).m_as("kW") == pytest.approx(23.529, abs=0.001)
+    by_percent = pump_input_power(q("200 bar"), q("60 L/min"), Q_(85, "percent")).m_as("kW")
+    assert by_percent == pytest.approx(23.529, abs=0.001)
 
 
 def test_motor_delivers_less_shaft_power_than_it_takes():
-    # P_out = Δp · Q · ηt [calc]: 20 kW hydraulic at 90 % → 18 kW
+    # [calc] 2.0e7 Pa · 1.0e-3 m³/s = 20 000 W fed to the motor; at 90 % overall 20 000 · 0.9 = 18 000 W
     assert motor_output_power(q("200 bar"), q("60 L/min"), 0.9).m_as("kW") == pytest.approx(18.0)
 
 
@@ -52,10 +62,10 @@ def test_all_flow_over_the_relief_becomes_heat():
 
 
 def test_oil_heating_rate_from_heat_volume_density_and_specific_heat():
-    # dT/dt = P / (ρ · V · cp) [calc]: 10 kW into 100 L at 870 kg/m³, 2060 J/(kg·K) (Rabie p. 45)
-    # = 10 000 / (870 · 0.1 · 2060) = 0.0558 K/s = 3.348 K/min
+    # [calc] 10 kW into 100 L at 870 kg/m³ and cp 2060 J/(kg·K) (Rabie, Fluid Power Engineering, p. 45):
+    # mass 0.1 m³ · 870 = 87 kg; heat capacity 87 · 2060 = 179 220 J/K;
+    # 10 000 W / 179 220 J/K = 0.055797 K/s; · 60 = 3.348 K/min
     rate = oil_heating_rate(q("10 kW"), q("100 L"), q("870 kg/m3"), Q_(2060, "J / kg / K"))
-    assert rate.m_as("K/min") == pytest.approx(10_000 / (870 * 0.1 * 2060) * 60)
     assert rate.m_as("K/min") == pytest.approx(3.348, abs=0.001)
 
 
@@ -66,13 +76,13 @@ def test_throttling_warms_oil_about_0_6_kelvin_per_10_bar():
 
 
 def test_throttling_rise_with_rabie_specific_heat_is_the_default():
-    # Rabie, Fluid Power Engineering, p. 45: cp = 2060 J/(kg·K) at 50 °C; 1e6 / (870 · 2060) = 0.558 K per 10
-    # bar [calc]
-    assert throttling_temperature_rise(q("10 bar")).m_as("K") == pytest.approx(1e6 / (870 * 2060))
+    # Rabie, Fluid Power Engineering, p. 45: cp = 2060 J/(kg·K) at 50 °C. [calc] 10 bar = 1.0e6 Pa;
+    # ρ · cp = 870 · 2060 = 1 792 200 J/(m³·K); 1.0e6 / 1 792 200 = 0.558 K
+    assert throttling_temperature_rise(q("10 bar")).m_as("K") == pytest.approx(0.558, abs=0.0005)
 
 
-def test_temperature_rise_agrees_with_the_heat_the_same_flow_makes():
-    # Heat balance Δp · Q = ρ · Q · cp · ΔT, so ΔT = heat / (ρ · Q · cp) [calc]
-    heat = throttling_heat(q("150 bar"), q("40 L/min")).m_as("W")
-    rise = throttling_temperature_rise(q("150 bar")).m_as("K")
-    assert rise == pytest.approx(heat / (870 * (40e-3 / 60) * 2060))
+def test_150_bar_across_a_relief_warms_40_litres_per_minute_by_about_8_4_kelvin():
+    # [calc] heat: 1.5e7 Pa · 6.667e-4 m³/s = 10 000 W. Mass flow 6.667e-4 · 870 = 0.58 kg/s;
+    # it carries 0.58 · 2060 = 1194.8 W per kelvin, so 10 000 / 1194.8 = 8.370 K (Rabie p. 45 for cp)
+    assert throttling_heat(q("150 bar"), q("40 L/min")).m_as("W") == pytest.approx(10_000.0)
+    assert throttling_temperature_rise(q("150 bar")).m_as("K") == pytest.approx(8.370, abs=0.001)

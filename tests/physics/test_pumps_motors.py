@@ -50,8 +50,10 @@ def test_pump_overall_efficiency_is_volumetric_times_hydromechanical():
     eta_hm = pump_hydromechanical_efficiency(dp, V, torque).m_as("percent")
     eta_v = pump_volumetric_efficiency(flow, V, n).m_as("percent")
     eta_t = pump_overall_efficiency(dp, flow, torque, n).m_as("percent")
+    # [calc] ηv = 90 L/min / (0.1 L/rev · 1000 rpm) = 90 %; ηt = 0.90 · 0.95 = 85.5 %
     assert eta_hm == pytest.approx(95.0)
-    assert eta_t == pytest.approx(eta_v * eta_hm / 100)
+    assert eta_v == pytest.approx(90.0)
+    assert eta_t == pytest.approx(85.5)
 
 
 def test_motor_efficiencies_are_the_pump_ratios_turned_over():
@@ -63,7 +65,8 @@ def test_motor_efficiencies_are_the_pump_ratios_turned_over():
     eta_t = motor_overall_efficiency(dp, flow, torque, n).m_as("percent")
     assert eta_v == pytest.approx(90.0)
     assert eta_hm == pytest.approx(90.0, abs=0.01)
-    assert eta_t == pytest.approx(eta_v * eta_hm / 100)
+    # [calc] ηhm = 358.1 / 397.887 = 0.90000; ηt = 0.90 · 0.90000 = 81.0 %
+    assert eta_t == pytest.approx(81.0, abs=0.01)
 
 
 def test_100cc_motor_at_250_bar_gives_397_9_newton_metres():
@@ -72,8 +75,8 @@ def test_100cc_motor_at_250_bar_gives_397_9_newton_metres():
 
 
 def test_motor_torque_falls_with_hydromechanical_losses():
-    # T = Δp · V / (2π) · ηhm [calc]
-    assert motor_torque(q("250 bar"), V, 0.9).m_as("N*m") == pytest.approx(397.887 * 0.9, abs=0.01)
+    # T = Δp · V / (2π) · ηhm [calc]: 2.5e7 Pa · 1e-4 m³ / 6.28319 = 397.887 N·m; · 0.9 = 358.10 N·m
+    assert motor_torque(q("250 bar"), V, 0.9).m_as("N*m") == pytest.approx(358.10, abs=0.01)
 
 
 def test_motor_speed_is_flow_over_displacement_less_leakage():
@@ -85,8 +88,11 @@ def test_two_speed_motor_at_half_displacement_runs_twice_as_fast_with_half_the_t
     # V · r with r = 0.5: n doubles, T halves [calc from T = Δp·V/2π and n = Q/V]
     full = motor_output(q("250 bar"), q("100 L/min"), V)
     high = two_speed_motor_output(q("250 bar"), q("100 L/min"), V, 0.5)
-    assert high.speed.m_as("rpm") == pytest.approx(2 * full.speed.m_as("rpm"))
-    assert high.torque.m_as("N*m") == pytest.approx(0.5 * full.torque.m_as("N*m"))
+    # [calc] full: 100 L/min / 0.1 L/rev = 1000 rpm, 397.887 N·m; half: 100 / 0.05 = 2000 rpm,
+    # 2.5e7 · 5e-5 / 6.28319 = 198.94 N·m
+    assert full.speed.m_as("rpm") == pytest.approx(1000.0)
+    assert high.speed.m_as("rpm") == pytest.approx(2000.0)
+    assert high.torque.m_as("N*m") == pytest.approx(198.94, abs=0.01)
 
 
 def test_case_drain_as_share_of_theoretical_flow():
