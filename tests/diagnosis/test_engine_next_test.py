@@ -65,18 +65,19 @@ def _first_unread_point(visit: Visit, d: Diagnosis) -> NextTest:
     return next(t for t in d.next_tests if t.test_point not in read and t.condition in STATE_BY_LABEL)
 
 
-def _value_for(profile: MachineProfile, t: NextTest, outcome: str) -> float:
-    """A value clearly low (5 % of the limit under it) or well inside the point's range, canonical
-    (a vacuum limit such as -0.17 bar has only a low side: half of it is well inside)."""
-    _c, point = profile.test_point(t.test_point)
-    rng = point.expected_for(Condition(function=STATE_BY_LABEL[t.condition]))
-    assert rng is not None and rng.low is not None
-    low = to_canonical(rng.low, point.kind)
-    if outcome == "low":
-        return low - 0.05 * abs(low)
-    if rng.high is None:
-        return low / 2 if low < 0 else low * 1.5
-    return (low + to_canonical(rng.high, point.kind)) / 2
+#: Readings chosen by hand for the point the open demo visit asks for next (the charge pump inlet of the
+#: drill rig's travel loop, in neutral), not taken from the point's own limit:
+#: - low: 0.35 bar of vacuum, what a gear charge pump pulls through a strainer half full of lint; a clean
+#:   suction pulls well under 0.2 bar (trade guidance is about 5 inHg ≈ 0.17 bar at most, from memory).
+#: - in range: 0.05 bar of vacuum, a short, full-bore suction with warm oil (common practice).
+HAND_READINGS = {("travel.charge_inlet", "low"): -0.35, ("travel.charge_inlet", "in range"): -0.05}
+
+
+def _value_for(t: NextTest, outcome: str) -> float:
+    """The hand-chosen reading (bar) for the proposed point and outcome."""
+    key = (t.test_point, outcome)
+    assert key in HAND_READINGS, f"the engine now proposes {t.test_point}: choose readings for it by hand"
+    return HAND_READINGS[key]
 
 
 @pytest.mark.parametrize("outcome", ["low", "in range"])
@@ -95,7 +96,7 @@ def test_taking_the_proposed_reading_moves_the_ranking_as_its_outcomes_said(outc
     reading = Reading(
         id="r-next",
         test_point=t.test_point,
-        value=Q_(_value_for(profile, t, outcome), "bar"),
+        value=Q_(_value_for(t, outcome), "bar"),
         reference="gauge",
         condition=Condition(
             function=STATE_BY_LABEL[t.condition], speed=profile.rated_speed, oil_temperature=Q_(55.0, "degC")

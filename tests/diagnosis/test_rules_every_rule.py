@@ -6,6 +6,11 @@ for readings that put the rule's value a quarter of the band below, in the middl
 quarter of the band above them (15 % of the limit when there is only one). The readings are taken
 with EN 837-1 class 0.1 gauges, so each lands many standard uncertainties from a limit.
 
+Because these readings are solved from each rule's own limits, this file shows only that the engine
+does what the rule file says (wiring and coverage); it cannot show that a limit is right. That is
+checked with readings chosen by hand in tests/diagnosis/test_scenes_by_hand.py and the worked
+cases in tests/cases/.
+
 The evidence a finding gives is checked against the rule file's own tables: the log-likelihood
 ratio against a healthy machine, with the soft outcome entering as virtual evidence (Pearl,
 *Probabilistic Reasoning in Intelligent Systems*, 1988, §2.2.2), and faults the rule does not

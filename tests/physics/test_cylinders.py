@@ -1,6 +1,5 @@
 """Cylinder areas, forces, speeds, flows, regeneration, drift and intensification."""
 
-
 import pytest
 
 from fieldkit.physics import cylinders
