@@ -244,9 +244,15 @@ def _run_ui(args: argparse.Namespace, demo: bool) -> int:
 
 
 def _convert(args: argparse.Namespace) -> int:
+    from fieldkit.errors import ImpossibleValueError
+    from fieldkit.model.bounds import impossible
     from fieldkit.units import convert, format_value, kind_of, parse_value
 
     parsed = parse_value(args.value)
+    # The same physical bounds a reading meets: '-5 bar abs' is no pressure at all.
+    why = impossible(parsed.quantity, parsed.kind, parsed.reference)
+    if why:
+        raise ImpossibleValueError(f"'{parsed.text}' refused: {why}")
     shown = convert(parsed.quantity, args.unit)
     text = format_value(shown, kind=kind_of(shown), spelling=args.unit)
     ref = f" ({parsed.reference.value})" if parsed.reference and parsed.reference.value != "gauge" else ""

@@ -15,7 +15,13 @@ from datetime import UTC, datetime
 from pathlib import Path
 from typing import TYPE_CHECKING
 
-from fieldkit.errors import ConfirmValueError, DataFileError, FieldkitError, ImpossibleValueError
+from fieldkit.errors import (
+    AmbiguousInputError,
+    ConfirmValueError,
+    DataFileError,
+    FieldkitError,
+    ImpossibleValueError,
+)
 
 if TYPE_CHECKING:
     from fieldkit.diagnosis.engine import Knowledge
@@ -27,7 +33,9 @@ from fieldkit.model.gauge import Gauge
 from fieldkit.model.kit import InstrumentKind, KitItem, calibration_warning
 from fieldkit.model.loading import ProfileLibrary
 from fieldkit.model.profile import MachineProfile, TestPoint
+from fieldkit.model.quantity import spelling_of
 from fieldkit.model.repair import Departure, WorkItem
+from fieldkit.model.roles import Role
 from fieldkit.model.visit import Reading, Visit
 from fieldkit.settings import Settings, data_home, default_library
 from fieldkit.store import SqliteVisitStore, open_store
@@ -231,13 +239,15 @@ class Workbench:
     def parse_for_point(self, point: TestPoint, text: str) -> ParsedValue:
         """Parse text for a test point: its kind is required, and a separator that reads two ways
         is settled by the point's plausible range (asked about when both are plausible)."""
-        return parse_value(
+        parsed = parse_value(
             text,
             point.kind,
             decimal_comma=self.settings.decimal_comma,
             role_name=point.label,
             plausible=plausibility(point),
         )
+        vacuum_or_pressure(point, parsed)
+        return parsed
 
     def check_entry(
         self, visit: Visit, point: TestPoint, parsed: ParsedValue, gauge_id: str | None = None
@@ -362,10 +372,35 @@ def entry_question(
     return Question("; ".join(asks) + ". Save it as read?", danger)
 
 
+#: Units vacuum gauges are read in without a sign: a bare value in them at a suction point may be
+#: a vacuum or a pressure (common practice: vacuum gauges are marked in inHg or mbar below zero).
+_VACUUM_SPELLINGS = ("inHg", "mbar")
+
+
+def vacuum_or_pressure(point: TestPoint, parsed: ParsedValue) -> None:
+    """At a suction point, '7 inHg' with no sign and no 'vac' may mean 7 inHg of vacuum (as a
+    vacuum gauge shows it) or 7 inHg above atmosphere: ask, never guess (AmbiguousInputError)."""
+    q = parsed.quantity
+    if (
+        point.role is not Role.SUCTION_PRESSURE
+        or parsed.sided
+        or q.magnitude <= 0
+        or spelling_of(q) not in _VACUUM_SPELLINGS
+    ):
+        return
+    below = Q_(-float(q.magnitude), q.units)
+    vacuum = ParsedValue(below, parsed.kind, PressureReference.GAUGE, f"{parsed.text} vac", sided=True)
+    raise AmbiguousInputError(
+        f"'{parsed.text}' at a suction point: {format_value(q, kind=Kind.PRESSURE)} of vacuum "
+        f"({format_value(below)} gauge), or {format_value(q)} above atmosphere? Write '{parsed.text} vac' "
+        "for a vacuum",
+        (vacuum, parsed),
+    )
+
+
 def gauge_span_text(gauge: Gauge) -> str:
-    """A gauge's true span as printed on its dial: '-1–1.5 bar', '30 inHg vac–0', '0–600 bar'."""
-    start = format_value(gauge.scale_start) if gauge.scale_start is not None else "0"
-    return f"{start}–{format_value(gauge.full_scale)}"
+    """A gauge's true span as printed on its dial: '-1 bar–1.5 bar', '30 inHg vac–0', '0–600 bar'."""
+    return gauge.span_text()
 
 
 def plausibility(point: TestPoint) -> Callable[[Quantity], bool] | None:

@@ -320,6 +320,10 @@ _REFERENCE_WORDS = {
     "D": PressureReference.DIFFERENTIAL,
 }
 
+#: Words after a pressure unit meaning "below atmosphere by this much": a vacuum gauge's reading,
+#: as technicians write it ("7 inHg vac", "200 mbar vacuum"); it is a negative gauge pressure.
+_VACUUM_WORDS = {"vac", "vacuum", "(vac)"}
+
 _NUMBER = re.compile(
     r"^\s*(?P<sign>[+\-−–]?)\s*"
     r"(?P<num>\d+(?:\.\d+)?[eE][+\-]?\d{1,3}(?![\d.,])"
@@ -347,6 +351,9 @@ class ParsedValue:
     kind: Kind
     reference: PressureReference | None
     text: str
+    #: The text itself says which side of atmosphere a pressure is: a sign, a written reference
+    #: ('bar g', 'abs') or 'vac'. A bare '7 inHg' does not (a vacuum gauge's dial has no sign).
+    sided: bool = False
 
 
 def _clean(text: str) -> str:
@@ -411,25 +418,34 @@ def _check_groups(raw: str, whole: str, thou: str) -> None:
         raise UnitInputError(f"'{raw}': thousands separators must separate groups of three digits")
 
 
-def _split_unit(rest: str) -> tuple[str, Kind, PressureReference | None]:
+def _split_unit(rest: str) -> tuple[str, Kind, PressureReference | None, bool]:
+    """The unit, its kind, a pressure reference when one is written, and whether the value is a
+    vacuum ("7 inHg vac": so far below atmosphere)."""
     rest = rest.strip()
+    head, _, tail = rest.rpartition(" ")
+    if tail.strip().lower() in _VACUUM_WORDS and head.strip():
+        unit_expr, kind, reference, _vac = _split_unit(head)
+        if kind is not Kind.PRESSURE or reference is not None:
+            raise UnitInputError(
+                f"'{rest}': 'vac' follows a gauge pressure unit only, as in '7 inHg vac' or '200 mbar vac'"
+            )
+        return unit_expr, kind, PressureReference.GAUGE, True
     if not rest:
         raise UnitInputError("a unit is missing: type it after the number, e.g. '22 bar' or '62 L/min'")
     if rest in SPELLINGS:
         unit_expr, kind = SPELLINGS[rest]
-        return unit_expr, kind, None
+        return unit_expr, kind, None, False
     # "bar abs", "bar (g)", "in Hg abs": a pressure unit, a space, then a reference word (split at
     # the last space: a unit spelling may hold one itself).
-    head, _, tail = rest.rpartition(" ")
     tail = tail.strip()
     if head in SPELLINGS and SPELLINGS[head][1] is Kind.PRESSURE and tail in _REFERENCE_WORDS:
-        return SPELLINGS[head][0], Kind.PRESSURE, _REFERENCE_WORDS[tail]
+        return SPELLINGS[head][0], Kind.PRESSURE, _REFERENCE_WORDS[tail], False
     # "bara", "psig", "bar(a)": a reference letter glued on.
     for base in sorted(_GLUED_REFERENCE, key=len, reverse=True):
         if rest.startswith(base):
             suffix = rest[len(base) :]
             if suffix in _REFERENCE_WORDS and suffix.lower() in {"a", "g", "d", "(a)", "(g)", "(d)"}:
-                return SPELLINGS[base][0], Kind.PRESSURE, _REFERENCE_WORDS[suffix]
+                return SPELLINGS[base][0], Kind.PRESSURE, _REFERENCE_WORDS[suffix], False
     if rest[0].isdigit():  # "12 34 bar": the number stopped at a space that is not a thousands gap
         raise UnitInputError(
             f"digits '{rest}' follow the number; a space inside a number may only "
@@ -486,7 +502,15 @@ def parse_value(
         raise UnitInputError(
             f"'{cleaned}' is too small to tell from zero; type the value as the gauge shows it"
         )
-    unit_expr, kind, reference = _split_unit(rest)
+    unit_expr, kind, reference, vacuum = _split_unit(rest)
+    sided = bool(match.group("sign")) or reference is not None
+    if vacuum:
+        if sign < 0:
+            raise UnitInputError(
+                f"'{cleaned}': a vacuum is written without a minus ('7 inHg vac'), or as a negative "
+                "gauge pressure without 'vac' ('-0.24 bar'); not both"
+            )
+        sign = -1.0
     if expect is not None and kind is not expect:
         need = f"{role_name} needs" if role_name else "this needs"
         raise DimensionError(
@@ -502,13 +526,16 @@ def parse_value(
         if ok_first and ok_second:
             raise AmbiguousInputError(
                 f"'{cleaned}' could be {_plain(value)} or {_plain(other)}; which did the gauge show?",
-                (ParsedValue(value, kind, reference, cleaned), ParsedValue(other, kind, reference, cleaned)),
+                (
+                    ParsedValue(value, kind, reference, cleaned, sided),
+                    ParsedValue(other, kind, reference, cleaned, sided),
+                ),
             )
         if ok_second and not ok_first:
             value = other
     if not math.isfinite(value.magnitude):
         raise UnitInputError(f"'{cleaned}' is not a finite number")
-    return ParsedValue(value, kind, reference, cleaned)
+    return ParsedValue(value, kind, reference, cleaned, sided)
 
 
 def parse_quantity(text: str, expect: Kind | None = None, **kwargs: Any) -> Quantity:

@@ -11,8 +11,8 @@ import datetime as dt
 from pydantic import Field, model_validator
 
 from fieldkit.model.base import Strict
-from fieldkit.model.quantity import AnyQuantity
-from fieldkit.units import Kind, Quantity, kind_of
+from fieldkit.model.quantity import AnyQuantity, spelling_of
+from fieldkit.units import Q_, DisplaySystem, Kind, Quantity, format_value, kind_of
 
 #: EN 837-1 accuracy classes for Bourdon-tube pressure gauges (limit of error, % of span).
 EN837_CLASSES = (0.1, 0.25, 0.6, 1.0, 1.6, 2.5, 4.0)
@@ -53,8 +53,51 @@ class Gauge(Strict):
     def kind(self) -> Kind:
         return kind_of(self.full_scale)
 
+    def span_text(self, system: DisplaySystem | None = None, sep: str = "–") -> str:
+        """The gauge's true span as its dial reads: see :func:`span_text`."""
+        return span_text(self.scale_start, self.full_scale, system, sep)
+
     @property
     def span(self) -> Quantity:
         start = self.scale_start if self.scale_start is not None else 0 * self.full_scale
         span: Quantity = self.full_scale - start
         return span
+
+
+#: A dial marked in inHg reads vacuum without a sign ("30 inHg vac"; common practice on vacuum and
+#: compound gauges). Other units show the sign, as compound gauges in bar or kPa are marked.
+_UNSIGNED_VACUUM_SPELLINGS = ("inHg",)
+
+
+def dial_text(q: Quantity | None, system: DisplaySystem | None = None) -> str:
+    """One end of a scale as the dial (or, with ``system``, the user's units) marks it: zero as
+    '0', a vacuum in inHg as '30 inHg vac', anything else with its sign ('-1 bar')."""
+    if q is None or q.magnitude == 0:
+        return "0"
+    kind = kind_of(q)
+    if system is not None:
+        return format_value(q, system, kind=kind)
+    spelling = spelling_of(q)
+    if spelling in _UNSIGNED_VACUUM_SPELLINGS and q.magnitude < 0:
+        return f"{format_value(Q_(-float(q.magnitude), q.units), kind=kind, spelling=spelling)} vac"
+    return format_value(q, kind=kind, spelling=spelling)
+
+
+def span_text(
+    start: Quantity | None, top: Quantity, system: DisplaySystem | None = None, sep: str = "–"
+) -> str:
+    """A scale's true span: '0–600 bar', '-1 bar–1.5 bar' (compound), '30 inHg vac–0' (vacuum).
+
+    In the dial's own units by default; in the user's units with ``system``, adding the dial's
+    marking when it is in other units ('-1.016 bar–0 (dial 30 inHg vac–0)') so the printed span
+    can be matched to the instrument in the hand."""
+    if system is None:
+        if start is None or start.magnitude == 0:
+            return f"0{sep}{dial_text(top)}"
+        return f"{dial_text(start)}{sep}{dial_text(top)}"
+    shown = f"{dial_text(start, system)}{sep}{dial_text(top, system)}"
+    kind = kind_of(top)
+    dial = span_text(start, top, None, sep)
+    if dial != shown and system.spelling_for(kind) != spelling_of(top):
+        return f"{shown} (dial {dial})"
+    return shown

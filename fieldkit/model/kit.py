@@ -18,7 +18,7 @@ from fieldkit.errors import FieldkitError
 from fieldkit.model.base import Strict
 from fieldkit.model.gauge import EN837_CLASSES, Gauge
 from fieldkit.model.quantity import AnyQuantity
-from fieldkit.units import Kind, Quantity, format_value, kind_of, parse_value
+from fieldkit.units import Kind, Quantity, kind_of, parse_value
 
 MAX_LABEL = 120
 
@@ -107,8 +107,7 @@ class KitItem(Strict):
         return self.retired_on is not None
 
     def span_text(self) -> str:
-        start = format_value(self.scale_start) if self.scale_start is not None else "0"
-        return f"{start} to {format_value(self.full_scale)}"
+        return self.as_gauge().span_text(sep=" to ")
 
 
 def calibration_warning(gauge: Gauge | KitItem, on: dt.date) -> str:

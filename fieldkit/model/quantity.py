@@ -38,6 +38,11 @@ def _spelling_for(units: pint.Unit) -> str | None:
     return None
 
 
+def spelling_of(q: Quantity) -> str | None:
+    """Our spelling of a quantity's unit ('inHg', 'bar', 'L/min'), or None when we have none for it."""
+    return _spelling_for(q.units)
+
+
 def quantity_text(q: Quantity) -> str:
     """Exact text for a quantity, in the unit it was entered in when we know a spelling for it."""
     spelling = _spelling_for(q.units)

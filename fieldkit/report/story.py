@@ -142,8 +142,7 @@ def gauge_lines(visit: Visit, profile: MachineProfile, system: DisplaySystem) ->
         if g.id not in used:
             continue
         limit, spelling = limit_in(g, system)
-        start = format_value(g.scale_start, system) if g.scale_start is not None else "0"
-        span = f"{start} to {format_value(g.full_scale, system)}"
+        span = g.span_text(system, sep=" to ")
         instrument = f"{g.label}, {span}" if g.label else f"{g.kind.value} gauge, {span}"
         overdue = bool(calibration_warning(g, visit.date))
         if g.calibration_due is None:
@@ -190,6 +189,15 @@ def _range_advice(
     if highest is None:
         return ""
     full = to_canonical(g.full_scale, Kind.PRESSURE)
+    if full <= 0:
+        # A vacuum gauge ends at (or below) atmosphere: any pressure at the point overranges it.
+        if highest <= full:
+            return ""
+        return (
+            f"{where} can reach {format_value(Q_(highest, unit('bar')), system, kind=Kind.PRESSURE)} "
+            "on this machine, above the top of this vacuum gauge's scale (0, atmosphere): fit it only "
+            "where the point stays below atmosphere, or use a compound gauge that reaches that pressure."
+        )
     if highest <= FLUCTUATING_SHARE * full:
         return ""
     spelling = system.pressure

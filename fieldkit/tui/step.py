@@ -134,9 +134,7 @@ def gauge_fit(
             f"{gauge.id} ends at {format_value(gauge.full_scale, system)}, "
             f"below the expected {format_value(work, system)}",
         )
-    return GaugeFit(
-        Level.OK, f"{gauge.id} (0–{format_value(gauge.full_scale, system)}) covers the expected reading"
-    )
+    return GaugeFit(Level.OK, f"{gauge.id} ({gauge.span_text(system)}) covers the expected reading")
 
 
 def _gauge_to_add(point: TestPoint, function: FunctionState) -> str:

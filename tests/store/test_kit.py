@@ -202,4 +202,4 @@ def test_fieldkit_kit_commands_add_edit_retire_list_and_use(
     assert "V1" not in capsys.readouterr().out
     assert main(["--store", store, "kit", "list", "--all"]) == 0
     out = capsys.readouterr().out
-    assert "V1" in out and "-1 bar to 0 bar" in out and "retired" in out
+    assert "V1" in out and "-1 bar to 0" in out and "retired" in out

@@ -284,10 +284,19 @@ class VisitScreen(FieldkitScreen):
     def on_reading_entry_ambiguous(self, event: ReadingEntry.Ambiguous) -> None:
         from fieldkit.tui.screens.dialogs import ChoiceDialog
 
+        choices = [c for c in event.error.choices if isinstance(c, ParsedValue)]
+        # A bare '7 inHg' at a suction point: the choices are written differently ('7 inHg vac')
+        # and differ in sign, so each is named as written and by its side of atmosphere.
+        sides = len({c.quantity.magnitude > 0 for c in choices}) > 1
+        written = len({c.text for c in choices}) > 1
         labels = [
-            Text(f"{quantity_text(c.quantity)}   (= {format_value(c.quantity, self.bench.system)})", end="")
-            for c in event.error.choices
-            if isinstance(c, ParsedValue)
+            Text(
+                f"{c.text if written else quantity_text(c.quantity)}   "
+                f"(= {format_value(c.quantity, self.bench.system)}"
+                + (f", {'below' if c.quantity.magnitude < 0 else 'above'} atmosphere)" if sides else ")"),
+                end="",
+            )
+            for c in choices
         ]
         self.app.push_screen(
             ChoiceDialog("Which value?", literal(str(event.error)), labels),

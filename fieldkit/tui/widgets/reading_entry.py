@@ -43,8 +43,7 @@ def message_text(text: str) -> Text:
 
 
 def gauge_label(g: Gauge) -> str:
-    start = format_value(g.scale_start) if g.scale_start is not None else "0"
-    return f"{g.id} {start}–{format_value(g.full_scale)} cl {g.accuracy_class:g}"
+    return f"{g.id} {g.span_text()} cl {g.accuracy_class:g}"
 
 
 class ReadingEntry(Vertical):
@@ -379,6 +378,11 @@ class ReadingEntry(Vertical):
                 chosen=choice,
                 after_repair=self.retest,
             )
+        except ConfirmValueError as exc:  # the value chosen is itself unlikely here: ask that too
+            self._raise_danger(exc.danger)
+            self.say(f"? {exc} Answer the question to save it.", "ask")
+            self.post_message(self.Confirm(exc, ask.point, ask.condition, ask.gauge))
+            return
         except FieldkitError as err:
             self.say(f"✗ {err} (nothing saved)", "error")
             return
