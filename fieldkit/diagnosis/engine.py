@@ -289,6 +289,14 @@ def _cautions(
         circuit, tp = profile.test_point(t.test_point)
         state = next((s for s in FunctionState if s.label == t.condition), FunctionState.NEUTRAL)
         steps.append((circuit, tp, state, "next test"))
+        if t.action:
+            from fieldkit.diagnosis.actions import ACTIONS
+
+            for action in ACTIONS:
+                if action.id == t.action:
+                    for cid in action.cautions:
+                        if cid in knowledge.cautions:
+                            add(knowledge.cautions[cid], f"next test: {action.title.lower()}", circuit)
     for circuit, tp, state, why in steps:
         for r in cautions_for_step(knowledge.cautions, circuit, tp, state):
             add(r.caution, f"{why} at {r.because}")

@@ -155,6 +155,8 @@ def suggest(
         minutes = cand.point.minutes
         # What each outcome of the first rule alone would say, for the sentence.
         _, first = _expected_entropy(prior, mats[:1], soft)
+        if cand.repeat_of is not None and not _could_change_leader(posterior, first):
+            continue  # a better gauge would only confirm what already leads
         outcomes = {OUTCOMES[combo[0]]: _describe(post, hyps) for combo, p_o, post in first if p_o > 0.05}
         state_text = cand.state.label if cand.state else "any condition"
         advice = ""
@@ -182,8 +184,99 @@ def suggest(
                 outcomes=outcomes,
             )
         )
+    tests.extend(_action_tests(evaluator, hyps, posterior, now))
     tests.sort(key=lambda t: -(t.gain_bits / t.minutes))
     return tests[:limit]
+
+
+def _could_change_leader(
+    posterior: list[float], outcomes: list[tuple[tuple[int, ...], float, list[float]]]
+) -> bool:
+    """Whether any outcome with a real chance would put another hypothesis first, or take the
+    leader's majority away (several rivals sharing what it loses)."""
+    lead = max(range(len(posterior)), key=posterior.__getitem__)
+    for _combo, p_o, post in outcomes:
+        if p_o <= 0.02:
+            continue
+        if max(range(len(post)), key=post.__getitem__) != lead:
+            return True
+        if post[lead] < 0.5 <= posterior[lead]:
+            return True
+    return False
+
+
+def _action_tests(
+    evaluator: Evaluator, hyps: list[Hypothesis], posterior: list[float], now: float
+) -> list[NextTest]:
+    """Action tests (diagnosis.actions) for each circuit they suit, by expected information gain:
+    outcome o has P(o) = Σ_h P(h) P(o | h) and leaves P(h | o) ∝ P(h) P(o | h)."""
+    from fieldkit.diagnosis.actions import ACTIONS
+
+    out: list[NextTest] = []
+    for action in ACTIONS:
+        for circuit in evaluator.profile.circuits:
+            if circuit.kind not in action.kinds:
+                continue
+            if action.id == "loaded-flow-test" and any(
+                tp.role is Role.PUMP_FLOW for tp in circuit.test_points
+            ):
+                continue  # the circuit has its own flow test point, offered as a reading
+            named = [
+                h
+                for h in hyps
+                if h.circuit is not None and h.circuit.id == circuit.id and h.fault.id in action.by_fault
+            ]
+            if not named:
+                continue
+            rows = [
+                action.likelihood(h.fault.id)
+                if h.circuit is not None and h.circuit.id == circuit.id
+                else action.otherwise
+                for h in hyps
+            ]
+            results: list[tuple[tuple[int, ...], float, list[float]]] = []
+            expected = 0.0
+            for o in range(len(action.outcomes)):
+                joint = [p * row[o] for p, row in zip(posterior, rows, strict=True)]
+                p_o = sum(joint)
+                if p_o <= 0:
+                    continue
+                post = [j / p_o for j in joint]
+                expected += p_o * entropy_bits(post)
+                results.append(((o,), p_o, post))
+            gain = max(0.0, now - expected)
+            if gain < 1e-3:
+                continue
+            point = next((tp for tp in circuit.test_points if tp.role is action.point_role), None)
+            point = point or (circuit.test_points[0] if circuit.test_points else None)
+            if point is None:
+                continue
+            outcomes = {
+                action.outcomes[
+                    combo[0]
+                ].seen: f"{action.outcomes[combo[0]].meaning}; then {_describe(post, hyps)}"
+                for combo, p_o, post in results
+                if p_o > 0.05
+            }
+            said = "; ".join(f"if {k}, {v}" for k, v in outcomes.items())
+            why = (
+                f"{action.title} ({circuit.name}): it is expected to remove {gain:.2f} of the {now:.2f} bits "
+                f"of doubt in about {action.minutes:g} min. {said[:1].upper() + said[1:]}."
+            )
+            out.append(
+                NextTest(
+                    test_point=point.id,
+                    label=action.title,
+                    circuit=circuit.id,
+                    condition="action test",
+                    minutes=action.minutes,
+                    gain_bits=gain,
+                    why=why,
+                    outcomes=outcomes,
+                    action=action.id,
+                )
+            )
+    return out
 
 
 def _smaller_gauge_advice(evaluator: Evaluator, cand: _Candidate) -> str:

@@ -130,6 +130,8 @@ class NextTest:
     repeat: bool = False
     gauge_advice: str = ""
     outcomes: dict[str, str] = field(default_factory=dict)
+    #: The action test's id (diagnosis.actions) when this is something to do rather than a reading.
+    action: str = ""
 
 
 @dataclass(slots=True)

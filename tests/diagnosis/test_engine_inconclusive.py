@@ -189,13 +189,16 @@ def _exact_repeat_gain(d: Diagnosis) -> float:
     return entropy(list(post.values())) - expected
 
 
-def test_inconclusive_reading_on_the_safe_side_of_its_limit_still_gets_a_repeat() -> None:
+def test_inconclusive_reading_on_the_safe_side_that_cannot_change_the_leader_gets_no_repeat() -> None:
+    # Issue 13: a repeat with a better gauge is offered only when it could change the leading
+    # fault. 1.6 bar against a 2 bar limit on the 0-60 bar gauge is inconclusive, but on this
+    # otherwise healthy machine no outcome of a repeat would unseat 'no fault'.
     _visit, d = _fellborer_with_case_reading(BIG, 1.6)
     assert finding(d, "case-pressure", "travel").verdict is Verdict.INCONCLUSIVE
-    assert [t for t in d.next_tests if t.test_point == "travel.case" and t.repeat]
+    assert not [t for t in d.next_tests if t.test_point == "travel.case" and t.repeat]
 
 
-@pytest.mark.parametrize("bar", [1.6, READING_BAR])
+@pytest.mark.parametrize("bar", [READING_BAR])
 def test_repeat_gain_is_the_exact_expected_information_gain(bar: float) -> None:
     _visit, d = _fellborer_with_case_reading(BIG, bar)
     exact = _exact_repeat_gain(d)
