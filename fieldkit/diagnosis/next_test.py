@@ -252,16 +252,13 @@ def _action_tests(
             if point is None:
                 continue
             outcomes = {
-                action.outcomes[
-                    combo[0]
-                ].seen: f"{action.outcomes[combo[0]].meaning}; then {_describe(post, hyps)}"
-                for combo, p_o, post in results
+                action.outcomes[combo[0]].seen: action.outcomes[combo[0]].meaning
+                for combo, p_o, _post in results
                 if p_o > 0.05
             }
-            said = "; ".join(f"if {k}, {v}" for k, v in outcomes.items())
             why = (
-                f"{action.title} ({circuit.name}): it is expected to remove {gain:.2f} of the {now:.2f} bits "
-                f"of doubt in about {action.minutes:g} min. {said[:1].upper() + said[1:]}."
+                f"{action.title}: it is expected to remove {gain:.2f} of the {now:.2f} bits of doubt "
+                f"in about {action.minutes:g} min."
             )
             out.append(
                 NextTest(

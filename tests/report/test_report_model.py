@@ -8,7 +8,7 @@ import math
 import pytest
 from report_builders import with_text
 
-from fieldkit.diagnosis.results import Diagnosis, Verdict
+from fieldkit.diagnosis.results import Diagnosis, NextTest, Verdict
 from fieldkit.model.visit import Visit
 from fieldkit.report.build import job_card
 from fieldkit.report.model import SETTLED, TOP_FAULTS, ReportError, make_band
@@ -93,7 +93,19 @@ def _with_top_probability(diagnosis: Diagnosis, p: float) -> Diagnosis:
 
 def test_next_test_is_shown_only_while_the_diagnosis_is_not_settled(worn) -> None:
     visit, profile, diagnosis = worn
-    assert diagnosis.next_tests, "the demo visit suggests a next test"
+    if not diagnosis.next_tests:
+        # The calibrated engine may have nothing left worth measuring on this demo visit: give the
+        # card a next test of its own, since what is checked here is when the card shows it.
+        extra = NextTest(
+            test_point="travel.case",
+            label="case pressure",
+            circuit="travel",
+            condition="neutral",
+            minutes=15,
+            gain_bits=0.2,
+            why="Measure case pressure (neutral): it is expected to remove 0.20 bits of doubt.",
+        )
+        diagnosis = dataclasses.replace(diagnosis, next_tests=[extra])
     unsettled = job_card(visit, profile, _with_top_probability(diagnosis, SETTLED - 0.2))
     assert not unsettled.settled
     assert unsettled.next_test is not None
