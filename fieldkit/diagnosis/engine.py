@@ -12,6 +12,7 @@ from dataclasses import dataclass
 from functools import lru_cache
 from pathlib import Path
 
+from fieldkit.diagnosis.actions import ACTIONS
 from fieldkit.diagnosis.catalogue import Caution, Fault, load_cautions, load_faults
 from fieldkit.diagnosis.cautions import SEVERITY_RANK, cautions_for_step
 from fieldkit.diagnosis.evidence import evidence_book, evidence_findings
@@ -290,8 +291,6 @@ def _cautions(
         state = next((s for s in FunctionState if s.label == t.condition), FunctionState.NEUTRAL)
         steps.append((circuit, tp, state, "next test"))
         if t.action:
-            from fieldkit.diagnosis.actions import ACTIONS
-
             for action in ACTIONS:
                 if action.id == t.action:
                     for cid in action.cautions:

@@ -13,6 +13,7 @@ import itertools
 import math
 from dataclasses import dataclass
 
+from fieldkit.diagnosis.actions import ACTIONS
 from fieldkit.diagnosis.findings import Evaluator, Hypothesis, Scope, likelihoods
 from fieldkit.diagnosis.ranking import entropy_bits
 from fieldkit.diagnosis.results import Finding, NextTest, Verdict
@@ -210,8 +211,6 @@ def _action_tests(
 ) -> list[NextTest]:
     """Action tests (diagnosis.actions) for each circuit they suit, by expected information gain:
     outcome o has P(o) = Σ_h P(h) P(o | h) and leaves P(h | o) ∝ P(h) P(o | h)."""
-    from fieldkit.diagnosis.actions import ACTIONS
-
     out: list[NextTest] = []
     for action in ACTIONS:
         for circuit in evaluator.profile.circuits:
