@@ -2,7 +2,7 @@
 
 Cylinder (``CircuitModel.p``): ``bore``, ``rod`` (mm), ``cap_area`` (mm²), ``q_valve`` oil the
 load-holding valve or spool lets out of the loaded side, ``q_seal`` oil passing the piston seal
-(L/min at the test load and the reference temperature; laminar, so ∝ 1/viscosity). With the
+(L/min at the test load and the reference temperature; laminar, so ∝ 1/μ, dynamic viscosity). With the
 control in neutral both ports are blocked and a bypassing seal cannot move the piston (the cap
 side pushes more oil than the rod side can take), so only ``q_valve`` drifts the load; with the
 rod side vented the seal's oil leaves too (field notes, trade article, second-hand). Drift is the
@@ -53,8 +53,10 @@ def _supply_stall(machine: Machine, env: Env) -> float | None:
 
 
 def _drift(model: CircuitModel, leak: float, env: Env) -> float:
-    """mm/min for a leak in L/min over the cap area: v = Q / A."""
-    return leak * env.leak * 1.0e6 / model.p["cap_area"]
+    """mm/min for a leak in L/min over the cap area: v = Q / A. The leak is stated at the reference
+    temperature; the load sets the pressure across the gap, so by the laminar gap law it scales
+    with 1/μ."""
+    return leak / env.mu_ratio * 1.0e6 / model.p["cap_area"]
 
 
 def precharge_reading(model: CircuitModel, gas_c: float) -> float:

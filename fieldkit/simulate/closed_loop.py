@@ -2,31 +2,34 @@
 
 Closed loop (``CircuitModel.p``, canonical units):
 
-* ``charge_disp`` charge pump displacement, ``charge_fill`` its fill, ``charge_c`` its own
-  internal leakage (L/min per bar at the reference temperature): the charge pump delivers
-  V · n · fill − c · p, so a worn (loose) charge pump sags as pressure rises;
+* ``charge_disp`` charge pump displacement, ``charge_fill`` its fill, ``charge_gap`` /
+  ``charge_slot`` its slip gap from outlet back to inlet (laminar gap law, sized so a sound
+  pump slips 8 % of its flow at its relief setting): a worn (loose) charge pump sags as
+  pressure rises;
 * ``charge_relief`` and ``flushing_relief`` settings (net of case, as data sheets give them);
-* ``hp_a`` / ``hp_b`` cross-port relief settings; ``hp_differential`` 1 when they are held as a
-  differential above the low side (the gauge then reads setting + charge at a stall), 0 when
-  they are stated as the gauge reading (the profile's ``cross_port_relief_convention``);
-* ``pump_drain`` / ``motor_drain`` case drain at the stall pressure ``p_ref`` and the reference
-  temperature, ``pump_wear`` / ``motor_wear`` their multipliers; loop leakage is laminar, so it
-  scales with loop pressure and 1/viscosity;
+* ``hp_a`` / ``hp_b`` cross-port relief *differentials* above the low side, ``hp_slope`` their
+  override (bar per L/min), ``low_side`` the nominal low-side pressure at a stall. The valves
+  discharge into the low side, so a stalled port reads charge + differential + override; a
+  profile figure stated as the gauge reading (``cross_port_relief_convention = "gauge"``) is
+  turned into a differential when the machine is built;
+* ``pump_drain`` / ``motor_drain`` case drain of the sound machine at the stall pressure ``p_ref``
+  and the reference temperature, turned into leakage gaps (``pump_gap``/``pump_slot``,
+  ``motor_gap``/``motor_slot``) from the high side to the case;
 * ``drain_static``, ``drain_r``, ``case_extra`` what the pump case reads for the oil through it:
   its own leakage, and in neutral the charge flow the charge relief discharges into it;
 * ``inlet_turb`` / ``inlet_lam`` / ``inlet_restrict`` charge pump inlet vacuum;
   ``cfilter`` charge filter drop at the design charge flow.
 
-Charge pressure follows :func:`fieldkit.physics.closed_loop.expected_charge_pressure` (charge
-relief in neutral, the lower flushing relief in stroke, case pressure added) as long as
-:func:`fieldkit.physics.closed_loop.charge_flow_budget` says the charge pump covers what the loop
-loses; when it does not, the reliefs close and charge settles where the charge pump's sagging
-delivery meets the loop's leakage.
+Charge pressure: the charge relief governs in neutral; in stroke the flushing spool also offers
+the low side the flushing relief, and the lower of the two governs (case pressure added, since
+both work against the case). That holds while the charge pump covers what the loop loses; when
+it does not, the reliefs close and charge settles where the charge pump's sagging delivery meets
+the loop's leakage. Written here, not taken from :mod:`fieldkit.physics.closed_loop`.
 
-Motor: ``drain`` (L/min at ``dp_ref``), ``wear``, ``load_dp`` (bar across the motor under the
-working load), ``line_loss``, case drain line as above. Brake: ``valve_drop``, ``loss`` (share of
-the supply lost to a leaking release circuit), ``leak`` (L/min that leak costs the supply),
-``vent``, and ``supply`` when the brake has its own supply point.
+Motor: ``drain`` (L/min at ``dp_ref``) and its gap ``motor_gap``/``motor_slot``, ``load_dp`` (bar
+across the motor under the working load), ``line_loss``, case drain line as above. Brake:
+``valve_drop``, ``loss`` (share of the supply lost to a leaking release circuit), ``leak`` (L/min
+that leak costs the supply), ``vent``, and ``supply`` when the brake has its own supply point.
 """
 
 from __future__ import annotations
@@ -34,11 +37,6 @@ from __future__ import annotations
 from fieldkit.model.condition import FunctionState
 from fieldkit.model.profile import Circuit, CircuitKind, TestPoint
 from fieldkit.model.roles import Role
-from fieldkit.physics.closed_loop import (
-    charge_flow_budget,
-    cross_port_stall_reading,
-    expected_charge_pressure,
-)
 from fieldkit.simulate.constants import (
     DEEPEST_VACUUM_BAR,
     LEAKAGE_SCATTER,
@@ -47,6 +45,7 @@ from fieldkit.simulate.constants import (
     RESTRICTION_SCATTER,
     SETTING_SCATTER,
 )
+from fieldkit.simulate.hydraulics import DEFAULT_OVERRIDE_SHARE
 from fieldkit.simulate.machine import (
     CircuitModel,
     Draw,
@@ -55,10 +54,11 @@ from fieldkit.simulate.machine import (
     any_bounds,
     bounds,
     drain_line,
+    gap_leak,
+    gap_path,
     middle,
     param,
     point,
-    qty,
 )
 from fieldkit.simulate.open_circuits import cavitation_fill, return_back
 
@@ -79,23 +79,26 @@ CHARGE_OVERRIDE_SLOPE = 0.02
 
 
 def loop_pressure(model: CircuitModel, state: FunctionState) -> float:
+    """High-side loop pressure in a state (bar, gauge). At a stall the cross-port relief holds the
+    high side at its differential above the low side, which sits near the charge setting."""
     p = model.p
     return {
         FunctionState.NEUTRAL: p["charge_relief"],
         FunctionState.FULL_STROKE: STROKE_SHARE * p["p_ref"],
         FunctionState.UNDER_LOAD: LOAD_SHARE * p["p_ref"],
-        FunctionState.STALLED: 0.5 * (p["hp_a"] + p["hp_b"]),
+        FunctionState.STALLED: 0.5 * (p["hp_a"] + p["hp_b"]) + p["low_side"],
     }[state]
 
 
 def pump_drain(model: CircuitModel, state: FunctionState, env: Env) -> float:
+    """Pump case drain: the loop's high side leaking through the rotating group's gaps to the case."""
     p = model.p
-    return p["pump_drain"] * p["pump_wear"] * loop_pressure(model, state) / p["p_ref"] * env.leak
+    return gap_leak(p, "pump", loop_pressure(model, state) - p["drain_static"], env)
 
 
 def motor_drain(model: CircuitModel, state: FunctionState, env: Env) -> float:
     p = model.p
-    return p["motor_drain"] * p["motor_wear"] * loop_pressure(model, state) / p["p_ref"] * env.leak
+    return gap_leak(p, "motor", loop_pressure(model, state) - p["drain_static"], env)
 
 
 def charge_intake(model: CircuitModel, env: Env) -> float:
@@ -105,7 +108,7 @@ def charge_intake(model: CircuitModel, env: Env) -> float:
 def charge_vacuum(model: CircuitModel, env: Env) -> float:
     p = model.p
     x = charge_intake(model, env) / p["charge_q0"]
-    return (p["inlet_turb"] * x * x + p["inlet_lam"] * x * env.visc_ratio) * p["inlet_restrict"]
+    return (p["inlet_turb"] * x * x + p["inlet_lam"] * x * env.mu_ratio) * p["inlet_restrict"]
 
 
 def charge_delivered(model: CircuitModel, env: Env) -> float:
@@ -118,26 +121,22 @@ def net_charge(machine: Machine, model: CircuitModel, state: FunctionState, env:
     (L/min) in a state: the governing relief while the charge pump keeps up, below it when the
     loop loses more than the charge pump gives."""
     p = model.p
-    flushing = qty(p["flushing_relief"], "bar") if p.get("flushing_relief") else None
-    settings = expected_charge_pressure(qty(p["charge_relief"], "bar"), flushing)
     neutral = state is FunctionState.NEUTRAL
-    governing = (settings.neutral if neutral else settings.in_stroke).m_as("bar")
-    by_charge_relief = neutral or settings.in_stroke_governed_by == "charge relief"
+    # In neutral the flushing spool is centred and only the charge relief can open; in stroke the
+    # shifted spool offers the low side the flushing relief too, and whichever opens first governs.
+    flushing = p.get("flushing_relief") or None
+    by_charge_relief = neutral or flushing is None or p["charge_relief"] <= flushing
+    governing = p["charge_relief"] if by_charge_relief else float(flushing or 0.0)
     drawn = charge_delivered(model, env)
-    slip = p["charge_c"] * env.leak
-    at_setting = drawn - slip * governing
+    # The charge pump's own slip: a gap from its outlet back to its inlet, so it grows with pressure.
+    slip_per_bar = gap_leak(p, "charge", 1.0, env)
     brake_leak = 0.0 if neutral else brake_demand(machine)
-    budget = charge_flow_budget(
-        qty(p["charge_disp"], "centimeter ** 3 / revolution"),
-        qty(env.speed_rpm, "revolution / minute"),
-        min(1.0, max(at_setting / charge_intake(model, env), 1e-4)),
-        qty(pump_drain(model, state, env), "liter / minute"),
-        qty(motor_drain(model, state, env) + brake_leak, "liter / minute"),
-    )
-    surplus = budget.surplus.m_as("liter / minute")
-    if budget.keeps_loop_full:
+    demand = pump_drain(model, state, env) + motor_drain(model, state, env) + brake_leak
+    surplus = drawn - slip_per_bar * governing - demand
+    if surplus > 0.0:
         return governing + CHARGE_OVERRIDE_SLOPE * surplus, surplus if by_charge_relief else 0.0
-    return max(0.0, (drawn - budget.demand.m_as("liter / minute")) / slip), 0.0
+    # The reliefs have closed: charge settles where the sagging charge pump meets the loop's losses.
+    return max(0.0, (drawn - demand) / slip_per_bar), 0.0
 
 
 def loop_case(machine: Machine, model: CircuitModel, state: FunctionState, env: Env) -> float:
@@ -174,17 +173,30 @@ def closed_loop(
     if role is Role.MOTOR_CASE_DRAIN_FLOW:
         return motor_drain(model, state, env)
     if role in (Role.LOOP_A_PRESSURE, Role.LOOP_B_PRESSURE) and state is FunctionState.STALLED:
-        # The cross-port relief discharges into the low side, held at charge pressure: a setting
-        # held as a differential reads setting + charge at the high-side gauge.
-        setting = p["hp_a"] if role is Role.LOOP_A_PRESSURE else p["hp_b"]
-        low_side = charge_pressure(machine, model, state, env)
-        convention = "differential" if p.get("hp_differential", 0.0) else "gauge"
-        return cross_port_stall_reading(qty(setting, "bar"), qty(low_side, "bar"), convention).m_as("bar")
+        return stall_reading(machine, model, "hp_a" if role is Role.LOOP_A_PRESSURE else "hp_b", env)
     if role is Role.SUCTION_PRESSURE:
         return -min(charge_vacuum(model, env), DEEPEST_VACUUM_BAR)
     if role is Role.FILTER_PRESSURE_DROP:
-        return p["cfilter"] * charge_delivered(model, env) / p["charge_q0"] * env.visc_ratio
+        return p["cfilter"] * charge_delivered(model, env) / p["charge_q0"] * env.mu_ratio
     return None
+
+
+def stall_flow(model: CircuitModel, env: Env) -> float:
+    """Oil crossing the cross-port relief with the drive stalled: the main pump's delivery less
+    what leaks to the pump and motor cases."""
+    p = model.p
+    leaks = pump_drain(model, FunctionState.STALLED, env) + motor_drain(model, FunctionState.STALLED, env)
+    return max(0.0, p["qth"] * env.speed_ratio - leaks)
+
+
+def stall_reading(machine: Machine, model: CircuitModel, side: str, env: Env) -> float:
+    """High-port gauge with the drive stalled: the cross-port relief is a differential valve
+    discharging into the low side, so the gauge reads low side (charge) + differential + the
+    override for the flow it passes. Whatever the profile's convention, the valve works this way;
+    the convention only says how its figure was stated."""
+    p = model.p
+    low_side = charge_pressure(machine, model, FunctionState.STALLED, env)
+    return low_side + p[side] + p["hp_slope"] * stall_flow(model, env)
 
 
 def build_closed_loop(machine: Machine, circuit: Circuit, draw: Draw) -> CircuitModel:
@@ -202,27 +214,34 @@ def build_closed_loop(machine: Machine, circuit: Circuit, draw: Draw) -> Circuit
         hp = middle(*bounds(point(circuit, Role.LOOP_A_PRESSURE), FunctionState.STALLED)) or 350.0
         convention = "gauge"
     q0 = charge_disp * rated / 1000.0
+    qth = disp * rated / 1000.0
+    # The low side at a stall: the lower of the charge and flushing reliefs (net of case).
+    low_side = min(charge, flushing) if flushing else charge
+    slope = DEFAULT_OVERRIDE_SHARE * hp / qth  # bar per L/min over the cross-port relief
+    # A figure stated as the gauge reading at a stall already holds the low side and the override;
+    # the valve itself is a differential one, so take them off to get its differential.
+    differential = hp if convention == "differential" else hp - low_side - slope * qth
     model = CircuitModel(circuit, {})
     p = model.p
     p.update(
         charge_disp=charge_disp,
         charge_q0=q0,
         charge_fill=1.0,
-        charge_c=draw((1 - CHARGE_EFFICIENCY) * q0 / charge, LEAKAGE_SCATTER),
         charge_relief=draw(charge, SETTING_SCATTER),
-        hp_a=draw(hp, SETTING_SCATTER),
-        hp_b=draw(hp, SETTING_SCATTER),
-        p_ref=hp,
-        pump_wear=1.0,
-        motor_wear=1.0,
+        hp_a=draw(differential, SETTING_SCATTER),
+        hp_b=draw(differential, SETTING_SCATTER),
+        hp_slope=slope,
+        low_side=low_side,
+        p_ref=differential + low_side,
         case_extra=0.0,
         inlet_restrict=1.0,
-        hp_differential=1.0 if convention == "differential" else 0.0,
     )
     if flushing:
         p["flushing_relief"] = draw(flushing, SETTING_SCATTER)
-    qth = disp * rated / 1000.0
     p["qth"] = qth
+    mu_ref = machine.mu_ref
+    # The charge pump slips (1 − ηv) of its flow at its relief setting, back to its own inlet.
+    gap_path(p, "charge", draw((1 - CHARGE_EFFICIENCY) * q0, LEAKAGE_SCATTER), charge, mu_ref)
     pump = param(circuit, "case_drain_baseline")
     if pump is None:
         high = bounds(point(circuit, Role.PUMP_CASE_DRAIN_FLOW), FunctionState.STALLED)[1]
@@ -234,6 +253,10 @@ def build_closed_loop(machine: Machine, circuit: Circuit, draw: Draw) -> Circuit
     max_case = param(circuit, "max_case_pressure") or any_bounds(point(circuit, Role.CASE_PRESSURE))[1] or 2.0
     # The most oil passes the pump case in neutral, where the charge relief sends the charge flow through it.
     p["drain_static"], p["drain_r"] = drain_line(max_case, CHARGE_EFFICIENCY * q0, draw)
+    # Case drain figures are stated at a stall and the reference temperature: size the gaps there.
+    stall_dp = p["p_ref"] - p["drain_static"]
+    gap_path(p, "pump", p["pump_drain"], stall_dp, mu_ref)
+    gap_path(p, "motor", p["motor_drain"], stall_dp, mu_ref)
     floor = any_bounds(point(circuit, Role.SUCTION_PRESSURE))[0]
     vacuum = 0.4 * abs(floor) if floor is not None else 0.06
     p["inlet_turb"] = draw(vacuum / 2, RESTRICTION_SCATTER)
@@ -261,7 +284,7 @@ def motor(
     moving = state in (FunctionState.FULL_STROKE, FunctionState.UNDER_LOAD)
     outlet = p["line_loss"] + _supply_back(machine, env)
     load = p["load_dp"] if state is FunctionState.UNDER_LOAD else 0.5 * p["load_dp"]
-    drain = p["drain"] * p["wear"] * load / p["dp_ref"] * env.leak
+    drain = gap_leak(p, "motor", load, env)
     if role is Role.LOOP_B_PRESSURE and moving:
         return outlet
     if role is Role.LOOP_A_PRESSURE and moving:
@@ -290,9 +313,10 @@ def build_motor(machine: Machine, circuit: Circuit, draw: Draw) -> CircuitModel:
         high = bounds(point(circuit, Role.MOTOR_CASE_DRAIN_FLOW), FunctionState.UNDER_LOAD)[1]
         drain = 0.45 * high if high is not None else 0.5
     p["drain"] = draw(drain, LEAKAGE_SCATTER)
-    p["wear"] = 1.0
     max_case = param(circuit, "max_case_pressure") or any_bounds(point(circuit, Role.CASE_PRESSURE))[1] or 2.0
     p["drain_static"], p["drain_r"] = drain_line(max_case, p["drain"], draw)
+    # The drain figure holds at the working load across the motor and the reference temperature.
+    gap_path(p, "motor", p["drain"], p["dp_ref"], machine.mu_ref)
     p["case_extra"] = 0.0
     return model
 

@@ -19,7 +19,7 @@ from dataclasses import dataclass
 from random import Random
 
 from fieldkit.model.profile import CircuitKind
-from fieldkit.simulate.machine import CircuitModel, Machine, ReliefState, param
+from fieldkit.simulate.machine import CircuitModel, Machine, ReliefState, param, widen
 from fieldkit.simulate.open_circuits import main_relief_id
 from fieldkit.units import Kind, to_canonical
 
@@ -67,12 +67,13 @@ def _bar(x: float) -> str:
 @fault("charge_pump_worn", *LOOP)
 def charge_pump_worn(m: Machine, c: CircuitModel | None, s: float, rng: Random) -> str:
     """Worn gerotor or gear set: its tip and side clearances have opened, so oil slips back
-    inside the charge pump in proportion to the pressure it works against (slip coefficient × (1 + 12·s))
+    inside the charge pump in proportion to the pressure it works against (slip × (1 + 12·s), the gap
+    opening by the cube root of that)
     and it fills a little less (−10 %·s). Charge sags wherever the loop asks most of it."""
     assert c is not None
-    c.p["charge_c"] *= 1.0 + 12.0 * s
+    growth = widen(c.p, "charge", 1.0 + 12.0 * s)
     c.p["charge_fill"] *= 1.0 - 0.1 * s
-    return f"charge pump internal slip × {1 + 12 * s:.1f}, fill −{10 * s:.0f} %"
+    return f"charge pump clearances × {growth:.2f} (slip × {1 + 12 * s:.1f}), fill −{10 * s:.0f} %"
 
 
 @fault("charge_relief_low", *LOOP)
@@ -134,15 +135,13 @@ def pump_worn(m: Machine, c: CircuitModel | None, s: float, rng: Random) -> str:
     """Scored valve plate, worn pistons or gear side plates: extra internal leakage of 10 %·s of
     the pump's theoretical flow at its test pressure (field notes: a worn piston pump leaks
     above about 5 % of its maximum flow, from memory; severity 1 is twice that), laminar, so it
-    grows with pressure. A piston pump's case drain carries it; a gear pump delivers less."""
+    grows with pressure. The leakage gap opens to match (Q ∝ h³). A piston pump's case drain carries
+    it; a gear pump delivers less."""
     assert c is not None
-    if c.kind is CircuitKind.CLOSED_LOOP_DRIVE:
-        key, base = "pump_wear", c.p["pump_drain"]
-    else:
-        key, base = "wear", c.p["leak"]
+    base = c.p["pump_drain"] if c.kind is CircuitKind.CLOSED_LOOP_DRIVE else c.p["leak"]
     extra = 0.10 * s * c.p["qth"]
-    c.p[key] *= 1.0 + extra / max(base, 1e-6)
-    return f"pump internal leakage {extra:.1f} L/min higher at its test pressure"
+    growth = widen(c.p, "pump", 1.0 + extra / max(base, 1e-6))
+    return f"pump clearances × {growth:.2f}: internal leakage {extra:.1f} L/min higher at its test pressure"
 
 
 @fault("motor_worn", CircuitKind.CLOSED_LOOP_DRIVE, CircuitKind.MOTOR)
@@ -150,9 +149,8 @@ def motor_worn(m: Machine, c: CircuitModel | None, s: float, rng: Random) -> str
     """Worn motor rotating group: leakage to the motor case × (1 + 4·s), so the motor drain rises
     under load and, in a closed loop, the charge pump must replace more."""
     assert c is not None
-    key = "motor_wear" if c.kind is CircuitKind.CLOSED_LOOP_DRIVE else "wear"
-    c.p[key] *= 1.0 + 4.0 * s
-    return f"motor internal leakage × {1 + 4 * s:.1f}"
+    growth = widen(c.p, "motor", 1.0 + 4.0 * s)
+    return f"motor clearances × {growth:.2f}: internal leakage × {1 + 4 * s:.1f}"
 
 
 @fault("case_drain_restricted", CircuitKind.CLOSED_LOOP_DRIVE, *VARIABLE, CircuitKind.MOTOR)

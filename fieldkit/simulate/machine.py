@@ -23,8 +23,15 @@ from fieldkit.model.condition import Condition, FunctionState
 from fieldkit.model.parameters import PARAMETERS
 from fieldkit.model.profile import Circuit, CircuitKind, MachineProfile, TestPoint
 from fieldkit.model.roles import Role
-from fieldkit.physics.fluid import ViscosityCurve, grade
-from fieldkit.simulate.constants import KELVIN, RESTRICTION_SCATTER, TYPICAL_SCATTER
+from fieldkit.simulate.constants import RESTRICTION_SCATTER, TYPICAL_SCATTER
+from fieldkit.simulate.hydraulics import (
+    HEALTHY_GAP_UM,
+    Oil,
+    gap_growth_for,
+    oil_of_grade,
+    slot_flow,
+    slot_for,
+)
 from fieldkit.units import Q_, Kind, Quantity, to_canonical, unit
 
 
@@ -96,17 +103,14 @@ class Env:
     """Conditions at the moment of one reading."""
 
     oil_c: float
-    #: ν(T) / ν(T_ref): laminar pressure drops scale with it, laminar leakage with its inverse.
-    visc_ratio: float
+    #: Dynamic viscosity of the oil now, Pa·s (the simulator's own Vogel curve and density):
+    #: leakage gaps pass Q = w·h³·Δp / (12·μ·L) (:func:`fieldkit.simulate.hydraulics.slot_flow`).
+    mu: float
+    #: μ(T) / μ(T_ref): laminar pressure drops (filter media, fine strainers) scale with it.
+    mu_ratio: float
     speed_rpm: float
     #: Speed over rated speed: displacement flows scale with it.
     speed_ratio: float
-
-    @property
-    def leak(self) -> float:
-        """Laminar leakage at this oil temperature relative to the reference temperature
-        (Hagen–Poiseuille / slot flow: leakage ∝ 1/ν at the same pressure difference)."""
-        return 1.0 / self.visc_ratio
 
 
 #: Physics of one circuit kind: the true value a point reads in a state, or None where the
@@ -131,7 +135,7 @@ class PhysicsTable:
 class Machine:
     profile: MachineProfile
     setting: TestSetting
-    curve: ViscosityCurve
+    oil: Oil
     reference_c: float
     rated_rpm: float
     table: PhysicsTable
@@ -141,10 +145,15 @@ class Machine:
 
     # --- environment ---------------------------------------------------------------------
     def env(self, oil_c: float) -> Env:
-        nu = self.curve.cst_at_kelvin(oil_c + KELVIN)
-        nu_ref = self.curve.cst_at_kelvin(self.reference_c + KELVIN)
+        mu = self.oil.dynamic(oil_c)
         speed = self.setting.speed_rpm
-        return Env(oil_c, nu / nu_ref, speed, speed / self.rated_rpm)
+        return Env(oil_c, mu, mu / self.mu_ref, speed, speed / self.rated_rpm)
+
+    @property
+    def mu_ref(self) -> float:
+        """Dynamic viscosity at the profile's reference temperature, Pa·s: healthy leakage
+        figures are stated there, so each gap is sized with it."""
+        return self.oil.dynamic(self.reference_c)
 
     def oil_at(self, fraction: float) -> float:
         """Oil temperature a fraction of the way through the visit (it warms as the tests run)."""
@@ -228,6 +237,26 @@ def typical(tp: TestPoint, state: FunctionState) -> float | None:
     return middle(*bounds(tp, state))
 
 
+def gap_path(p: dict[str, float], name: str, leak_lpm: float, dp_bar: float, mu_ref: float) -> None:
+    """A healthy leakage gap named ``name``: the healthy clearance, and the slot width over length
+    that passes ``leak_lpm`` at ``dp_bar`` with oil of viscosity ``mu_ref`` (keys ``name_gap`` in
+    µm and ``name_slot``)."""
+    p[f"{name}_gap"] = HEALTHY_GAP_UM
+    p[f"{name}_slot"] = slot_for(leak_lpm, dp_bar, mu_ref)
+
+
+def gap_leak(p: Mapping[str, float], name: str, dp_bar: float, env: Env) -> float:
+    """Flow through a leakage gap now (L/min): laminar slot flow with today's clearance and viscosity."""
+    return slot_flow(p[f"{name}_slot"], p[f"{name}_gap"], dp_bar, env.mu)
+
+
+def widen(p: dict[str, float], name: str, leak_ratio: float) -> float:
+    """Open a gap so that it leaks ``leak_ratio`` times as much; returns the clearance growth."""
+    growth = gap_growth_for(leak_ratio)
+    p[f"{name}_gap"] *= growth
+    return growth
+
+
 def drain_line(max_case: float, healthy_flow: float, draw: Draw) -> tuple[float, float]:
     """A sound case drain line: a static back pressure (tank height, cooler, fittings) of a
     quarter of the allowed case pressure, and a flow-dependent part that adds a tenth of it at
@@ -262,7 +291,7 @@ def build_machine(profile: MachineProfile, rng: Random | None, table: PhysicsTab
     machine = Machine(
         profile=profile,
         setting=TestSetting(start, start + rise, speed, gas),
-        curve=grade(profile.oil_grade).curve,
+        oil=oil_of_grade(profile.oil_grade),
         reference_c=to_canonical(profile.reference_oil_temperature, Kind.TEMPERATURE),
         rated_rpm=rated,
         table=table,
@@ -286,9 +315,12 @@ __all__ = [
     "bounds",
     "build_machine",
     "drain_line",
+    "gap_leak",
+    "gap_path",
     "middle",
     "param",
     "point",
     "qty",
     "typical",
+    "widen",
 ]

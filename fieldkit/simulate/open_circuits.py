@@ -4,38 +4,33 @@ Parameters a circuit model carries (``CircuitModel.p``), canonical units:
 
 * ``disp`` pump displacement (cc/rev); ``qr`` flow at rated speed and no load (L/min);
   ``fill`` share of the displacement a fixed pump delivers at no load;
-* ``leak`` internal leakage (L/min) at ``p_test`` and the reference oil temperature, ``wear``
-  its multiplier (1 on a sound pump). Leakage through clearances is laminar, so it scales with
-  pressure and with 1/viscosity (slot flow, Hagen–Poiseuille);
+* ``leak`` internal leakage (L/min) of the sound pump at ``p_test`` and the reference oil
+  temperature; it is turned into a leakage gap (``pump_gap`` µm, ``pump_slot`` width over
+  length) that passes Q = w·h³·Δp / (12·μ·L) from the outlet to ``leak_back`` (the inlet of a
+  gear pump, the case of a piston pump): a worn pump is one whose gap has opened;
 * ``ret_turb`` / ``ret_lam`` return line drop at ``qr`` (bar): the turbulent part (cooler,
   hoses: ∝ Q², orifice law) and the laminar part (filter element: ∝ Q · ν); ``ret_restrict``
   multiplies the turbulent part (a blocked or undersized line);
 * ``suc_turb`` / ``suc_lam`` / ``suc_restrict`` the same for the pump inlet (bar of vacuum);
 * ``centre_dp`` open-centre passage drop at ``qr`` (fixed pump, in neutral);
-* ``drain`` case drain flow (L/min) at ``p_test``, the reference temperature; ``drain_static``
+* ``drain`` case drain flow (L/min) of the sound pump at ``p_test``, the reference temperature (a
+  piston pump's internal leakage leaves by its case drain, so it is the same gap); ``drain_static``
   and ``drain_r`` what the case reads for it (bar, bar per L/min), ``case_extra`` back pressure
   added downstream of the case drain;
 * load sensing: ``standby``, ``margin``, ``cutoff``, ``ls_vent`` (signal in neutral),
   ``load_p`` (work port pressure with a function moving), ``ls_ratio`` (signal over work port
   pressure: 1 when the signal line holds); pressure compensated: ``cutoff``.
 
-Reliefs are arranged by the profile's ``relief_layout`` and solved with
-:func:`fieldkit.physics.reliefs.deadhead`, return back pressure included.
+Reliefs are arranged by the profile's ``relief_layout`` and solved with the simulator's own
+valves (:mod:`fieldkit.simulate.hydraulics`): each cracks at its setting and rises with the flow
+it passes, so the stall pressure depends on what the pump actually delivers.
 """
 
 from __future__ import annotations
 
 from fieldkit.model.condition import FunctionState
-from fieldkit.model.profile import Circuit, CircuitKind, TestPoint
+from fieldkit.model.profile import Circuit, CircuitKind, ReliefLayout, TestPoint
 from fieldkit.model.roles import Role
-from fieldkit.physics.reliefs import (
-    Arrangement,
-    ReliefValve,
-    Series,
-    arrangement_for,
-    deadhead,
-    opening_pressure,
-)
 from fieldkit.simulate.constants import (
     DEEPEST_VACUUM_BAR,
     LEAKAGE_SCATTER,
@@ -44,6 +39,7 @@ from fieldkit.simulate.constants import (
     RESTRICTION_SCATTER,
     SETTING_SCATTER,
 )
+from fieldkit.simulate.hydraulics import DEFAULT_OVERRIDE_SHARE, Network, Valve, network_inlet
 from fieldkit.simulate.machine import (
     CircuitModel,
     Draw,
@@ -53,10 +49,11 @@ from fieldkit.simulate.machine import (
     any_bounds,
     bounds,
     drain_line,
+    gap_leak,
+    gap_path,
     middle,
     param,
     point,
-    qty,
 )
 from fieldkit.units import Kind, to_canonical
 
@@ -93,41 +90,64 @@ def main_relief_id(model: CircuitModel) -> str | None:
     return layout.relief_ids()[0] if layout is not None else next(iter(model.reliefs))
 
 
-def _valve(rid: str, r: ReliefState) -> ReliefValve:
-    return ReliefValve(rid, qty(r.setting, "bar"), qty(r.override, "bar"), r.drain)
+def relief_valves(model: CircuitModel) -> dict[str, Valve]:
+    """This machine's reliefs as the simulator's own valves: cracking at the drawn setting, rising
+    by the profile's override at the pump's rated flow (or the simulator's default share when the
+    profile states none)."""
+    qr = max(model.p["qr"], 1e-6)
+    return {
+        rid: Valve(
+            r.setting,
+            (r.override if r.override > 0 else DEFAULT_OVERRIDE_SHARE * r.setting) / qr,
+            r.drain == "external",
+        )
+        for rid, r in model.reliefs.items()
+    }
 
 
-def relief_tree(model: CircuitModel) -> Arrangement | None:
-    """The reliefs in circuit as a physics tree, built by the same
-    :func:`fieldkit.physics.reliefs.arrangement_for` the rule engine uses, from this machine's
-    drawn settings, plus any relief wrongly joined in parallel with the main one."""
+def relief_network(model: CircuitModel) -> Network | None:
+    """The reliefs in circuit as laid out by the profile, plus any relief wrongly joined in
+    parallel with the main one; without a layout one relief stands alone and several share the
+    flow in parallel."""
     if not model.reliefs:
         return None
-    valves = {rid: _valve(rid, r) for rid, r in model.reliefs.items()}
-    extra = [valves[rid] for rid in model.parallel_extra if rid in valves]
-    return arrangement_for(
-        list(valves.values()), model.circuit.relief_layout, joined=extra, joined_to=main_relief_id(model)
-    )
+    extra = [rid for rid in model.parallel_extra if rid in model.reliefs]
+    main = main_relief_id(model)
 
+    def build(node: str | ReliefLayout, inside_parallel: bool) -> Network:
+        if isinstance(node, str):
+            return ("parallel", [node, *extra]) if node == main and extra and not inside_parallel else node
+        is_parallel = bool(node.parallel)
+        items = [build(m, is_parallel) for m in node.members()]
+        if is_parallel and main in node.members():
+            items.extend(extra)
+        return ("parallel" if is_parallel else "series", items)
 
-def downstream(model: CircuitModel, return_bar: float) -> float:
-    """Pressure all return flow must pass before tank: valves after the first item of a series
-    layout (a return check, a back-pressure valve) on top of the return line's own drop."""
     layout = model.circuit.relief_layout
-    if layout is None or not layout.series or len(layout.series) < 2 or not model.reliefs:
-        return return_bar
-    tree = relief_tree(model)
-    if not isinstance(tree, Series):
-        return return_bar
-    return opening_pressure(Series(tree.items[1:]), qty(return_bar, "bar")).m_as("bar")
+    if layout is not None:
+        return build(layout, False)
+    in_circuit = [rid for rid in model.reliefs if rid not in extra]
+    if len(in_circuit) == 1:
+        return build(in_circuit[0], False)
+    return ("parallel", list(model.reliefs))
 
 
-def relief_pressure(model: CircuitModel, return_bar: float) -> float | None:
-    """Pump-side pressure with the whole flow over the reliefs (physics.reliefs.deadhead)."""
-    tree = relief_tree(model)
-    if tree is None:
+def downstream(model: CircuitModel, flow: float, return_bar: float) -> float:
+    """Pressure all return flow must pass before tank: valves after the first item of a series
+    layout (a return check, a back-pressure valve), passing ``flow``, on top of the return line's
+    own drop."""
+    net = relief_network(model)
+    if not isinstance(net, tuple) or net[0] != "series" or len(net[1]) < 2:
+        return return_bar
+    return network_inlet(("series", net[1][1:]), relief_valves(model), flow, return_bar)
+
+
+def relief_pressure(model: CircuitModel, flow: float, return_bar: float) -> float | None:
+    """Pump-side pressure with ``flow`` passing over the reliefs and ``return_bar`` behind them."""
+    net = relief_network(model)
+    if net is None:
         return None
-    return deadhead(tree, qty(return_bar, "bar")).upstream.m_as("bar")
+    return network_inlet(net, relief_valves(model), flow, return_bar)
 
 
 # --- flows and line losses -------------------------------------------------------------------
@@ -141,12 +161,13 @@ def intake(model: CircuitModel, env: Env) -> float:
 def inlet_vacuum(model: CircuitModel, flow: float, env: Env) -> float:
     x = flow / model.p["qr"]
     p = model.p
-    return (p["suc_turb"] * x * x + p["suc_lam"] * x * env.visc_ratio) * p["suc_restrict"]
+    return (p["suc_turb"] * x * x + p["suc_lam"] * x * env.mu_ratio) * p["suc_restrict"]
 
 
 def leakage(model: CircuitModel, pressure: float, env: Env) -> float:
-    p = model.p
-    return p["leak"] * p["wear"] * max(pressure, 0.0) / p["p_test"] * env.leak
+    """Oil slipping back inside the pump through its running clearances (laminar gap law), from
+    the outlet to the low side: the inlet of a gear pump, the case of a piston pump."""
+    return gap_leak(model.p, "pump", pressure - model.p["leak_back"], env)
 
 
 def max_delivery(model: CircuitModel, pressure: float, env: Env) -> float:
@@ -160,16 +181,16 @@ def max_delivery(model: CircuitModel, pressure: float, env: Env) -> float:
 def return_drop(model: CircuitModel, flow: float, env: Env) -> float:
     x = flow / model.p["qr"]
     p = model.p
-    return p["ret_turb"] * p["ret_restrict"] * x * x + p["ret_lam"] * x * env.visc_ratio
+    return p["ret_turb"] * p["ret_restrict"] * x * x + p["ret_lam"] * x * env.mu_ratio
 
 
 def filter_drop(model: CircuitModel, flow: float, env: Env) -> float:
-    return model.p["ret_lam"] * flow / model.p["qr"] * env.visc_ratio
+    return model.p["ret_lam"] * flow / model.p["qr"] * env.mu_ratio
 
 
 def drain_flow(model: CircuitModel, pressure: float, env: Env) -> float:
-    p = model.p
-    return p["drain"] * p["wear"] * max(pressure, 0.0) / p["p_test"] * env.leak
+    """Case drain of a piston pump: what leaks inside it leaves by the case (a gear pump has none)."""
+    return 0.0 if model.kind is CircuitKind.OPEN_FIXED_PUMP else leakage(model, pressure, env)
 
 
 def case_pressure(model: CircuitModel, drain: float) -> float:
@@ -183,10 +204,18 @@ def case_pressure(model: CircuitModel, drain: float) -> float:
 def _fixed_stall(model: CircuitModel, env: Env) -> tuple[float, float] | None:
     """Stall pressure and the flow going over the reliefs."""
     main = main_relief_id(model)
-    guess = model.reliefs[main].setting if main else 0.0
-    flow = max_delivery(model, guess, env)
-    pressure = relief_pressure(model, return_drop(model, flow, env))
-    return None if pressure is None else (pressure, flow)
+    pressure: float | None = model.reliefs[main].setting if main else 0.0
+    flow = 0.0
+    # The flow over the reliefs sets their override, and the pressure sets the pump's leakage:
+    # a few rounds settle both (leakage is a few per cent of the flow, so it converges fast).
+    for _ in range(4):
+        assert pressure is not None
+        flow = max_delivery(model, pressure, env)
+        pressure = relief_pressure(model, flow, return_drop(model, flow, env))
+        if pressure is None:
+            return None
+    assert pressure is not None
+    return pressure, flow
 
 
 def _variable_limit(model: CircuitModel, env: Env) -> tuple[float, bool]:
@@ -200,7 +229,7 @@ def _variable_limit(model: CircuitModel, env: Env) -> tuple[float, bool]:
     if ratio < 1.0:
         limit = min(limit, p["margin"] / (1.0 - ratio))
     full = max_delivery(model, limit, env)
-    relief = relief_pressure(model, return_drop(model, full, env))
+    relief = relief_pressure(model, full, return_drop(model, full, env))
     if relief is not None and relief < limit:
         return relief, True
     return limit, False
@@ -285,7 +314,7 @@ def fixed_pump(
         return flow
     if role is Role.PUMP_OUTLET_PRESSURE and state is FunctionState.NEUTRAL:
         x = flow / p["qr"]
-        return p["centre_dp"] * x * x + downstream(model, return_drop(model, flow, env))
+        return p["centre_dp"] * x * x + downstream(model, flow, return_drop(model, flow, env))
     return _shared(model, role, flow, env)
 
 
@@ -331,21 +360,26 @@ def return_back(model: CircuitModel, env: Env) -> float:
         flow = max_delivery(model, LOAD_SHARE * model.p["p_test"], env)
     else:
         flow = _variable_flow(model, FunctionState.FULL_STROKE, env)
-    return downstream(model, return_drop(model, flow, env))
+    return downstream(model, flow, return_drop(model, flow, env))
 
 
 # --- healthy parameters ------------------------------------------------------------------------
 
 
 def _reliefs(circuit: Circuit, draw: Draw) -> dict[str, ReliefState]:
-    return {
-        r.id: ReliefState(
-            draw(to_canonical(r.setting, Kind.PRESSURE), SETTING_SCATTER),
-            to_canonical(r.override, Kind.PRESSURE) if r.override is not None else 0.0,
-            r.drain,
+    """Each relief as built: its drawn setting, and its override at rated flow, the profile's or the
+    simulator's own share of the setting. The override belongs to the valve's spring and flow
+    forces, so a fault that moves the setting later leaves it as it is."""
+    out = {}
+    for r in circuit.reliefs:
+        setting = to_canonical(r.setting, Kind.PRESSURE)
+        override = (
+            to_canonical(r.override, Kind.PRESSURE)
+            if r.override is not None
+            else DEFAULT_OVERRIDE_SHARE * setting
         )
-        for r in circuit.reliefs
-    }
+        out[r.id] = ReliefState(draw(setting, SETTING_SCATTER), override, r.drain)
+    return out
 
 
 def build_open(machine: Machine, circuit: Circuit, draw: Draw) -> CircuitModel:
@@ -366,7 +400,6 @@ def build_open(machine: Machine, circuit: Circuit, draw: Draw) -> CircuitModel:
         qth=qth,
         qr=qr,
         fill=min(1.0, qr / qth) if fixed else 1.0,
-        wear=1.0,
         ret_restrict=1.0,
         suc_restrict=1.0,
         case_extra=0.0,
@@ -409,6 +442,10 @@ def build_open(machine: Machine, circuit: Circuit, draw: Draw) -> CircuitModel:
 
     max_case = param(circuit, "max_case_pressure") or any_bounds(point(circuit, Role.CASE_PRESSURE))[1] or 2.0
     p["drain_static"], p["drain_r"] = drain_line(max_case, max(p["drain"], 0.1), draw)
+    # The pump's leakage figure at its test pressure and the reference temperature becomes a gap:
+    # a gear pump leaks to its inlet (about tank pressure), a piston pump to its case.
+    p["leak_back"] = 0.0 if fixed else p["drain_static"]
+    gap_path(p, "pump", p["leak"], p["p_test"] - p["leak_back"], machine.mu_ref)
 
     # Return line and filter, inlet: half of what the profile allows on a sound machine.
     total = middle(*any_bounds(point(circuit, Role.RETURN_PRESSURE)))
@@ -427,7 +464,7 @@ def build_open(machine: Machine, circuit: Circuit, draw: Draw) -> CircuitModel:
     p["suc_lam"] = draw(vacuum / 2, RESTRICTION_SCATTER)
     if fixed:
         neutral = middle(*bounds(point(circuit, Role.PUMP_OUTLET_PRESSURE), FunctionState.NEUTRAL))
-        back = downstream(model, p["ret_turb"] + p["ret_lam"])
+        back = downstream(model, qr, p["ret_turb"] + p["ret_lam"])
         p["centre_dp"] = draw(
             max(0.5, (neutral if neutral is not None else back + 3.0) - back), RESTRICTION_SCATTER
         )
@@ -440,7 +477,8 @@ __all__ = [
     "fixed_pump",
     "main_relief_id",
     "relief_pressure",
-    "relief_tree",
+    "relief_network",
+    "relief_valves",
     "return_back",
     "stall_pressure",
     "variable_pump",

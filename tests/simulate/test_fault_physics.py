@@ -9,9 +9,9 @@ import math
 import pytest
 
 from fieldkit.model.condition import FunctionState as S
-from fieldkit.physics.fluid import grade, normalised_leakage
+from fieldkit.simulate.hydraulics import DEFAULT_OVERRIDE_SHARE
 from fieldkit.simulate.open_circuits import main_relief_id
-from fieldkit.units import Q_, STANDARD_ATMOSPHERE, Kind, to_canonical
+from fieldkit.units import STANDARD_ATMOSPHERE, Kind, to_canonical
 
 SEED = 11
 ATM = STANDARD_ATMOSPHERE.m_as("bar")
@@ -28,7 +28,9 @@ def pair(sim, fault, severity=1.0, seed=SEED):
 
 def test_lower_main_relief_lowers_the_stall_reading_by_the_setting_difference(simulators, true_at):
     # Field notes [calc]: in parallel the lowest setting governs, so the stall reading follows the
-    # main relief one for one (the luff port relief above it stays shut).
+    # main relief one for one (the luff port relief above it stays shut). At the lower pressure the
+    # gear pump leaks a little less, so a little more oil crosses the relief and its override eats
+    # a few tenths of a bar of the drop.
     sim = simulators["brindlecombe-pebblerun"]
     healthy, faulty, _ = pair(sim, "main_relief_low")
     rid = main_relief_id(healthy.circuits["main"])
@@ -37,21 +39,42 @@ def test_lower_main_relief_lowers_the_stall_reading_by_the_setting_difference(si
     stall_drop = true_at(sim, healthy, "main.stall", S.STALLED) - true_at(
         sim, faulty, "main.stall", S.STALLED
     )
-    assert stall_drop == pytest.approx(drop, abs=0.1)
+    assert drop - 0.3 < stall_drop < drop
+
+
+def _override(sim, machine, true_at, *reliefs: str) -> float:
+    """What the stall reads above the cracking pressures of the reliefs in its path and the return line."""
+    main = machine.circuits["main"]
+    cracking = sum(main.reliefs[r].setting for r in reliefs)
+    return (
+        true_at(sim, machine, "main.stall", S.STALLED)
+        - cracking
+        - true_at(sim, machine, "main.return", S.STALLED)
+    )
 
 
 def test_series_return_check_and_return_line_add_to_the_stall_reading(simulators, true_at):
     # Field notes [calc]: in series the settings add; back pressure on an internally drained
-    # relief adds one for one: stall = main relief + return check + return line.
+    # relief adds one for one: stall = main relief + return check + return line, plus the override
+    # of the valves for the flow they pass. The profile states no override, so the simulator's own
+    # 1.5 % of the setting at rated flow applies: at most 0.015 · (180 + 4) = 2.76 bar (a bit more
+    # on a machine whose main relief was drawn high).
     sim = simulators["brindlecombe-pebblerun"]
     healthy, _ = sim.machine(None, 1.0, SEED)
-    main = healthy.circuits["main"]
-    expected = (
-        main.reliefs["main"].setting
-        + main.reliefs["return_check"].setting
-        + true_at(sim, healthy, "main.return", S.STALLED)
+    over = _override(sim, healthy, true_at, "main", "return_check")
+    assert 0.5 < over < DEFAULT_OVERRIDE_SHARE * 184 * 1.03
+
+
+def test_a_pump_that_delivers_less_stalls_lower_over_a_relief_with_override(simulators, true_at):
+    # Relief override is a rise with the flow passing (bar per L/min): a worn gear pump pushes less oil
+    # over the relief, so its stall reading sits closer to the cracking pressure, in proportion to the
+    # flow it still delivers.
+    sim = simulators["brindlecombe-pebblerun"]
+    healthy, worn, _ = pair(sim, "pump_worn")
+    ratio = _override(sim, worn, true_at, "main", "return_check") / _override(
+        sim, healthy, true_at, "main", "return_check"
     )
-    assert true_at(sim, healthy, "main.stall", S.STALLED) == pytest.approx(expected, abs=1e-6)
+    assert 0.5 < ratio < 0.97
 
 
 def test_return_back_pressure_adds_one_for_one_to_an_internally_drained_relief(simulators, true_at):
@@ -66,7 +89,9 @@ def test_return_back_pressure_adds_one_for_one_to_an_internally_drained_relief(s
         sim, healthy, "main.stall", S.STALLED
     )
     assert rise_return > 3.0  # past the maker's 3 bar at severity 1
-    assert rise_stall == pytest.approx(rise_return, abs=1e-6)
+    # One for one, less a hair: at the higher pressure the pump leaks a little more, so a little less
+    # oil crosses the relief and its override falls by some hundredths of a bar.
+    assert rise_stall == pytest.approx(rise_return, abs=0.05)
     # Everything returning through the same line feels it: the belt motor's outlet too.
     assert (
         true_at(sim, faulty, "belt.port_b", S.FULL_STROKE)
@@ -76,17 +101,14 @@ def test_return_back_pressure_adds_one_for_one_to_an_internally_drained_relief(s
 
 def test_a_lower_relief_joined_in_parallel_governs_the_stall(simulators, true_at):
     # Field notes [calc]: in parallel the lowest setting governs; the series return check and
-    # return line still add on top of it.
+    # return line still add on top of it, with the override of the 110 bar valve for the whole flow
+    # (at most 1.5 % of 110 + 4 bar = 1.71 bar; the main relief 70 bar higher stays shut).
     sim = simulators["brindlecombe-pebblerun"]
     healthy, faulty, injected = pair(sim, "parallel_relief_governing")
     main = faulty.circuits["main"]
     assert injected.circuit == "main" and main.parallel_extra == ["aux"]
-    expected = (
-        main.reliefs["aux"].setting
-        + main.reliefs["return_check"].setting
-        + true_at(sim, faulty, "main.return", S.STALLED)
-    )
-    assert true_at(sim, faulty, "main.stall", S.STALLED) == pytest.approx(expected, abs=1e-6)
+    over = _override(sim, faulty, true_at, "aux", "return_check")
+    assert 0.3 < over < DEFAULT_OVERRIDE_SHARE * 114 * 1.03
     assert true_at(sim, healthy, "main.stall", S.STALLED) - true_at(sim, faulty, "main.stall", S.STALLED) > 60
 
 
@@ -104,15 +126,15 @@ def test_hp_relief_low_lowers_one_loop_side_only(simulators, true_at):
     side = "loop_a" if "loop A" in injected.change else "loop_b"
     other = "loop_b" if side == "loop_a" else "loop_a"
 
-    # The demo's settings are differentials: the gauge reads setting + charge (the low side), so
-    # the 15 % drop shows on the part above charge. The other side is unchanged but for the
-    # charge under it, which moves a hair with the loop's leakage.
+    # The cross-port relief is a differential valve over the low side: the gauge reads charge +
+    # differential + override, so the 15 % drop shows on the differential (the override for the
+    # same stall flow moves by hundredths). The other side is unchanged but for the charge under it.
     def above_charge(model: object, point: str) -> float:
         return true_at(sim, model, point, S.STALLED) - true_at(sim, model, "travel.charge", S.STALLED)
 
-    assert above_charge(faulty, f"travel.{side}") == pytest.approx(
-        0.85 * above_charge(healthy, f"travel.{side}"), rel=1e-9
-    )
+    key = "hp_a" if side == "loop_a" else "hp_b"
+    lost = above_charge(healthy, f"travel.{side}") - above_charge(faulty, f"travel.{side}")
+    assert lost == pytest.approx(0.15 * healthy.circuits["travel"].p[key], abs=0.1)
     assert true_at(sim, faulty, f"travel.{other}", S.STALLED) == pytest.approx(
         true_at(sim, healthy, f"travel.{other}", S.STALLED), abs=0.05
     )
@@ -188,39 +210,33 @@ def test_restricted_charge_inlet_pulls_a_deep_vacuum(simulators, true_at):
 # --- leakage ------------------------------------------------------------------------------------
 
 
-def test_worn_pump_raises_normalised_case_drain(simulators, profiles, true_at):
+def test_worn_pump_raises_case_drain_by_its_extra_leakage_at_the_stall(simulators, true_at):
     # Field notes: worn piston pumps leak above ~5 % of max flow (from memory); the fault adds
-    # 10 %·s of theoretical flow at the stall pressure. Normalised to the reference temperature
-    # by physics.fluid.normalised_leakage (ASTM D341 viscosity, laminar leakage ∝ 1/ν).
+    # 10 %·s of theoretical flow at the stall pressure stated in the profile and the reference
+    # temperature. Read at the reference temperature; the gap law passes flow ∝ Δp across the gap, so
+    # a machine whose reliefs were drawn a little off its figure sees the extra in that proportion.
     sim = simulators["tarnhollow-fellborer"]
-    profile = profiles["tarnhollow-fellborer"]
     healthy, faulty, _ = pair(sim, "pump_worn")
-    curve = grade(profile.oil_grade).curve
-    oil = Q_(healthy.oil_at(0.5), "degC")
-    ref = profile.reference_oil_temperature
-
-    def normalised(machine):
-        env = machine.env(to_canonical(oil, Kind.TEMPERATURE))
-        _c, tp = profile.test_point("travel.pump_drain")
-        flow = machine.true_value("travel", tp, S.STALLED, env)
-        return normalised_leakage(Q_(flow, "L/min"), oil, ref, curve).m_as("L/min")
-
     p = healthy.circuits["travel"].p
-    extra = 0.10 * p["qth"] * (0.5 * (p["hp_a"] + p["hp_b"])) / p["p_ref"]
-    assert normalised(faulty) - normalised(healthy) == pytest.approx(extra, rel=1e-6)
+    extra = true_at(sim, faulty, "travel.pump_drain", S.STALLED) - true_at(
+        sim, healthy, "travel.pump_drain", S.STALLED
+    )
+    assert extra == pytest.approx(0.10 * p["qth"], rel=0.03)
 
 
-def test_leakage_readings_scale_with_inverse_viscosity(simulators, profiles):
-    # Field notes [calc]: laminar leakage scales with 1/viscosity at the same pressure difference
-    # (Hagen–Poiseuille / slot flow); viscosities from ASTM D341 through physics.fluid.
+def test_leakage_readings_follow_the_dynamic_viscosity_of_the_simulators_own_oil(simulators):
+    # Laminar gap law: at the same pressure difference leakage ∝ 1/μ. The drill rig runs VG46; the
+    # simulator's Vogel–Cameron curve for it has B = 859.10 (worked by hand in test_hydraulics.py), so
+    # [calc] μ(45 °C)/μ(65 °C) = e^(859.10 · (1/140 − 1/160)) = e^(859.10 · 0.00089286) = e^0.76705 = 2.1534.
+    # (The engine's ASTM D341 kinematic ratio for its own VG46 figures is about 2.12: the two models
+    # are different on purpose.)
     sim = simulators["tarnhollow-fellborer"]
-    profile = profiles["tarnhollow-fellborer"]
+    profile = sim.profile
     machine, _ = sim.machine(None, 1.0, SEED)
     _c, tp = profile.test_point("travel.motor_drain")
     cool = machine.true_value("travel", tp, S.STALLED, machine.env(45.0))
     warm = machine.true_value("travel", tp, S.STALLED, machine.env(65.0))
-    curve = grade(profile.oil_grade).curve
-    assert warm / cool == pytest.approx(curve.cst_at_kelvin(318.15) / curve.cst_at_kelvin(338.15), rel=1e-9)
+    assert warm / cool == pytest.approx(2.1534, abs=0.0005)
 
 
 def test_worn_gear_pump_delivers_less_under_load(simulators, true_at):
@@ -406,8 +422,8 @@ def test_gauge_error_spoils_exactly_one_pressure_reading(simulators):
 
 
 def test_hp_relief_high_raises_one_loop_side_only(simulators, true_at):
-    # The adjuster turned in: that side's setting rises by 10 %·s; the gauge reads the setting plus
-    # the charge under it (differential convention), the other side is unchanged.
+    # The adjuster turned in: that side's differential rises by 10 %·s; the gauge reads it plus the
+    # charge under it and the override, the other side is unchanged.
     sim = simulators["tarnhollow-fellborer"]
     healthy, faulty, injected = pair(sim, "hp_relief_high")
     side = "loop_a" if "loop A" in injected.change else "loop_b"
@@ -416,9 +432,9 @@ def test_hp_relief_high_raises_one_loop_side_only(simulators, true_at):
     def above_charge(model: object, point: str) -> float:
         return true_at(sim, model, point, S.STALLED) - true_at(sim, model, "travel.charge", S.STALLED)
 
-    assert above_charge(faulty, f"travel.{side}") == pytest.approx(
-        1.10 * above_charge(healthy, f"travel.{side}"), rel=1e-6
-    )
+    key = "hp_a" if side == "loop_a" else "hp_b"
+    gained = above_charge(faulty, f"travel.{side}") - above_charge(healthy, f"travel.{side}")
+    assert gained == pytest.approx(0.10 * healthy.circuits["travel"].p[key], abs=0.1)
     assert true_at(sim, faulty, f"travel.{other}", S.STALLED) == pytest.approx(
         true_at(sim, healthy, f"travel.{other}", S.STALLED), abs=0.05
     )
