@@ -438,3 +438,20 @@ def test_hp_relief_high_raises_one_loop_side_only(simulators, true_at):
     assert true_at(sim, faulty, f"travel.{other}", S.STALLED) == pytest.approx(
         true_at(sim, healthy, f"travel.{other}", S.STALLED), abs=0.05
     )
+
+
+def test_a_stalled_port_reading_falls_with_the_charge_under_it(simulators, true_at):
+    # Trade fact (issue 13, common practice): a cross-port relief discharges into the low side, which
+    # charge pressure holds, so its setting is a differential and the high-port gauge reads setting +
+    # charge. A charge relief opening low takes the same bar off the stalled port reading (to within the
+    # override for a few hundredths of a L/min more or less leakage).
+    sim = simulators["tarnhollow-fellborer"]
+    healthy, faulty, _ = pair(sim, "charge_relief_low")
+    charge_drop = true_at(sim, healthy, "travel.charge", S.STALLED) - true_at(
+        sim, faulty, "travel.charge", S.STALLED
+    )
+    port_drop = true_at(sim, healthy, "travel.loop_a", S.STALLED) - true_at(
+        sim, faulty, "travel.loop_a", S.STALLED
+    )
+    assert charge_drop > 2.0  # the 27 bar relief now opens below the 22 bar flushing relief
+    assert port_drop == pytest.approx(charge_drop, abs=0.05)
