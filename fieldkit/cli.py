@@ -281,15 +281,15 @@ def _rules(args: argparse.Namespace) -> int:
     from fieldkit.resources import rules_dir
 
     folder = args.folder or args.rules or rules_dir()
+    from fieldkit.diagnosis.actions import load_actions
     from fieldkit.diagnosis.catalogue import load_cautions, load_faults
     from fieldkit.diagnosis.rulepack import load_packs
     from fieldkit.model.loading import load_templates
 
+    faults = load_faults(folder / "faults.toml")
+    cautions = load_cautions(folder / "cautions.toml")
     knowledge = Knowledge(
-        load_packs(folder),
-        load_faults(folder / "faults.toml"),
-        load_cautions(folder / "cautions.toml"),
-        folder,
+        load_packs(folder), faults, cautions, folder, load_actions(folder, faults, cautions)
     )
     if (folder / "templates").is_dir():
         load_templates(folder / "templates")
@@ -298,7 +298,8 @@ def _rules(args: argparse.Namespace) -> int:
         print(p)
     errors = sum(p.error for p in found)
     print(
-        f"{len(knowledge.rules)} rules, {len(knowledge.faults)} faults, {len(knowledge.cautions)} cautions: "
+        f"{len(knowledge.rules)} rules, {len(knowledge.faults)} faults, {len(knowledge.cautions)} cautions, "
+        f"{len(knowledge.actions)} action tests: "
         f"{errors} errors, {len(found) - errors} warnings"
     )
     return 1 if errors else 0

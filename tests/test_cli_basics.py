@@ -152,4 +152,6 @@ def test_truncated_visit_file_is_refused_and_the_store_is_left_alone(
 def test_rules_check_passes_on_the_bundled_rules(capsys: pytest.CaptureFixture[str]) -> None:
     code, out, _err = run(capsys, "rules", "check")
     assert code == 0, out
-    assert re.fullmatch(r"\d+ rules, \d+ faults, \d+ cautions: 0 errors, \d+ warnings", out.splitlines()[-1])
+    assert re.fullmatch(
+        r"\d+ rules, \d+ faults, \d+ cautions, \d+ action tests: 0 errors, \d+ warnings", out.splitlines()[-1]
+    )

@@ -8,11 +8,11 @@ and rule findings (:mod:`findings`) â†’ posterior over faults (:mod:`ranking`) â
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from functools import lru_cache
 from pathlib import Path
 
-from fieldkit.diagnosis.actions import ACTIONS
+from fieldkit.diagnosis.actions import ActionTest, load_actions
 from fieldkit.diagnosis.catalogue import Caution, Fault, load_cautions, load_faults
 from fieldkit.diagnosis.cautions import SEVERITY_RANK, cautions_for_step
 from fieldkit.diagnosis.evidence import evidence_book, evidence_findings
@@ -59,15 +59,14 @@ class Knowledge:
     faults: dict[str, Fault]
     cautions: dict[str, Caution]
     folder: Path
+    #: Action tests (rules/actions.toml); a folder without the file has none.
+    actions: dict[str, ActionTest] = field(default_factory=dict)
 
     @classmethod
     def load(cls, folder: Path) -> Knowledge:
-        k = cls(
-            load_packs(folder),
-            load_faults(folder / "faults.toml"),
-            load_cautions(folder / "cautions.toml"),
-            folder,
-        )
+        faults = load_faults(folder / "faults.toml")
+        cautions = load_cautions(folder / "cautions.toml")
+        k = cls(load_packs(folder), faults, cautions, folder, load_actions(folder, faults, cautions))
         check_references(k)
         return k
 
@@ -290,12 +289,10 @@ def _cautions(
         circuit, tp = profile.test_point(t.test_point)
         state = next((s for s in FunctionState if s.label == t.condition), FunctionState.NEUTRAL)
         steps.append((circuit, tp, state, "next test"))
-        if t.action:
-            for action in ACTIONS:
-                if action.id == t.action:
-                    for cid in action.cautions:
-                        if cid in knowledge.cautions:
-                            add(knowledge.cautions[cid], f"next test: {action.title.lower()}", circuit)
+        action = knowledge.actions.get(t.action) if t.action else None
+        if action is not None:
+            for cid in action.cautions:
+                add(knowledge.cautions[cid], f"next test: {action.title.lower()}", circuit)
     for circuit, tp, state, why in steps:
         for r in cautions_for_step(knowledge.cautions, circuit, tp, state):
             add(r.caution, f"{why} at {r.because}")
@@ -323,7 +320,7 @@ def diagnose(
     findings.extend(evidence_findings(visit, evidence_book(knowledge.folder, set(knowledge.faults)), hyps))
     ranked, posterior = rank(hyps, findings)
     logs = log_posterior(hyps, findings)
-    next_tests = suggest(evaluator, pairs, hyps, posterior, logs)
+    next_tests = suggest(evaluator, pairs, hyps, posterior, logs, actions=list(knowledge.actions.values()))
     checks = [check_reading(m, system, profile.test_window) for m in measured]
     cautions = _cautions(knowledge, profile, measured, findings, next_tests)
     if not measured:

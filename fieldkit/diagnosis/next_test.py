@@ -11,14 +11,16 @@ from __future__ import annotations
 
 import itertools
 import math
+from collections.abc import Sequence
 from dataclasses import dataclass
 
-from fieldkit.diagnosis.actions import ACTIONS
+from fieldkit.diagnosis.actions import ActionTest
 from fieldkit.diagnosis.findings import Evaluator, Hypothesis, Scope, likelihoods
 from fieldkit.diagnosis.ranking import entropy_bits
 from fieldkit.diagnosis.results import Finding, NextTest, Verdict
 from fieldkit.diagnosis.rulepack import Rule
 from fieldkit.model.condition import FunctionState
+from fieldkit.model.fitted import applies
 from fieldkit.model.profile import Circuit, TestPoint
 from fieldkit.model.roles import Role
 from fieldkit.physics.gauges import smallest_gauge
@@ -101,6 +103,7 @@ def suggest(
     posterior: list[float],
     findings_logs: list[float],
     limit: int = 3,
+    actions: Sequence[ActionTest] = (),
 ) -> list[NextTest]:
     """The best next measurements, most useful per minute first."""
     now = entropy_bits(posterior)
@@ -185,7 +188,7 @@ def suggest(
                 outcomes=outcomes,
             )
         )
-    tests.extend(_action_tests(evaluator, hyps, posterior, now))
+    tests.extend(_action_tests(evaluator, actions, hyps, posterior, now))
     tests.sort(key=lambda t: -(t.gain_bits / t.minutes))
     return tests[:limit]
 
@@ -207,30 +210,32 @@ def _could_change_leader(
 
 
 def _action_tests(
-    evaluator: Evaluator, hyps: list[Hypothesis], posterior: list[float], now: float
+    evaluator: Evaluator,
+    actions: Sequence[ActionTest],
+    hyps: list[Hypothesis],
+    posterior: list[float],
+    now: float,
 ) -> list[NextTest]:
-    """Action tests (diagnosis.actions) for each circuit they suit, by expected information gain:
+    """Action tests (rules/actions.toml) for each circuit they suit, by expected information gain:
     outcome o has P(o) = Σ_h P(h) P(o | h) and leaves P(h | o) ∝ P(h) P(o | h)."""
     out: list[NextTest] = []
-    for action in ACTIONS:
+    for action in actions:
         for circuit in evaluator.profile.circuits:
-            if circuit.kind not in action.kinds:
+            if not action.suits(circuit) or not applies(action.needs, circuit):
                 continue
-            if action.id == "loaded-flow-test" and any(
-                tp.role is Role.PUMP_FLOW for tp in circuit.test_points
+            if action.unless_role is not None and any(
+                tp.role is action.unless_role for tp in circuit.test_points
             ):
-                continue  # the circuit has its own flow test point, offered as a reading
+                continue  # the circuit has a test point for it, offered as a reading
             named = [
                 h
                 for h in hyps
-                if h.circuit is not None and h.circuit.id == circuit.id and h.fault.id in action.by_fault
+                if h.circuit is not None and h.circuit.id == circuit.id and h.fault.id in action.likely
             ]
             if not named:
                 continue
             rows = [
-                action.likelihood(h.fault.id)
-                if h.circuit is not None and h.circuit.id == circuit.id
-                else action.otherwise
+                action.likelihood(h.fault.id if h.circuit is not None and h.circuit.id == circuit.id else "")
                 for h in hyps
             ]
             results: list[tuple[tuple[int, ...], float, list[float]]] = []
@@ -255,10 +260,11 @@ def _action_tests(
                 for combo, p_o, _post in results
                 if p_o > 0.05
             }
+            meanings = " ".join(f"If {seen}: {meaning}." for seen, meaning in outcomes.items())
             why = (
-                f"{action.title}: it is expected to remove {gain:.2f} of the {now:.2f} bits of doubt "
-                f"in about {action.minutes:g} min."
-            )
+                f"It is expected to remove {gain:.2f} of the {now:.2f} bits of doubt in about "
+                f"{action.minutes:g} min. {meanings}"
+            ).strip()
             out.append(
                 NextTest(
                     test_point=point.id,

@@ -301,8 +301,9 @@ def plain_why(t: NextTest) -> str:
     would mean, without the information-theory measure the ranking uses."""
     verb = "Measure again" if t.repeat else "Measure"
     said = "; ".join(f"if {k}, {v}" for k, v in t.outcomes.items())
+    step = t.label if t.action else f"{verb} {t.label} ({t.condition})"  # an action test is its own sentence
     text = (
-        f"{verb} {t.label} ({t.condition}): of the checks left, it does most to settle the cause "
+        f"{step}: of the checks left, it does most to settle the cause "
         f"for the time it takes, about {max(1, round(t.minutes))} minutes."
     )
     if said:
@@ -334,5 +335,7 @@ def _next_action(visit: Visit, diagnosis: Diagnosis) -> str:
     if diagnosis.next_tests and not visit.work:
         t = diagnosis.next_tests[0]
         minutes = max(1, round(t.minutes))
+        if t.action:  # an action test's title is already an instruction
+            return f"{t.label}; about {minutes} minutes."
         return f"Measure {t.label} ({t.condition}); about {minutes} minutes."
     return "Not recorded."

@@ -332,30 +332,7 @@ def test_a_healthy_reading_elsewhere_does_not_favour_no_fault_over_a_relief_faul
 # --- next test: action tests ------------------------------------------------------------------
 
 
-def test_one_loop_side_low_offers_swapping_the_cross_port_cartridges() -> None:
-    # Fellborer: side B stalls at 392 bar against 402 expected (setting 380 + charge 22): low, but
-    # a relief set low and a worn pump both pull one side down. Swapping the two cartridges
-    # (common practice) splits them: the low reading follows a faulty cartridge.
-    profile = fellborer()
-    d = diagnose(_stall_visit(profile, 402.0, 385.0, 22.0), profile, knowledge())
-    swap = [t for t in d.next_tests if t.action == "swap-cross-port-cartridges"]
-    assert swap, [t.label for t in d.next_tests]
-    t = swap[0]
-    assert t.minutes == 30 and t.gain_bits > 0
-    assert any("moves to the other side" in k for k in t.outcomes)
-    assert "cartridge" in t.why
-
-
-def test_a_drifting_cylinder_offers_capping_its_ports() -> None:
-    # Loamshifter lift arms drift 25 mm/min with no seal test yet: valve or piston seal? Capping
-    # the ports at the cylinder (common practice) tells them apart.
-    profile = library().get("oskerfield-loamshifter")
-    b = VisitBuilder(profile)
-    b.add("lift.drift", 25.0, NEUTRAL)
-    d = diagnose(b.build(), profile, knowledge())
-    caps = [t for t in d.next_tests if t.action == "cap-cylinder-ports"]
-    assert caps and caps[0].outcomes
-    assert any(c.id == "raised-load" for c in d.cautions) or d.next_tests[0].action != "cap-cylinder-ports"
+# The action tests themselves (rules/actions.toml) are walked through in test_action_tests.py.
 
 
 def test_a_repeat_with_a_better_gauge_is_offered_only_when_it_could_change_the_leader() -> None:
