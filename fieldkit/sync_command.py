@@ -20,9 +20,11 @@ def add_parsers(sub: Any) -> None:
         "init", help="create or upgrade fieldkit's tables, roles and access rules in a database"
     )
     init.add_argument("url", help="the database, as its owner: postgresql://USER@HOST/DB or 'service=NAME'")
-    add = ss.add_parser("add-technician", help="create a login that may add to its own visits and read all")
+    add = ss.add_parser(
+        "add-technician", help="create a login that may add to its own visits and kit and read all"
+    )
     add.add_argument("name", help="login name: lower-case letters, digits and _")
-    add.add_argument("--supervisor", action="store_true", help="may add to every technician's visits")
+    add.add_argument("--supervisor", action="store_true", help="may add to every technician's visits and kit")
     add.add_argument(
         "--url", help="the database as its owner (default: $FIELDKIT_SERVER or libpq's PG* settings)"
     )

@@ -201,7 +201,53 @@ _V4 = Migration(
     ),
 )
 
-MIGRATIONS: tuple[Migration, ...] = (_V1, _V2, _V3, _V4)
+# Layout 5: the kit travels to the shop server. Kit rows are rewritten in place, so a trigger
+# copies every local write into ``kit_change`` (one version per write, a global id, this laptop's
+# origin); the sync sends those versions and takes other laptops' versions in, rewriting the row
+# with ``from_server = 1`` so the trigger does not log it again (fieldkit.store.kit_log says which
+# version stands). ``owner`` is the login whose kit a version belongs to ('' until first sent).
+# The items already kept become their first versions (ids made from the origin and the item id,
+# so two laptops migrating the same item id still make two distinct versions).
+_KIT_CHANGE_COLUMNS = "id, item_id, item_json, retired_on, changed_at, origin"
+_LOG_KIT_WRITE = f"""INSERT INTO kit_change ({_KIT_CHANGE_COLUMNS})
+            VALUES (lower(hex(randomblob(12))), NEW.id, NEW.item_json, NEW.retired_on, NEW.updated_at,
+                    {_ORIGIN});"""
+_V5 = Migration(
+    5,
+    "the instrument kit travels to the shop server: every kit write logged as a version",
+    (
+        """CREATE TABLE kit_change (
+            seq INTEGER PRIMARY KEY AUTOINCREMENT,
+            id TEXT NOT NULL UNIQUE,
+            item_id TEXT NOT NULL,
+            item_json TEXT NOT NULL,
+            retired_on TEXT,
+            changed_at TEXT NOT NULL,
+            origin TEXT NOT NULL,
+            owner TEXT NOT NULL DEFAULT '',
+            author TEXT NOT NULL DEFAULT '',
+            from_server INTEGER NOT NULL DEFAULT 0
+        )""",
+        "CREATE INDEX kit_change_by_item ON kit_change (item_id, owner, changed_at)",
+        """CREATE TRIGGER kit_change_is_kept
+            BEFORE UPDATE OF id, item_id, item_json, retired_on, changed_at, origin ON kit_change
+            BEGIN SELECT RAISE(ABORT, 'a kit version is history; edit the instrument instead'); END""",
+        """CREATE TRIGGER kit_change_row_is_kept
+            BEFORE DELETE ON kit_change
+            BEGIN SELECT RAISE(ABORT, 'kit versions are kept as history'); END""",
+        "ALTER TABLE kit_item ADD COLUMN from_server INTEGER NOT NULL DEFAULT 0",
+        f"""CREATE TRIGGER kit_item_logged_on_insert AFTER INSERT ON kit_item WHEN NEW.from_server = 0
+            BEGIN {_LOG_KIT_WRITE} END""",
+        f"""CREATE TRIGGER kit_item_logged_on_update AFTER UPDATE ON kit_item
+            WHEN NEW.from_server = 0 AND NEW.item_json IS NOT OLD.item_json
+            BEGIN {_LOG_KIT_WRITE} END""",
+        f"""INSERT INTO kit_change ({_KIT_CHANGE_COLUMNS})
+            SELECT 'm5-' || {_ORIGIN} || '-' || id, id, item_json, retired_on, updated_at, {_ORIGIN}
+            FROM kit_item ORDER BY created_at, id""",
+    ),
+)
+
+MIGRATIONS: tuple[Migration, ...] = (_V1, _V2, _V3, _V4, _V5)
 
 
 def latest_version(migrations: Sequence[Migration] = MIGRATIONS) -> int:

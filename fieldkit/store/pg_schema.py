@@ -189,7 +189,42 @@ _V2 = ServerMigration(
     ),
 )
 
-SERVER_MIGRATIONS: tuple[ServerMigration, ...] = (_V1, _V2)
+#: The gauge kit: append-only versions of kit items (fieldkit.store.kit_log says which stands).
+#: A kit belongs to a login (``owner``): a technician adds versions to its own kit only and reads
+#: the company's; a supervisor may add to anyone's (by naming the owner). ``author`` is who sent it.
+_V3 = ServerMigration(
+    3,
+    "gauge kit item versions, owned by a login",
+    (
+        f"""CREATE TABLE {SCHEMA}.kit_item_version (
+            id text PRIMARY KEY,
+            item_id text NOT NULL,
+            item_json text NOT NULL,
+            retired_on text,
+            changed_at text NOT NULL,
+            origin text NOT NULL,
+            owner name NOT NULL DEFAULT current_user,
+            author name NOT NULL DEFAULT current_user,
+            server_seq bigint NOT NULL UNIQUE,
+            received_at timestamptz NOT NULL DEFAULT now()
+        )""",
+        f"CREATE INDEX kit_item_version_by_item ON {SCHEMA}.kit_item_version (owner, item_id)",
+        f"""CREATE TRIGGER stamp BEFORE INSERT ON {SCHEMA}.kit_item_version
+            FOR EACH ROW EXECUTE FUNCTION {SCHEMA}.stamp_row()""",
+        f"ALTER TABLE {SCHEMA}.kit_item_version ENABLE ROW LEVEL SECURITY",
+        f"CREATE POLICY read_all ON {SCHEMA}.kit_item_version FOR SELECT TO {_BOTH} USING (true)",
+        f"CREATE POLICY technician_own_kit ON {SCHEMA}.kit_item_version FOR INSERT TO {TECHNICIAN_ROLE} "
+        "WITH CHECK (author = current_user AND owner = current_user)",
+        f"CREATE POLICY supervisor_any_kit ON {SCHEMA}.kit_item_version FOR INSERT TO {SUPERVISOR_ROLE} "
+        "WITH CHECK (author = current_user)",
+        f"GRANT SELECT ON {SCHEMA}.kit_item_version TO {_BOTH}",
+        f"GRANT INSERT (id, item_id, item_json, retired_on, changed_at, origin) ON {SCHEMA}.kit_item_version "
+        f"TO {_BOTH}",
+        f"GRANT INSERT (owner) ON {SCHEMA}.kit_item_version TO {SUPERVISOR_ROLE}",
+    ),
+)
+
+SERVER_MIGRATIONS: tuple[ServerMigration, ...] = (_V1, _V2, _V3)
 
 
 def latest_server_version(migrations: tuple[ServerMigration, ...] = SERVER_MIGRATIONS) -> int:

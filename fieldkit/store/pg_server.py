@@ -180,6 +180,7 @@ PUSH_COLUMNS: dict[str, tuple[str, ...]] = {
     "reading": ("visit_id", "id", "test_point", "taken_at", "replaces", "reading_json", "origin"),
     "reading_deletion": ("visit_id", "reading_id", "deleted_at", "origin"),
     "profile_version": ("id", "profile_id", "parents_json", "toml_text", "made_at", "origin"),
+    "kit_item_version": ("id", "item_id", "item_json", "retired_on", "changed_at", "origin"),
 }
 #: Extra server-stamped columns a laptop fetches.
 PULL_EXTRA: dict[str, tuple[str, ...]] = {
@@ -188,6 +189,7 @@ PULL_EXTRA: dict[str, tuple[str, ...]] = {
     "reading": ("author",),
     "reading_deletion": ("author",),
     "profile_version": ("author",),
+    "kit_item_version": ("owner", "author"),
 }
 #: Kinds that belong to a visit (row-level security lets a technician add them to its own visits only).
 VISIT_KINDS = ("visit", "header_change", "reading", "reading_deletion")

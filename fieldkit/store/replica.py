@@ -20,8 +20,10 @@ from typing import Any
 from pydantic import ValidationError
 
 from fieldkit.errors import StoreError
+from fieldkit.model.kit import KitItem
 from fieldkit.model.visit import Reading, Visit
 from fieldkit.store.header_log import FieldChange, fold
+from fieldkit.store.kit_log import KitVersion, history, standing
 from fieldkit.store.sqlite import SqliteVisitStore, iso
 
 #: Local SQL for each record kind: (ordering column, columns sent, table).
@@ -31,7 +33,9 @@ _OUTGOING: dict[str, tuple[str, str, str]] = {
     "reading": ("seq", "visit_id, id, test_point, taken_at, replaces, reading_json, origin", "reading"),
     "reading_deletion": ("seq", "visit_id, reading_id, deleted_at, origin", "reading_deletion"),
     "profile_version": ("seq", "id, profile_id, parents_json, toml_text, made_at, origin", "profile_version"),
+    "kit_item_version": ("seq", "id, item_id, item_json, retired_on, changed_at, origin", "kit_change"),
 }
+_KIT_COLUMNS = "id, item_id, item_json, retired_on, changed_at, origin, owner, author"
 KINDS = tuple(_OUTGOING)
 
 
@@ -109,6 +113,12 @@ class Replica:
                     "UPDATE profile_version SET author = ? "
                     "WHERE from_server = 0 AND author = '' AND seq <= ?",
                     (login, last),
+                )
+            if kind == "kit_item_version":  # the server made this login their owner
+                conn.execute(
+                    "UPDATE kit_change SET owner = ?, author = ? "
+                    "WHERE from_server = 0 AND owner = '' AND seq <= ?",
+                    (login, login, last),
                 )
             self._set(conn, f"push:{kind}", str(int(last)))
 
@@ -310,6 +320,106 @@ class Replica:
             self._set(conn, cursor_key, str(cursor))
         return new
 
+    def take_kit_versions(
+        self, rows: Sequence[tuple[Any, ...]], login: str, cursor_key: str, cursor: int
+    ) -> int:
+        """Kit versions from the server, kept as history; the instruments of this login's own kit
+        that they touch are rewritten to the version that stands (fieldkit.store.kit_log), marked
+        ``from_server`` so the write is not logged as a new version. Returns how many were new."""
+        new = 0
+        touched: set[str] = set()
+        with self.store.transaction("sync") as conn:
+            for vid, item_id, text, retired_on, changed_at, origin, owner, author, _seq in rows:
+                try:
+                    KitItem.model_validate_json(text)
+                except ValidationError as exc:
+                    raise StoreError(
+                        f"the server sent a version of kit item '{item_id}' (owner {owner}) that this "
+                        f"fieldkit cannot read; nothing from this batch was saved ({exc.errors()[0]['msg']})"
+                    ) from None
+                cur = conn.execute(
+                    f"INSERT OR IGNORE INTO kit_change ({_KIT_COLUMNS}, from_server) "
+                    "VALUES (?, ?, ?, ?, ?, ?, ?, ?, 1)",
+                    (vid, item_id, text, retired_on, changed_at, origin, owner, author),
+                )
+                new += cur.rowcount
+                if owner == login:
+                    touched.add(str(item_id))
+            for item_id in sorted(touched):
+                self._apply_kit_item(conn, item_id, login)
+            self._set(conn, cursor_key, str(cursor))
+        return new
+
+    @staticmethod
+    def _own_versions(conn: sqlite3.Connection, item_id: str, login: str) -> list[KitVersion]:
+        return [
+            KitVersion(*row)
+            for row in conn.execute(
+                f"SELECT {_KIT_COLUMNS} FROM kit_change WHERE item_id = ? AND owner IN ('', ?)",
+                (item_id, login),
+            )
+        ]
+
+    def _apply_kit_item(self, conn: sqlite3.Connection, item_id: str, login: str) -> None:
+        versions = self._own_versions(conn, item_id, login)
+        text = standing(versions)
+        if text is None:
+            return
+        item = KitItem.model_validate_json(text)
+        retired = item.retired_on.isoformat() if item.retired_on else None
+        first = history(versions)[0]
+        row = conn.execute("SELECT item_json FROM kit_item WHERE id = ?", (item_id,)).fetchone()
+        if row is None:
+            conn.execute(
+                "INSERT INTO kit_item (id, kind, retired_on, created_at, updated_at, origin, item_json, "
+                "from_server) VALUES (?, ?, ?, ?, ?, ?, ?, 1)",
+                (item_id, item.kind.value, retired, first.changed_at, _now_text(), first.origin, text),
+            )
+        elif row[0] != text:
+            conn.execute(
+                "UPDATE kit_item SET kind = ?, retired_on = ?, updated_at = ?, item_json = ?, "
+                "from_server = 1 WHERE id = ?",
+                (item.kind.value, retired, _now_text(), text, item_id),
+            )
+
+    def kit_history(self, item_id: str, owner: str | None = None) -> list[KitVersion]:
+        """Every version of one instrument (of this laptop's kit, or of ``owner``'s), oldest first."""
+        with self.store.snapshot() as conn:
+            login = self._get(conn, "login")
+            mine = owner is None or owner == login
+            rows = conn.execute(
+                f"SELECT {_KIT_COLUMNS} FROM kit_change WHERE item_id = ? AND "
+                + ("owner IN ('', ?)" if mine else "owner = ?"),
+                (item_id, login if mine else owner),
+            ).fetchall()
+        return history(KitVersion(*row) for row in rows)
+
+    def company_kit(self, *, include_retired: bool = False) -> dict[str, list[KitItem]]:
+        """Every technician's kit as this laptop last heard of it, by login (read-only here: a
+        technician changes only its own kit). This laptop's own unsent items count as its login's."""
+        with self.store.snapshot() as conn:
+            login = self._get(conn, "login")
+            rows = conn.execute(f"SELECT {_KIT_COLUMNS} FROM kit_change").fetchall()
+        grouped: dict[tuple[str, str], list[KitVersion]] = {}
+        for row in rows:
+            version = KitVersion(*row)
+            grouped.setdefault((version.owner or login, version.item_id), []).append(version)
+        out: dict[str, list[KitItem]] = {}
+        for (owner, item_id), versions in sorted(grouped.items()):
+            text = standing(versions)
+            if text is None:
+                continue
+            try:
+                item = KitItem.model_validate_json(text)
+            except ValidationError as exc:
+                raise StoreError(
+                    f"kit item '{item_id}' of {owner or 'this laptop'} cannot be read: "
+                    f"{exc.errors()[0]['msg']}"
+                ) from None
+            if include_retired or item.retired_on is None:
+                out.setdefault(owner, []).append(item)
+        return out
+
     def profile_versions(self, profile_id: str | None = None) -> list[ProfileVersion]:
         """Every known version (of one profile), oldest first."""
         where, args = ("WHERE profile_id = ?", (profile_id,)) if profile_id else ("", ())
@@ -397,6 +507,10 @@ class Replica:
                 (visit_id, field),
             ).fetchall()
         return [FieldChange(*row) for row in rows]
+
+
+def _now_text() -> str:
+    return iso(dt.datetime.now(UTC))
 
 
 def field_value(change: FieldChange) -> Any:

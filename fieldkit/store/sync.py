@@ -8,6 +8,10 @@ The rules (also in the README):
   never conflict on them: both sets simply end up on both sides.
 * Header fields merge field by field: the newest change wins, ties broken by the change id; the
   losing value stays in the header's change log (:mod:`fieldkit.store.header_log`).
+* Kit items (the technician's instruments) travel as versions: every local write is logged and
+  sent; the newest version of an item stands, a retirement sticks, the older versions stay as
+  history (:mod:`fieldkit.store.kit_log`). A login's kit comes back onto that login's laptops;
+  other technicians' kits are kept for reading only.
 * Up first, then down. Each batch is one transaction on the receiving side together with its
   cursor (down) or is skipped there by its global ids when sent twice (up), so a sync killed at
   any moment and run again ends where one clean sync would.
@@ -141,6 +145,8 @@ def _pull(
                     report.received[kind] += replica.take_readings(rows, key, last)
                 elif kind == "profile_version":
                     report.received[kind] += replica.take_profile_versions(rows, key, last)
+                elif kind == "kit_item_version":
+                    report.received[kind] += replica.take_kit_versions(rows, server.login.name, key, last)
                 else:
                     replica.take_deletions(rows, key, last)
                     report.received[kind] += len(rows)

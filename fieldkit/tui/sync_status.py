@@ -24,6 +24,8 @@ def sync_status_text(store: SqliteVisitStore, progress: str = "") -> Text:
         return literal(f"sync: cannot read this laptop's sync state ({exc})")
     w = status.waiting
     parts = [_plural(w.get("visit", 0), "visit"), _plural(w.get("reading", 0), "reading")]
+    if w.get("kit_item_version", 0):
+        parts.append(_plural(w["kit_item_version"], "kit change"))
     others = w.get("header_change", 0) + w.get("reading_deletion", 0) + w.get("profile_version", 0)
     if others:
         parts.append(_plural(others, "other change"))

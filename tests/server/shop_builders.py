@@ -8,6 +8,7 @@ from datetime import UTC
 from pathlib import Path
 from typing import Any
 
+from fieldkit.model.kit import KitItem
 from fieldkit.model.visit import Gauge, Reading, Visit
 from fieldkit.store.sqlite import SqliteVisitStore
 
@@ -59,3 +60,18 @@ def state(store: SqliteVisitStore) -> dict[str, Any]:
         data["readings"] = sorted(data["readings"], key=lambda r: r["id"])
         out[v.id] = data
     return out
+
+
+def kit_gauge(item_id: str = "k60", **extra: Any) -> KitItem:
+    """An invented shop gauge: 0..60 bar, class 1.0, a made-up serial."""
+    fields: dict[str, Any] = {
+        "id": item_id,
+        "kind": "pressure_gauge",
+        "label": "charge gauge",
+        "full_scale": "60 bar",
+        "accuracy_class": 1.0,
+        "serial": "RHF-G-0060",
+        "calibration_due": dt.date(2026, 9, 30),
+    }
+    fields.update(extra)
+    return KitItem(**fields)

@@ -1,6 +1,7 @@
 """A sync killed with SIGKILL at random moments, again and again, loses and duplicates nothing:
-after one clean sync at the end both laptops and the server hold every record exactly once and
-the laptops' states are equal (the property fieldkit.store.sync promises)."""
+after one clean sync at the end every laptop and the server hold every record exactly once and
+the laptops' states are equal (the property fieldkit.store.sync promises). Kit items are added,
+edited and retired between the syncs too, on two laptops of one technician and on another's."""
 
 from __future__ import annotations
 
@@ -14,9 +15,11 @@ from pathlib import Path
 
 import pytest
 from pg_cluster import Shop
-from shop_builders import RIG, laptop, reading, state, visit
+from shop_builders import RIG, kit_gauge, laptop, reading, state, visit
 
+from fieldkit.store.kit_log import KitVersion, standing
 from fieldkit.store.pg_server import ShopServer, connect
+from fieldkit.store.replica import Replica
 from fieldkit.store.sqlite import SqliteVisitStore
 from fieldkit.store.sync import sync
 
@@ -80,7 +83,9 @@ class Laptop:
     """One technician's laptop; the store is closed whenever a sync child runs."""
 
     def __init__(self, folder: Path, name: str, login: str, shop: Shop) -> None:
-        self.path = laptop(folder, name).path
+        with laptop(folder, name) as store:
+            self.path = store.path
+        self.login = login
         self.conninfo = shop.login(login)
         self.visits: list[str] = []
 
@@ -100,13 +105,24 @@ class Laptop:
                 store.delete_reading(vid, standing[-1].id)
             if rng.random() < 0.5:
                 store.update_visit(vid, notes=f"note {minute}", hour_meter=float(minute))
+            kit = store.kit()
+            if not kit or rng.random() < 0.3:
+                store.add_kit_item(kit_gauge(f"k{minute}"))
+            elif rng.random() < 0.2:
+                store.retire_kit_item(rng.choice(kit).id)
+            else:
+                store.edit_kit_item(rng.choice(kit).id, serial=f"RHF-G-{minute:04d}")
 
 
 @pytest.mark.slow
 def test_a_sync_killed_at_random_moments_loses_and_duplicates_nothing(shop: Shop, tmp_path: Path) -> None:
     rng = random.Random(15)
     ana, ben = shop.add("ana"), shop.add("ben")
-    laptops = [Laptop(tmp_path, "ana", ana, shop), Laptop(tmp_path, "ben", ben, shop)]
+    laptops = [
+        Laptop(tmp_path, "ana", ana, shop),
+        Laptop(tmp_path, "ben", ben, shop),
+        Laptop(tmp_path, "ana-spare", ana, shop),
+    ]
     made: set[tuple[str, str]] = set()
     killed_midway = 0
     for n in range(1, KILLS + 1):
@@ -122,13 +138,21 @@ def test_a_sync_killed_at_random_moments_loses_and_duplicates_nothing(shop: Shop
     for lap in (*laptops, *laptops):
         assert _run(lap.path, lap.conninfo, None)[0]
 
-    with SqliteVisitStore(laptops[0].path) as a, SqliteVisitStore(laptops[1].path) as b:
+    with (
+        SqliteVisitStore(laptops[0].path) as a,
+        SqliteVisitStore(laptops[1].path) as b,
+        SqliteVisitStore(laptops[2].path) as a2,
+    ):
         sa, sb = state(a), state(b)
         on_a = {(vid, r["id"]) for vid, v in sa.items() for r in v["readings"]}
         assert on_a == made
-        assert sa == sb
+        assert sa == sb == state(a2)
         with connect(shop.admin_url) as conn:
             rows = conn.execute("SELECT visit_id, id FROM fieldkit.reading").fetchall()
+            kit_rows = conn.execute(
+                "SELECT id, item_id, item_json, retired_on, changed_at, origin, owner::text, author::text "
+                "FROM fieldkit.kit_item_version"
+            ).fetchall()
         assert sorted(rows) == sorted(made)  # every reading once on the server, none missing
         with ShopServer(shop.admin_url) as server:
             on_server = server.machine_history(RIG)
@@ -140,3 +164,28 @@ def test_a_sync_killed_at_random_moments_loses_and_duplicates_nothing(shop: Shop
         }
         deleted_a = {(vid, r["id"]) for vid, v in sa.items() for r in v["readings"] if r["deleted_at"]}
         assert deleted_server == deleted_a
+
+        # the kit: every version made on a laptop is on the server once, and on every laptop
+        kit_server = {str(r[0]) for r in kit_rows}
+        made_kit: set[str] = set()
+        for store in (a, b, a2):
+            with store.snapshot() as conn:
+                local = {row[0] for row in conn.execute("SELECT id FROM kit_change")}
+                made_kit |= {
+                    row[0] for row in conn.execute("SELECT id FROM kit_change WHERE from_server = 0")
+                }
+            assert local == kit_server
+        assert made_kit == kit_server and len(kit_rows) == len(kit_server)
+        # each laptop's kit is what its login's versions on the server stand for (kit_log's rule)
+        by_item: dict[tuple[str, str], list[KitVersion]] = {}
+        for row in kit_rows:
+            by_item.setdefault((row[6], row[1]), []).append(KitVersion(*row))
+        assert any(len({v.origin for v in vs}) > 1 for vs in by_item.values()), (
+            "no gauge edited on two laptops"
+        )
+        for lap, store in zip(laptops, (a, b, a2), strict=True):
+            expected = {item: standing(v) for (owner, item), v in by_item.items() if owner == lap.login}
+            with store.snapshot() as conn:
+                assert dict(conn.execute("SELECT id, item_json FROM kit_item").fetchall()) == expected
+        assert a.kit(include_retired=True) == a2.kit(include_retired=True)
+        assert Replica(b).company_kit(include_retired=True)[ana] == a.kit(include_retired=True)
