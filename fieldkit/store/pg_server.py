@@ -173,14 +173,16 @@ def add_technician(conninfo: str, name: str, *, supervisor: bool = False) -> str
 
 # --- what a laptop exchanges ---------------------------------------------------------------------------
 
-#: Columns sent for each record kind, in order (the same names on both sides).
+#: Columns sent for each record kind (the same names on both sides), in the order a sync sends
+#: and fetches them: the kit first (small, and a sync cut off during a long download still brings
+#: the gauges a technician picks), then a visit before its header changes and its readings.
 PUSH_COLUMNS: dict[str, tuple[str, ...]] = {
+    "kit_item_version": ("id", "item_id", "item_json", "retired_on", "changed_at", "origin"),
     "visit": ("id", "machine", "origin", "created_at"),
     "header_change": ("id", "visit_id", "field", "value_json", "changed_at", "origin"),
     "reading": ("visit_id", "id", "test_point", "taken_at", "replaces", "reading_json", "origin"),
     "reading_deletion": ("visit_id", "reading_id", "deleted_at", "origin"),
     "profile_version": ("id", "profile_id", "parents_json", "toml_text", "made_at", "origin"),
-    "kit_item_version": ("id", "item_id", "item_json", "retired_on", "changed_at", "origin"),
 }
 #: Extra server-stamped columns a laptop fetches.
 PULL_EXTRA: dict[str, tuple[str, ...]] = {

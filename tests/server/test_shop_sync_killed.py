@@ -132,6 +132,9 @@ def test_a_sync_killed_at_random_moments_loses_and_duplicates_nothing(shop: Shop
         # then a random few milliseconds more, so the kill lands inside a transaction as often as between
         finished, batches = _run(lap.path, lap.conninfo, (rng.randint(0, 4), rng.uniform(0, 0.004)))
         killed_midway += (not finished) and batches > 0
+        if n % 12 == 0:  # now and then every laptop finishes a sync, so each edits what the others made
+            for other in laptops:
+                assert _run(other.path, other.conninfo, None)[0]
     print(f"kills after one batch or more and before the end: {killed_midway} of {KILLS}")
     assert killed_midway >= KILLS // 3, f"only {killed_midway} kills landed inside a sync"
 
