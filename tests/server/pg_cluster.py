@@ -24,9 +24,17 @@ from fieldkit.store.pg_server import add_technician
 PORT = 5432
 
 
+#: Where the distribution keeps PostgreSQL's versions; FIELDKIT_PG_LIB overrides it (the tests of
+#: .ci/ensure-postgres and of FIELDKIT_REQUIRE_PG point it at an empty folder).
+PG_LIB_ENV = "FIELDKIT_PG_LIB"
+
+
 def find_bindir() -> Path | None:
+    lib = os.environ.get(PG_LIB_ENV, "/usr/lib/postgresql")
     candidates = sorted(
-        glob.glob("/usr/lib/postgresql/*/bin"), key=lambda p: int(p.split("/")[-2]), reverse=True
+        glob.glob(f"{glob.escape(lib)}/*/bin"),
+        key=lambda p: int(p.split("/")[-2]) if p.split("/")[-2].isdigit() else 0,
+        reverse=True,
     )
     for found in candidates:
         if Path(found, "initdb").exists():
