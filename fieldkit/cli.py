@@ -7,15 +7,18 @@ the PDF library and the UI starts without the simulator.
 from __future__ import annotations
 
 import argparse
+import contextlib
+import errno
 import json
 import os
 import sys
-from collections.abc import Sequence
+from collections.abc import Callable, Iterator, Sequence
 from pathlib import Path
 from typing import TYPE_CHECKING
 
 from fieldkit import __version__
 from fieldkit.errors import FieldkitError
+from fieldkit.plaintext import SafeStream
 
 if TYPE_CHECKING:
     from fieldkit.session import Workbench
@@ -55,27 +58,38 @@ def _parser() -> argparse.ArgumentParser:
     c = sub.add_parser(
         "convert", help='convert a value as a technician writes it, e.g. convert "3,500 psi" bar'
     )
-    c.add_argument("value")
-    c.add_argument("unit")
+    c.add_argument("value", help="the value as written, with its unit, e.g. '3,500 psi' or '7 inHg vac'")
+    c.add_argument("unit", help="the unit to show it in, e.g. bar, MPa, psi, L/min, gpm, °C")
 
     s = sub.add_parser("schema", help="print the JSON schema of a visit or a machine profile")
-    s.add_argument("what", choices=["visit", "profile"], nargs="?", default="visit")
+    s.add_argument(
+        "what",
+        choices=["visit", "profile"],
+        nargs="?",
+        default="visit",
+        help="which schema: a saved visit (default) or a machine profile",
+    )
 
     v = sub.add_parser("visits", help="list the visits in the store")
-    v.add_argument("--status", choices=["open", "closed"])
-    v.add_argument("--machine")
+    v.add_argument("--status", choices=["open", "closed"], help="only open or only closed visits")
+    v.add_argument("--machine", metavar="ID", help="only the visits to this machine (its profile id)")
 
     e = sub.add_parser("export", help="write a visit (with its machine profile) to a JSON file")
     e.add_argument("visit", help="visit id in the store")
     e.add_argument("--out", type=Path, default=Path("."), help="folder to write into (default: here)")
 
     i = sub.add_parser("import", help="import a visit JSON file, or a CSV of readings into a visit")
-    i.add_argument("file", type=Path)
+    i.add_argument("file", type=Path, help="a visit JSON file (an export) or a CSV of readings")
     i.add_argument("--visit", help="for a CSV: the visit id the readings belong to")
     i.add_argument(
         "--as-new",
         action="store_true",
         help="import a visit under fresh ids (when it is already in the store)",
+    )
+    i.add_argument(
+        "--again",
+        action="store_true",
+        help="for a CSV: import its readings even though the visit already holds them (a repeat on purpose)",
     )
 
     d = sub.add_parser("diagnose", help="findings, ranked faults, next test and cautions for a visit")
@@ -89,13 +103,30 @@ def _parser() -> argparse.ArgumentParser:
     rc = rs.add_parser(
         "check", help="lint rule packs: unknown names, dimension mismatches, rules that never fire"
     )
-    rc.add_argument("folder", nargs="?", type=Path)
+    rc.add_argument(
+        "folder",
+        nargs="?",
+        type=Path,
+        help="the rules folder to check (default: --rules, else the bundled rules)",
+    )
 
     rep = sub.add_parser("report", help="write the job card for a visit")
     rep.add_argument("visit", help="a visit JSON file, or the id of a visit in the store")
-    rep.add_argument("--pdf", type=Path, metavar="FILE")
-    rep.add_argument("--text", type=Path, metavar="FILE")
-    rep.add_argument("--markdown", type=Path, metavar="FILE")
+    rep.add_argument(
+        "--pdf", type=Path, metavar="FILE", help="write the PDF job card here ('-': standard output)"
+    )
+    rep.add_argument(
+        "--text",
+        type=Path,
+        metavar="FILE",
+        help="write the plain-text job card (80 columns) here ('-': standard output)",
+    )
+    rep.add_argument(
+        "--markdown",
+        type=Path,
+        metavar="FILE",
+        help="write the Markdown job card here ('-': standard output)",
+    )
     rep.add_argument("--letter", action="store_true", help="US Letter paper (default A4)")
     rep.add_argument("--fixed-date", metavar="ISO", help="creation date to write (for byte-identical output)")
 
@@ -103,16 +134,22 @@ def _parser() -> argparse.ArgumentParser:
         "simulate", help="write a visit a gauge would show on a machine, healthy or with one fault"
     )
     sim.add_argument("profile", help="machine profile id or TOML file")
-    sim.add_argument("--fault")
-    sim.add_argument("--severity", type=float, default=1.0)
-    sim.add_argument("--seed", type=int, default=0)
-    sim.add_argument("--out", type=Path)
+    sim.add_argument("--fault", metavar="ID", help="the fault to inject (default: a healthy machine)")
+    sim.add_argument(
+        "--severity", type=float, default=1.0, help="how far the fault has gone, 0 to 1 (default 1)"
+    )
+    sim.add_argument("--seed", type=int, default=0, help="seed of the gauge noise, for a repeatable visit")
+    sim.add_argument(
+        "--out", type=Path, metavar="FILE", help="write the visit JSON here (default: standard output)"
+    )
 
     ev = sub.add_parser(
         "evaluate", help="simulate many visits per fault and measure how often the diagnosis is right"
     )
-    ev.add_argument("--cases", type=int, default=20)
-    ev.add_argument("--seed", type=int, default=1)
+    ev.add_argument(
+        "--cases", type=int, default=20, help="simulated visits per fault and machine (default 20)"
+    )
+    ev.add_argument("--seed", type=int, default=1, help="seed of the simulation, for repeatable figures")
     ev.add_argument(
         "--templates", action="store_true", help="measure machines of one circuit template each (no figures)"
     )
@@ -127,18 +164,68 @@ def _parser() -> argparse.ArgumentParser:
     return p
 
 
-def main(argv: Sequence[str] | None = None) -> int:
-    args = _parser().parse_args(argv)
+#: Commands that hand the terminal to the UI: their output is the UI's own, never wrapped.
+UI_COMMANDS = (None, "demo")
+
+
+@contextlib.contextmanager
+def _safe_streams() -> Iterator[Callable[[], None]]:
+    """Standard output and error pass every character through :func:`fieldkit.plaintext.plain`
+    while a command runs: a customer name holding an escape sequence or a bidi override reaches
+    the terminal written out (``\\x1b``), whichever command printed it. Yields a function that
+    puts the real streams back early (before the terminal UI starts)."""
+    out, err = sys.stdout, sys.stderr
+
+    def restore() -> None:
+        sys.stdout, sys.stderr = out, err
+
+    sys.stdout, sys.stderr = SafeStream(out), SafeStream(err)
     try:
-        return _dispatch(args)
-    except FieldkitError as exc:
-        print(f"fieldkit: {exc}", file=sys.stderr)
-        return 2
-    except KeyboardInterrupt:
-        return 130
-    except BrokenPipeError:  # output piped into `head` and closed early: not an error
-        os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
-        return 0
+        yield restore
+    finally:
+        with contextlib.suppress(Exception):
+            sys.stdout.flush()
+        restore()
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    with _safe_streams() as restore:
+        args = _parser().parse_args(argv)
+        if args.command in UI_COMMANDS:
+            restore()
+        try:
+            return _dispatch(args)
+        except FieldkitError as exc:
+            print(f"fieldkit: {exc}", file=sys.stderr)
+            return 2
+        except KeyboardInterrupt:
+            return 130
+        except BrokenPipeError:  # output piped into `head` and closed early: not an error
+            os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
+            return 0
+        except OSError as exc:
+            print(f"fieldkit: {os_error_text(exc)}", file=sys.stderr)
+            return 1
+        except Exception as exc:  # the last guard: one sentence and a log file, never a traceback
+            from fieldkit.crash_log import plain_message, write_crash_log
+
+            doing = f"running 'fieldkit {args.command}'"
+            print(f"fieldkit: {plain_message(exc, write_crash_log(exc, doing), doing)}", file=sys.stderr)
+            return 1
+
+
+def os_error_text(exc: OSError) -> str:
+    """One line for a failed file operation: which path, and what went wrong in plain words."""
+    name = str(exc.filename) if exc.filename is not None else ""
+    if len(name) > 80:  # a path too long to use is too long to print whole
+        name = f"{name[:40]}…{name[-30:]} ({len(name)} characters)"
+    if exc.errno == errno.ENAMETOOLONG:
+        what = (
+            "the path is too long for this file system (a name holds at most 255 bytes); choose a shorter one"
+        )
+    else:
+        what = exc.strerror or str(exc)
+    return f"{name}: {what}" if name else what
 
 
 def _workbench(args: argparse.Namespace, store: str | None = None, demo: bool = True) -> Workbench:
@@ -336,17 +423,7 @@ def _import(bench: Workbench, args: argparse.Namespace) -> int:
     if path.suffix.lower() == ".csv":
         if not args.visit:
             raise FieldkitError("a CSV of readings needs --visit ID (the visit they belong to)")
-        from fieldkit.store.csv_import import kinds_by_test_point, read_readings_csv
-
-        visit = bench.store.get_visit(args.visit)
-        profile = bench.library.get(visit.machine)
-        readings = read_readings_csv(
-            path,
-            test_points=kinds_by_test_point(profile),
-            gauges={g.id for g in visit.gauges},
-            decimal_comma=bench.settings.decimal_comma,
-        )
-        bench.store.add_readings(visit.id, readings)
+        visit, readings = bench.import_readings_csv(args.visit, path, again=args.again)
         print(f"imported {len(readings)} readings into visit {visit.id}")
         return 0
     from fieldkit.session import read_visit_file

@@ -26,7 +26,7 @@ def _date(text: str) -> dt.date:
 
 
 def _item_options(p: argparse.ArgumentParser, *, required: bool) -> None:
-    p.add_argument("--kind", choices=KINDS, required=required)
+    p.add_argument("--kind", choices=KINDS, required=required, help="what the instrument measures")
     p.add_argument(
         "--span",
         required=required,
@@ -39,26 +39,26 @@ def _item_options(p: argparse.ArgumentParser, *, required: bool) -> None:
         required=required,
         help="accuracy class: limit of error as %% of span (EN 837-1 for gauges)",
     )
-    p.add_argument("--serial")
+    p.add_argument("--serial", help="the serial number on the instrument")
     p.add_argument("--due", type=_date, help="calibration due date, e.g. 2027-03-31")
-    p.add_argument("--label")
+    p.add_argument("--label", help="a short name of your own, e.g. 'small charge gauge'")
 
 
 def add_parsers(sub: Any) -> None:
     k = sub.add_parser("kit", help="your instruments (gauges, thermometers, flow meters, tachometers)")
     ks = k.add_subparsers(dest="kit_command", metavar="ACTION", required=True)
     ls = ks.add_parser("list", help="the instruments in service (and retired ones with --all)")
-    ls.add_argument("--all", action="store_true")
+    ls.add_argument("--all", action="store_true", help="list retired instruments too")
     add = ks.add_parser("add", help="add an instrument")
-    add.add_argument("id")
+    add.add_argument("id", help="an id of your own for the instrument, e.g. g60")
     _item_options(add, required=True)
     ed = ks.add_parser("edit", help="change an instrument (new calibration date, serial, …)")
-    ed.add_argument("id")
+    ed.add_argument("id", help="the instrument's id")
     _item_options(ed, required=False)
     rt = ks.add_parser("retire", help="take an instrument out of service; old visits keep it")
-    rt.add_argument("id")
+    rt.add_argument("id", help="the instrument's id")
     use = ks.add_parser("use", help="put an instrument on a visit")
-    use.add_argument("id")
+    use.add_argument("id", help="the instrument's id")
     use.add_argument("--visit", required=True, help="visit id")
 
 

@@ -9,6 +9,7 @@ from __future__ import annotations
 import argparse
 import re
 from pathlib import Path
+from typing import Any
 
 from fieldkit.errors import FieldkitError
 from fieldkit.model.loading import ProfileLibrary, Templates, load_profile, load_templates
@@ -20,7 +21,7 @@ from fieldkit.settings import save_profile_text, user_profiles_dir
 _ID = re.compile(r"^[a-z0-9][a-z0-9_\-]*$")
 
 
-def add_parsers(sub: argparse._SubParsersAction[argparse.ArgumentParser]) -> None:
+def add_parsers(sub: Any) -> None:
     m = sub.add_parser("machine", help="machine profiles: new, check, show, list")
     ms = m.add_subparsers(dest="machine_command", metavar="ACTION")
     new = ms.add_parser("new", help="write a commented profile skeleton for chosen circuit templates")
@@ -36,7 +37,7 @@ def add_parsers(sub: argparse._SubParsersAction[argparse.ArgumentParser]) -> Non
     new.add_argument("--name", help="the machine's name (default: the id)")
     new.add_argument("--out", type=Path, help="file to write (default: ID.toml in your profiles folder)")
     check = ms.add_parser("check", help="validate a profile file; errors name file, line and key")
-    check.add_argument("file", type=Path)
+    check.add_argument("file", type=Path, help="the profile TOML file to check")
     show = ms.add_parser("show", help="print a machine's test plan with every range and its source")
     show.add_argument("machine", help="machine id, or a profile TOML file")
     show.add_argument("--demo", action="store_true", help="look among the bundled demo machines too")

@@ -235,6 +235,31 @@ class Workbench:
         stored = self.store.import_visit(visit, as_new=as_new)
         return stored, self.store.merge_kit(kit)
 
+    def import_readings_csv(
+        self, visit_id: str, path: Path, *, again: bool = False
+    ) -> tuple[Visit, list[Reading]]:
+        """Import a CSV of readings into a visit, all rows or none. Readings the visit already
+        holds (the same file imported before) are refused unless ``again`` says it is on purpose."""
+        from fieldkit.store.csv_import import already_in_visit, kinds_by_test_point, read_readings_csv
+
+        visit = self.store.get_visit(visit_id)
+        profile = self.profile_for(visit)
+        readings = read_readings_csv(
+            path,
+            test_points=kinds_by_test_point(profile),
+            gauges={g.id for g in visit.gauges},
+            decimal_comma=self.settings.decimal_comma,
+        )
+        repeated = already_in_visit(visit, readings)
+        if repeated and not again:
+            share = "all" if len(repeated) == len(readings) else f"{len(repeated)} of {len(readings)}"
+            raise FieldkitError(
+                f"{path}: {share} of its readings are already in visit {visit.job_number} (same test point, "
+                "time and value): this file seems to have been imported before, so nothing was imported. "
+                "To import it again on purpose: fieldkit import FILE --visit ID --again"
+            )
+        return visit, self.store.add_readings(visit.id, readings)
+
     # --- readings -----------------------------------------------------------------------
     def parse_for_point(self, point: TestPoint, text: str) -> ParsedValue:
         """Parse text for a test point: its kind is required, and a separator that reads two ways

@@ -36,6 +36,17 @@ __all__ = [
 
 MAX_TEXT = 4000
 
+#: The dates a visit and its readings may carry. Wider than any real service visit, narrow
+#: enough that a time moved into any site's time zone (the job card prints local times) stays
+#: a valid date: year 1 or 9999 is a typo or a logger's reset clock, refused with this message.
+EARLIEST = dt.date(1900, 1, 1)
+LATEST = dt.date(2199, 12, 31)
+DATE_RANGE = f"{EARLIEST.isoformat()} to {LATEST.isoformat()}"
+
+
+def in_date_range(day: dt.date) -> bool:
+    return EARLIEST <= day <= LATEST
+
 
 def new_id() -> str:
     return uuid.uuid4().hex[:12]
@@ -97,9 +108,13 @@ class Reading(Strict):
     @field_validator("taken_at", "deleted_at")
     @classmethod
     def _aware(cls, value: datetime | None) -> datetime | None:
-        if value is not None and value.tzinfo is None:
+        if value is None:
+            return None
+        if value.tzinfo is None:
             raise ValueError("times must carry a time zone (ISO 8601 with Z or +hh:mm)")
-        return value.astimezone(UTC) if value is not None else None
+        if not in_date_range(value.date()):
+            raise ValueError(f"{value.isoformat()} is outside the dates fieldkit works with ({DATE_RANGE})")
+        return value.astimezone(UTC)
 
 
 class Observation(Strict):
@@ -149,6 +164,13 @@ class Visit(Strict):
     departure: Departure | None = None
     #: IANA time zone of the site (e.g. 'Europe/London'); the card prints times in it. '' = UTC.
     time_zone: str = Field(default="", max_length=60)
+
+    @field_validator("date")
+    @classmethod
+    def _sensible_date(cls, value: dt.date) -> dt.date:
+        if not in_date_range(value):
+            raise ValueError(f"{value.isoformat()} is outside the dates fieldkit works with ({DATE_RANGE})")
+        return value
 
     @field_validator("time_zone")
     @classmethod

@@ -1,12 +1,16 @@
 """``fieldkit diagnose`` on a terminal: the diagnosis as rich tables.
 
 Every piece of text that came from a person or a data file is handed to rich as plain ``Text``,
-never as markup, so a note holding ``[bold]`` or ``[link=…]`` prints as typed.
+never as markup, so a note holding ``[bold]`` or ``[link=…]`` prints as typed; and it is cleaned
+(:func:`fieldkit.plaintext.plain`), so an escape sequence or a bidi override in a customer name
+is printed written out, never obeyed. The console writes to the real terminal underneath the
+command line's cleaning stream, so its own colours still work.
 """
 
 from __future__ import annotations
 
 import os
+import sys
 
 from rich.console import Console
 from rich.table import Table
@@ -15,6 +19,7 @@ from rich.text import Text
 from fieldkit.diagnosis.results import Diagnosis, Verdict
 from fieldkit.model.profile import MachineProfile
 from fieldkit.model.visit import Visit
+from fieldkit.plaintext import plain, underlying
 
 VERDICT_STYLE = {
     Verdict.IN_RANGE: "green",
@@ -27,13 +32,15 @@ VERDICT_STYLE = {
 
 
 def _t(text: str, style: str = "") -> Text:
-    return Text(text, style=style)
+    return Text(plain(text), style=style)
 
 
 def print_diagnosis(
     result: Diagnosis, visit: Visit, profile: MachineProfile, console: Console | None = None
 ) -> None:
-    console = console or Console(no_color=bool(os.environ.get("NO_COLOR")), highlight=False)
+    console = console or Console(
+        file=underlying(sys.stdout), no_color=bool(os.environ.get("NO_COLOR")), highlight=False
+    )
     console.print(_t(f"{profile.name} — job {visit.job_number} — {visit.customer}", "bold"))
     for c in result.cautions:
         if c.urgent:  # before anything else: a reading says stop now

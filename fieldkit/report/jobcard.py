@@ -17,7 +17,7 @@ from pathlib import Path
 from fieldkit.diagnosis.results import Diagnosis
 from fieldkit.durable import sync_folder, write_temp
 from fieldkit.model.profile import MachineProfile
-from fieldkit.model.visit import Visit
+from fieldkit.model.visit import DATE_RANGE, Visit, in_date_range
 from fieldkit.report.build import job_card
 from fieldkit.report.model import JobCard, ReportError
 from fieldkit.store.filenames import export_stem, safe_file_name
@@ -42,6 +42,8 @@ def parse_fixed_date(value: datetime | str | None) -> datetime | None:
             ) from None
     if stamp is not None and stamp.tzinfo is None:
         stamp = stamp.replace(tzinfo=UTC)
+    if stamp is not None and not in_date_range(stamp.date()):
+        raise ReportError(f"fixed date '{value}' is outside the dates fieldkit works with ({DATE_RANGE})")
     return stamp
 
 

@@ -61,7 +61,7 @@ from pydantic import ValidationError
 from fieldkit.errors import DataFileError, FieldkitError
 from fieldkit.model.condition import Condition, FunctionState
 from fieldkit.model.profile import MachineProfile
-from fieldkit.model.visit import Reading
+from fieldkit.model.visit import DATE_RANGE, Reading, Visit, in_date_range
 from fieldkit.tomlfile import validation_error
 from fieldkit.units import EXAMPLE, Kind, ParsedValue, parse_value
 
@@ -101,6 +101,15 @@ class _Problems:
 def kinds_by_test_point(profile: MachineProfile) -> dict[str, Kind]:
     """The ``test_points`` argument for a machine: each test point id and the kind it reads."""
     return {tp.id: tp.kind for _circuit, tp in profile.all_test_points()}
+
+
+def already_in_visit(visit: Visit, readings: list[Reading]) -> list[Reading]:
+    """The readings of an import that the visit already holds: same test point, same moment,
+    same value. A logger file imported twice would otherwise count every reading twice (and a
+    corrected value would come back beside its correction), so the whole visit history is
+    compared, corrected and deleted readings included."""
+    held = {(r.test_point, r.taken_at, r.value.magnitude, str(r.value.units)) for r in visit.readings}
+    return [r for r in readings if (r.test_point, r.taken_at, r.value.magnitude, str(r.value.units)) in held]
 
 
 def read_readings_csv(path: str | Path, **options: object) -> list[Reading]:
@@ -305,6 +314,9 @@ def _time(cell: str, naive_tz: dt.tzinfo | None, wrong: list[str]) -> dt.datetim
             wrong.append(f"time '{cell}' has no time zone; add Z for UTC or an offset such as +02:00")
             return None
         moment = moment.replace(tzinfo=naive_tz)
+    if not in_date_range(moment.date()):
+        wrong.append(f"time '{cell}' is outside the dates fieldkit works with ({DATE_RANGE})")
+        return None
     return moment.astimezone(UTC)
 
 

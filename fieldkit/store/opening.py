@@ -15,11 +15,10 @@ import errno
 import os
 import sqlite3
 import stat
-import tempfile
 from enum import Enum
 from pathlib import Path
 
-from fieldkit.durable import sync_folder
+from fieldkit.durable import make_temp, sync_folder
 from fieldkit.errors import StoreError
 from fieldkit.store.migrations import APPLICATION_ID, MIGRATIONS, Migration, apply_pending, latest_version
 
@@ -152,11 +151,10 @@ def create_store(path: Path, migrations: tuple[Migration, ...] = MIGRATIONS) -> 
     except OSError as exc:
         raise StoreError(f"{path}: cannot create the folder {folder} ({exc.strerror or exc})") from None
     try:
-        fd, tmp_name = tempfile.mkstemp(prefix=".fieldkit-new-", suffix=".sqlite3", dir=folder)
+        fd, tmp = make_temp(folder, ".fieldkit-new-", ".sqlite3")  # the user's umask, not 0o600
     except OSError as exc:
         raise StoreError(f"{path}: cannot write in the folder {folder} ({exc.strerror or exc})") from None
     os.close(fd)
-    tmp = Path(tmp_name)
     try:
         _build(tmp, migrations)
         _move_into_place(tmp, path)

@@ -68,6 +68,8 @@ def connect(conninfo: str, *, autocommit: bool = False) -> psycopg.Connection[An
     except psycopg.Error as exc:
         detail = str(exc).strip().splitlines()[0] if str(exc).strip() else type(exc).__name__
         raise StoreError(f"cannot reach the shop server ({_where(conninfo)}): {detail}") from None
+    except (UnicodeError, ValueError) as exc:  # a host name no resolver accepts (IDNA), a bad option
+        raise StoreError(f"the shop server address is not usable ({_where(conninfo)}): {exc}") from None
 
 
 def schema_version(conn: psycopg.Connection[Any]) -> int:
