@@ -23,8 +23,9 @@ from fieldkit.model.condition import FunctionState
 from fieldkit.model.fitted import applies
 from fieldkit.model.profile import Circuit, TestPoint
 from fieldkit.model.roles import Role
+from fieldkit.physics.common import OutOfRangeError
 from fieldkit.physics.gauges import smallest_gauge
-from fieldkit.units import Kind, format_value
+from fieldkit.units import Kind, format_value, kind_of
 
 MAX_JOINT_RULES = 3
 OUTCOMES = ("low", "in range", "high")
@@ -282,14 +283,20 @@ def _action_tests(
 
 
 def _smaller_gauge_advice(evaluator: Evaluator, cand: _Candidate) -> str:
-
+    """Advice for a repeat near a limit; a gauge's size only helps when both are pressures."""
     m = next(m for m in evaluator.measured if m.reading.id == cand.repeat_of.readings[0])  # type: ignore[union-attr]
+    generic = "Repeat it with a gauge of smaller full scale or a better accuracy class."
+    # A pressure point may hold a reading taken with another instrument (a flow meter picked by
+    # mistake, a value confirmed in another kind): gauge sizes only compare pressures.
+    gauge = m.gauge if m.gauge is not None and kind_of(m.gauge.full_scale) is Kind.PRESSURE else None
+    if kind_of(m.reading.value) is not Kind.PRESSURE:
+        return generic
     try:
         size = smallest_gauge(m.reading.value, cand.point.max_pressure)
-    except Exception:
-        return "Repeat it with a gauge of smaller full scale or a better accuracy class."
-    if m.gauge is not None and size >= m.gauge.full_scale:
-        better = [c for c in (0.6, 0.25, 0.1) if c < m.gauge.accuracy_class]
+    except OutOfRangeError:
+        return generic
+    if gauge is not None and size >= gauge.full_scale:
+        better = [c for c in (0.6, 0.25, 0.1) if c < gauge.accuracy_class]
         if better:
             return (
                 "The reading sits within the gauge's error of a limit and no smaller range suits this "
@@ -298,7 +305,7 @@ def _smaller_gauge_advice(evaluator: Evaluator, cand: _Candidate) -> str:
                 "transducer."
             )
         return "The reading sits within the gauge's error of a limit: repeat it with a calibrated transducer."
-    current = f" instead of the {format_value(m.gauge.full_scale)} one" if m.gauge is not None else ""
+    current = f" instead of the {format_value(gauge.full_scale)} one" if gauge is not None else ""
     return (
         f"The reading sits within the gauge's error of a limit: repeat it with a 0–{format_value(size)} "
         f"gauge{current} (smaller full scale, smaller error)."
