@@ -29,6 +29,7 @@ if TYPE_CHECKING:
     from fieldkit.diagnosis.results import Diagnosis
 from fieldkit.model.bounds import implausible, impossible
 from fieldkit.model.condition import Condition
+from fieldkit.model.example import example_text
 from fieldkit.model.gauge import Gauge
 from fieldkit.model.kit import InstrumentKind, KitItem, calibration_warning
 from fieldkit.model.loading import ProfileLibrary
@@ -270,6 +271,7 @@ class Workbench:
             decimal_comma=self.settings.decimal_comma,
             role_name=point.label,
             plausible=plausibility(point),
+            example=example_text(point),
         )
         vacuum_or_pressure(point, parsed)
         return parsed

@@ -467,6 +467,7 @@ def parse_value(
     decimal_comma: bool = False,
     role_name: str | None = None,
     plausible: Callable[[Quantity], bool] | None = None,
+    example: str | None = None,
 ) -> ParsedValue:
     """Parse a value as a technician writes it (``3,500 psi``, ``24,5 bar``, ``0.75 bar abs``).
 
@@ -479,21 +480,21 @@ def parse_value(
         plausible: the test point's plausibility check. When a single separator makes two
             readings possible and both pass it, :class:`AmbiguousInputError` is raised so the
             caller can ask; when only one passes, that one is taken.
+        example: what to suggest in a message (the test point's own example, e.g. '1 bar' at a
+            case pressure point); the kind's usual example when not given.
     """
     cleaned = _clean(text)
+    example = example or EXAMPLE[expect or Kind.PRESSURE]
     match = _NUMBER.match(cleaned)
     if not match:
-        raise UnitInputError(
-            f"'{cleaned}' does not start with a number; type e.g. '{EXAMPLE[expect or Kind.PRESSURE]}'"
-        )
+        raise UnitInputError(f"'{cleaned}' does not start with a number; type e.g. '{example}'")
     sign = -1.0 if match.group("sign") in {"-", "−", "–"} else 1.0
     raw = match.group("num").strip(_THIN_SPACES)
     if any(ch.isdigit() and not "0" <= ch <= "9" for ch in raw):
         # Python's \d and float() read Arabic-Indic, Devanagari… digits too; a rule file or a
         # profile would not, so neither does a reading: one meaning for a number everywhere.
         raise UnitInputError(
-            f"'{cleaned}' has digits from another script; type the digits 0-9, "
-            f"e.g. '{EXAMPLE[expect or Kind.PRESSURE]}'"
+            f"'{cleaned}' has digits from another script; type the digits 0-9, e.g. '{example}'"
         )
     # The number pattern may swallow a trailing space before the unit; give it back.
     rest = cleaned[match.end() :]
@@ -502,6 +503,8 @@ def parse_value(
         raise UnitInputError(
             f"'{cleaned}' is too small to tell from zero; type the value as the gauge shows it"
         )
+    if not rest.strip() and expect is not None:
+        raise UnitInputError(f"a unit is missing: type it after the number, e.g. '{example}'")
     unit_expr, kind, reference, vacuum = _split_unit(rest)
     sided = bool(match.group("sign")) or reference is not None
     if vacuum:
@@ -513,9 +516,7 @@ def parse_value(
         sign = -1.0
     if expect is not None and kind is not expect:
         need = f"{role_name} needs" if role_name else "this needs"
-        raise DimensionError(
-            f"'{cleaned}' is a {kind.value}; {need} a {expect.value} such as '{EXAMPLE[expect]}'"
-        )
+        raise DimensionError(f"'{cleaned}' is a {kind.value}; {need} a {expect.value} such as '{example}'")
     if kind is Kind.PRESSURE and reference is None:
         reference = PressureReference.GAUGE
     u = unit(unit_expr)

@@ -47,7 +47,7 @@ start_app
 wait_for "Open visits"
 wait_for "RHS-25-0301"
 keys r
-wait_for "NEXT ▸"
+wait_for "NEXT →"
 wait_for "4 readings"
 wait_for "f1 Keys"
 
@@ -66,7 +66,7 @@ wait_for "5 readings"
 keys F2
 wait_for "Follow the machine's own procedures"
 keys F2
-wait_for "NEXT ▸"
+wait_for "NEXT →"
 
 keys C-q
 wait_for "EXITED 0"

@@ -80,10 +80,15 @@ for machine in "${machines[@]}"; do
             keys Enter
             sleep 0.2
             wait_for "saved|Save this value\?|Which value\?|nothing saved|unexpected problem|EXITED" 20
-            scr=$(screen)
-            if ! grep -qF "saved $text" <<<"$scr" && ! grep -qE "value\?" <<<"$scr"; then
-                sleep 0.5 && scr=$(screen)  # a refusal may still be the previous one: look again
-            fi
+            # The line may still be the previous one (a 'saved' of the last value, or the refusal
+            # shown while typing): give a loaded machine time to show this value's own answer.
+            for ((i = 0; i < 40; i++)); do
+                scr=$(screen)
+                grep -qF "saved $text" <<<"$scr" && break
+                grep -qE "value\?|unexpected problem|EXITED" <<<"$scr" && break
+                [ "$expect" = error ] && grep -qF "nothing saved" <<<"$scr" && break
+                sleep 0.1
+            done
             inputs=$((inputs + 1))
             if grep -qE "unexpected problem|EXITED|Traceback" <<<"$scr"; then
                 fail "$what '$text' at $point ($machine): the app met an error"
@@ -103,8 +108,14 @@ for machine in "${machines[@]}"; do
         clear_field
         keys Down
     done
+    # ↓ goes round from the last point to the first: every point of the machine must have come up,
+    # those above the one the visit opened on too.
+    walked=0
+    for p in $(awk -F'\t' -v m="$machine" '$1 == m {print $2}' "$WORK/plan.tsv" | uniq); do
+        case "$seen" in *" $p "*) walked=$((walked + 1)) ;; *) fail "$p ($machine) was never reached with Down" ;; esac
+    done
     keys C-q
     wait_for "EXITED 0" 20
-    echo "tmux_walk: $machine walked"
+    echo "tmux_walk: $machine walked, all $walked points"
 done
 echo "tmux_walk: OK: $points points, $inputs inputs typed ($saved saved, $asked asked, $refused refused); the app never closed"

@@ -36,12 +36,40 @@ class FunctionState(StrEnum):
         }[self.value]
 
 
+class ConditionSource(StrEnum):
+    """Where a speed or oil temperature in a reading's condition came from. A condition is a
+    fact about that reading, so the job card can say which ones were assumed rather than read."""
+
+    #: typed by the technician for this reading
+    TYPED = "typed"
+    #: typed for an earlier reading and left in the field (assumed unchanged)
+    CARRIED = "carried"
+    #: the value of the latest speed or oil temperature reading on the visit (assumed unchanged)
+    READING = "reading"
+
+    @property
+    def assumed(self) -> bool:
+        return self is not ConditionSource.TYPED
+
+    @property
+    def words(self) -> str:
+        return {
+            "typed": "typed for the reading",
+            "carried": "as typed for an earlier reading",
+            "reading": "from the latest reading of it",
+        }[self.value]
+
+
 class Condition(Strict):
-    """The condition a technician set for one reading."""
+    """The condition a technician set for one reading. A speed or oil temperature left out is
+    "not measured" (never the rated speed or a remembered value); ``speed_from``/``oil_from``
+    say how a stated one was obtained (None in visits from before they were recorded)."""
 
     function: FunctionState = FunctionState.NEUTRAL
     speed: Speed | None = Field(default=None, description="engine or pump speed while reading")
     oil_temperature: Temperature | None = Field(default=None, description="oil temperature while reading")
+    speed_from: ConditionSource | None = Field(default=None, description="how the speed was obtained")
+    oil_from: ConditionSource | None = Field(default=None, description="how the oil temperature was obtained")
 
     def describe(self, system: DisplaySystem | None = None) -> str:
         """In words, temperatures in the display system given (the metric default otherwise)."""

@@ -20,6 +20,7 @@ from fieldkit.diagnosis.results import (
 )
 from fieldkit.diagnosis.retest import decimals_for, limit_text
 from fieldkit.model.profile import MachineProfile
+from fieldkit.model.roles import Role
 from fieldkit.model.visit import Visit
 from fieldkit.report.gauge_use import GaugeUse, gauge_uses
 from fieldkit.report.model import (
@@ -98,7 +99,7 @@ def job_card(
         next_test=next_test,
         next_test_note=next_note,
         cautions=_cautions(diagnosis.cautions),
-        notes=_notes(visit, diagnosis),
+        notes=_notes(visit, diagnosis, _conditions_assumed(visit, profile, system)),
         sign_off=[SignOff("Technician", one_line(visit.technician)), SignOff("Customer", "")],
         story=build_story(visit, profile, diagnosis, system, knowledge),
     )
@@ -486,8 +487,52 @@ def _cautions(notes: list[CautionNote]) -> list[Caution]:
     ]
 
 
-def _notes(visit: Visit, diagnosis: Diagnosis) -> list[Note]:
+#: The note's label on every card format (tests read the card back by it).
+CONDITIONS_ASSUMED = "Conditions assumed"
+
+
+def _conditions_assumed(visit: Visit, profile: MachineProfile, system: DisplaySystem) -> str:
+    """Which readings' engine speed and oil temperature were not read for them: not measured, or
+    taken from an earlier value (issue 10, item 6). '' when every condition was typed for its
+    reading (or comes from a visit made before fieldkit recorded where conditions came from)."""
+    points = {tp.id: tp for _c, tp in profile.all_test_points()}
+    groups: dict[str, list[str]] = {}
+    for r in visit.current_readings():
+        tp = points.get(r.test_point)
+        if tp is None:
+            continue
+        label = one_line(tp.label)
+        c = r.condition
+        for what, value, source, own in (
+            ("engine speed", c.speed, c.speed_from, Role.PUMP_SPEED),
+            ("oil temperature", c.oil_temperature, c.oil_from, Role.OIL_TEMPERATURE),
+        ):
+            if tp.role is own:
+                continue  # a speed reading is its own speed
+            if value is None:
+                key = f"{what} not measured"
+            elif source is not None and source.assumed:
+                key = f"{what} {source.words}"
+                label = f"{label} ({format_value(value, system)})"
+            else:
+                continue
+            groups.setdefault(key, []).append(label)
+            label = one_line(tp.label)
+    if not groups:
+        return ""
+    parts = [f"{key}: {', '.join(dict.fromkeys(labels))}" for key, labels in groups.items()]
+    text = "; ".join(parts) + "."
+    if any(k.startswith("oil temperature not measured") for k in groups):
+        text += (
+            " Where a reading has no oil temperature, the diagnosis uses the nearest oil temperature reading."
+        )
+    return text[0].upper() + text[1:]
+
+
+def _notes(visit: Visit, diagnosis: Diagnosis, conditions: str = "") -> list[Note]:
     notes = []
+    if conditions:
+        notes.append(Note(CONDITIONS_ASSUMED, conditions))
     if visit.notes.strip():
         notes.append(Note("Visit notes", plain(visit.notes).strip()))
     if visit.summary.strip():

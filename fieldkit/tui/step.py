@@ -15,6 +15,7 @@ from fieldkit.diagnosis.engine import Knowledge
 from fieldkit.diagnosis.results import Diagnosis, NextTest
 from fieldkit.errors import FieldkitError
 from fieldkit.model.condition import ConditionSpec, FunctionState
+from fieldkit.model.example import example_value
 from fieldkit.model.gauge import Gauge
 from fieldkit.model.profile import Circuit, ExpectedRange, MachineProfile, TestPoint
 from fieldkit.model.roles import Role
@@ -146,6 +147,9 @@ def _gauge_to_add(point: TestPoint, function: FunctionState) -> str:
     work = working_value(point, function) or point.max_pressure
     if work is None:
         return "; add one with ^g"
+    if to_canonical(work, Kind.PRESSURE) < 0:  # a vacuum is expected here: a 0–X gauge cannot show it
+        top = f" to +{format_value(point.max_pressure)}" if point.max_pressure is not None else ""
+        return f"; add a compound gauge (from -1 bar{top}) with ^g"
     try:
         size = smallest_gauge(work, point.max_pressure)
     except FieldkitError:
@@ -156,20 +160,36 @@ def _gauge_to_add(point: TestPoint, function: FunctionState) -> str:
 def suggest_gauge(
     point: TestPoint, gauges: list[Gauge], function: FunctionState, system: DisplaySystem
 ) -> Gauge | None:
-    """The visit's gauge that suits best: no overrange, fewest warnings, smallest span."""
+    """The visit's gauge that suits best: no overrange, fewest warnings, smallest span. When none
+    suits, one that at least shows the value the point should read (the point's rating may still
+    overrange it: the step says so), never one that cannot show it (a 0–16 bar gauge where a
+    vacuum is expected, a 0–20 L/min meter where 84 L/min is); None when no gauge can."""
     ranked: list[tuple[int, float, Gauge]] = []
     order = {Level.OK: 0, Level.NOTE: 0, Level.WARNING: 1, Level.ERROR: 9}
+    work = working_value(point, function)
+    if work is None and not point.expected:
+        work = example_value(point, function)  # nothing expected here: it must show the example offered
     for g in gauges:
         if g.kind is not point.kind:
             continue
         fit = gauge_fit(point, g, function, system)
-        ranked.append(
-            (order[fit.level], to_canonical(g.span, g.kind) if g.kind is not Kind.TEMPERATURE else 0.0, g)
-        )
+        rank = order[fit.level]
+        if work is not None and not _shows(g, work):
+            rank = 9
+        elif rank == 9 and work is not None:
+            rank = 5
+        ranked.append((rank, to_canonical(g.span, g.kind) if g.kind is not Kind.TEMPERATURE else 0.0, g))
     ranked.sort(key=lambda t: (t[0], t[1]))
     if not ranked or ranked[0][0] >= 9:
         return None
     return ranked[0][2]
+
+
+def _shows(gauge: Gauge, value: Quantity) -> bool:
+    """Whether the value lies on the gauge's scale."""
+    kind = gauge.kind
+    start = to_canonical(gauge.scale_start, kind) if gauge.scale_start is not None else 0.0
+    return start <= to_canonical(value, kind) <= to_canonical(gauge.full_scale, kind)
 
 
 def step_cautions(
@@ -210,18 +230,17 @@ def general_caution(knowledge: Knowledge) -> Caution:
 
 
 def last_condition_values(visit: Visit, profile: MachineProfile) -> tuple[Quantity | None, Quantity | None]:
-    """Speed and oil temperature to offer for the next reading: what the last reading stated
-    (or the last oil temperature reading), else the rated speed and nothing."""
-
-    speed: Quantity | None = profile.rated_speed
+    """Speed and oil temperature to offer for the next reading: the latest speed reading and the
+    latest oil temperature reading of the visit (measurements), else nothing ("not measured").
+    Never the rated speed, never a value typed into another reading's condition: a condition is
+    a fact about its reading (issue 10, item 6)."""
+    speed: Quantity | None = None
     oil: Quantity | None = None
     points = {tp.id: tp for _c, tp in profile.all_test_points()}
-    for r in visit.current_readings():
-        if r.condition.speed is not None:
-            speed = r.condition.speed
-        if r.condition.oil_temperature is not None:
-            oil = r.condition.oil_temperature
+    for r in sorted(visit.current_readings(), key=lambda r: r.taken_at):
         tp = points.get(r.test_point)
         if tp is not None and tp.role is Role.OIL_TEMPERATURE:
             oil = r.value
+        if tp is not None and tp.role is Role.PUMP_SPEED:
+            speed = r.value
     return speed, oil

@@ -38,7 +38,7 @@ async def test_a_line_given_the_same_data_again_is_not_redrawn() -> None:
 
     def draw(label: str, closed: bool) -> Text:
         drawn.append((label, closed))
-        return Text(f"NEXT ▸ {label}", end="")
+        return Text(f"NEXT → {label}", end="")
 
     line = DrawnLine(draw)
     async with _One(line).run_test() as pilot:
@@ -50,7 +50,7 @@ async def test_a_line_given_the_same_data_again_is_not_redrawn() -> None:
         assert line.content is shown and drawn == [("charge pressure", False)]
         line.data = ("case pressure", False)
         await pilot.pause()
-        assert line.content.plain == "NEXT ▸ case pressure" and len(drawn) == 2
+        assert line.content.plain == "NEXT → case pressure" and len(drawn) == 2
 
 
 def test_a_band_drawn_in_runs_reads_the_same_as_cell_by_cell() -> None:

@@ -30,7 +30,7 @@ async def test_visit_screen_at_80_by_24_shows_plan_step_entry_cautions_and_every
         # Title bar, then the engine's next test and its current top fault.
         assert "RHS-25-0301" in lines[0] and "open" in lines[0] and "4 readings" in lines[0]
         nxt = screen.diagnosis.next_tests[0]
-        assert lines[1].startswith(f" NEXT ▸ {nxt.label}")
+        assert lines[1].startswith(f" NEXT → {nxt.label}")
         top = screen.diagnosis.faults[0]
         assert (
             lines[2].startswith(" LIKELY ▸") and f"{percent(top.probability)} {top.display_title}" in lines[2]
@@ -41,14 +41,16 @@ async def test_visit_screen_at_80_by_24_shows_plan_step_entry_cautions_and_every
         assert (
             "✓ charge pressure" in text and "· loop A pressure" in text and "· brake release pressure" in text
         )
-        assert f"▸✓ {nxt.label}" in text or f"▸· {nxt.label}" in text
+        # The visit opens on the recommended point: selected (▸) and recommended (→) at once.
+        assert f"▸✓ → {nxt.label}" in text or f"▸· → {nxt.label}" in text
 
         # The step: where the point is, the gauge check, the band of the reading already taken.
         assert "Where   charge gauge port, left pump end cover" in text
         assert "in range" in text and "[" in text and "●" in text
 
-        # Entry row: value field, gauge suggested for the point, condition, speed and oil.
-        assert "G60 0–60 bar cl 1" in text and "neutral" in text and "2200 rpm" in text and "50 °C" in text
+        # Entry row: value field, gauge suggested for the point, condition, and the speed and oil
+        # temperature of the visit's own speed and oil readings (demo-open-visit.json).
+        assert "G60 0–60 bar cl 1" in text and "neutral" in text and "2205 rpm" in text and "49 °C" in text
         assert "Enter saves" in text
 
         # Cautions for this step, worst first: the engine asks for charge with the drive at full
@@ -91,5 +93,5 @@ async def test_resizing_the_window_never_crashes_and_keeps_the_visit(demo_app) -
             await pilot.resize_terminal(*size)
             await pilot.pause()
             assert app.size == size
-            assert "NEXT ▸" in screen_text(app)
+            assert "NEXT →" in screen_text(app)
         assert app.is_running

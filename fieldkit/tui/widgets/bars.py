@@ -37,7 +37,7 @@ def visit_title(visit: Visit, profile: MachineProfile, demo: bool = False) -> Te
 
 def next_line(next_test: NextTest | None, closed: bool) -> Text:
     out = Text(end="", no_wrap=True, overflow="ellipsis")
-    out.append("NEXT ▸ ", "bold")
+    out.append("NEXT → ", "bold")
     if closed:
         out.append("visit closed")
         return out

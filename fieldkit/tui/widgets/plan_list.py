@@ -1,8 +1,10 @@
 """The test plan list: circuits as headings, each test point with a state glyph and word.
 
 The glyph carries the state without colour (· not measured, ✓ in range, ✗ out of range,
-? inconclusive, – skipped); the colour classes only repeat it. The point the engine recommends
-next is marked with ▸.
+? inconclusive, – skipped); the colour classes only repeat it. ``▸`` marks the selected point, the
+one the step panel shows: it moves with the highlight and nowhere else, so the list and the panel
+always agree. The point the engine recommends next is marked ``→`` (the NEXT line names it too);
+saving a reading never moves the selection to it.
 """
 
 from __future__ import annotations
@@ -21,10 +23,18 @@ from fieldkit.tui.plan import PlanCircuit, PlanPoint, PointState
 from fieldkit.tui.safe_text import literal
 
 
-def point_text(p: PlanPoint, *, recommended: bool, styles: dict[PointState, Style] | None = None) -> Text:
+def point_text(
+    p: PlanPoint,
+    *,
+    recommended: bool,
+    selected: bool = False,
+    styles: dict[PointState, Style] | None = None,
+) -> Text:
     out = Text(end="", no_wrap=True, overflow="ellipsis")
-    out.append("▸" if recommended else " ", "bold")
+    out.append("▸" if selected else " ", "bold")
     out.append(f"{p.state.glyph} ", (styles or {}).get(p.state, ""))
+    if recommended:
+        out.append("→ ", "bold")
     out.append_text(literal(p.point.label))
     if p.checks:
         out.append(f" ×{len(p.checks)}" if len(p.checks) > 1 else "", "dim")
@@ -62,6 +72,9 @@ class PlanList(OptionList):
         #: What each row was drawn from, to redraw only the rows whose point changed.
         self._drawn: list[object] = []
         self._styles: dict[PointState, Style] = {}
+        #: The point marked ▸ (the highlighted one, as the screen shows it).
+        self._marked_id: str | None = None
+        self._plan_points: dict[str, tuple[PlanPoint, bool]] = {}
 
     def _state_styles(self) -> dict[PointState, Style]:
         return {
@@ -78,15 +91,20 @@ class PlanList(OptionList):
             drawn.append(pc.circuit.name)
             for p in pc.points:
                 ids.append(p.id)
-                drawn.append((p, p.id == recommended))
+                drawn.append((p, p.id == recommended, p.id == selected))
+        self._plan_points = {d[0].id: (d[0], d[1]) for d in drawn if isinstance(d, tuple)}
+        self._marked_id = selected
         if ids == self._ids and styles == self._styles:
             # Same plan, new states: swap the changed rows in place (no rebuild, no jump of the
             # cursor, and nothing redrawn when a reading left every state as it was).
             for index, (old, new) in enumerate(zip(self._drawn, drawn, strict=True)):
                 if old != new and isinstance(new, tuple):
-                    point, recommended_here = new
+                    point, recommended_here, selected_here = new
                     self.replace_option_prompt_at_index(
-                        index, point_text(point, recommended=recommended_here, styles=styles)
+                        index,
+                        point_text(
+                            point, recommended=recommended_here, selected=selected_here, styles=styles
+                        ),
                     )
         else:
             options: list[Option] = []
@@ -98,7 +116,12 @@ class PlanList(OptionList):
                 options.append(Option(head, id=f"circuit:{pc.circuit.id}", disabled=True))
                 for p in pc.points:
                     options.append(
-                        Option(point_text(p, recommended=p.id == recommended, styles=styles), id=p.id)
+                        Option(
+                            point_text(
+                                p, recommended=p.id == recommended, selected=p.id == selected, styles=styles
+                            ),
+                            id=p.id,
+                        )
                     )
             self.clear_options()
             self.add_options(options)
@@ -113,7 +136,24 @@ class PlanList(OptionList):
         event.stop()
         point_id = event.option.id
         if point_id is not None and not point_id.startswith("circuit:"):
+            self._mark_selected(point_id)
             self.post_message(self.PointChosen(point_id))
+
+    def _mark_selected(self, point_id: str) -> None:
+        """Move ▸ to the highlighted point (two rows redrawn)."""
+        old, self._marked_id = self._marked_id, point_id
+        if old == point_id:
+            return
+        for pid in (old, point_id):
+            if pid is None or pid not in self._plan_points:
+                continue
+            point, recommended = self._plan_points[pid]
+            index = self.get_option_index(pid)
+            self.replace_option_prompt_at_index(
+                index,
+                point_text(point, recommended=recommended, selected=pid == point_id, styles=self._styles),
+            )
+            self._drawn[index] = (point, recommended, pid == point_id)
 
     @on(OptionList.OptionSelected)
     def _selected(self, event: OptionList.OptionSelected) -> None:

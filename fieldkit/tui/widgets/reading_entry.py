@@ -21,16 +21,18 @@ from textual.reactive import reactive
 from textual.widgets import Input, Select
 
 from fieldkit.errors import AmbiguousInputError, ConfirmValueError, FieldkitError
-from fieldkit.model.condition import Condition, FunctionState
+from fieldkit.model.condition import Condition, ConditionSource, FunctionState
+from fieldkit.model.example import example_text
 from fieldkit.model.gauge import Gauge
 from fieldkit.model.profile import MachineProfile, TestPoint
+from fieldkit.model.roles import Role
 from fieldkit.model.visit import Reading, Visit
 from fieldkit.session import Workbench
 from fieldkit.tui.guard import guarded
 from fieldkit.tui.safe_text import literal
 from fieldkit.tui.step import SHORT_STATE, last_condition_values, suggest_gauge
 from fieldkit.tui.widgets.drawn import DrawnBlock
-from fieldkit.units import EXAMPLE, Kind, ParsedValue, format_value, parse_value
+from fieldkit.units import Kind, ParsedValue, format_value, parse_value
 
 _BARE_NUMBER = re.compile(r"^\s*[+\-]?\d[\d.,]*\s*$")
 VALUE_HINT = "type the value as the gauge shows it (e.g. 24,5 bar · 3,500 psi · 0.75 bar abs); Enter saves it"
@@ -102,6 +104,10 @@ class ReadingEntry(Vertical):
         self.visit: Visit | None = None
         self._keep_message = False  # a 'saved' line stays until the next keystroke
         self._danger = ""  # the danger caution the typed value raised
+        #: Where the text now in the speed and oil fields came from, and that text: a value the
+        #: program filled in (a reading's) or typed for an earlier reading is an assumption.
+        self._sources: dict[str, ConditionSource] = {}
+        self._filled: dict[str, str] = {}
 
     def compose(self) -> ComposeResult:
         with Horizontal(classes="entry-row"):
@@ -115,18 +121,42 @@ class ReadingEntry(Vertical):
                 id="function",
                 compact=True,
             )
-            yield Input(placeholder="speed rpm", id="speed", compact=True, max_length=32)
-            yield Input(placeholder="oil °C", id="oil", compact=True, max_length=32)
+            yield Input(placeholder="rpm not read", id="speed", compact=True, max_length=32)
+            yield Input(placeholder="°C not read", id="oil", compact=True, max_length=32)
         yield DrawnBlock(message_text, id="parse-msg")
 
     def on_mount(self) -> None:
-        self.say(VALUE_HINT, "info")
+        self.say(self.value_hint(), "info")
 
     # --- reactive state -----------------------------------------------------------------------
-    def watch_point(self, point: TestPoint | None) -> None:
-        if point is not None:
-            self.query_one("#value", Input).placeholder = f"e.g. {EXAMPLE[point.kind]}"
+    def watch_point(self, old: TestPoint | None, point: TestPoint | None) -> None:
+        value = self.query_one("#value", Input)
+        if old is not None and point is not None and old.id != point.id and value.value.strip():
+            # A value typed for one point must never be saved at another: it goes, and says so.
+            dropped = value.value.strip()
+            value.value = ""
+            value.remove_class("-bad")
+            self._raise_danger("")
+            self.say(
+                f"'{dropped}' typed at {old.label} was not saved; it was cleared on moving, "
+                f"so it cannot be saved at {point.label}",
+                "info",
+                keep=True,
+            )
+        self._show_example()
         self.update_message()
+
+    def _show_example(self) -> None:
+        """The entry box's example comes from the point's own range in the state set (item 9)."""
+        if self.point is not None:
+            self.query_one("#value", Input).placeholder = f"e.g. {example_text(self.point, self.function)}"
+
+    def value_hint(self) -> str:
+        """What to type here, with this point's own example."""
+        if self.point is None:
+            return VALUE_HINT
+        example = example_text(self.point, self.function)
+        return f"type the value as the gauge shows it, e.g. {example}; Enter saves it"
 
     def watch_closed(self, closed: bool) -> None:
         for wid in FIELDS:
@@ -164,19 +194,45 @@ class ReadingEntry(Vertical):
             select.value = choose
         elif best is not None:
             select.value = best.id
-        elif fitting:
-            select.value = fitting[0].id
+        else:  # no gauge of the visit can show what this point reads: none is pretended to
+            select.clear()
 
     def fill_condition_defaults(self, profile: MachineProfile, *, force: bool = False) -> None:
-        """Speed and oil temperature from the last readings, where the fields are empty (or always)."""
+        """Speed and oil temperature from the visit's latest speed and oil temperature readings,
+        where the fields are empty (or always); nothing ("not measured") where there is none."""
         assert self.visit is not None
         speed, oil = last_condition_values(self.visit, profile)
         speed_in, oil_in = self.query_one("#speed", Input), self.query_one("#oil", Input)
         if speed is not None and (force or not speed_in.value.strip()):
-            speed_in.value = format_value(speed, self.bench.system)
+            self._set_condition_field(
+                "#speed", format_value(speed, self.bench.system), ConditionSource.READING
+            )
         if oil is not None and (force or not oil_in.value.strip()):
-            oil_in.value = format_value(oil, self.bench.system)
-        oil_in.placeholder = f"oil {self.bench.system.temperature}"
+            self._set_condition_field("#oil", format_value(oil, self.bench.system), ConditionSource.READING)
+        speed_in.placeholder = "rpm not read"
+        oil_in.placeholder = f"{self.bench.system.temperature} not read"
+
+    def _set_condition_field(self, field: str, text: str, source: ConditionSource) -> None:
+        """Fill a condition field from the program (not typed): remember where the value came from."""
+        box = self.query_one(field, Input)
+        self._sources[field] = source
+        self._filled[field] = text
+        box.value = text
+
+    def follow_reading(self, reading: Reading, point: TestPoint) -> None:
+        """A speed or oil temperature reading was just saved: later conditions follow it."""
+        field = {Role.PUMP_SPEED: "#speed", Role.OIL_TEMPERATURE: "#oil"}.get(point.role)
+        if field is not None:
+            self._set_condition_field(
+                field, format_value(reading.value, self.bench.system), ConditionSource.READING
+            )
+
+    def _source_of(self, field: str) -> ConditionSource:
+        """Typed now, or as filled in by the program / typed for an earlier reading."""
+        text = self.query_one(field, Input).value
+        if self._filled.get(field) == text:
+            return self._sources.get(field, ConditionSource.TYPED)
+        return ConditionSource.TYPED
 
     def unsaved_value(self) -> tuple[str, str] | None:
         """A value typed but not saved, and where (for the quit and leave prompts)."""
@@ -224,7 +280,13 @@ class ReadingEntry(Vertical):
                 ).quantity
             except FieldkitError as exc:
                 raise FieldkitError(f"oil field: {exc}") from None
-        return Condition(function=self.function, speed=speed, oil_temperature=oil)
+        return Condition(
+            function=self.function,
+            speed=speed,
+            oil_temperature=oil,
+            speed_from=self._source_of("#speed") if speed is not None else None,
+            oil_from=self._source_of("#oil") if oil is not None else None,
+        )
 
     def show_problem(self, text: str) -> None:
         """An unexpected error, in plain words, where the technician is looking (tui/guard.py)."""
@@ -254,7 +316,7 @@ class ReadingEntry(Vertical):
         if not text.strip():
             value_input.remove_class("-bad")
             self._raise_danger("")
-            self.say(VALUE_HINT, "info")
+            self.say(self.value_hint(), "info")
             return
         try:
             parsed = self.bench.parse_for_point(point, text)
@@ -294,6 +356,7 @@ class ReadingEntry(Vertical):
     @on(Select.Changed, "#gauge")
     def _condition_changed(self, event: Select.Changed) -> None:
         event.stop()
+        self._show_example()
         self.update_message()
         self.post_message(self.ConditionChanged())
 
@@ -318,7 +381,7 @@ class ReadingEntry(Vertical):
             self.say("This visit is closed; reopen it to add readings.", "error")
             return False
         if not text.strip():
-            self.say("Type a value first; " + VALUE_HINT, "error")
+            self.say("Type a value first; " + self.value_hint(), "error")
             return False
         if point is None:
             return False
@@ -353,6 +416,12 @@ class ReadingEntry(Vertical):
         return True
 
     def _saved(self, reading: Reading, point: TestPoint) -> None:
+        # A condition typed for this reading is, for the next one, only what was typed before.
+        for field, source in (("#speed", reading.condition.speed_from), ("#oil", reading.condition.oil_from)):
+            if source is ConditionSource.TYPED:
+                self._sources[field] = ConditionSource.CARRIED
+                self._filled[field] = self.query_one(field, Input).value
+        self.follow_reading(reading, point)
         # The screen says "saved" once it has diagnosed again; clearing the field must not put
         # the typing hint there first (a redraw for nothing in the frame that matters).
         self._keep_message = True

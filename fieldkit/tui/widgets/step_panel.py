@@ -64,7 +64,7 @@ def head_text(point: TestPoint, plan_point: PlanPoint | None) -> Text:
 
 
 def next_text(why: str) -> Text:
-    return Text.assemble(("▸ Recommended next: ", "bold"), literal(why), end="")
+    return Text.assemble(("→ Recommended next: ", "bold"), literal(why), end="")
 
 
 def info_text(
