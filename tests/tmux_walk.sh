@@ -10,6 +10,8 @@
 #
 # Exits non-zero (and prints the screen) at the first wrong answer; prints the counts at the end.
 set -euo pipefail
+# The tmux server keeps the environment of whoever started it: PYTHONPATH is passed on explicitly
+# so the session runs this checkout's fieldkit.
 
 PYTHON=${PYTHON:-python}
 HERE=$(cd "$(dirname "$0")" && pwd)
@@ -56,7 +58,7 @@ points=0 inputs=0 saved=0 asked=0 refused=0
 for machine in "${machines[@]}"; do
     tmux kill-session -t "$SESSION" 2>/dev/null || true
     tmux new-session -d -s "$SESSION" -x 160 -y 50 \
-        "FIELDKIT_HOME='$FIELDKIT_HOME' TERM=xterm-256color '$PYTHON' -m fieldkit --store '$WORK/$machine.sqlite3' \
+        "FIELDKIT_HOME='$FIELDKIT_HOME' PYTHONPATH='${PYTHONPATH:-}' TERM=xterm-256color '$PYTHON' -m fieldkit --store '$WORK/$machine.sqlite3' \
          --profiles '$WORK/profiles'; echo \"EXITED \$?\"; sleep 120"
     wait_for "Open visits"
     keys r
@@ -107,6 +109,10 @@ for machine in "${machines[@]}"; do
         done < <(awk -F'\t' -v m="$machine" -v p="$point" '$1 == m && $2 == p' "$WORK/plan.tsv")
         clear_field
         keys Down
+        for ((i = 0; i < 100; i++)); do  # a loaded machine may take a while to show the next point
+            sleep 0.1
+            [ "$(current_point)" != "$point" ] && break
+        done
     done
     # ↓ goes round from the last point to the first: every point of the machine must have come up,
     # those above the one the visit opened on too.
