@@ -39,7 +39,7 @@ async def test_visit_screen_at_80_by_24_shows_plan_step_entry_cautions_and_every
         # The plan: circuits as headings, a state glyph per point, the recommended one marked.
         assert "Track drive" in text and "Track parking brakes" in text
         assert (
-            "✓ charge pressure" in text and "· loop A pressure" in text and "· brake release pressure" in text
+            "✓ case pressure" in text and "· loop A pressure" in text and "· brake release pressure" in text
         )
         # The visit opens on the recommended point: selected (▸) and recommended (→) at once.
         assert f"▸✓ → {nxt.label}" in text or f"▸· → {nxt.label}" in text
