@@ -156,9 +156,11 @@ def _parser() -> argparse.ArgumentParser:
 
     from fieldkit.kit_command import add_parsers as add_kit_parsers
     from fieldkit.machine_command import add_parsers as add_machine_parsers
+    from fieldkit.reading_command import add_parsers as add_reading_parsers
     from fieldkit.sync_command import add_parsers
 
     add_machine_parsers(sub)
+    add_reading_parsers(sub)
     add_parsers(sub)
     add_kit_parsers(sub)
     return p
@@ -280,6 +282,10 @@ def _dispatch(args: argparse.Namespace) -> int:
             return _import(bench, args)
         if cmd == "diagnose":
             return _diagnose(bench, args)
+        if cmd == "reading":
+            from fieldkit.reading_command import run_reading
+
+            return run_reading(bench, args)
         if cmd == "kit":
             from fieldkit.kit_command import run_kit
 

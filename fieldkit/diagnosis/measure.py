@@ -207,6 +207,10 @@ def unusable(reading: Reading, kind: Kind, barometric: Quantity | None = None) -
     return ""
 
 
+#: How a skipped reading is put right, in the UI and on the command line.
+FIX_IT = "correct or delete it (readings trail ^r, or 'fieldkit reading correct|delete')"
+
+
 def measure_visit(visit: Visit, profile: MachineProfile) -> tuple[list[Measured], list[str]]:
     """Every standing reading of the visit, ready for rules; plus notes on readings it had to skip."""
     points = {tp.id: (c, tp) for c, tp in profile.all_test_points()}
@@ -225,25 +229,32 @@ def measure_visit(visit: Visit, profile: MachineProfile) -> tuple[list[Measured]
     rated = to_canonical(profile.rated_speed, Kind.SPEED)
     tol = window.speed_tolerance_pct / 100.0
     out: list[Measured] = []
+    for r in visit.unreadable_readings():
+        where = points[r.test_point][1].label if r.test_point in points else f"test point '{r.test_point}'"
+        notes.append(
+            f"reading {r.id} at {where} (stored as '{r.entered}') cannot be used: {r.unreadable}; skipped — "
+            f"{FIX_IT}"
+        )
     for r in current:
         if r.test_point not in points:
             notes.append(
                 f"reading {r.id} is for test point '{r.test_point}', which profile '{profile.id}' does not "
-                "have; skipped"
+                "have; skipped — delete it with 'fieldkit reading delete'"
             )
             continue
         circuit, point = points[r.test_point]
         kind = point.kind
         if kind_of(r.value) is not kind:
             notes.append(
-                f"reading {r.id} at {point.label} is a {kind_of(r.value).value}, not a {kind.value}; skipped"
+                f"reading {r.id} at {point.label} is a {kind_of(r.value).value}, not a {kind.value}; skipped "
+                f"— {FIX_IT}"
             )
             continue
         problem = unusable(r, kind, visit.barometric_pressure)
         if problem:
             notes.append(
                 f"reading {r.id} at {point.label} (entered '{r.entered or r.value}') cannot be used: "
-                f"{problem}; skipped — correct or delete it (readings trail, ^r)"
+                f"{problem}; skipped — {FIX_IT}"
             )
             continue
         q = r.value

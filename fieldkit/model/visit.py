@@ -77,6 +77,12 @@ class Reading(Strict):
     reason: str = Field(default="", max_length=MAX_TEXT)
     #: Taken after the repair, to prove it; the diagnosis reads only the readings before it.
     after_repair: bool = False
+    #: Set by the store, never saved: why a stored value could not be read at all (an earlier
+    #: version or a hand edit stored 'nan bar' or '24 furlongs'). ``entered`` then holds the
+    #: stored text and ``value`` is a placeholder no computation may use; the reading does not
+    #: stand (:meth:`Visit.current_readings`), the diagnosis names it as skipped, and it can be
+    #: corrected or deleted like any other.
+    unreadable: str = Field(default="", exclude=True)
 
     @model_validator(mode="before")
     @classmethod
@@ -202,9 +208,17 @@ class Visit(Strict):
         return self
 
     def current_readings(self) -> list[Reading]:
-        """Readings that stand: not deleted and not replaced by a correction."""
+        """Readings that stand: not deleted and not replaced by a correction (a stored value
+        the store could not read stands for nothing: see :meth:`unreadable_readings`)."""
         replaced = {r.replaces for r in self.readings if r.replaces}
-        return [r for r in self.readings if r.deleted_at is None and r.id not in replaced]
+        return [
+            r for r in self.readings if r.deleted_at is None and r.id not in replaced and not r.unreadable
+        ]
+
+    def unreadable_readings(self) -> list[Reading]:
+        """Stored readings whose value could not be read, not yet corrected or deleted."""
+        replaced = {r.replaces for r in self.readings if r.replaces}
+        return [r for r in self.readings if r.deleted_at is None and r.id not in replaced and r.unreadable]
 
     def diagnosis_view(self) -> Visit:
         """The visit as it stood before the repair: what found the fault."""

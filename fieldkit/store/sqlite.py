@@ -19,6 +19,7 @@ from __future__ import annotations
 import contextlib
 import datetime as dt
 import json
+import math
 import sqlite3
 import threading
 from collections.abc import Iterable, Iterator, Sequence
@@ -37,6 +38,7 @@ from fieldkit.store.header_log import changed_fields
 from fieldkit.store.migrations import MIGRATIONS, Migration, apply_pending, latest_version
 from fieldkit.store.opening import FileState, create_store, inspect_file, inspect_with_sqlite
 from fieldkit.tomlfile import validation_error
+from fieldkit.units import Q_
 
 DEFAULT_BUSY_TIMEOUT_MS = 5000
 
@@ -260,6 +262,7 @@ class SqliteVisitStore:
         return [self._parse_reading(visit_id, rid, text, deleted) for rid, text, deleted in rows]
 
     def _parse_reading(self, visit_id: str, reading_id: str, text: str, deleted_at: str | None) -> Reading:
+        data: Any = None
         try:
             data = json.loads(text)
             if not isinstance(data, dict):
@@ -267,6 +270,9 @@ class SqliteVisitStore:
             # What was entered is immutable; the deletion mark lives in its own column.
             return Reading.model_validate({**data, "deleted_at": deleted_at})
         except (ValueError, ValidationError) as exc:
+            kept = _unreadable_value(data, deleted_at, _why(exc))
+            if kept is not None:
+                return kept
             raise StoreError(
                 f"reading '{reading_id}' of visit '{visit_id}' in {self.path} cannot be read: {_why(exc)}"
             ) from None
@@ -630,12 +636,25 @@ class SqliteVisitStore:
             self._touch(conn, visit_id)
             return checked
 
-    def delete_reading(self, visit_id: str, reading_id: str) -> Reading:
-        """Mark a reading deleted; the row and its value stay for the record."""
+    def delete_reading(self, visit_id: str, reading_id: str, reason: str = "") -> Reading:
+        """Mark a reading deleted; the row and its value stay for the record. A ``reason`` is
+        kept in the visit's notes in the same transaction (the deletion record has no text of
+        its own), so it travels with the visit and is printed on the job card."""
         with self._write("deletion") as conn:
-            self._open_header(conn, visit_id)
-            self._standing(conn, visit_id, reading_id)
+            header = self._open_header(conn, visit_id)
+            old = self._standing(conn, visit_id, reading_id)
             now = _now()
+            if reason.strip():
+                line = (
+                    f"Reading {reading_id} at {old.test_point} (entered '{old.entered}') deleted "
+                    f"{now[:16].replace('T', ' ')} UTC: {reason.strip()}"
+                )
+                notes = f"{header.notes}\n{line}" if header.notes else line
+                try:
+                    changed = Visit.model_validate({**header.model_dump(), "notes": notes, "readings": []})
+                except ValidationError as exc:
+                    raise StoreError(f"reading {reading_id} was not deleted: {_why(exc)}") from None
+                self._write_header(conn, changed, insert=False)
             conn.execute(
                 "UPDATE reading SET deleted_at = ? WHERE visit_id = ? AND id = ?",
                 (now, visit_id, reading_id),
@@ -686,6 +705,29 @@ class SqliteVisitStore:
                 readings = [r for r in visit.current_readings() if wanted is None or r.test_point in wanted]
                 out.append((self._summary(conn, visit, updated, by), readings))
         return out
+
+
+def _unreadable_value(data: Any, deleted_at: str | None, why: str) -> Reading | None:
+    """A stored reading whose value alone cannot be read (an earlier version stored 'nan bar' or
+    '24 furlongs'): kept as a reading marked unreadable, so the visit still opens and the reading
+    can be corrected or deleted. None when more than the value is wrong."""
+    if not isinstance(data, dict) or "value" not in data:
+        return None
+    stored = data.get("value")
+    try:
+        reading = Reading.model_validate(
+            {
+                **data,
+                "value": Q_(math.nan, "dimensionless"),
+                "reference": None,
+                "entered": str(data.get("entered") or stored)[:64],
+                "deleted_at": deleted_at,
+                "unreadable": f"the stored value {str(stored)[:64]!r} cannot be read ({why})",
+            }
+        )
+    except (ValueError, ValidationError):
+        return None
+    return reading
 
 
 def _field_values(obj: Any) -> Any:

@@ -297,9 +297,20 @@ def test_a_damaged_row_is_named_instead_of_a_traceback(store: SqliteVisitStore, 
             ),
         )
         conn.commit()
-        with pytest.raises(
-            StoreError, match=r"reading 'hand-edit' of visit '\w+' .* cannot be read: .*'bra'"
-        ):
+        # A value alone that cannot be read (issue 10, item 3) no longer locks the visit: the
+        # reading is kept, marked unreadable with the reason, and stands for nothing.
+        loaded = store.get_visit(v.id)
+        (kept,) = loaded.unreadable_readings()
+        assert kept.id == "hand-edit" and "'bra'" in kept.unreadable
+        assert "hand-edit" not in {r.id for r in loaded.current_readings()}
+        # A row damaged beyond its value is still named, never a traceback.
+        conn.execute(
+            "INSERT INTO reading (visit_id, id, test_point, taken_at, stored_at, reading_json) VALUES (?, "
+            "?, ?, ?, ?, ?)",
+            (v.id, "cut-short", CHARGE, "2024-05-14T08:31:00Z", "2024-05-14T08:31:00Z", '{"id": "cut-sh'),
+        )
+        conn.commit()
+        with pytest.raises(StoreError, match=r"reading 'cut-short' of visit '\w+' .* cannot be read"):
             store.get_visit(v.id)
         conn.execute('UPDATE visit SET header_json = \'{"job_number": ""}\' WHERE id = ?', (v.id,))
         conn.commit()
