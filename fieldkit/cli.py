@@ -239,9 +239,19 @@ def _workbench(args: argparse.Namespace, store: str | None = None, demo: bool = 
         settings = settings.model_copy(update={"display": args.units})
     if args.decimal_comma:
         settings = settings.model_copy(update={"decimal_comma": True})
-    return Workbench.open(
+    bench = Workbench.open(
         store or args.store, profile_dirs=args.profiles, rules_folder=args.rules, settings=settings, demo=demo
     )
+    if args.command not in UI_COMMANDS:  # the UI shows them on its start screen
+        for line in bench.library.problem_lines():
+            print(f"fieldkit: warning: {line}", file=sys.stderr)
+        if bench.store.read_only:
+            print(
+                f"fieldkit: note: the store {bench.store.path} is read-only here; "
+                "it is opened for reading only",
+                file=sys.stderr,
+            )
+    return bench
 
 
 def _dispatch(args: argparse.Namespace) -> int:

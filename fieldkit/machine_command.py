@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import argparse
 import re
+import sys
 from pathlib import Path
 from typing import Any
 
@@ -56,7 +57,10 @@ def library(args: argparse.Namespace, demo: bool) -> ProfileLibrary:
     demo_folder = samples_dir() / "profiles"
     folders = ([demo_folder] if demo else []) + [user_profiles_dir(), *args.profiles]
     hidden = [] if demo else [demo_folder]
-    return ProfileLibrary(folders, (args.rules or rules_dir()) / "templates", hidden_folders=hidden)
+    lib = ProfileLibrary(folders, (args.rules or rules_dir()) / "templates", hidden_folders=hidden)
+    for line in lib.problem_lines():
+        print(f"fieldkit: warning: {line}", file=sys.stderr)
+    return lib
 
 
 def run_machine(args: argparse.Namespace) -> int:

@@ -331,6 +331,7 @@ def _merge_circuit(
                 path,
                 f"omit_test_points names '{bad}', which template '{name}' does not have",
                 line_for(lines, ("circuits", index, "omit_test_points")),
+                f"circuits.{index}.omit_test_points",
             )
     for k, part in enumerate(circuit.get("fitted_parts") or []):
         if part not in {p.value for p in tmpl.parts}:
@@ -399,9 +400,65 @@ def _check_point(point: Any, path: str, text: str, loc: tuple[Any, ...]) -> None
         raise validation_error(exc, path, text, prefix=loc) from None
 
 
+#: What the merge reads in each circuit and test point, and the TOML type each must have; checked
+#: before merging so a wrong type anywhere is named with its key and line, never a TypeError.
+_CIRCUIT_SHAPE: dict[str, tuple[type, str]] = {
+    "template": (str, "a template id in quotes"),
+    "parameters": (dict, "a table of the maker's figures"),
+    "test_points": (list, "a list of [[circuits.test_points]] tables"),
+    "omit_test_points": (list, "a list of test point ids"),
+    "fitted_parts": (list, "a list of part names"),
+    "reliefs": (list, "a list of relief tables"),
+}
+_POINT_SHAPE: dict[str, tuple[type, str]] = {
+    "id": (str, "a test point id in quotes"),
+    "role": (str, "a role name in quotes"),
+    "part": (str, "a part name in quotes"),
+    "expected": (list, "a list of [[...expected]] range tables"),
+}
+
+
+def _check_shapes(raw: dict[str, Any], path: str, lines: dict[tuple[Any, ...], int]) -> None:
+    """The types the template merge relies on, reported with key and line when wrong."""
+
+    def wrong(loc: tuple[Any, ...], what: str, value: Any) -> DataFileError:
+        return DataFileError(
+            path,
+            f"must be {what}, not {type(value).__name__} {str(value)[:40]!r}",
+            line_for(lines, loc),
+            ".".join(map(str, loc)),
+        )
+
+    circuits = raw.get("circuits")
+    if circuits is None:
+        return
+    if not isinstance(circuits, list):
+        raise wrong(("circuits",), "a list of [[circuits]] tables", circuits)
+    for i, circuit in enumerate(circuits):
+        if not isinstance(circuit, dict):
+            raise wrong(("circuits", i), "a [[circuits]] table", circuit)
+        for key, (kind, what) in _CIRCUIT_SHAPE.items():
+            if key in circuit and not isinstance(circuit[key], kind):
+                raise wrong(("circuits", i, key), what, circuit[key])
+        for key in ("omit_test_points", "fitted_parts"):
+            for k, item in enumerate(circuit.get(key) or []):
+                if not isinstance(item, str):
+                    raise wrong(("circuits", i, key, k), "a name in quotes", item)
+        for j, tp in enumerate(circuit.get("test_points") or []):
+            if not isinstance(tp, dict):
+                raise wrong(("circuits", i, "test_points", j), "a test point table", tp)
+            for key, (kind, what) in _POINT_SHAPE.items():
+                if key in tp and not isinstance(tp[key], kind):
+                    raise wrong(("circuits", i, "test_points", j, key), what, tp[key])
+            for k, rng in enumerate(tp.get("expected") or []):
+                if not isinstance(rng, dict):
+                    raise wrong(("circuits", i, "test_points", j, "expected", k), "a range table", rng)
+
+
 def profile_from_raw(raw: dict[str, Any], templates: Templates, path: str, text: str = "") -> MachineProfile:
     """A profile from its parsed TOML table (a file, or the machine builder's form)."""
     lines = key_lines(text) if text else {}
+    _check_shapes(raw, path, lines)
     machine = _machine_figures(raw, path, lines)
     circuits = raw.get("circuits")
     if isinstance(circuits, list):
@@ -420,8 +477,27 @@ def load_profile(path: Path, templates: Templates) -> MachineProfile:
     return profile_from_raw(parse_toml(text, str(path)), templates, str(path), text)
 
 
+def _load_one(path: Path, templates: Templates) -> MachineProfile:
+    """:func:`load_profile`, with any failure the checks above did not foresee still reported as
+    this file's problem (a profile folder is people's work: it must never stop the program)."""
+    try:
+        return load_profile(path, templates)
+    except DataFileError:
+        raise
+    except (OSError, ValueError, TypeError, KeyError, AttributeError, RecursionError, OverflowError) as exc:
+        raise DataFileError(
+            str(path), f"cannot be read as a machine profile ({type(exc).__name__}: {exc})"
+        ) from None
+
+
 class ProfileLibrary:
-    """The machine profiles fieldkit knows: bundled demo profiles and the user's own folders."""
+    """The machine profiles fieldkit knows: bundled demo profiles and the user's own folders.
+
+    One broken file stops nothing else: a profile that cannot be loaded (a wrong type, a cut-off
+    file, binary junk, an id another file already uses) is left out and kept in ``problems``
+    with its file, line, key and reason, for every command and the start screen to show; the
+    other machines work as before. ``fieldkit machine check FILE`` still fails on it outright.
+    """
 
     def __init__(
         self, folders: list[Path], templates_folder: Path, hidden_folders: list[Path] | None = None
@@ -431,19 +507,29 @@ class ProfileLibrary:
         #: Profiles from ``hidden_folders`` (the bundled demo outside the demo): found by id, so
         #: an old visit on one still opens, but never listed for a new visit.
         self.hidden: set[str] = set()
+        #: Profile files left out because they could not be loaded, each naming file and reason.
+        self.problems: list[DataFileError] = []
         for folder in [*(hidden_folders or []), *folders]:
             if not folder.is_dir():
                 continue
             for path in sorted(folder.glob("*.toml")):
-                profile = load_profile(path, self.templates)
-                if profile.id in self._profiles and self._profiles[profile.id][1] != path:
-                    other = self._profiles[profile.id][1]
-                    raise DataFileError(
-                        str(path), f"profile id '{profile.id}' is also used by {other}", key="id"
-                    )
+                try:
+                    profile = _load_one(path, self.templates)
+                    if profile.id in self._profiles and self._profiles[profile.id][1] != path:
+                        other = self._profiles[profile.id][1]
+                        raise DataFileError(
+                            str(path), f"profile id '{profile.id}' is also used by {other}", key="id"
+                        )
+                except DataFileError as exc:
+                    self.problems.append(exc)
+                    continue
                 self._profiles[profile.id] = (profile, path)
                 if folder in (hidden_folders or []):
                     self.hidden.add(profile.id)
+
+    def problem_lines(self) -> list[str]:
+        """One line per profile file left out, for a command's standard error or the start screen."""
+        return [f"skipped the broken machine profile {exc}" for exc in self.problems]
 
     def has(self, profile_id: str) -> bool:
         return profile_id in self._profiles
@@ -453,7 +539,15 @@ class ProfileLibrary:
             return self._profiles[profile_id][0]
         except KeyError:
             known = ", ".join(sorted(self._profiles)) or "none"
-            raise DataFileError(profile_id, f"no machine profile with this id (known: {known})") from None
+            broken = (
+                f"; {len(self.problems)} broken profile file(s) were left out: "
+                + "; ".join(exc.path for exc in self.problems)
+                if self.problems
+                else ""
+            )
+            raise DataFileError(
+                profile_id, f"no machine profile with this id (known: {known}){broken}"
+            ) from None
 
     def path_of(self, profile_id: str) -> Path:
         return self._profiles[profile_id][1]

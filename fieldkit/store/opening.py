@@ -23,6 +23,7 @@ from fieldkit.errors import StoreError
 from fieldkit.store.migrations import APPLICATION_ID, MIGRATIONS, Migration, apply_pending, latest_version
 
 SQLITE_MAGIC = b"SQLite format 3\x00"
+_READONLY, _CANTOPEN = 8, 14  # SQLite result codes (sqlite3.h)
 HEADER_BYTES = 100
 
 
@@ -115,12 +116,16 @@ def _check_length(path: Path, header: bytes, size: int) -> None:
         )
 
 
-def inspect_with_sqlite(path: Path, migrations: tuple[Migration, ...] = MIGRATIONS) -> int:
+def inspect_with_sqlite(
+    path: Path, migrations: tuple[Migration, ...] = MIGRATIONS, *, immutable: bool = False
+) -> int:
     """Second look through a read-only connection, which also sees a write-ahead log a raw read
     cannot. A read-only connection never checkpoints, so the main file stays byte-identical.
-    Returns the store's layout version."""
+    ``immutable``: the folder cannot be written, so SQLite may not look for a log it could not
+    make. Returns the store's layout version."""
+    mode = "ro&immutable=1" if immutable else "ro"
     try:
-        conn = sqlite3.connect(path.resolve().as_uri() + "?mode=ro", uri=True, isolation_level=None)
+        conn = sqlite3.connect(path.resolve().as_uri() + f"?mode={mode}", uri=True, isolation_level=None)
     except sqlite3.Error as exc:
         raise StoreError(f"{path}: cannot open the store ({exc})") from None
     try:
@@ -129,6 +134,11 @@ def inspect_with_sqlite(path: Path, migrations: tuple[Migration, ...] = MIGRATIO
         version = int(conn.execute("PRAGMA user_version").fetchone()[0])
         tables = {row[0] for row in conn.execute("SELECT name FROM sqlite_master WHERE type = 'table'")}
     except sqlite3.DatabaseError as exc:
+        code = (getattr(exc, "sqlite_errorcode", None) or 0) & 0xFF
+        if code in (_READONLY, _CANTOPEN):  # not damage: the file or its folder cannot be written
+            raise StoreError(
+                f"{path}: cannot open the store for reading here (read-only file or folder: {exc})"
+            ) from None
         raise _refuse(path, f"the store is damaged and cannot be read ({exc})") from None
     finally:
         conn.close()

@@ -20,6 +20,7 @@ import contextlib
 import datetime as dt
 import json
 import math
+import os
 import sqlite3
 import threading
 from collections.abc import Iterable, Iterator, Sequence
@@ -76,16 +77,28 @@ class SqliteVisitStore:
         *,
         busy_timeout_ms: int = DEFAULT_BUSY_TIMEOUT_MS,
         migrations: tuple[Migration, ...] = MIGRATIONS,
+        read_only: bool | None = None,
     ) -> None:
         self.path = Path(path)
         self._busy_timeout_ms = int(busy_timeout_ms)
         self._lock = threading.RLock()
         self._conn: sqlite3.Connection | None = None
         state = inspect_file(self.path, migrations)
+        #: Opened for reading only: asked for, or the file or its folder cannot be written here
+        #: (a store on a write-protected stick, a colleague's file). Reads work; every write is
+        #: refused with a message that says read-only, never 'damaged'.
+        self.read_only = (not writable_here(self.path)) if read_only is None else read_only
         if state is not FileState.STORE:
+            if self.read_only and state is FileState.EMPTY:
+                raise StoreError(f"{self.path} is an empty file that cannot be written here (read-only)")
             create_store(self.path, migrations)
             inspect_file(self.path, migrations)  # whoever won a creation race, judge what is there now
-        version = inspect_with_sqlite(self.path, migrations)
+        version = inspect_with_sqlite(self.path, migrations, immutable=self._immutable)
+        if self.read_only and version < latest_version(migrations):
+            raise StoreError(
+                f"the store {self.path} is read-only here and was made by an older fieldkit (layout "
+                f"{version}); it is upgraded once, where it can be written: copy it to a writable folder"
+            )
         self._conn = self._connect()
         if version < latest_version(migrations):
             try:
@@ -114,10 +127,21 @@ class SqliteVisitStore:
 
     # --- connection and transactions ----------------------------------------------------------
 
+    @property
+    def _immutable(self) -> bool:
+        """A read-only store in a folder that cannot be written either: SQLite cannot make the
+        shared-memory file a WAL reader needs, so the file is opened as unchanging (nobody can
+        write it there), unless a write-ahead log with content lies beside it."""
+        if not self.read_only or os.access(self.path.parent, os.W_OK):
+            return False
+        wal = Path(f"{self.path}-wal")
+        return not (wal.exists() and wal.stat().st_size > 0)
+
     def _connect(self) -> sqlite3.Connection:
+        mode = ("ro&immutable=1" if self._immutable else "ro") if self.read_only else "rw"
         try:
             conn = sqlite3.connect(
-                self.path.resolve().as_uri() + "?mode=rw",
+                self.path.resolve().as_uri() + f"?mode={mode}",
                 uri=True,
                 isolation_level=None,
                 check_same_thread=False,
@@ -128,6 +152,9 @@ class SqliteVisitStore:
         try:
             # synchronous is per connection: it must be set on every connect, not once per file.
             conn.execute(f"PRAGMA busy_timeout = {self._busy_timeout_ms}")
+            if self.read_only:  # a reader changes nothing, not even the journal mode
+                conn.execute("PRAGMA query_only = ON")
+                return conn
             conn.execute("PRAGMA journal_mode = WAL")
             conn.execute("PRAGMA synchronous = FULL")
             conn.execute("PRAGMA foreign_keys = ON")
@@ -171,6 +198,12 @@ class SqliteVisitStore:
         """One write transaction: committed (durably) when the block ends, rolled back on any error."""
         with self._lock:
             conn = self._db
+            if self.read_only:
+                raise StoreError(
+                    f"the store {self.path} is read-only here (the file or its folder cannot be written); "
+                    f"nothing was saved by this {doing}. Copy it to a folder you can write, or have its "
+                    "owner make it writable"
+                )
             try:
                 conn.execute("BEGIN IMMEDIATE")
             except sqlite3.Error as exc:
@@ -647,7 +680,7 @@ class SqliteVisitStore:
             if reason.strip():
                 line = (
                     f"Reading {reading_id} at {old.test_point} (entered '{old.entered}') deleted "
-                    f"{now[:16].replace('T', ' ')} UTC: {reason.strip()}"
+                    f"{now[:16].replace('T', ' ')} UTC: {' '.join(reason.split())}"
                 )
                 notes = f"{header.notes}\n{line}" if header.notes else line
                 try:
@@ -705,6 +738,14 @@ class SqliteVisitStore:
                 readings = [r for r in visit.current_readings() if wanted is None or r.test_point in wanted]
                 out.append((self._summary(conn, visit, updated, by), readings))
         return out
+
+
+def writable_here(path: Path) -> bool:
+    """Whether this process may write the store and the files beside it (WAL and shared
+    memory). A missing file counts as writable: it is created, or the creation says why not."""
+    if not path.exists():
+        return True
+    return os.access(path, os.W_OK) and os.access(path.parent, os.W_OK)
 
 
 def _unreadable_value(data: Any, deleted_at: str | None, why: str) -> Reading | None:

@@ -24,11 +24,13 @@ BAD = {
 }
 
 
-def store_with_bad_readings(path: Path | None = None) -> Path:
-    """The demo open visit, then the four bad readings inserted as raw rows."""
+def store_with_bad_readings(path: Path | None = None, *, with_visit: bool = True) -> Path:
+    """The demo open visit (unless the store has it already), then the four bad readings
+    inserted as raw rows."""
     path = path or Path(os.environ["FIELDKIT_STORE"])
-    with open_store(path) as store:
-        store.import_visit(Visit.model_validate_json(SAMPLE.read_text(encoding="utf-8")))
+    if with_visit:
+        with open_store(path) as store:
+            store.import_visit(Visit.model_validate_json(SAMPLE.read_text(encoding="utf-8")))
     conn = sqlite3.connect(path, isolation_level=None)
     try:
         for minute, (rid, (point, value, _why)) in enumerate(BAD.items()):

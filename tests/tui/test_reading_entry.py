@@ -155,7 +155,11 @@ async def test_a_correction_and_a_deletion_keep_every_value_in_the_trail(demo_ap
         await pilot.press("down", "x")  # the correction is the second row
         await wait_until(pilot, lambda: isinstance(app.screen, ConfirmDialog))
         await pilot.press("y")
+        await wait_until(pilot, lambda: isinstance(app.screen, LinePrompt))
+        await type_text(pilot, "gauge was not yet bled")  # the reason, kept in the visit notes
+        await pilot.press("enter")
         await wait_until(pilot, lambda: "deleted" in screen_text(app))
+        assert "gauge was not yet bled" in _visit(store_path).notes
         visit = _visit(store_path)
         assert [r for r in visit.current_readings() if r.test_point == "travel.charge"] == []
         trail = [r for r in visit.readings if r.test_point == "travel.charge"]

@@ -20,16 +20,32 @@ from fieldkit.tui.safe_text import literal
 from fieldkit.tui.screens.base import FieldkitScreen
 from fieldkit.tui.screens.dialogs import ConfirmDialog, LinePrompt
 from fieldkit.tui.widgets.keybar import KeyBar
-from fieldkit.units import format_value
+from fieldkit.units import format_value, kind_of
 
 
-def reading_status(r: Reading, readings: list[Reading]) -> str:
+def reading_status(r: Reading, readings: list[Reading], point: TestPoint | None = None) -> str:
+    """'stands', 'corrected by …' or 'deleted …'; a standing reading the diagnosis cannot use
+    (stored by an earlier version: unreadable, or of the wrong kind) says so, to be put right."""
     newer = next((x for x in readings if x.replaces == r.id), None)
     if r.deleted_at is not None:
         return f"deleted {r.deleted_at:%Y-%m-%d %H:%M}"
     if newer is not None:
         return f"corrected by {newer.id}"
+    if r.unreadable:
+        return "stands, unreadable: skipped"
+    if point is not None and kind_of(r.value) is not point.kind:
+        return f"stands, a {kind_of(r.value).value}: skipped"
     return "stands" + (f" (corrects {r.replaces})" if r.replaces else "")
+
+
+def shown_value(r: Reading, bench: Workbench) -> str:
+    """The value in the display units, or a dash for a stored value that could not be read."""
+    if r.unreadable:
+        return "—"
+    try:
+        return format_value(r.value, bench.system)
+    except FieldkitError:
+        return r.entered or "—"
 
 
 class ReadingsScreen(FieldkitScreen):
@@ -62,9 +78,9 @@ class ReadingsScreen(FieldkitScreen):
         for r in self.readings:
             table.add_row(
                 literal(r.id),
-                literal(reading_status(r, self.readings)),
+                literal(reading_status(r, self.readings, self.point)),
                 literal(r.entered),
-                literal(format_value(r.value, self.bench.system)),
+                literal(shown_value(r, self.bench)),
                 literal(r.condition.describe()),
                 literal(r.gauge or "—"),
                 Text(f"{r.taken_at:%Y-%m-%d %H:%M}"),
@@ -87,7 +103,7 @@ class ReadingsScreen(FieldkitScreen):
         if r is None:
             self._say("Choose a reading first.")
             return None
-        status = reading_status(r, self.readings)
+        status = reading_status(r, self.readings, self.point)
         if not status.startswith("stands"):
             self._say(f"Reading {r.id} is {status}; only a standing reading can be changed.")
             return None
@@ -166,16 +182,30 @@ class ReadingsScreen(FieldkitScreen):
         if r is None:
             return
 
-        def confirmed(yes: bool | None) -> None:
-            if not yes:
+        def because(reason: str | None) -> None:
+            if reason is None:
+                self._say("Not deleted: a deletion needs its reason.")
                 return
             try:
-                self.bench.store.delete_reading(self.visit_id, r.id)
+                self.bench.store.delete_reading(self.visit_id, r.id, reason=reason.strip())
             except FieldkitError as exc:
                 self._say(f"✗ {exc}")
                 return
             self.refresh_table()
-            self._say(f"Reading {r.id} marked deleted; it stays in the trail.")
+            self._say(f"Reading {r.id} marked deleted; it stays in the trail, the reason in the visit notes.")
+
+        def confirmed(yes: bool | None) -> None:
+            if not yes:
+                return
+            self.app.push_screen(
+                LinePrompt(
+                    "Why is it deleted?",
+                    "The reason is kept in the visit's notes (e.g. gauge not yet connected).",
+                    placeholder="reason",
+                    check=lambda t: "" if t.strip() else "type the reason for the deletion",
+                ),
+                because,
+            )
 
         self.app.push_screen(
             ConfirmDialog(

@@ -75,6 +75,15 @@ class StartScreen(FieldkitScreen):
         self.query_one("#machines", DataTable).add_columns("machine", "id", "circuits", "visits")
         self.refresh_lists()
         self._lists_fresh = True
+        problems = self.bench.library.problem_lines()
+        if self.bench.store.read_only:
+            problems.append(
+                f"the store {self.bench.store.path} is read-only here: visits can be read, not changed"
+            )
+        if problems:  # one broken profile file stops nothing; it is named here until fixed
+            self.query_one("#start-msg", Static).update(
+                literal("⚠ " + "\n⚠ ".join(problems) + "\n  Everything else works as usual.", multiline=True)
+            )
         self.query_one("#open-visits" if self._open() else "#past-visits", DataTable).focus()
 
     def on_screen_resume(self) -> None:
