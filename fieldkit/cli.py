@@ -431,6 +431,13 @@ def _export(bench: Workbench, args: argparse.Namespace) -> int:
     text = export_visit_json(visit, profile, bench.kit_for_export(visit))
     path = write_export(text, args.out, export_file_name(visit))
     print(f"wrote {path}")
+    _kept, left_out = visit.without_unreadable()
+    if left_out:
+        print(
+            f"left out {len(left_out)} reading(s) whose stored value cannot be read "
+            f"({', '.join(f'{r.id} {r.entered!r}' for r in left_out)}); they stay in this store",
+            file=sys.stderr,
+        )
     return 0
 
 

@@ -215,6 +215,21 @@ class Visit(Strict):
             r for r in self.readings if r.deleted_at is None and r.id not in replaced and not r.unreadable
         ]
 
+    def without_unreadable(self) -> tuple[Visit, list[Reading]]:
+        """The visit without the readings whose stored value could not be read (for an export,
+        which another fieldkit must be able to read), and those left out. A correction of one
+        stays, as a reading of its own that keeps its reason."""
+        gone = [r for r in self.readings if r.unreadable]
+        if not gone:
+            return self, []
+        ids = {r.id for r in gone}
+        kept = [
+            r.model_copy(update={"replaces": None}) if r.replaces in ids else r
+            for r in self.readings
+            if r.id not in ids
+        ]
+        return self.model_copy(update={"readings": kept}), gone
+
     def unreadable_readings(self) -> list[Reading]:
         """Stored readings whose value could not be read, not yet corrected or deleted."""
         replaced = {r.replaces for r in self.readings if r.replaces}

@@ -67,7 +67,9 @@ def export_visit_json(
     visit: Visit, profile: MachineProfile | None = None, kit: list[KitItem] | None = None
 ) -> str:
     """The export text for a visit (and the profile it was measured against, and the kit items
-    its gauges came from, if given)."""
+    its gauges came from, if given). Readings whose stored value could not be read are left out
+    (:meth:`~fieldkit.model.visit.Visit.without_unreadable`): the file must import anywhere."""
+    visit, _left_out = visit.without_unreadable()
     envelope = {
         FORMAT_KEY: FORMAT_VERSION,
         "exported_at": dt.datetime.now(UTC).isoformat(timespec="seconds").replace("+00:00", "Z"),

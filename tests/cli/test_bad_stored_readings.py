@@ -127,3 +127,21 @@ def test_a_correction_or_deletion_needs_a_reason(bad_store: Path, capsys: pytest
     assert "--reason" in capsys.readouterr().err
     with open_store(os.environ["FIELDKIT_STORE"]) as store:
         assert next(r for r in store.get_visit(VISIT).readings if r.id == "old-nan").deleted_at is None
+
+
+def test_an_export_leaves_the_unreadable_values_out_and_imports_elsewhere(
+    bad_store: Path, tmp_path: Path, capsys: pytest.CaptureFixture[str]
+) -> None:
+    assert _run(capsys, "reading", "correct", VISIT, "old-nan", "24.5 bar", "--reason", "glitch")[0] == 0
+    code, _out, err = _run(capsys, "export", VISIT, "--out", str(tmp_path))
+    assert code == 0 and "left out 2 reading(s)" in err and "old-nan 'nan bar'" in err
+    (exported,) = tmp_path.glob("*.json")
+    other = tmp_path / "other.sqlite3"
+    code, _out, err = _run(capsys, "--store", str(other), "import", str(exported))
+    assert code == 0, err
+    with open_store(other) as store:
+        visit = store.get_visit(VISIT)
+    ids = {r.id for r in visit.readings}
+    assert not {"old-nan", "old-unit"} & ids and {"old-kind", "old-gone"} <= ids
+    fixed = next(r for r in visit.readings if r.reason == "glitch")
+    assert fixed.replaces is None and fixed.value.magnitude == 24.5  # the correction stands alone

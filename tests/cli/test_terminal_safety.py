@@ -112,6 +112,8 @@ def commands(f: dict[str, str]) -> list[list[str]]:
         ["machine", "show", MACHINE],
         ["machine", "check", f["profile"]],
         ["kit", "list"],
+        ["reading", "list", "hostile-visit", "--all"],
+        ["reading", "delete", "hostile-visit", "nope", "--reason", HOSTILE],
         ["kit", "use", "g1", "--visit", "hostile-visit"],
         ["simulate", MACHINE, "--seed", "3"],
         ["diagnose", f"nope{ESCAPES}{RLO}"],  # unknown id echoed in the error
