@@ -19,6 +19,7 @@ from fieldkit.diagnosis.ranking import rank
 from fieldkit.errors import DataFileError
 from fieldkit.model.profile import MachineProfile
 from fieldkit.model.visit import Observation, Visit
+from fieldkit.resources import rules_dir
 
 SYMPTOMS = """
 [[symptom]]
@@ -172,3 +173,15 @@ def test_the_drift_symptom_changes_the_first_recommended_test() -> None:
     assert told.next_tests[0].test_point != quiet.next_tests[0].test_point
     assert told.next_tests[0].test_point in {"lift.drift", "lift.drift_rod_vented"}
     assert math.isfinite(told.entropy_bits)
+
+
+def test_capping_the_hoses_does_not_point_at_the_piston_seal() -> None:
+    # Field notes (cylinder drift, 2nd-hand trade article): a double-acting cylinder with both
+    # ports blocked locks even if its piston seal bypasses. So in the bundled rules, drift that
+    # goes on with the hoses capped must not count for a bypassing seal (its likelihood ratio
+    # against a healthy cylinder is at most 1), and drift that stops must count more for the
+    # leaking load-holding valve than for the seal.
+    book = evidence_book(rules_dir(), {"no_fault", "load_holding_valve_leak", "cylinder_seal_bypass"})
+    capped = book.observations["drift_with_hoses_capped"]
+    assert capped.ratio("cylinder_seal_bypass", "goes_on") <= 1.0
+    assert capped.ratio("load_holding_valve_leak", "stops") > capped.ratio("cylinder_seal_bypass", "stops")
