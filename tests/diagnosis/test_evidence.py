@@ -19,7 +19,6 @@ from fieldkit.diagnosis.ranking import rank
 from fieldkit.errors import DataFileError
 from fieldkit.model.profile import MachineProfile
 from fieldkit.model.visit import Observation, Visit
-from fieldkit.resources import rules_dir
 
 SYMPTOMS = """
 [[symptom]]
@@ -181,7 +180,8 @@ def test_capping_the_hoses_does_not_point_at_the_piston_seal() -> None:
     # goes on with the hoses capped must not count for a bypassing seal (its likelihood ratio
     # against a healthy cylinder is at most 1), and drift that stops must count more for the
     # leaking load-holding valve than for the seal.
-    book = evidence_book(rules_dir(), {"no_fault", "load_holding_valve_leak", "cylinder_seal_bypass"})
+    k = knowledge()
+    book = evidence_book(k.folder, set(k.faults))
     capped = book.observations["drift_with_hoses_capped"]
     assert capped.ratio("cylinder_seal_bypass", "goes_on") <= 1.0
     assert capped.ratio("load_holding_valve_leak", "stops") > capped.ratio("cylinder_seal_bypass", "stops")
