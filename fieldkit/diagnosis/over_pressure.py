@@ -28,7 +28,11 @@ MARGIN_SHARE = 0.05
 #: Setting parameters that cap the pressure at high-pressure points (the highest one governs).
 HIGH_SIDE_SETTINGS = ("high_pressure_relief_setting", "main_relief_setting", "compensator_setting")
 #: Low-pressure points capped by their own relief.
-OWN_RELIEF = {Role.CHARGE_PRESSURE: "charge_relief_setting", Role.PILOT_PRESSURE: "pilot_relief_setting"}
+OWN_RELIEF = {
+    Role.CHARGE_PRESSURE: "charge_relief_setting",
+    Role.CHARGE_PRESSURE_LOW_IDLE: "charge_relief_setting",
+    Role.PILOT_PRESSURE: "pilot_relief_setting",
+}
 
 
 def _differential_loop(circuit: Circuit, point: TestPoint) -> bool:
@@ -46,7 +50,7 @@ def back_pressure_role(circuit: Circuit, point: TestPoint) -> Role | None:
     setting one for one (field notes, relief valves). A charge relief dumps into the pump case;
     a differential cross-port relief into the low side at charge pressure; main reliefs into the
     return line."""
-    if point.role is Role.CHARGE_PRESSURE:
+    if point.role in (Role.CHARGE_PRESSURE, Role.CHARGE_PRESSURE_LOW_IDLE):
         return Role.CASE_PRESSURE
     if _differential_loop(circuit, point):
         return Role.CHARGE_PRESSURE

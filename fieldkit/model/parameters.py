@@ -37,6 +37,7 @@ PARAMETERS: dict[str, tuple[Kind, str]] = {
     "min_net_charge": (Kind.PRESSURE, "least charge pressure above case pressure"),
     "case_drain_baseline": (Kind.FLOW, "case drain flow when the machine was new, at reference temperature"),
     "return_back_pressure_max": (Kind.PRESSURE, "highest return line pressure at full flow"),
+    "low_idle_speed": (Kind.SPEED, "engine (pump) speed at low idle"),
     "filter_bypass_setting": (Kind.PRESSURE, "return filter bypass valve setting"),
     "min_suction_pressure": (Kind.PRESSURE, "lowest pump inlet pressure (gauge; negative is vacuum)"),
     "max_drift_rate": (Kind.VELOCITY, "highest acceptable cylinder drift under the test load"),

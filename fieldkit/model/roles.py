@@ -15,6 +15,7 @@ from fieldkit.units import Kind
 
 class Role(StrEnum):
     CHARGE_PRESSURE = "charge_pressure"
+    CHARGE_PRESSURE_LOW_IDLE = "charge_pressure_low_idle"
     CASE_PRESSURE = "case_pressure"
     PUMP_CASE_DRAIN_FLOW = "pump_case_drain_flow"
     MOTOR_CASE_DRAIN_FLOW = "motor_case_drain_flow"
@@ -49,6 +50,9 @@ class RoleInfo:
 
 ROLES: dict[Role, RoleInfo] = {
     Role.CHARGE_PRESSURE: RoleInfo(Kind.PRESSURE, "charge pressure"),
+    # The same gauge read again with the engine at low idle: a worn charge pump falls short of
+    # its relief at low speed first, a charge relief set low reads low at every speed.
+    Role.CHARGE_PRESSURE_LOW_IDLE: RoleInfo(Kind.PRESSURE, "charge pressure at low idle"),
     Role.CASE_PRESSURE: RoleInfo(Kind.PRESSURE, "case pressure"),
     Role.PUMP_CASE_DRAIN_FLOW: RoleInfo(Kind.FLOW, "pump case drain flow"),
     Role.MOTOR_CASE_DRAIN_FLOW: RoleInfo(Kind.FLOW, "motor case drain flow"),

@@ -17,6 +17,11 @@ Closed loop (``CircuitModel.p``, canonical units):
   ``motor_gap``/``motor_slot``) from the high side to the case;
 * ``drain_static``, ``drain_r``, ``case_extra`` what the pump case reads for the oil through it:
   its own leakage, and in neutral the charge flow the charge relief discharges into it;
+  ``case_extra`` is back pressure downstream of the drain hose (cooler, return), which the
+  cooler inlet reads too; ``ret_share`` the part of a sound drain line's drop that lies past
+  the cooler inlet, ``drain_r0`` the sound hose's resistance (a kinked hose does not lift the
+  cooler inlet);
+* ``idle_rpm`` low idle, where the charge pump is read a second time;
 * ``inlet_turb`` / ``inlet_lam`` / ``inlet_restrict`` charge pump inlet vacuum;
   ``cfilter`` charge filter drop at the design charge flow.
 
@@ -33,6 +38,8 @@ that leak costs the supply), ``vent``, and ``supply`` when the brake has its own
 """
 
 from __future__ import annotations
+
+from dataclasses import replace
 
 from fieldkit.model.condition import FunctionState
 from fieldkit.model.profile import Circuit, CircuitKind, TestPoint
@@ -71,6 +78,11 @@ CHARGE_SHARE = 0.125
 #: Loop pressure travelling at full stroke and working under load, as a share of the cross-port
 #: relief (simulator's choice of test conditions).
 STROKE_SHARE = 0.35
+#: Share of a sound case drain line's drop that lies past the cooler inlet (cooler, filter, tank
+#: fittings), the rest being the drain hose (simulator's own split).
+RETURN_SHARE = 0.6
+#: Low idle as a share of rated speed when the profile gives no figure (simulator's choice).
+IDLE_SHARE = 0.4
 #: Charge relief override: bar per L/min passing over it (a small direct-acting valve; own estimate).
 CHARGE_OVERRIDE_SLOPE = 0.02
 
@@ -148,6 +160,20 @@ def loop_case(machine: Machine, model: CircuitModel, state: FunctionState, env: 
     return p["drain_static"] + p["drain_r"] * flow + p["case_extra"]
 
 
+def cooler_inlet(machine: Machine, model: CircuitModel, state: FunctionState, env: Env) -> float:
+    """Return pressure where the case drains enter the cooler: the part of a sound drain line's
+    drop that lies past it, plus any back pressure downstream, but not the drain hose itself."""
+    p = model.p
+    flow = pump_drain(model, state, env) + net_charge(machine, model, state, env)[1]
+    return p["ret_share"] * (p["drain_static"] + p["drain_r0"] * flow) + p["case_extra"]
+
+
+def at_low_idle(machine: Machine, model: CircuitModel, env: Env) -> Env:
+    """The same moment with the engine brought down to low idle."""
+    idle = model.p["idle_rpm"]
+    return replace(env, speed_rpm=idle, speed_ratio=idle / machine.rated_rpm)
+
+
 def charge_pressure(machine: Machine, model: CircuitModel, state: FunctionState, env: Env) -> float:
     """Charge gauge reading: net charge plus case pressure, since the charge and flushing
     reliefs work against the case (physics.closed_loop.expected_charge_pressure)."""
@@ -166,6 +192,10 @@ def closed_loop(
     p = model.p
     if role is Role.CHARGE_PRESSURE:
         return charge_pressure(machine, model, state, env)
+    if role is Role.CHARGE_PRESSURE_LOW_IDLE:
+        return charge_pressure(machine, model, FunctionState.NEUTRAL, at_low_idle(machine, model, env))
+    if role is Role.RETURN_PRESSURE:
+        return cooler_inlet(machine, model, state, env)
     if role is Role.CASE_PRESSURE:
         return loop_case(machine, model, state, env)
     if role is Role.PUMP_CASE_DRAIN_FLOW:
@@ -257,6 +287,9 @@ def build_closed_loop(machine: Machine, circuit: Circuit, draw: Draw) -> Circuit
     stall_dp = p["p_ref"] - p["drain_static"]
     gap_path(p, "pump", p["pump_drain"], stall_dp, mu_ref)
     gap_path(p, "motor", p["motor_drain"], stall_dp, mu_ref)
+    p["drain_r0"] = p["drain_r"]
+    p["ret_share"] = draw(RETURN_SHARE, RESTRICTION_SCATTER)
+    p["idle_rpm"] = param(circuit, "low_idle_speed") or IDLE_SHARE * rated
     floor = any_bounds(point(circuit, Role.SUCTION_PRESSURE))[0]
     vacuum = 0.4 * abs(floor) if floor is not None else 0.06
     p["inlet_turb"] = draw(vacuum / 2, RESTRICTION_SCATTER)

@@ -94,6 +94,20 @@ def test_each_template_holds_its_measured_accuracy(report: EvaluationReport) -> 
         assert sc.top3 >= top3 - MARGIN, f"{pid}: top-3 {sc.top3}/{sc.n}, measured {top3}"
 
 
+#: Look-alike faults (issue 12, item 6) that a point was added to tell apart, either way round
+#: (the pair in alphabetical order, as ``confusions`` keys it). Before: 20 and 7 of 20 visits.
+LOOK_ALIKES = [
+    ("case_drain_restricted", "return_back_pressure"),  # cooler inlet on a closed loop
+    ("charge_pump_worn", "charge_relief_low"),  # charge at low idle
+]
+
+
+def test_look_alike_faults_are_not_taken_for_each_other(report: EvaluationReport) -> None:
+    confused = {(a, b): n for a, b, n in report.confusions(limit=1000)}
+    for pair in LOOK_ALIKES:
+        assert confused.get(pair, 0) == 0, f"{pair[0]} and {pair[1]} confused {confused[pair]} times"
+
+
 def test_every_template_is_measured_by_the_evaluation(report: EvaluationReport) -> None:
     scores = report.by_profile()
     for pid, sc in scores.items():
