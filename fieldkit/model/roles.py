@@ -23,6 +23,7 @@ class Role(StrEnum):
     LOOP_B_PRESSURE = "loop_b_pressure"
     PUMP_OUTLET_PRESSURE = "pump_outlet_pressure"
     STALL_PRESSURE = "stall_pressure"
+    PUMP_PRESSURE_RELIEF_ISOLATED = "pump_pressure_relief_isolated"
     RETURN_PRESSURE = "return_pressure"
     FILTER_PRESSURE_DROP = "filter_pressure_drop"
     SUCTION_PRESSURE = "suction_pressure"
@@ -61,6 +62,11 @@ ROLES: dict[Role, RoleInfo] = {
     Role.PUMP_OUTLET_PRESSURE: RoleInfo(Kind.PRESSURE, "pump outlet (system) pressure", high_pressure=True),
     Role.STALL_PRESSURE: RoleInfo(
         Kind.PRESSURE, "pressure at a stalled function (relief setting)", high_pressure=True
+    ),
+    # A stall read again with the main relief taken out of play (screwed in, or the valve blocked
+    # off and the pump deadheaded on a test gauge): the pump's own compensator alone.
+    Role.PUMP_PRESSURE_RELIEF_ISOLATED: RoleInfo(
+        Kind.PRESSURE, "pump pressure with the main relief isolated (compensator alone)", high_pressure=True
     ),
     Role.RETURN_PRESSURE: RoleInfo(Kind.PRESSURE, "return line pressure"),
     Role.FILTER_PRESSURE_DROP: RoleInfo(Kind.PRESSURE, "filter pressure drop"),

@@ -218,16 +218,24 @@ def _fixed_stall(model: CircuitModel, env: Env) -> tuple[float, float] | None:
     return pressure, flow
 
 
-def _variable_limit(model: CircuitModel, env: Env) -> tuple[float, bool]:
-    """Highest pressure a variable pump reaches with a function stalled, and whether a relief
-    (not the pump's own cut-off or signal) sets it. A relief below the cut-off passes the
-    pump's whole flow; a leaking LS signal lets the pump settle where signal + margin meets
-    the work port pressure: p = margin / (1 − ratio)."""
+def own_limit(model: CircuitModel) -> float:
+    """Where a variable pump settles against a dead end with no relief in play (the relief
+    screwed in, or the pump deadheaded on a test gauge): its cut-off, or lower where a leaking
+    LS signal lets it settle where signal + margin meets the work port pressure:
+    p = margin / (1 − ratio)."""
     p = model.p
     limit = p["cutoff"]
     ratio = p.get("ls_ratio", 1.0)
     if ratio < 1.0:
         limit = min(limit, p["margin"] / (1.0 - ratio))
+    return limit
+
+
+def _variable_limit(model: CircuitModel, env: Env) -> tuple[float, bool]:
+    """Highest pressure a variable pump reaches with a function stalled, and whether a relief
+    (not the pump's own cut-off or signal) sets it. A relief below the cut-off passes the
+    pump's whole flow."""
+    limit = own_limit(model)
     full = max_delivery(model, limit, env)
     relief = relief_pressure(model, full, return_drop(model, full, env))
     if relief is not None and relief < limit:
@@ -336,6 +344,8 @@ def variable_pump(
         return pressure
     if role is Role.STALL_PRESSURE:
         return pressure if state is FunctionState.STALLED else None
+    if role is Role.PUMP_PRESSURE_RELIEF_ISOLATED:
+        return own_limit(model) if state is FunctionState.STALLED else None
     if role is Role.PUMP_CASE_DRAIN_FLOW:
         return drain_flow(model, pressure, env)
     if role is Role.CASE_PRESSURE:

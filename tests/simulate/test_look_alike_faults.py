@@ -73,3 +73,31 @@ def test_a_worn_charge_pump_sags_at_low_idle_and_a_low_charge_relief_does_not(si
     rated = true_at(sim, low_relief, "travel.charge", S.NEUTRAL)
     assert rated < 27.0 * 0.8
     assert 0.0 <= rated - true_at(sim, low_relief, "travel.charge_idle", S.NEUTRAL) < 3.0
+
+
+LOADER = "oskerfield-loamshifter"
+
+
+def test_a_low_main_relief_leaves_the_compensator_alone_reading_untouched(simulators, true_at):
+    # Common practice: a relief below the pump's cut-off takes the stall (the lowest setting
+    # governs, field notes); with the relief out of play the pump still settles at its cut-off.
+    # Loamshifter: cut-off 250 bar, relief 270 bar; severity 1 opens the relief 15 % low (≈ 230 bar).
+    sim = simulators[LOADER]
+    healthy, faulty = _pair(sim, "main_relief_low")
+    assert (
+        true_at(sim, faulty, "work.stall", S.STALLED) < true_at(sim, healthy, "work.stall", S.STALLED) - 10.0
+    )
+    assert true_at(sim, faulty, "work.comp_alone", S.STALLED) == pytest.approx(
+        true_at(sim, healthy, "work.comp_alone", S.STALLED), abs=1e-9
+    )
+
+
+def test_a_misset_compensator_moves_the_compensator_alone_reading_with_it(simulators, true_at):
+    # [calc] The simulator's misset compensator is 12 % × severity off its 250 bar figure, up or
+    # down: at severity 1 about 30 bar, and the reading with the relief out of play follows it.
+    sim = simulators[LOADER]
+    healthy, faulty = _pair(sim, "compensator_misset")
+    shift = true_at(sim, faulty, "work.comp_alone", S.STALLED) - true_at(
+        sim, healthy, "work.comp_alone", S.STALLED
+    )
+    assert abs(shift) == pytest.approx(0.12 * 250, rel=0.1)

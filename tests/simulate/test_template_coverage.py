@@ -64,20 +64,21 @@ def test_every_template_alone_gives_a_plan_with_ranges(templates: Templates) -> 
         assert all(r.source for r in ranges)
 
 
-#: Measured 2026-12-03 (cases_per_fault=2, seed=1, one worker): cases, top-1, top-3 per template.
+#: Measured 2026-12-03 after the look-alike points (cases_per_fault=2, seed=1, one worker): cases,
+#: top-1, top-3 per template.
 MEASURED: dict[str, tuple[int, int, int]] = {
     "template-accumulator": (2, 2, 2),
     "template-brake-charging": (6, 6, 6),
     "template-brake-release": (6, 3, 3),
-    "template-closed-loop-drive": (28, 23, 28),
+    "template-closed-loop-drive": (28, 27, 28),
     "template-cylinder": (8, 2, 6),
     "template-fan-drive": (8, 5, 5),
-    "template-load-sensing": (22, 18, 20),
+    "template-load-sensing": (22, 18, 19),
     "template-motor": (8, 6, 6),
     "template-open-fixed-pump": (14, 10, 12),
     "template-pilot-supply": (6, 4, 4),
-    "template-power-unit": (18, 15, 15),
-    "template-pressure-compensated": (18, 15, 15),
+    "template-power-unit": (18, 17, 17),
+    "template-pressure-compensated": (18, 17, 17),
     "template-steering-priority": (22, 19, 21),
     "template-winch-swing": (8, 5, 5),
 }
@@ -95,10 +96,12 @@ def test_each_template_holds_its_measured_accuracy(report: EvaluationReport) -> 
 
 
 #: Look-alike faults (issue 12, item 6) that a point was added to tell apart, either way round
-#: (the pair in alphabetical order, as ``confusions`` keys it). Before: 20 and 7 of 20 visits.
+#: (the pair in alphabetical order, as ``confusions`` keys it). Before, at 20 visits a fault on
+#: the template machines: 20, 7 and 20 (load-sensing 8, steering 12) confusions.
 LOOK_ALIKES = [
     ("case_drain_restricted", "return_back_pressure"),  # cooler inlet on a closed loop
     ("charge_pump_worn", "charge_relief_low"),  # charge at low idle
+    ("compensator_misset", "main_relief_low"),  # pump pressure with the relief isolated
 ]
 
 
