@@ -68,6 +68,16 @@ def load_visit(path: Path) -> Visit:
     return Visit.model_validate_json(path.read_text(encoding="utf-8"))
 
 
+def readings_only(visit: Visit) -> Visit:
+    """The visit as its gauge readings found it: before the repair, without the complaint's symptoms
+    and the observations (their evidence is checked by hand in test_evidence.py)."""
+    return visit.diagnosis_view().model_copy(update={"symptoms": [], "observations": []})
+
+
+def load_readings_only(path: Path) -> Visit:
+    return readings_only(load_visit(path))
+
+
 def sample_visit_paths(with_scenario: bool = True) -> list[Path]:
     paths = sorted(VISITS.glob("*.json"))
     if with_scenario:
@@ -77,6 +87,14 @@ def sample_visit_paths(with_scenario: bool = True) -> list[Path]:
 
 def diagnose_sample(path: Path) -> tuple[Visit, MachineProfile, Diagnosis]:
     visit = load_visit(path)
+    profile = library().get(visit.machine)
+    # As the app does (Workbench.diagnose): the diagnosis reads the readings taken before the repair.
+    return visit, profile, diagnose(visit.diagnosis_view(), profile, knowledge())
+
+
+def diagnose_readings_only(path: Path) -> tuple[Visit, MachineProfile, Diagnosis]:
+    """As :func:`diagnose_sample`, from the gauge readings alone (the rules' posterior, unmixed)."""
+    visit = load_readings_only(path)
     profile = library().get(visit.machine)
     return visit, profile, diagnose(visit, profile, knowledge())
 
@@ -577,11 +595,14 @@ __all__ = [
     "bench_profile",
     "chilled",
     "deadhead_bar",
+    "diagnose_readings_only",
     "diagnose_sample",
     "finding",
     "hypothesis_keys",
     "knowledge",
     "library",
+    "load_readings_only",
+    "readings_only",
     "likelihood_for",
     "load_visit",
     "precise_gauge",

@@ -15,7 +15,7 @@ from diagnosis_helpers import (
     finding,
     knowledge,
     library,
-    load_visit,
+    load_readings_only,
     sample_visit_paths,
 )
 
@@ -33,7 +33,7 @@ WINDOW_RULES = ("oil-in-test-window", "speed-at-rated")
 
 def _warm_and_cold(stem: str) -> tuple[Diagnosis, Diagnosis]:
     path = next(p for p in sample_visit_paths() if p.stem == stem)
-    visit = load_visit(path)
+    visit = load_readings_only(path)
     profile = library().get(visit.machine)
     warm = diagnose(visit, profile, knowledge())
     cold = diagnose(chilled(visit, profile, COLD_C), profile, knowledge())

@@ -23,12 +23,12 @@ from pathlib import Path
 import pytest
 from diagnosis_helpers import (
     chilled,
-    diagnose_sample,
+    diagnose_readings_only,
     hypothesis_keys,
     knowledge,
     library,
     likelihood_for,
-    load_visit,
+    load_readings_only,
     sample_visit_paths,
 )
 from scipy.stats import norm
@@ -108,7 +108,7 @@ def engine_posterior(d: Diagnosis) -> dict[str, float]:
 
 @pytest.mark.parametrize("path", ALL_VISITS)
 def test_posterior_matches_exact_enumeration_on_sample_visit(path: Path) -> None:
-    visit, profile, d = diagnose_sample(path)
+    visit, profile, d = diagnose_readings_only(path)
     expected = enumerate_posterior(visit, profile, d)
     got = engine_posterior(d)
     assert set(got) == set(expected)
@@ -118,7 +118,7 @@ def test_posterior_matches_exact_enumeration_on_sample_visit(path: Path) -> None
 
 def test_posterior_matches_exact_enumeration_with_tempered_cold_oil_findings() -> None:
     path = next(p for p in sample_visit_paths() if p.stem == "fellborer-charge-pump-worn")
-    visit = load_visit(path)
+    visit = load_readings_only(path)
     profile = library().get(visit.machine)
     cold = chilled(visit, profile, 30.0)
     d = diagnose(cold, profile, knowledge())
@@ -136,7 +136,7 @@ def test_posterior_matches_pgmpy_variable_elimination_with_virtual_evidence(name
     from pgmpy.models import DiscreteBayesianNetwork
 
     path = next(p for p in sample_visit_paths() if p.stem == name)
-    _visit, profile, d = diagnose_sample(path)
+    _visit, profile, d = diagnose_readings_only(path)
     findings = _evaluated(d)
     assert all(f.discount == 1.0 for f in findings), "premise: no tempered findings in this visit"
     rules = {r.id: r for r in knowledge().rules}
@@ -177,7 +177,7 @@ def test_posterior_matches_pgmpy_variable_elimination_with_virtual_evidence(name
 def test_soft_outcomes_follow_the_gauge_class_with_a_normal_model(path: Path) -> None:
     """For rules that compare one reading with its point's expected range: P(low) = Φ((low − x)/u)
     and P(high) = 1 − Φ((high − x)/u), u = class % · span / √3 (EN 837-1; GUM 4.3.7), by scipy."""
-    visit, profile, d = diagnose_sample(path)
+    visit, profile, d = diagnose_readings_only(path)
     rules = {r.id: r for r in knowledge().rules}
     readings = {r.id: r for r in visit.readings}
     checked = 0

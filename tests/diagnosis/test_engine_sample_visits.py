@@ -8,10 +8,13 @@ import json
 from pathlib import Path
 
 import pytest
-from diagnosis_helpers import diagnose_sample, load_visit, sample_visit_paths
+from diagnosis_helpers import diagnose_sample, knowledge, load_visit, sample_visit_paths
 
 from fieldkit.cli import main
 from fieldkit.diagnosis.catalogue import NO_FAULT
+from fieldkit.diagnosis.results import Verdict
+from fieldkit.diagnosis.retest import completion_problems, open_dangers, retest_rows
+from fieldkit.model.repair import MachineStatus
 
 SCENARIOS = {p: load_visit(p).scenario.fault for p in sample_visit_paths()}  # type: ignore[union-attr]
 FAULTY = [pytest.param(p, id=p.stem) for p, fault in SCENARIOS.items() if fault != NO_FAULT]
@@ -24,6 +27,43 @@ def test_the_demo_has_faulty_and_healthy_visits_on_every_machine() -> None:
     for machine in machines:
         faults = {f for p, f in SCENARIOS.items() if load_visit(p).machine == machine}
         assert NO_FAULT in faults and len(faults) > 1, machine
+
+
+def _whole_story(path: Path) -> bool:
+    v = load_visit(path)
+    return bool(
+        v.complaint and v.symptoms and v.observations and v.work and v.retest_readings() and v.departure
+    )
+
+
+STORIES = [pytest.param(p, id=p.stem) for p in SCENARIOS if _whole_story(p)]
+
+
+def test_every_demo_machine_has_a_visit_that_tells_the_whole_story() -> None:
+    """Complaint → readings → observations → diagnosis → repair → re-test → fit to run (issue 11, item 7)."""
+    assert {load_visit(p.values[0]).machine for p in STORIES} == {
+        "tarnhollow-fellborer",
+        "oskerfield-loamshifter",
+        "brindlecombe-pebblerun",
+    }
+
+
+@pytest.mark.parametrize("path", STORIES)
+def test_a_whole_story_visit_is_repaired_retested_and_left_fit_to_run(path: Path) -> None:
+    visit, profile, d = diagnose_sample(path)
+    assert d.top.id == SCENARIOS[path]  # the diagnosis reads only what was found before the repair
+    # The complaint's symptoms and the answered checks are findings of the ranking.
+    reported = {f.rule_id for f in d.findings if f.verdict is Verdict.REPORTED}
+    assert {f"symptom-{s}" for s in visit.symptoms} <= reported
+    assert {f"observed-{o.check}" for o in visit.observations} <= reported
+    rows = retest_rows(visit, profile, knowledge())
+    assert rows
+    judged = [r for r in rows if r.after_verdict is not Verdict.NOT_MEASURED]
+    # At least one point that was out of range before the repair reads in range after it.
+    assert any(r.before_verdict in (Verdict.LOW, Verdict.HIGH) for r in judged)
+    assert all(r.after_verdict is Verdict.IN_RANGE for r in judged), [(r.label, r.after) for r in judged]
+    assert visit.departure is not None and visit.departure.status is MachineStatus.FIT
+    assert not completion_problems(visit, open_dangers(visit, profile, knowledge()))
 
 
 @pytest.mark.parametrize("path", FAULTY)
@@ -123,7 +163,8 @@ def test_diagnose_json_has_the_documented_shape(name: str, capsys: pytest.Captur
             assert set(e) == {"finding", "title", "message", "ratio"}
 
     assert all(FINDING_KEYS <= set(f) for f in out["findings"])
-    verdicts = {"in_range", "low", "high", "inconclusive", "not_measured"}
+    # "reported": a symptom of the complaint or an answered check (rules/symptoms.toml, observations.toml)
+    verdicts = {"in_range", "low", "high", "inconclusive", "not_measured", "reported"}
     assert {f["verdict"] for f in out["findings"]} <= verdicts
     assert all(NEXT_TEST_KEYS <= set(t) for t in out["next_tests"])
     assert all(CAUTION_KEYS <= set(c) for c in out["cautions"])

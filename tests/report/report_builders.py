@@ -69,6 +69,7 @@ def many_readings(visit: Visit, count: int = 40) -> Visit:
                     "value": value,
                     "taken_at": start + timedelta(minutes=2 * i),
                     "replaces": None,
+                    "after_repair": False,
                 }
             )
         )

@@ -36,7 +36,18 @@ AFTER = {
 
 def _repaired(bench: Workbench, retest: bool = True) -> str:
     visit, _profile = read_visit_file(SAMPLE)
-    visit = visit.model_copy(update={"status": "open", "summary": "", "time_zone": "America/Chicago"})
+    # The sample as it stood at the diagnosis: its own repair, re-test and status left out.
+    visit = visit.diagnosis_view().model_copy(
+        update={
+            "status": "open",
+            "summary": "",
+            "time_zone": "America/Chicago",
+            "work": [],
+            "departure": None,
+            "complaint": "",
+            "symptoms": [],
+        }
+    )
     visit = bench.store.import_visit(visit, as_new=True)
     bench.set_complaint(visit.id, "Slow to tram once warm; the charge lamp flickers.", ["slow_when_hot"])
     bench.add_work(visit.id, WorkItem(kind="fitted", part="charge pump gerotor set"))

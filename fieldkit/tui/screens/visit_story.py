@@ -97,18 +97,28 @@ def open_repair(screen: Any) -> None:
         if what == "work":
             _record_work(screen)
         elif what == "retest":
-            screen.retest = not retest
-            screen.add_class("-retest") if screen.retest else screen.remove_class("-retest")
-            screen._message(
-                "Re-test mode ON: readings are saved as after the repair and shown before/after on the card."
-                if screen.retest
-                else "Re-test mode OFF: readings are diagnosis readings again.",
-                "info",
-            )
+            set_retest(screen, not retest)
         else:
             _record_status(screen)
 
     screen.app.push_screen(ChoiceDialog("Repair and re-test", Text("What now?"), labels), chosen)
+
+
+def set_retest(screen: Any, on: bool) -> None:
+    """Re-test mode: the entry row saves after-repair readings, and says so where the value is typed."""
+    from textual.widgets import Input
+
+    screen.entry.retest = on
+    screen.add_class("-retest") if on else screen.remove_class("-retest")
+    screen.query_one("#value", Input).placeholder = (
+        "AFTER REPAIR: value, e.g. 24,5 bar" if on else "value, e.g. 24,5 bar"
+    )
+    screen._message(
+        "Re-test mode ON: readings are saved as after the repair and shown before/after on the card."
+        if on
+        else "Re-test mode OFF: readings are diagnosis readings again.",
+        "info",
+    )
 
 
 def _record_work(screen: Any) -> None:
