@@ -74,6 +74,10 @@ def _parser() -> argparse.ArgumentParser:
     v.add_argument("--status", choices=["open", "closed"], help="only open or only closed visits")
     v.add_argument("--machine", metavar="ID", help="only the visits to this machine (its profile id)")
 
+    tz = sub.add_parser("time-zone", help="show or set the time zone a visit's job card prints its times in")
+    tz.add_argument("visit", help="visit id in the store")
+    tz.add_argument("zone", nargs="?", help="an IANA name such as Europe/London; UTC for UTC")
+
     e = sub.add_parser("export", help="write a visit (with its machine profile) to a JSON file")
     e.add_argument("visit", help="visit id in the store")
     e.add_argument("--out", type=Path, default=Path("."), help="folder to write into (default: here)")
@@ -288,6 +292,8 @@ def _dispatch(args: argparse.Namespace) -> int:
             return _visits(bench, args)
         if cmd == "export":
             return _export(bench, args)
+        if cmd == "time-zone":
+            return _time_zone(bench, args)
         if cmd == "import":
             return _import(bench, args)
         if cmd == "diagnose":
@@ -420,6 +426,22 @@ def _visits(bench: Workbench, args: argparse.Namespace) -> int:
             f"{s.reading_count:>8}  "
             f"{s.machine} / {s.customer}"
         )
+    return 0
+
+
+def _time_zone(bench: Workbench, args: argparse.Namespace) -> int:
+    from fieldkit.model.visit import check_time_zone
+
+    visit = bench.store.get_visit(args.visit)
+    if args.zone is None:
+        print(visit.time_zone or "UTC")
+        return 0
+    try:
+        zone = "" if args.zone.strip().upper() == "UTC" else check_time_zone(args.zone)
+    except ValueError as exc:
+        raise FieldkitError(f"time zone not changed: {exc}") from None
+    bench.store.update_visit(visit.id, time_zone=zone)
+    print(f"visit {visit.id}: the job card's times are in {zone or 'UTC'}")
     return 0
 
 

@@ -471,7 +471,8 @@ def retire_demo_store(path: Path) -> Path:
 
 
 def seed_demo(store: SqliteVisitStore) -> None:
-    """Put the bundled sample visits into a demo store once (an id already there is left alone)."""
+    """Put the bundled sample visits and the demo kit into a demo store once (an id already there
+    is left alone)."""
     from fieldkit.resources import samples_dir
 
     have = {s.id for s in store.list_visits()}
@@ -479,3 +480,23 @@ def seed_demo(store: SqliteVisitStore) -> None:
         visit, _ = read_visit_file(path)
         if visit.id not in have:
             store.import_visit(visit)
+    store.merge_kit(demo_kit())
+
+
+def demo_kit() -> list[KitItem]:
+    """The demo technician's instruments (sample_readings/kit.json, invented): serials and
+    calibration dates, one of them overdue to show the warning."""
+    from pydantic import ValidationError
+
+    from fieldkit.resources import samples_dir
+
+    path = samples_dir() / "kit.json"
+    try:
+        data = json.loads(read_text(path, MAX_VISIT_FILE))
+        return [KitItem.model_validate(item) for item in data["kit"]]
+    except json.JSONDecodeError as exc:
+        raise DataFileError(str(path), f"not valid JSON: {exc.msg}", line=exc.lineno) from None
+    except (KeyError, TypeError):
+        raise DataFileError(str(path), "expected an object with a 'kit' list") from None
+    except ValidationError as exc:
+        raise validation_error(exc, str(path), None) from None

@@ -49,6 +49,8 @@ class Settings(Strict):
     technician: str = ""
     customer: str = ""
     oil: str = ""
+    #: IANA time zone for new visits (e.g. 'Europe/London'); '' = UTC.
+    time_zone: str = ""
 
     @classmethod
     def load(cls, path: Path | None = None) -> Settings:

@@ -745,6 +745,21 @@ def format_si(value: float, kind: Kind, system: DisplaySystem = METRIC, *, signi
     return format_number(offset + scale * value, spelling, significant)
 
 
+def format_si_to_resolution(value: float, limit: float, kind: Kind, system: DisplaySystem = METRIC) -> str:
+    """Text for a float in SI base units, with no more decimals than ``limit`` (a limit of error in
+    the same SI unit) allows: its first significant figure in the display unit (±0.6 bar → one
+    decimal, ±3 % → none). common practice."""
+    scale, offset, spelling = display_scale(_si_unit(kind), kind, system)
+    shown_limit = abs(scale * limit)
+    if not (math.isfinite(shown_limit) and shown_limit > 0):
+        return format_si(value, kind, system)
+    decimals = max(0, -math.floor(math.log10(shown_limit)))
+    number = f"{offset + scale * value:.{decimals}f}"
+    if number.startswith("-") and float(number) == 0:
+        number = number[1:]
+    return f"{number}{'' if spelling == '%' else ' '}{spelling}"
+
+
 def format_number(mag: float, spelling: str, significant: int = 4) -> str:
     """A magnitude already in the unit ``spelling`` names, rounded for reading."""
     return _with_unit(mag, spelling, significant, exact=False)

@@ -2,8 +2,10 @@
 
 from __future__ import annotations
 
+import datetime as dt
 from pathlib import Path
 
+from fieldkit.model.kit import calibration_warning
 from fieldkit.model.visit import Visit
 from fieldkit.resources import samples_dir
 from fieldkit.session import (
@@ -74,3 +76,18 @@ def test_the_demo_command_rebuilds_an_outdated_demo_store_before_the_ui_opens(mo
     assert seen and "an-earlier-demo-rig" not in seen[0] and "tarnhollow-fellborer" in seen[0]
     assert "earlier version" in capsys.readouterr().err
     assert list(Path(path.parent).glob(f"{path.name}.replaced-*"))
+
+
+def test_the_demo_kit_has_serials_and_calibration_dates_and_one_gauge_overdue() -> None:
+    """sample_readings/kit.json (invented): every instrument the sample visits use, with a serial
+    and a calibration date; G25 was due on 2025-06-30, before the open demo visit of 2025-08-19."""
+    with open_store(demo_store_path()) as store:
+        seed_demo(store)
+        kit = {item.id: item for item in store.kit()}
+        used = {g.id for s in store.list_visits() for g in store.get_visit(s.id).gauges}
+    assert used <= set(kit)
+    assert all(item.serial and item.calibration_due for item in kit.values())
+    open_visit_day = dt.date(2025, 8, 19)
+    overdue = [i for i, item in kit.items() if calibration_warning(item, open_visit_day)]
+    assert overdue == ["G25"]
+    assert "calibration was due on 2025-06-30" in calibration_warning(kit["G25"], open_visit_day)

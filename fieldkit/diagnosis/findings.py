@@ -17,6 +17,7 @@ from dataclasses import dataclass, field
 
 from fieldkit.diagnosis.catalogue import Fault
 from fieldkit.diagnosis.measure import Measured
+from fieldkit.diagnosis.resolution import RECTANGULAR
 from fieldkit.diagnosis.results import Finding, Verdict
 from fieldkit.diagnosis.rulepack import Rule
 from fieldkit.diagnosis.symbols import DERIVED, MACHINE_FIGURES, SYMBOLS
@@ -29,7 +30,7 @@ from fieldkit.model.roles import ROLES, Role
 from fieldkit.physics.closed_loop import cross_port_stall_reading
 from fieldkit.physics.fluid import grade
 from fieldkit.physics.reliefs import arrangement_for, deadhead
-from fieldkit.units import Q_, DisplaySystem, Kind, format_si, to_canonical
+from fieldkit.units import Q_, DisplaySystem, Kind, format_si, format_si_to_resolution, to_canonical
 
 _SQRT2 = math.sqrt(2.0)
 _SQRT3 = math.sqrt(3.0)
@@ -524,9 +525,16 @@ class Evaluator:
             if low is not None and high is not None
             else (f"at least {show(low)}" if low is not None else f"at most {show(high)}")
         )
+
+        def show_read(x: float) -> str:
+            # To the resolution of the gauges behind it: the first figure of a = u·√3.
+            if kind is None or not u or not math.isfinite(u):
+                return show(x)
+            return format_si_to_resolution(x, u * RECTANGULAR, kind, self.system)
+
         return {
             "title": rule.spec.title,
-            "value": show(value),
+            "value": show_read(value),
             "uncertainty": show_spread(u) if u else "0",
             "low": show(low),
             "high": show(high),

@@ -9,47 +9,22 @@ still shows it.
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass
 
 from fieldkit.diagnosis.engine import Knowledge, diagnose
+from fieldkit.diagnosis.resolution import (
+    as_read,
+    as_read_with_limit,
+    at_resolution,
+    class_limit_of,
+    decimals_for,
+    limit_text,
+)
 from fieldkit.diagnosis.results import Finding, ReadingCheck, Verdict
 from fieldkit.model.profile import MachineProfile
 from fieldkit.model.repair import MachineStatus
 from fieldkit.model.visit import Visit
 from fieldkit.units import METRIC, DisplaySystem
-
-
-def decimals_for(limit: float) -> int:
-    """Decimals that show a value no finer than the gauge can tell: the first significant figure
-    of its limit of error (±0.6 → 1 decimal, ±6 → none). common practice."""
-    if limit <= 0 or not math.isfinite(limit):
-        return 1
-    return max(0, -math.floor(math.log10(limit)))
-
-
-def limit_text(limit: float) -> str:
-    """A class limit as printed on the card: two significant figures at most (±0.16, ±0.6, ±6)."""
-    if limit <= 0 or not math.isfinite(limit):
-        return "±0"
-    d = max(0, 1 - math.floor(math.log10(limit)))
-    text = f"{round(limit, d):.{d}f}"
-    return "±" + (text.rstrip("0").rstrip(".") if "." in text else text)
-
-
-def at_resolution(value: float, limit: float) -> str:
-    return f"{value:.{decimals_for(limit)}f}"
-
-
-#: u = a/√3 for a limit of error a read as a rectangular distribution (JCGM 100:2008, 4.3.7).
-RECTANGULAR = 3**0.5
-
-
-def as_read(check: ReadingCheck) -> str:
-    """A checked reading to its gauge's resolution (the first figure of its limit of error)."""
-    if check.value_num is None or not check.uncertainty_num:
-        return check.value
-    return f"{at_resolution(check.value_num, check.uncertainty_num * RECTANGULAR)} {check.unit}"
 
 
 @dataclass(frozen=True, slots=True)
@@ -141,6 +116,9 @@ def completion_problems(visit: Visit, dangers: list[Finding]) -> list[str]:
 __all__ = [
     "RetestRow",
     "as_read",
+    "as_read_with_limit",
+    "at_resolution",
+    "class_limit_of",
     "decimals_for",
     "limit_text",
     "completion_problems",

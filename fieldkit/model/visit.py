@@ -7,10 +7,11 @@ deletion marks the old one, so the job card can always show what was entered and
 from __future__ import annotations
 
 import datetime as dt
+import difflib
 import uuid
 from datetime import UTC, datetime
 from enum import StrEnum
-from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
+from zoneinfo import ZoneInfo, ZoneInfoNotFoundError, available_timezones
 
 from pydantic import Field, field_validator, model_validator
 
@@ -54,6 +55,21 @@ def new_id() -> str:
 
 def utc_now() -> datetime:
     return datetime.now(UTC).replace(microsecond=0)
+
+
+def check_time_zone(name: str) -> str:
+    """An IANA time zone name (as zoneinfo knows it), stripped; '' means UTC. A wrong name is
+    refused with the nearest real one, so a typo is fixed in one go."""
+    name = name.strip()
+    if not name:
+        return ""
+    try:
+        ZoneInfo(name)
+    except (ZoneInfoNotFoundError, ValueError):
+        close = difflib.get_close_matches(name, sorted(available_timezones()), n=1, cutoff=0.6)
+        hint = f"; did you mean '{close[0]}'?" if close else " (an IANA name, e.g. 'America/Chicago')"
+        raise ValueError(f"'{name}' is not a time zone name such as 'Europe/London'{hint}") from None
+    return name
 
 
 class VisitStatus(StrEnum):
@@ -181,12 +197,7 @@ class Visit(Strict):
     @field_validator("time_zone")
     @classmethod
     def _known_zone(cls, value: str) -> str:
-        if value:
-            try:
-                ZoneInfo(value)
-            except (ZoneInfoNotFoundError, ValueError):
-                raise ValueError(f"'{value}' is not a time zone name such as 'Europe/London'") from None
-        return value
+        return check_time_zone(value)
 
     @model_validator(mode="after")
     def _consistent(self) -> Visit:

@@ -8,6 +8,7 @@ from __future__ import annotations
 
 from fieldkit.diagnosis.catalogue import NO_FAULT
 from fieldkit.diagnosis.engine import Knowledge
+from fieldkit.diagnosis.resolution import as_read_with_limit
 from fieldkit.diagnosis.results import (
     CautionNote,
     Diagnosis,
@@ -18,7 +19,6 @@ from fieldkit.diagnosis.results import (
     ReadingCheck,
     Verdict,
 )
-from fieldkit.diagnosis.retest import decimals_for, limit_text
 from fieldkit.model.profile import MachineProfile
 from fieldkit.model.roles import Role
 from fieldkit.model.visit import Visit
@@ -132,13 +132,26 @@ def _header(visit: Visit, profile: MachineProfile, system: DisplaySystem) -> Hea
         machine_detail=one_line(detail),
         serial=one_line(visit.machine_serial or profile.serial) or "not recorded",
         hour_meter=_hours(visit.hour_meter),
-        date=visit.date.isoformat(),
+        date=_date_and_times(visit),
         technician=one_line(visit.technician) or "not recorded",
         oil=one_line(visit.oil) or "not recorded",
         oil_grade=profile.oil_grade,
         oil_temperature=_oil_temperature(visit, system),
         status=visit.status.value,
     )
+
+
+def _date_and_times(visit: Visit) -> str:
+    """The visit's date, and the first and last reading as the site's clock showed them
+    (Visit.time_zone; UTC when none was set): the customer reads local times."""
+    taken = [r.taken_at for r in visit.current_readings()]
+    if not taken:
+        return visit.date.isoformat()
+    zone = visit.local_zone()
+    first, last = (min(taken).astimezone(zone), max(taken).astimezone(zone))
+    when = first.strftime("%H:%M") if first == last else f"{first:%H:%M} to {last:%H:%M}"
+    day = "" if first.date() == visit.date else f" on {first.date().isoformat()}"
+    return f"{visit.date.isoformat()} (readings {when}{day} {last.strftime('%Z')})"
 
 
 def _hours(value: float | None) -> str:
@@ -214,21 +227,16 @@ _RECTANGULAR = 3**0.5
 
 def _as_read(c: ReadingCheck) -> tuple[str, str]:
     """The value to the gauge's resolution and its EN 837-1 class limit (±a), in the card's units."""
-    if c.value_num is None or not c.uncertainty_num:
-        return c.value, c.uncertainty
-    limit = c.uncertainty_num * _RECTANGULAR
-    d = decimals_for(limit)
-    return f"{c.value_num:.{d}f} {c.unit}", f"{limit_text(limit)} {c.unit}"
+    return as_read_with_limit(c)
 
 
 def _once(remark: str, use: GaugeUse, c: ReadingCheck, told: set[str]) -> str:
+    """The gauge-too-small advice is said once per gauge, under Gauges used (EN 837-2 from the
+    point's real maximum), never on the reading rows."""
     if not use.overrange or use.overrange not in remark:
         return remark
-    gauge = c.gauge.split(":", 1)[0]
-    if gauge in told:
-        return " ".join(remark.replace(use.overrange, "").split())
-    told.add(gauge)
-    return remark
+    told.add(c.gauge.split(":", 1)[0])
+    return " ".join(remark.replace(use.overrange, "").split())
 
 
 def _low_share(c: ReadingCheck, use: GaugeUse) -> str:

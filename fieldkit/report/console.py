@@ -16,6 +16,7 @@ from rich.console import Console
 from rich.table import Table
 from rich.text import Text
 
+from fieldkit.diagnosis.resolution import as_read_with_limit
 from fieldkit.diagnosis.results import Diagnosis, Verdict
 from fieldkit.model.profile import MachineProfile
 from fieldkit.model.visit import Visit
@@ -57,7 +58,7 @@ def print_diagnosis(
             _t(check.condition),
             _t(check.value),
             _t(check.expected),
-            _t(check.uncertainty),
+            _t(as_read_with_limit(check)[1]),
             _t(check.verdict.label, VERDICT_STYLE[check.verdict]),
         )
     console.print(readings)

@@ -9,6 +9,7 @@ from textual.app import ComposeResult
 from textual.containers import VerticalScroll
 from textual.widgets import DataTable, OptionList, Static, TabbedContent, TabPane
 
+from fieldkit.diagnosis.resolution import as_read_with_limit
 from fieldkit.diagnosis.results import Diagnosis, RankedFault
 from fieldkit.tui import keys
 from fieldkit.tui.safe_text import literal
@@ -69,14 +70,16 @@ class DiagnosisScreen(FieldkitScreen):
         self.query_one("#faults", FaultList).show(self.diagnosis, limit=50)
         self.query_one("#findings", FindingsView).show(self.diagnosis)
         table = self.query_one("#checks", DataTable)
-        table.add_columns("point", "condition", "reading", "expected", "gauge ±", "verdict")
+        table.add_columns("point", "condition", "reading", "expected", "gauge ±", "u", "verdict")
         for c in self.diagnosis.checks:
+            value, limit = as_read_with_limit(c)
             table.add_row(
                 literal(c.test_point_label),
                 literal(c.condition),
-                literal(c.value),
+                literal(value),
                 literal(c.expected),
-                literal(c.uncertainty),
+                literal(limit),  # the class limit off the dial (EN 837-1)
+                literal(c.uncertainty),  # u = limit/√3, what the statistics use
                 Text(VERDICT_WORD[c.verdict] + (" *" if c.discounted else "")),
             )
         self.query_one("#faults", FaultList).focus()

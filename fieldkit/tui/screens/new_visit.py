@@ -23,7 +23,7 @@ from fieldkit.tui.safe_text import literal
 from fieldkit.tui.screens.base import FieldkitScreen
 from fieldkit.tui.widgets.keybar import KeyBar
 
-FIELDS = ("job", "customer", "site", "serial", "hours", "technician", "oil")
+FIELDS = ("job", "customer", "site", "serial", "hours", "technician", "oil", "zone")
 
 
 def last_gauges(bench: Workbench) -> list[Gauge]:
@@ -90,6 +90,14 @@ class NewVisitScreen(FieldkitScreen):
                 yield Input(s.technician, id="technician", max_length=120, compact=True)
                 yield Label("Oil")
                 yield Input(s.oil, placeholder="e.g. VG46 mineral", id="oil", max_length=60, compact=True)
+                yield Label("Time zone")
+                yield Input(
+                    s.time_zone,
+                    placeholder="e.g. Europe/London (empty: UTC); the job card's times",
+                    id="zone",
+                    max_length=60,
+                    compact=True,
+                )
             yield Checkbox(
                 self._gauge_label(bool(self.gauges)),
                 value=bool(self.gauges),
@@ -121,7 +129,7 @@ class NewVisitScreen(FieldkitScreen):
     @on(Input.Submitted)
     def _enter(self, event: Input.Submitted) -> None:
         event.stop()
-        if event.input.id == "oil":
+        if event.input.id == "zone":
             self.action_create()
         else:
             self.focus_next()
@@ -160,6 +168,7 @@ class NewVisitScreen(FieldkitScreen):
                 hour_meter=hours,
                 technician=values["technician"],
                 oil=values["oil"],
+                time_zone=values["zone"],
                 gauges=gauges,
             )
             stored = self.bench.store.create_visit(visit)
@@ -173,7 +182,12 @@ class NewVisitScreen(FieldkitScreen):
         """Keep technician, customer and oil for the next visit; a settings file that cannot be
         written only costs the defaults, never the visit."""
         settings = self.bench.settings.model_copy(
-            update={"technician": values["technician"], "customer": values["customer"], "oil": values["oil"]}
+            update={
+                "technician": values["technician"],
+                "customer": values["customer"],
+                "oil": values["oil"],
+                "time_zone": values["zone"],
+            }
         )
         self.bench.settings = settings
         try:

@@ -5,7 +5,7 @@ Drawn with characters so it reads without colour:
 
     ┈┈┈┈‹●›┈┈┈┈┈┈┈[══════════]┈┈┈┈   low
     band ``[═══]`` (``◂═══]`` or ``[═══▸`` when open at one end), reading ``●``,
-    gauge uncertainty ``‹ ›`` (± one standard uncertainty), track ``┈``.
+    the gauge's class limit ``‹ ›`` (± class % × span, EN 837-1), track ``┈``.
 
 The scale is linear and chosen per reading so the band and the reading both fit with a margin.
 """
@@ -21,6 +21,7 @@ from rich.text import Text
 from textual.widget import Widget
 
 from fieldkit.diagnosis.results import ReadingCheck, Verdict
+from fieldkit.diagnosis.retest import as_read_with_limit, class_limit_of
 from fieldkit.tui.safe_text import literal
 
 TRACK, BAND, LOW_EDGE, HIGH_EDGE, OPEN_LOW, OPEN_HIGH = "┈", "═", "[", "]", "◂", "▸"
@@ -88,7 +89,7 @@ def band_plain(check: ReadingCheck, width: int) -> str:
         return ""
     return "".join(
         c.char
-        for c in draw_band(check.value_num, check.uncertainty_num, check.low_num, check.high_num, width)
+        for c in draw_band(check.value_num, class_limit_of(check), check.low_num, check.high_num, width)
     )
 
 
@@ -154,12 +155,13 @@ class ReadingBands(Widget):
             out.append_text(literal(c.condition, style["label"]))
             out.append("\n")
             if c.value_num is not None:
-                cells = draw_band(c.value_num, c.uncertainty_num, c.low_num, c.high_num, width)
+                cells = draw_band(c.value_num, class_limit_of(c), c.low_num, c.high_num, width)
                 for role, chars in cell_runs(cells, mood):
                     out.append(chars, style[role])
             out.append(f" {VERDICT_WORD[c.verdict]}", style[mood] + Style(bold=True))
             out.append("\n")
-            out.append_text(literal(f"  {c.value} {c.uncertainty} · expected {c.expected}", style["label"]))
+            value, limit = as_read_with_limit(c)
+            out.append_text(literal(f"  {value} {limit} · expected {c.expected}", style["label"]))
             if c.discounted:
                 out.append_text(literal(f" · not counted: {c.discounted}", style["unsure"]))
         return out
