@@ -231,12 +231,13 @@ def _as_read(c: ReadingCheck) -> tuple[str, str]:
 
 
 def _once(remark: str, use: GaugeUse, c: ReadingCheck, told: set[str]) -> str:
-    """The gauge-too-small advice is said once per gauge, under Gauges used (EN 837-2 from the
-    point's real maximum), never on the reading rows."""
     if not use.overrange or use.overrange not in remark:
         return remark
-    told.add(c.gauge.split(":", 1)[0])
-    return " ".join(remark.replace(use.overrange, "").split())
+    gauge = c.gauge.split(":", 1)[0]
+    if gauge in told:
+        return " ".join(remark.replace(use.overrange, "").split())
+    told.add(gauge)
+    return remark
 
 
 def _low_share(c: ReadingCheck, use: GaugeUse) -> str:

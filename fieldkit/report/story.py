@@ -212,7 +212,8 @@ def _range_advice(
         Q_(highest / FLUCTUATING_SHARE, unit("bar")), system, kind=Kind.PRESSURE, significant=2
     )
     return (
-        f"{where} can reach {shown(highest)} on this machine, {share} % of this gauge's scale. EN 837-2 "
+        f"{where} can reach {format_value(Q_(highest, unit('bar')), system, kind=Kind.PRESSURE)} on this "
+        f"machine, {share} % of this gauge's scale. EN 837-2 "
         f"(from memory): a steady pressure within ¾ of the span ({shown(STEADY_SHARE * full)} here), a "
         f"fluctuating one within ⅔ ({shown(FLUCTUATING_SHARE * full)}); a gauge of at least "
         f"{suits} suits that point."

@@ -47,9 +47,17 @@ START: list[BindingType] = [
         tooltip="Exchange visits with the shop server in the background; keep working meanwhile",
     ),
     Binding("m", "new_machine", "New machine", id="start.new_machine"),
+    Binding("k", "open_kit", "Kit", id="start.kit", tooltip="Your gauges and meters: add, edit, retire"),
     Binding("e", "edit_machine", "Edit machine", id="start.edit_machine", show=False),
     Binding("c", "copy_machine", "Copy machine", id="start.copy_machine", show=False),
     Binding("escape", "back", "Back", id="start.back", show=False),
+]
+
+KIT: list[BindingType] = [
+    Binding("a", "add_item", "Add", id="kit.add"),
+    Binding("e", "edit_item", "Edit", id="kit.edit"),
+    Binding("x", "retire_item", "Retire", id="kit.retire"),
+    Binding("escape", "back", "Back", id="kit.back"),
 ]
 
 VISIT: list[BindingType] = [

@@ -154,7 +154,9 @@ def test_header_carries_the_visit_as_typed(worn) -> None:
     assert card.header.customer == "A & B <Ltd>"
     assert card.header.machine == profile.name
     assert card.header.oil_grade == profile.oil_grade
-    assert card.header.date == visit.date.isoformat()
+    # The date, and the first and last reading in the site's time zone (Europe/London in the demo):
+    # 08:15 and 13:40 UTC on 14 May 2025 are 09:15 and 14:40 BST (UTC+1 from the last Sunday of March).
+    assert card.header.date == f"{visit.date.isoformat()} (readings 09:15 to 14:40 BST)"
 
 
 def test_oil_temperature_follows_the_display_units(worn) -> None:

@@ -255,6 +255,11 @@ class StartScreen(FieldkitScreen):
 
         self.app.push_screen(MachineBuilderScreen(self.bench, raw, path), saved)
 
+    def action_open_kit(self) -> None:
+        from fieldkit.tui.screens.kit import KitScreen
+
+        self.app.push_screen(KitScreen(self.bench), lambda _r: None)
+
     def action_new_machine(self) -> None:
         self.open_builder()
 
