@@ -261,7 +261,12 @@ def _story(pdf: FPDF, card: JobCard) -> None:
                     r.condition,
                     r.expected,
                     Cell(f"{r.before}  {r.before_verdict}"),
-                    Cell(f"{r.after}  {r.after_verdict}", bold=True, color=OK if r.passed else OUT),
+                    Cell(
+                        f"{r.after}  {r.after_verdict}",
+                        bold=True,
+                        # a reading with no range to judge against is neither passed nor failed
+                        color=OK if r.passed else (None if r.after_verdict == "no range" else OUT),
+                    ),
                 ]
                 for r in story.retest
             ],
