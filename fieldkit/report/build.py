@@ -88,7 +88,7 @@ def job_card(
         title="Service job card",
         header=_header(visit, profile, system),
         units=f"Units: pressure {system.pressure}, flow {system.flow}, temperature {system.temperature}.",
-        conclusion=_conclusion(diagnosis, settled, next_test is not None),
+        conclusion=_conclusion(diagnosis, settled, next_test is not None, repaired=bool(visit.work)),
         counts=_counts(readings),
         settled=settled,
         readings=readings,
@@ -441,7 +441,9 @@ def _next_step(diagnosis: Diagnosis, settled: bool) -> tuple[NextStep | None, st
     )
 
 
-def _conclusion(diagnosis: Diagnosis, settled: bool, has_next: bool) -> str:
+def _conclusion(diagnosis: Diagnosis, settled: bool, has_next: bool, repaired: bool = False) -> str:
+    # After a repair the card reports what was found and done; "confirm before any repair" is
+    # advice for a card written at the diagnosis.
     if not diagnosis.faults:
         return "No fault could be ranked for this visit."
     top = diagnosis.top
@@ -449,6 +451,11 @@ def _conclusion(diagnosis: Diagnosis, settled: bool, has_next: bool) -> str:
         return (
             f"No fault found: the readings fit a healthy machine ({percent(top.probability)}). "
             "Keep them as a baseline for the next visit."
+        )
+    if settled and repaired:
+        return (
+            f"Fault found: {one_line(top.display_title)} ({percent(top.probability)} from the readings "
+            "before the repair). See the work done and the re-test below."
         )
     if settled:
         return (

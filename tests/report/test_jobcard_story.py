@@ -92,6 +92,8 @@ def test_a_repaired_machine_gets_a_card_with_complaint_cause_work_retest_and_sta
         assert "Fit to run" in flat and "Check charge at the 250 h service." in flat
         assert "DO NOT OPERATE" not in flat
         assert not re.search(r"\bbits?\b", flat)
+        # Repaired: the card reports the cause and the work, not advice to confirm before repairing.
+        assert "Confirm it before any repair" not in flat and "See the work done and the re-test" in flat
     text = render_text(card)
     # Before and after, side by side with the verdicts (text: one line per re-tested point).
     assert "before 18.4 bar (LOW) -> after 26.4 bar (in range)" in text
