@@ -97,7 +97,8 @@ async def test_a_machine_from_nothing_then_a_visit_readings_diagnosis_and_job_ca
     card = tmp_path / "card.txt"
     assert main(["--store", str(store), "report", visit_id, "--text", str(card)]) == 0
     text = card.read_text(encoding="utf-8")
-    assert "Yard crane" in text and "19 bar" in text
+    # 19 bar typed, printed to the gauge's resolution: its limit ±0.96 bar allows one decimal.
+    assert "Yard crane" in text and "19.0 bar" in text
     # The point opens in stroke; with no flushing valve the charge relief governs there:
     # 26 − 4 = 22 to 26 + 2 = 28 bar [calc] (closed_loop_drive template), on the job card.
     assert "expected 22–28 bar" in text
