@@ -137,22 +137,23 @@ def test_swapping_the_cross_port_cartridges_comes_first_once_the_quick_readings_
     assert {"stall-duration", "relief-max-setting"} <= {c.id for c in d.cautions}
 
 
+#: Loamshifter work circuit (demo), quick readings normal and every pressure at the stall 200 bar.
+LOAMSHIFTER_LOW_STALL = [
+    ("work.oil_temp", 50.0, NEUTRAL),
+    ("work.speed", 2100.0, NEUTRAL),
+    ("work.standby", 28.0, NEUTRAL),
+    ("work.stall", 200.0, STALLED),
+    ("work.pump_out", 200.0, STALLED),
+    ("work.ls_signal", 200.0, STALLED),
+]
+
+
 def test_a_low_stall_on_a_load_sensing_pump_offers_turning_the_relief_in_then_blocking_the_valve() -> None:
     # Loamshifter work circuit (demo): cut-off 250 bar, main relief 270 bar above it. The tilt
     # stall, pump outlet and load-sense line all read 200 bar: relief low, compensator low, or
     # a signal leak? Turning the relief in a quarter turn (15 min) shows whether the relief
     # governs; blocking the valve (40 min) parts the pump from the valve bank (common practice).
-    d = _scene(
-        "oskerfield-loamshifter",
-        [
-            ("work.oil_temp", 50.0, NEUTRAL),
-            ("work.speed", 2100.0, NEUTRAL),
-            ("work.standby", 28.0, NEUTRAL),
-            ("work.stall", 200.0, STALLED),
-            ("work.pump_out", 200.0, STALLED),
-            ("work.ls_signal", 200.0, STALLED),
-        ],
-    )
+    d = _scene("oskerfield-loamshifter", LOAMSHIFTER_LOW_STALL)
     actions = [t.action for t in d.next_tests if t.action]
     assert actions[:2] == ["screw-in-the-relief", "block-the-valve"], actions
     # The stall read again with the relief screwed in (the compensator alone, 20 min) is the
@@ -171,12 +172,7 @@ def test_a_leaking_pump_with_no_flow_port_offers_a_loaded_flow_test() -> None:
     d = _scene(
         "oskerfield-loamshifter",
         [
-            ("work.oil_temp", 50.0, NEUTRAL),
-            ("work.speed", 2100.0, NEUTRAL),
-            ("work.standby", 28.0, NEUTRAL),
-            ("work.stall", 200.0, STALLED),
-            ("work.pump_out", 200.0, STALLED),
-            ("work.ls_signal", 200.0, STALLED),
+            *LOAMSHIFTER_LOW_STALL,
             ("work.pump_drain", 12.0, STALLED),
             # The compensator alone (relief screwed in) already read at its 250 bar cut-off: the
             # compensator is cleared, the relief and a worn pump remain.
