@@ -16,7 +16,7 @@ from pathlib import Path
 
 from pydantic import Field, model_validator
 
-from fieldkit.diagnosis.catalogue import CircuitKinds
+from fieldkit.diagnosis.catalogue import CircuitKinds, check_unique_ids
 from fieldkit.diagnosis.evidence import AnswerLikelihood
 from fieldkit.errors import DataFileError
 from fieldkit.model.base import Strict
@@ -85,11 +85,10 @@ def load_actions(folder: Path, faults: Collection[str], cautions: Collection[str
         return {}
     text = read_text(path)
     actions = validate(_ActionFile, parse_toml(text, str(path)), str(path), text).action
+    check_unique_ids(actions, path, text, "action")
     lines = key_lines(text)
     out: dict[str, ActionTest] = {}
     for i, a in enumerate(actions):
-        if a.id in out:
-            raise DataFileError(str(path), f"id '{a.id}' appears twice", line_for(lines, ("action", i, "id")))
         for fault in a.likely:
             if fault not in faults:
                 raise DataFileError(

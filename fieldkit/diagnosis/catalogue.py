@@ -9,7 +9,7 @@ from __future__ import annotations
 from collections.abc import Sequence
 from enum import StrEnum
 from pathlib import Path
-from typing import Annotated
+from typing import Annotated, Protocol
 
 from pydantic import AfterValidator, Field, model_validator
 
@@ -164,7 +164,13 @@ class _CautionFile(Strict):
     caution: list[Caution] = Field(min_length=1)
 
 
-def _unique(items: Sequence[Fault | Caution], path: Path, text: str, table: str) -> None:
+class _HasId(Protocol):
+    @property
+    def id(self) -> str: ...
+
+
+def check_unique_ids(items: Sequence[_HasId], path: Path, text: str, table: str) -> None:
+    """Refuse a rules file whose table names one id twice, at the second one's line."""
     seen: set[str] = set()
     lines = key_lines(text)
     for i, item in enumerate(items):
@@ -181,7 +187,7 @@ def _unique(items: Sequence[Fault | Caution], path: Path, text: str, table: str)
 def load_faults(path: Path) -> dict[str, Fault]:
     text = read_text(path)
     faults = validate(_FaultFile, parse_toml(text, str(path)), str(path), text).fault
-    _unique(faults, path, text, "fault")
+    check_unique_ids(faults, path, text, "fault")
     if NO_FAULT not in {f.id for f in faults}:
         raise DataFileError(str(path), f"the catalogue must hold the '{NO_FAULT}' entry (a healthy machine)")
     return {f.id: f for f in faults}
@@ -190,7 +196,7 @@ def load_faults(path: Path) -> dict[str, Fault]:
 def load_cautions(path: Path) -> dict[str, Caution]:
     text = read_text(path)
     cautions = validate(_CautionFile, parse_toml(text, str(path)), str(path), text).caution
-    _unique(cautions, path, text, "caution")
+    check_unique_ids(cautions, path, text, "caution")
     ids = {c.id for c in cautions}
     lines = key_lines(text)
     for i, c in enumerate(cautions):

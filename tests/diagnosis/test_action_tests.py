@@ -103,6 +103,16 @@ def test_likelihoods_that_do_not_add_up_are_refused_with_their_line(tmp_path: Pa
     assert err.value.line == 13
 
 
+def test_an_action_id_given_twice_is_refused_at_the_second_one(tmp_path: Path) -> None:
+    one = _ONE.replace("LIKELY", 'pump_worn = { yes = 0.9, no = 0.1, source = "common practice" }')
+    text = one + "\n" + one
+    second = [n for n, line in enumerate(text.splitlines(), 1) if line == 'id = "probe"'][1]
+    folder = _copy_rules(tmp_path, text)
+    with pytest.raises(DataFileError, match="'probe' appears twice") as err:
+        load_actions(folder, {"pump_worn"}, set())
+    assert err.value.line == second
+
+
 def test_a_missing_actions_file_means_no_action_tests(tmp_path: Path) -> None:
     assert load_actions(tmp_path, {"pump_worn"}, set()) == {}
 
