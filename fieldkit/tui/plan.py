@@ -13,7 +13,10 @@ from dataclasses import dataclass, field
 from enum import StrEnum
 
 from fieldkit.diagnosis.results import Diagnosis, ReadingCheck, Verdict
+from fieldkit.errors import FieldkitError
 from fieldkit.model.profile import Circuit, MachineProfile, TestPoint
+from fieldkit.model.visit import Reading, Visit
+from fieldkit.units import DisplaySystem, format_value
 
 SKIP_PREFIX = "Skipped test point"
 _SKIP_LINE = re.compile(
@@ -133,3 +136,35 @@ def counts(plan: list[PlanCircuit]) -> dict[PointState, int]:
         for p in pc.points:
             out[p.state] += 1
     return out
+
+
+@dataclass(slots=True)
+class OtherPoint:
+    """A test point id that standing readings of this visit name but the machine's profile no
+    longer has (the profile was edited after the visit): it has no step, so it gets a row of its
+    own at the end of the plan, from which its readings are moved or deleted."""
+
+    point_id: str
+    readings: list[Reading]
+    summary: str
+
+
+def other_points(visit: Visit, profile: MachineProfile, system: DisplaySystem) -> list[OtherPoint]:
+    """The readings standing at points the profile does not have, grouped by point, in the order
+    first entered. Deleted or corrected ones are history, not a task: left out."""
+    known = {tp.id for _c, tp in profile.all_test_points()}
+    replaced = {r.replaces for r in visit.readings if r.replaces}
+    found: dict[str, list[Reading]] = {}
+    for r in visit.readings:
+        if r.test_point not in known and r.deleted_at is None and r.id not in replaced:
+            found.setdefault(r.test_point, []).append(r)
+    return [OtherPoint(pid, rs, ", ".join(_shown(r, system) for r in rs)) for pid, rs in found.items()]
+
+
+def _shown(r: Reading, system: DisplaySystem) -> str:
+    if r.unreadable:
+        return r.entered or "unreadable"
+    try:
+        return format_value(r.value, system)
+    except FieldkitError:
+        return r.entered or "?"

@@ -120,7 +120,7 @@ async def test_a_visit_with_bad_stored_readings_opens_and_each_is_put_right_by_k
             await pilot.pause()
             left = " ".join(screen.diagnosis.notes)
             assert "old-nan" not in left and "old-kind" not in left and "old-unit" not in left
-            assert "reading old-gone" in left  # not in the plan: the command line deletes it
+            assert "reading old-gone" in left  # off the plan: its own row, tests/tui/test_other_readings.py
     finally:
         bench.close()
     visit = _stored(path)

@@ -39,12 +39,14 @@ from fieldkit.session import Workbench
 from fieldkit.tui import keys
 from fieldkit.tui.guard import guarded
 from fieldkit.tui.plan import (
+    OtherPoint,
     PlanCircuit,
     PlanPoint,
     PointState,
     build_plan,
     notes_with_skip,
     notes_without_skip,
+    other_points,
     skipped_points,
 )
 from fieldkit.tui.safe_text import literal
@@ -95,6 +97,8 @@ class VisitScreen(FieldkitScreen):
         self.profile: MachineProfile | None = None
         self.diagnosis: Diagnosis | None = None
         self.plan: list[PlanCircuit] = []
+        #: readings standing at points the profile no longer has, listed after the plan
+        self.others: list[OtherPoint] = []
         self.point_id: str | None = None
         self._previous_top: RankedFault | None = None
         self._shown_top: RankedFault | None = None
@@ -157,6 +161,7 @@ class VisitScreen(FieldkitScreen):
         self.diagnosis = self.bench.diagnose(self.visit, self.profile)
         self._shown_top = self.diagnosis.faults[0] if self.diagnosis.faults else None
         self.plan = build_plan(self.profile, self.diagnosis, self.visit.notes)
+        self.others = other_points(self.visit, self.profile, self.bench.system)
         if self.point_id is None:
             nxt = self.next_test
             self.point_id = nxt.test_point if nxt else self.profile.circuits[0].test_points[0].id
@@ -179,7 +184,9 @@ class VisitScreen(FieldkitScreen):
         assert self.profile is not None
         self._show_side()
         nxt = self.next_test
-        self.query_one("#plan", PlanList).show(self.plan, nxt.test_point if nxt else None, self.point_id)
+        self.query_one("#plan", PlanList).show(
+            self.plan, nxt.test_point if nxt else None, self.point_id, self.others
+        )
         if first:
             self.entry.fill_condition_defaults(self.profile, force=True)
         self._show_point(reset_entry=first)
@@ -269,6 +276,31 @@ class VisitScreen(FieldkitScreen):
     def on_plan_list_point_picked(self) -> None:
         if not self.closed:
             self.query_one("#value", Input).focus()
+
+    def on_plan_list_other_chosen(self, event: PlanList.OtherChosen) -> None:
+        # The step and the value field still belong to the last plan point: the focus leaves
+        # the value field so nothing typed now is saved there by mistake.
+        plan = self.query_one("#plan", PlanList)
+        if not plan.has_focus:
+            plan.focus()
+        self._message(
+            f"{event.point_id} is not in this machine's plan (its profile was changed): Enter shows "
+            "its readings, to move one to a plan point or delete it.",
+            "info",
+        )
+
+    def on_plan_list_other_picked(self, event: PlanList.OtherPicked) -> None:
+        self.open_other_readings(event.point_id)
+
+    def open_other_readings(self, point_id: str) -> None:
+        from fieldkit.tui.screens.readings import ReadingsScreen
+
+        if self.profile is None:
+            return
+        self.app.push_screen(
+            ReadingsScreen(self.bench, self.visit_id, None, point_id=point_id, profile=self.profile),
+            lambda _r: self.reload(),
+        )
 
     @on(OptionList.OptionSelected, "#side-faults")
     def _fault_chosen(self, event: OptionList.OptionSelected) -> None:
@@ -412,6 +444,10 @@ class VisitScreen(FieldkitScreen):
     def action_point_readings(self) -> None:
         from fieldkit.tui.screens.readings import ReadingsScreen
 
+        other = self.query_one("#plan", PlanList).other_id
+        if other is not None:
+            self.open_other_readings(other)
+            return
         _c, point, _p = self.current()
         self.app.push_screen(ReadingsScreen(self.bench, self.visit_id, point), lambda _r: self.reload())
 

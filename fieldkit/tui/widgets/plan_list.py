@@ -5,10 +5,15 @@ The glyph carries the state without colour (· not measured, ✓ in range, ✗ o
 one the step panel shows: it moves with the highlight and nowhere else, so the list and the panel
 always agree. The point the engine recommends next is marked ``→`` (the NEXT line names it too);
 saving a reading never moves the selection to it.
+
+Readings standing at a point the machine's profile no longer has are listed last, under "Other
+readings", one row per such point marked ``!``: highlighting one posts :class:`OtherChosen`,
+Enter on it :class:`OtherPicked` (the screen opens their trail to move or delete them).
 """
 
 from __future__ import annotations
 
+from collections.abc import Sequence
 from dataclasses import dataclass
 from typing import ClassVar
 
@@ -19,8 +24,20 @@ from textual.message import Message
 from textual.widgets import OptionList
 from textual.widgets.option_list import Option, OptionDoesNotExist
 
-from fieldkit.tui.plan import PlanCircuit, PlanPoint, PointState
+from fieldkit.tui.plan import OtherPoint, PlanCircuit, PlanPoint, PointState
 from fieldkit.tui.safe_text import literal
+
+OTHER = "other:"  # option id prefix of a row for a point the profile no longer has
+OTHER_HEADING = "Other readings (off the plan)"
+
+
+def other_text(o: OtherPoint) -> Text:
+    out = Text(end="", no_wrap=True, overflow="ellipsis")
+    out.append(" ! ", "bold")
+    out.append_text(literal(o.point_id))
+    out.append(": ")
+    out.append_text(literal(o.summary))
+    return out
 
 
 def point_text(
@@ -57,6 +74,18 @@ class PlanList(OptionList):
 
         point_id: str
 
+    @dataclass
+    class OtherChosen(Message):
+        """The highlight moved onto a point the machine's profile no longer has."""
+
+        point_id: str
+
+    @dataclass
+    class OtherPicked(Message):
+        """Enter was pressed on a point the machine's profile no longer has."""
+
+        point_id: str
+
     COMPONENT_CLASSES: ClassVar[set[str]] = {
         "plan--not-measured",
         "plan--in-range",
@@ -82,7 +111,13 @@ class PlanList(OptionList):
             for s in PointState
         }
 
-    def show(self, plan: list[PlanCircuit], recommended: str | None, selected: str | None) -> None:
+    def show(
+        self,
+        plan: list[PlanCircuit],
+        recommended: str | None,
+        selected: str | None,
+        others: Sequence[OtherPoint] = (),
+    ) -> None:
         styles = self._state_styles()
         ids: list[str | None] = []
         drawn: list[object] = []
@@ -92,6 +127,13 @@ class PlanList(OptionList):
             for p in pc.points:
                 ids.append(p.id)
                 drawn.append((p, p.id == recommended, p.id == selected))
+        if others:
+            ids.append("heading:other")
+            drawn.append(OTHER_HEADING)
+        for o in others:
+            # the summary is part of the id: a changed value rebuilds the list
+            ids.append(f"{OTHER}{o.point_id}={o.summary}")
+            drawn.append(o.summary)
         self._plan_points = {d[0].id: (d[0], d[1]) for d in drawn if isinstance(d, tuple)}
         self._marked_id = selected
         if ids == self._ids and styles == self._styles:
@@ -123,6 +165,11 @@ class PlanList(OptionList):
                             id=p.id,
                         )
                     )
+            if others:
+                head = Text(end="", no_wrap=True, overflow="ellipsis")
+                head.append(OTHER_HEADING, self.get_component_rich_style("plan--circuit", partial=True))
+                options.append(Option(head, id="heading:other", disabled=True))
+            options.extend(Option(other_text(o), id=f"{OTHER}{o.point_id}") for o in others)
             self.clear_options()
             self.add_options(options)
             self._ids = ids
@@ -135,11 +182,14 @@ class PlanList(OptionList):
     def _highlighted(self, event: OptionList.OptionHighlighted) -> None:
         event.stop()
         point_id = event.option.id
-        if point_id is not None and not point_id.startswith("circuit:"):
+        if point_id is not None and point_id.startswith(OTHER):
+            self._mark_selected(None)
+            self.post_message(self.OtherChosen(point_id.removeprefix(OTHER)))
+        elif point_id is not None and not point_id.startswith("circuit:"):
             self._mark_selected(point_id)
             self.post_message(self.PointChosen(point_id))
 
-    def _mark_selected(self, point_id: str) -> None:
+    def _mark_selected(self, point_id: str | None) -> None:
         """Move ▸ to the highlighted point (two rows redrawn)."""
         old, self._marked_id = self._marked_id, point_id
         if old == point_id:
@@ -159,7 +209,9 @@ class PlanList(OptionList):
     def _selected(self, event: OptionList.OptionSelected) -> None:
         event.stop()
         point_id = event.option.id
-        if point_id is not None and not point_id.startswith("circuit:"):
+        if point_id is not None and point_id.startswith(OTHER):
+            self.post_message(self.OtherPicked(point_id.removeprefix(OTHER)))
+        elif point_id is not None and not point_id.startswith("circuit:"):
             self.post_message(self.PointPicked(point_id))
 
     def select_point(self, point_id: str) -> None:
@@ -175,4 +227,12 @@ class PlanList(OptionList):
         if self.highlighted is None:
             return None
         option = self.get_option_at_index(self.highlighted)
-        return None if option.id is None or option.id.startswith("circuit:") else option.id
+        return None if option.id is None or option.id.startswith(("circuit:", OTHER)) else option.id
+
+    @property
+    def other_id(self) -> str | None:
+        """The point under the highlight when it is one the profile no longer has."""
+        if self.highlighted is None:
+            return None
+        option = self.get_option_at_index(self.highlighted)
+        return option.id.removeprefix(OTHER) if option.id and option.id.startswith(OTHER) else None
