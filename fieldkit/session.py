@@ -241,13 +241,13 @@ class Workbench:
     ) -> tuple[Visit, list[Reading]]:
         """Import a CSV of readings into a visit, all rows or none. Readings the visit already
         holds (the same file imported before) are refused unless ``again`` says it is on purpose."""
-        from fieldkit.store.csv_import import already_in_visit, kinds_by_test_point, read_readings_csv
+        from fieldkit.store.csv_import import already_in_visit, points_by_id, read_readings_csv
 
         visit = self.store.get_visit(visit_id)
         profile = self.profile_for(visit)
         readings = read_readings_csv(
             path,
-            test_points=kinds_by_test_point(profile),
+            test_points=points_by_id(profile),
             gauges={g.id for g in visit.gauges},
             decimal_comma=self.settings.decimal_comma,
         )

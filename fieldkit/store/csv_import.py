@@ -60,7 +60,8 @@ from pydantic import ValidationError
 
 from fieldkit.errors import DataFileError, FieldkitError
 from fieldkit.model.condition import Condition, FunctionState
-from fieldkit.model.profile import MachineProfile
+from fieldkit.model.example import example_text
+from fieldkit.model.profile import MachineProfile, TestPoint
 from fieldkit.model.visit import DATE_RANGE, Reading, Visit, in_date_range
 from fieldkit.tomlfile import validation_error
 from fieldkit.units import EXAMPLE, Kind, ParsedValue, parse_value
@@ -99,8 +100,14 @@ class _Problems:
 
 
 def kinds_by_test_point(profile: MachineProfile) -> dict[str, Kind]:
-    """The ``test_points`` argument for a machine: each test point id and the kind it reads."""
+    """Each test point id of a machine and the kind it reads."""
     return {tp.id: tp.kind for _circuit, tp in profile.all_test_points()}
+
+
+def points_by_id(profile: MachineProfile) -> dict[str, TestPoint]:
+    """The ``test_points`` argument for a machine: with the points themselves (not only their
+    kinds), a value without a unit is told an example from the point's own range."""
+    return {tp.id: tp for _circuit, tp in profile.all_test_points()}
 
 
 def already_in_visit(visit: Visit, readings: list[Reading]) -> list[Reading]:
@@ -134,15 +141,16 @@ def read_readings_csv(path: str | Path, **options: object) -> list[Reading]:
 def parse_readings_csv(
     text: str,
     *,
-    test_points: Mapping[str, Kind] | None = None,
+    test_points: Mapping[str, Kind] | Mapping[str, TestPoint] | None = None,
     gauges: set[str] | None = None,
     decimal_comma: bool = False,
     naive_tz: dt.tzinfo | None = None,
     name: str = "<readings CSV>",
 ) -> list[Reading]:
     """Readings from CSV text in the layout above; all of them, or a DataFileError listing every
-    wrong row (up to 20). ``test_points`` (id → kind) and ``gauges`` (ids), when given, are
-    what the rows are checked against; ``None`` accepts any."""
+    wrong row (up to 20). ``test_points`` (id → kind, or id → point for hints drawn from the
+    point's range) and ``gauges`` (ids), when given, are what the rows are checked against;
+    ``None`` accepts any."""
     if len(text) > MAX_CSV_BYTES or len(text.encode("utf-8", "surrogatepass")) > MAX_CSV_BYTES:
         raise DataFileError(name, f"the text is over {MAX_CSV_BYTES:,} bytes; a readings CSV is smaller")
     text = text.removeprefix("\ufeff")
@@ -241,7 +249,7 @@ def _layout(header: list[str], delimiter: str, decimal_comma: bool, name: str) -
 def _row(
     row: list[str],
     layout: _Layout,
-    test_points: Mapping[str, Kind] | None,
+    test_points: Mapping[str, Kind] | Mapping[str, TestPoint] | None,
     gauges: set[str] | None,
     naive_tz: dt.tzinfo | None,
 ) -> tuple[Reading | None, list[str]]:
@@ -263,6 +271,7 @@ def _row(
     taken_at = _time(cells["time"], naive_tz, wrong)
     tp = cells["test_point"]
     expect: Kind | None = None
+    example: str | None = None
     if not tp:
         wrong.append("test_point is empty")
     elif test_points is not None:
@@ -271,8 +280,12 @@ def _row(
             listed = ", ".join(known[:8]) + (" …" if len(known) > 8 else "")
             wrong.append(f"unknown test point '{tp}' (this machine has {listed or 'none'})")
         else:
-            expect = test_points[tp]
-    value = _value(cells, layout, expect, tp, wrong)
+            known_point = test_points[tp]
+            if isinstance(known_point, TestPoint):
+                expect, example = known_point.kind, example_text(known_point)
+            else:
+                expect = known_point
+    value = _value(cells, layout, expect, tp, wrong, example)
     condition = _condition(cells, layout, wrong)
     gauge = cells.get("gauge") or None
     if gauge is not None and gauges is not None and gauge not in gauges:
@@ -333,6 +346,7 @@ def _quantity(
     what: str,
     decimal_comma: bool,
     wrong: list[str],
+    example: str | None = None,
 ) -> ParsedValue | None:
     """A value whose unit must come from exactly one place: header, unit column, or the cell."""
     if not _STARTS_WITH_NUMBER.match(cell):
@@ -348,7 +362,9 @@ def _quantity(
         if present
     ]
     if not ways:
-        example = EXAMPLE[expect or _UNIT_IN_HEADER[column] or Kind.PRESSURE]
+        # the point's own example when the row's point is known ("e.g. 62 L/min" misleads on a
+        # 0–20 L/min meter), else the kind's usual one
+        example = example or EXAMPLE[expect or _UNIT_IN_HEADER[column] or Kind.PRESSURE]
         unit_column = "a unit column, " if column == "value" else ""
         wrong.append(
             f"{column} '{cell}' has no unit: put it in the header ('{column} [{example.split(' ', 1)[1]}]'), "
@@ -367,7 +383,12 @@ def _quantity(
 
 
 def _value(
-    cells: dict[str, str], layout: _Layout, expect: Kind | None, tp: str, wrong: list[str]
+    cells: dict[str, str],
+    layout: _Layout,
+    expect: Kind | None,
+    tp: str,
+    wrong: list[str],
+    example: str | None = None,
 ) -> ParsedValue | None:
     cell = cells["value"]
     if not cell:
@@ -383,6 +404,7 @@ def _value(
         what,
         layout.decimal_comma,
         wrong,
+        example,
     )
 
 

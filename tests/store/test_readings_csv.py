@@ -10,6 +10,7 @@ import pytest
 from store_builders import CASE_DRAIN, CHARGE, LOOP_A, profile, raw_rows, visit
 
 from fieldkit.errors import DataFileError
+from fieldkit.model.profile import MachineProfile, TestPoint
 from fieldkit.model.visit import FunctionState
 from fieldkit.store.csv_import import (
     MAX_CELL_CHARS,
@@ -17,6 +18,7 @@ from fieldkit.store.csv_import import (
     MAX_ROWS,
     kinds_by_test_point,
     parse_readings_csv,
+    points_by_id,
     read_readings_csv,
 )
 from fieldkit.store.sqlite import SqliteVisitStore
@@ -257,3 +259,63 @@ def test_an_imported_csv_goes_into_a_visit_whole(tmp_path: Path) -> None:
         store.add_readings(v.id, readings)
         assert store.get_visit(v.id).readings == readings
     assert raw_rows(tmp_path / "visits.sqlite3") == (1, 30)
+
+
+def _meter_profile() -> MachineProfile:
+    """Invented: a case drain read on a small meter (at most 4 L/min) and charge at 20–28 bar."""
+    return MachineProfile.model_validate(
+        {
+            "id": "demo-crawler-7",
+            "name": "Demo crawler 7 (invented)",
+            "rated_speed": "2200 rpm",
+            "rated_max_pressure": "350 bar",
+            "circuits": [
+                {
+                    "id": "drive",
+                    "name": "Travel drive",
+                    "kind": "closed_loop_drive",
+                    "parameters": {"charge_relief_setting": "24 bar", "pump_displacement": "71 cc/rev"},
+                    "test_points": [
+                        {
+                            "id": "charge",
+                            "role": "charge_pressure",
+                            "expected": [
+                                {"low": "20 bar", "high": "28 bar", "source": "invented demo figure"}
+                            ],
+                        },
+                        {
+                            "id": "case_drain",
+                            "role": "pump_case_drain_flow",
+                            "expected": [{"high": "4 L/min", "source": "invented demo figure"}],
+                        },
+                    ],
+                }
+            ],
+        }
+    )
+
+
+def test_a_value_without_unit_is_told_an_example_from_its_own_point() -> None:
+    """Issue 10 item 9: no 'e.g. 62 L/min' for a meter that reads up to 4 L/min. Hand values:
+    a point expected at most 4 L/min suggests half-way to zero, 2 L/min; one expected 20–28 bar
+    suggests the middle, 24 bar (the rule of fieldkit/model/example.py, worked by hand)."""
+    points = points_by_id(_meter_profile())
+    err = _error_with(
+        "time,test_point,value\n2024-05-14T08:30:00Z,drive.case_drain,2.4\n2024-05-14T08:31:00Z,drive.charge,24.5\n",
+        points,
+    )
+    assert "line 2: value '2.4' has no unit: put it in the header ('value [L/min]'), a unit column, " in str(
+        err
+    )
+    assert "or the cell ('2 L/min')" in str(err)
+    assert "line 3: value '24.5' has no unit" in str(err) and "or the cell ('24 bar')" in str(err)
+    assert "62 L/min" not in str(err) and "22 bar" not in str(err)
+    # told only the kinds of the points (no ranges): the kind's usual example is all there is
+    loose = _error("time,test_point,value\n2024-05-14T08:30:00Z,drive.case_drain,2.4\n")
+    assert "or the cell ('62 L/min')" in str(loose)
+
+
+def _error_with(text: str, points: dict[str, TestPoint]) -> DataFileError:
+    with pytest.raises(DataFileError) as caught:
+        parse_readings_csv(text, test_points=points)
+    return caught.value
