@@ -74,6 +74,7 @@ CAUTION_IDS = frozenset(
         "relief-max-setting",
         "rotating-parts",
         "intensification",
+        "port-relief-check",
     }
 )
 #: Ground rules: a template range names a published source or says it is common practice or from memory.

@@ -25,8 +25,8 @@ from fieldkit.expr.dims import kind_dimension
 from fieldkit.model.condition import FunctionState
 from fieldkit.model.fitted import applies
 from fieldkit.model.parameters import PARAMETERS
-from fieldkit.model.profile import Circuit, MachineProfile
-from fieldkit.model.roles import ROLES, Role
+from fieldkit.model.profile import Circuit, MachineProfile, TestPoint
+from fieldkit.model.roles import PER_POINT_ROLES, ROLES, Role
 from fieldkit.physics.closed_loop import cross_port_stall_reading
 from fieldkit.physics.fluid import grade
 from fieldkit.physics.reliefs import arrangement_for, deadhead
@@ -126,6 +126,13 @@ class Scope:
 
     circuit: Circuit | None
     by_role: dict[Role, list[Measured]] = field(default_factory=dict)
+    #: Set for a scope of one point of a per-point role (one work port of a valve bank): the
+    #: rule reads that point, and the circuit's primary points for every other role.
+    point: TestPoint | None = None
+
+    @property
+    def title_suffix(self) -> str:
+        return f" — {self.point.label}" if self.point is not None else ""
 
 
 class Missing(Exception):
@@ -150,8 +157,11 @@ class Evaluator:
         # Rules read a role at its primary point: the first point with that role in a circuit (the
         # machine's first, for machine-wide rules). Other points of the same role (a pilot signal
         # beside the pilot supply) get range checks only.
+        # Roles in PER_POINT_ROLES (each work port of a valve bank) are read at every point, each
+        # in a scope of its own that shares the circuit's primary readings.
         whole = Scope(None)
         machine_primary: dict[Role, str] = {}
+        self.point_scopes: list[Scope] = []
         for c in profile.circuits:
             scope = Scope(c)
             primary: dict[Role, str] = {}
@@ -159,9 +169,17 @@ class Evaluator:
                 primary.setdefault(tp.role, tp.id)
                 machine_primary.setdefault(tp.role, tp.id)
             for m in measured:
-                if m.circuit.id == c.id and primary.get(m.role) == m.point.id:
+                if (
+                    m.circuit.id == c.id
+                    and primary.get(m.role) == m.point.id
+                    and m.role not in PER_POINT_ROLES
+                ):
                     scope.by_role.setdefault(m.role, []).append(m)
             self.scopes.append(scope)
+            for tp in c.test_points:
+                if tp.role in PER_POINT_ROLES:
+                    own = [m for m in measured if m.point.id == tp.id]
+                    self.point_scopes.append(Scope(c, {**scope.by_role, tp.role: own}, tp))
         for m in measured:
             if machine_primary.get(m.role) == m.point.id:
                 whole.by_role.setdefault(m.role, []).append(m)
@@ -341,7 +359,7 @@ class Evaluator:
             return [self.machine] if applies(rule.spec.needs, None, self.profile) else []
         return [
             s
-            for s in self.scopes
+            for s in (self.point_scopes if _reads_per_point_role(rule) else self.scopes)
             if s.circuit is not None
             and s.circuit.kind.value in rule.spec.circuits
             and applies(rule.spec.needs, s.circuit)
@@ -396,7 +414,7 @@ class Evaluator:
             self.missing_roles[f"{spec.id}@{circuit_id}" if circuit_id else spec.id] = missing_roles
             return Finding(
                 rule_id=spec.id,
-                title=spec.title,
+                title=spec.title + scope.title_suffix,
                 circuit=circuit_id,
                 verdict=Verdict.NOT_MEASURED,
                 message=f"{spec.title}: needs {', '.join(missing)}",
@@ -423,7 +441,7 @@ class Evaluator:
         except Exception as exc:  # an expression failing on these numbers (÷0) is reported, not raised
             return Finding(
                 rule_id=spec.id,
-                title=spec.title,
+                title=spec.title + scope.title_suffix,
                 circuit=circuit_id,
                 verdict=Verdict.INCONCLUSIVE,
                 message=f"{spec.title}: could not be computed ({exc})",
@@ -465,7 +483,7 @@ class Evaluator:
             message += f" Counted at reduced weight: {'; '.join(invalid)}."
         finding = Finding(
             rule_id=spec.id,
-            title=spec.title,
+            title=spec.title + scope.title_suffix,
             circuit=circuit_id,
             verdict=verdict,
             message=message,
@@ -554,6 +572,13 @@ class Evaluator:
                     findings.append(f)
                     pairs.append((rule, scope, f))
         return findings, pairs
+
+
+def _reads_per_point_role(rule: Rule) -> bool:
+    """Whether a rule reads a role that is judged point by point (see :data:`PER_POINT_ROLES`)."""
+    return any(
+        name in SYMBOLS.readings and SYMBOLS.readings[name][0] in PER_POINT_ROLES for name in rule.names
+    )
 
 
 def _kind_of_dim(dim: object) -> Kind | None:

@@ -82,6 +82,8 @@ def _state_for(point: TestPoint) -> FunctionState:
 
 
 def _point_for(evaluator: Evaluator, scope: Scope, role: Role) -> tuple[Circuit, TestPoint] | None:
+    if scope.point is not None and scope.circuit is not None and scope.point.role is role:
+        return scope.circuit, scope.point  # a rule read point by point asks for its own point
     circuits = [scope.circuit] if scope.circuit is not None else evaluator.profile.circuits
     for c in circuits:
         for tp in c.test_points:

@@ -20,7 +20,7 @@ from fieldkit.expr import ExprError
 from fieldkit.model.base import Strict
 from fieldkit.model.parameters import PARAMETERS
 from fieldkit.model.parts import Part
-from fieldkit.model.profile import CircuitKind, MachineProfile, Relief, TestPoint
+from fieldkit.model.profile import CircuitKind, MachineProfile, Relief, ReliefLayout, TestPoint
 from fieldkit.model.quantity import parse_for_kind
 from fieldkit.model.ranges import (
     MACHINE_FIGURES,
@@ -40,6 +40,7 @@ from fieldkit.tomlfile import (
     validate,
     validation_error,
 )
+from fieldkit.units import Kind
 
 ROLES_BY_VALUE = {r.value for r in Role}
 
@@ -66,7 +67,10 @@ class CircuitTemplate(Strict):
     parts: list[Part] = Field(
         default_factory=list, description="optional parts this kind of circuit may have"
     )
+    #: Relief settings may be written as expressions of the figures ("main_relief_setting"), so
+    #: a machine that enters its figures gets reliefs that follow them.
     reliefs: list[Relief] = Field(default_factory=list)
+    relief_layout: ReliefLayout | None = None
     test_points: list[TestPoint] = Field(min_length=1)
 
 
@@ -198,6 +202,8 @@ def load_templates(folder: Path) -> Templates:
         checked = dict(raw)
         if isinstance(points, list):
             checked["test_points"] = _resolve_points(points, check, {}, (str(path), {}, "test_points"))
+        if "reliefs" in raw:
+            checked["reliefs"] = _resolve_reliefs(raw["reliefs"], check, str(path), lines)
         tmpl = validate(CircuitTemplate, checked, str(path), text)
         for i, tp in enumerate(tmpl.test_points):
             if tp.part is not None and tp.part not in tmpl.parts:
@@ -210,6 +216,32 @@ def load_templates(folder: Path) -> Templates:
         if tmpl.id in out:
             raise DataFileError(str(path), f"template id '{tmpl.id}' is already used by another file")
         out[tmpl.id] = (tmpl, raw)
+    return out
+
+
+def _resolve_reliefs(
+    reliefs: Any, figures: dict[str, Figure], path: str, lines: dict[tuple[Any, ...], int]
+) -> Any:
+    """A template's reliefs with each setting written as an expression of the figures worked out
+    ("main_relief_setting * 110 %"); a plain pressure is kept as written."""
+    if not isinstance(reliefs, list):
+        return reliefs
+    out = []
+    for i, relief in enumerate(reliefs):
+        if not isinstance(relief, dict) or not isinstance(relief.get("setting"), str):
+            out.append(relief)
+            continue
+        text = relief["setting"]
+        try:
+            res = resolve_bound(text, Kind.PRESSURE, figures)
+        except ExprError as exc:
+            raise DataFileError(
+                path,
+                f"setting = {text!r}: a relief setting is a pressure; {exc.args[0]}",
+                line_for(lines, ("reliefs", i, "setting")),
+                f"reliefs.{i}.setting",
+            ) from None
+        out.append({**relief, "setting": res.text})
     return out
 
 
@@ -320,8 +352,7 @@ def _merge_circuit(
         **circuit.get("parameters", {}),
     }
     merged["typical_parameters"] = {n: f.typical_source for n, f in typical.items()}
-    if "reliefs" not in circuit and raw.get("reliefs"):
-        merged["reliefs"] = copy.deepcopy(raw["reliefs"])
+    own_reliefs = "reliefs" in circuit
     fitted = _fitted(circuit)
     omit = circuit.get("omit_test_points", [])
     known_ids = {tp.get("id") for tp in raw["test_points"]}
@@ -349,6 +380,11 @@ def _merge_circuit(
     ]
     by_id = {tp["id"]: tp for tp in points}
     figures = {**machine, **typical, **own_figures}
+    if not own_reliefs and raw.get("reliefs"):
+        # The template's reliefs, set from this machine's figures (its own list replaces them).
+        merged["reliefs"] = _resolve_reliefs(copy.deepcopy(raw["reliefs"]), figures, path, {})
+        if "relief_layout" not in circuit and raw.get("relief_layout"):
+            merged["relief_layout"] = copy.deepcopy(raw["relief_layout"])
     for j, tp in enumerate(circuit.get("test_points", [])):
         loc = ("circuits", index, "test_points", j)
         if isinstance(tp, dict) and tp.get("id") in by_id:

@@ -138,7 +138,16 @@ def template_machine(templates: Templates, template_id: str) -> MachineProfile:
         "name": f"{tmpl.name} (template only)",
         "rated_speed": TEMPLATE_MACHINE_SPEED,
         "rated_max_pressure": TEMPLATE_MACHINE_PRESSURE,
-        "circuits": [{"id": "c", "name": tmpl.name, "template": template_id}],
+        # The template's usual parts ticked, as the builder offers them: a part the template does
+        # not offer (an accumulator on a valve bank) is not assumed.
+        "circuits": [
+            {
+                "id": "c",
+                "name": tmpl.name,
+                "template": template_id,
+                "fitted_parts": [p.value for p in tmpl.parts],
+            }
+        ],
     }
     return profile_from_raw(raw, templates, f"template {template_id}")
 

@@ -23,6 +23,19 @@ PARAMETERS: dict[str, tuple[Kind, str]] = {
         Kind.PRESSURE,
         "setting of a lower relief in parallel with the main one (a port or auxiliary relief)",
     ),
+    # Port (work-port) reliefs of a multi-section open-centre valve: one per section and port.
+    **{
+        f"port_{n}{side}_relief_setting": (
+            Kind.PRESSURE,
+            f"port relief setting, valve section {n}, port {side.upper()}",
+        )
+        for n in (1, 2, 3)
+        for side in ("a", "b")
+    },
+    "open_centre_pressure_max": (
+        Kind.PRESSURE,
+        "highest pump outlet pressure with every spool of an open-centre valve centred",
+    ),
     "compensator_setting": (Kind.PRESSURE, "pressure compensator setting"),
     "ls_standby_setting": (Kind.PRESSURE, "load-sensing standby (low-pressure standby) setting"),
     "ls_margin_setting": (Kind.PRESSURE, "load-sensing margin setting"),

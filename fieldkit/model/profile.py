@@ -93,6 +93,12 @@ class TestPoint(Strict):
     cautions: list[str] = Field(default_factory=list)
     source: str = ""
     part: Part | None = Field(default=None, description="the optional part this point is on, if any")
+    relief: str | None = Field(
+        default=None,
+        pattern=ID_PATTERN,
+        description="the port relief on this work port (one of the circuit's reliefs): a stall here "
+        "reads the lower of it and the main relief",
+    )
 
     @model_validator(mode="after")
     def _ranges_match_role(self) -> TestPoint:
@@ -241,6 +247,12 @@ class Circuit(Strict):
             unknown = [r for r in self.relief_layout.relief_ids() if r not in relief_ids]
             if unknown:
                 raise ValueError(f"relief_layout names reliefs not listed in reliefs: {', '.join(unknown)}")
+        for tp in self.test_points:
+            if tp.relief is not None and tp.relief not in relief_ids:
+                raise ValueError(
+                    f"test point '{tp.id}' names relief '{tp.relief}', which the circuit does not list "
+                    f"(it lists: {', '.join(sorted(relief_ids)) or 'none'})"
+                )
         return self
 
 

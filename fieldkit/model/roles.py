@@ -23,6 +23,7 @@ class Role(StrEnum):
     LOOP_B_PRESSURE = "loop_b_pressure"
     PUMP_OUTLET_PRESSURE = "pump_outlet_pressure"
     STALL_PRESSURE = "stall_pressure"
+    WORK_PORT_STALL_PRESSURE = "work_port_stall_pressure"
     PUMP_PRESSURE_RELIEF_ISOLATED = "pump_pressure_relief_isolated"
     RETURN_PRESSURE = "return_pressure"
     FILTER_PRESSURE_DROP = "filter_pressure_drop"
@@ -63,6 +64,12 @@ ROLES: dict[Role, RoleInfo] = {
     Role.STALL_PRESSURE: RoleInfo(
         Kind.PRESSURE, "pressure at a stalled function (relief setting)", high_pressure=True
     ),
+    # One work port of a valve section stalled: it reads the lower of its own port relief and the
+    # main relief (in parallel the lowest setting governs), plus the back pressure behind them.
+    # A circuit may have one per port; rules read each of them, not only the first.
+    Role.WORK_PORT_STALL_PRESSURE: RoleInfo(
+        Kind.PRESSURE, "work port pressure, that function stalled", high_pressure=True
+    ),
     # A stall read again with the main relief taken out of play (screwed in, or the valve blocked
     # off and the pump deadheaded on a test gauge): the pump's own compensator alone.
     Role.PUMP_PRESSURE_RELIEF_ISOLATED: RoleInfo(
@@ -86,3 +93,7 @@ ROLES: dict[Role, RoleInfo] = {
         Kind.VELOCITY, "cylinder drift with the rod side vented (piston seal test)", engine_running=False
     ),
 }
+
+#: Roles a circuit may carry at several points that rules read one point at a time (each work
+#: port of a valve bank has its own port relief), rather than at the circuit's first point only.
+PER_POINT_ROLES: frozenset[Role] = frozenset({Role.WORK_PORT_STALL_PRESSURE})

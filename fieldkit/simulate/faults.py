@@ -220,6 +220,42 @@ def parallel_relief_governing(m: Machine, c: CircuitModel | None, s: float, rng:
     return f"relief '{spare[0]}' ({_bar(c.reliefs[spare[0]].setting)}) now in parallel with the main relief"
 
 
+@fault("port_relief_low", CircuitKind.OPEN_FIXED_PUMP)
+def port_relief_low(m: Machine, c: CircuitModel | None, s: float, rng: Random) -> str:
+    """One work port's relief (which one drawn from the seed, among the ports a test point is
+    on) has a weak spring or dirt under its poppet: it opens 30 %·s below its setting. Only
+    that port stalls low, and only once it has dropped below the main relief."""
+    assert c is not None
+    ports = sorted({tp.relief for tp in c.circuit.test_points if tp.relief and tp.relief in c.reliefs})
+    if not ports:
+        return "no work port with its own relief to change"
+    rid = rng.choice(ports)
+    relief = c.reliefs[rid]
+    before = relief.setting
+    relief.setting = before * (1.0 - 0.30 * s)
+    return f"port relief '{rid}' opens at {_bar(relief.setting)} instead of {_bar(before)}"
+
+
+@fault("section_spool_leak", CircuitKind.OPEN_FIXED_PUMP)
+def section_spool_leak(m: Machine, c: CircuitModel | None, s: float, rng: Random) -> str:
+    """Worn or scored section spool and bore: oil slips from the loaded work port past the
+    centred spool to tank × (1 + 6·s), so a loaded function drifts down in neutral. The stall
+    still reaches the relief: the pump's flow far outruns the leak."""
+    assert c is not None
+    c.p["spool_leak"] *= 1.0 + 6.0 * s
+    return f"leakage past the centred spool × {1 + 6 * s:.1f}"
+
+
+@fault("open_centre_restricted", CircuitKind.OPEN_FIXED_PUMP)
+def open_centre_restricted(m: Machine, c: CircuitModel | None, s: float, rng: Random) -> str:
+    """A spool not quite centred, a stuck detent or dirt in the open-centre passage: the drop
+    through the centre × (1 + 4·s), so the pump outlet sits higher in neutral (and heats the
+    oil) while the return line downstream reads as before."""
+    assert c is not None
+    c.p["centre_dp"] *= 1.0 + 4.0 * s
+    return f"open-centre passage drop × {1 + 4 * s:.1f}"
+
+
 @fault("return_back_pressure", *OPEN, *LOOP)
 def return_back_pressure(m: Machine, c: CircuitModel | None, s: float, rng: Random) -> str:
     """Blocked return filter, undersized hose or restricted cooler: the return line's turbulent

@@ -13,6 +13,8 @@ Parameters a circuit model carries (``CircuitModel.p``), canonical units:
   multiplies the turbulent part (a blocked or undersized line);
 * ``suc_turb`` / ``suc_lam`` / ``suc_restrict`` the same for the pump inlet (bar of vacuum);
 * ``centre_dp`` open-centre passage drop at ``qr`` (fixed pump, in neutral);
+* ``spool_leak`` leakage past a centred section spool, relative to a sound one: drift of a
+  loaded function scales with it (fixed pump);
 * ``drain`` case drain flow (L/min) of the sound pump at ``p_test``, the reference temperature (a
   piston pump's internal leakage leaves by its case drain, so it is the same gap); ``drain_static``
   and ``drain_r`` what the case reads for it (bar, bar per L/min), ``case_extra`` back pressure
@@ -20,6 +22,10 @@ Parameters a circuit model carries (``CircuitModel.p``), canonical units:
 * load sensing: ``standby``, ``margin``, ``cutoff``, ``ls_vent`` (signal in neutral),
   ``load_p`` (work port pressure with a function moving), ``ls_ratio`` (signal over work port
   pressure: 1 when the signal line holds); pressure compensated: ``cutoff``.
+
+A work-port stall point that names its port relief (``TestPoint.relief``) reads the circuit's
+reliefs with that port relief joined in parallel with the main one: the lower governs, so a port
+relief set above the main relief never shows at its port.
 
 Reliefs are arranged by the profile's ``relief_layout`` and solved with the simulator's own
 valves (:mod:`fieldkit.simulate.hydraulics`): each cracks at its setting and rises with the flow
@@ -54,6 +60,7 @@ from fieldkit.simulate.machine import (
     middle,
     param,
     point,
+    typical,
 )
 from fieldkit.units import Kind, to_canonical
 
@@ -105,13 +112,14 @@ def relief_valves(model: CircuitModel) -> dict[str, Valve]:
     }
 
 
-def relief_network(model: CircuitModel) -> Network | None:
+def relief_network(model: CircuitModel, also: tuple[str, ...] = ()) -> Network | None:
     """The reliefs in circuit as laid out by the profile, plus any relief wrongly joined in
     parallel with the main one; without a layout one relief stands alone and several share the
-    flow in parallel."""
+    flow in parallel. ``also`` joins more reliefs in parallel with the main one: a work port's
+    own port relief while that port is stalled (the lower of the two governs)."""
     if not model.reliefs:
         return None
-    extra = [rid for rid in model.parallel_extra if rid in model.reliefs]
+    extra = [rid for rid in (*model.parallel_extra, *also) if rid in model.reliefs]
     main = main_relief_id(model)
 
     def build(node: str | ReliefLayout, inside_parallel: bool) -> Network:
@@ -142,9 +150,12 @@ def downstream(model: CircuitModel, flow: float, return_bar: float) -> float:
     return network_inlet(("series", net[1][1:]), relief_valves(model), flow, return_bar)
 
 
-def relief_pressure(model: CircuitModel, flow: float, return_bar: float) -> float | None:
-    """Pump-side pressure with ``flow`` passing over the reliefs and ``return_bar`` behind them."""
-    net = relief_network(model)
+def relief_pressure(
+    model: CircuitModel, flow: float, return_bar: float, also: tuple[str, ...] = ()
+) -> float | None:
+    """Pump-side pressure with ``flow`` passing over the reliefs and ``return_bar`` behind them
+    (``also``: reliefs joined in parallel with the main one, see :func:`relief_network`)."""
+    net = relief_network(model, also)
     if net is None:
         return None
     return network_inlet(net, relief_valves(model), flow, return_bar)
@@ -201,8 +212,9 @@ def case_pressure(model: CircuitModel, drain: float) -> float:
 # --- operating points ------------------------------------------------------------------------
 
 
-def _fixed_stall(model: CircuitModel, env: Env) -> tuple[float, float] | None:
-    """Stall pressure and the flow going over the reliefs."""
+def _fixed_stall(model: CircuitModel, env: Env, also: tuple[str, ...] = ()) -> tuple[float, float] | None:
+    """Stall pressure and the flow going over the reliefs (``also``: a stalled work port's own
+    port relief, in parallel with the main one)."""
     main = main_relief_id(model)
     pressure: float | None = model.reliefs[main].setting if main else 0.0
     flow = 0.0
@@ -211,7 +223,7 @@ def _fixed_stall(model: CircuitModel, env: Env) -> tuple[float, float] | None:
     for _ in range(4):
         assert pressure is not None
         flow = max_delivery(model, pressure, env)
-        pressure = relief_pressure(model, flow, return_drop(model, flow, env))
+        pressure = relief_pressure(model, flow, return_drop(model, flow, env), also)
         if pressure is None:
             return None
     assert pressure is not None
@@ -302,12 +314,18 @@ def fixed_pump(
 ) -> float | None:
     role = tp.role
     p = model.p
+    if role is Role.CYLINDER_DRIFT:
+        # A loaded function with its spool centred: oil slips past the spool lands to tank, so the
+        # drift scales with the spool's leakage (the healthy drift is the middle of the range).
+        drift = typical(tp, state)
+        return None if drift is None else drift * model.typical.get(tp.id, 1.0) * p["spool_leak"]
     if state is FunctionState.STALLED:
-        stall = _fixed_stall(model, env)
+        port = (tp.relief,) if role is Role.WORK_PORT_STALL_PRESSURE and tp.relief else ()
+        stall = _fixed_stall(model, env, port)
         if stall is None:
             return None
         pressure, flow = stall
-        if role in (Role.STALL_PRESSURE, Role.PUMP_OUTLET_PRESSURE):
+        if role in (Role.STALL_PRESSURE, Role.PUMP_OUTLET_PRESSURE, Role.WORK_PORT_STALL_PRESSURE):
             return pressure
         return _shared(model, role, flow, env)
     if state is FunctionState.UNDER_LOAD and role is Role.PUMP_FLOW:
@@ -414,6 +432,7 @@ def build_open(machine: Machine, circuit: Circuit, draw: Draw) -> CircuitModel:
         suc_restrict=1.0,
         case_extra=0.0,
         ls_ratio=1.0,
+        spool_leak=1.0,
     )
     main = main_relief_id(model)
     main_setting = model.reliefs[main].setting if main else param(circuit, "main_relief_setting")

@@ -49,6 +49,7 @@ _DEFAULT_STATE: dict[Role, FunctionState] = {
     Role.PUMP_CASE_DRAIN_FLOW: FunctionState.STALLED,
     Role.MOTOR_CASE_DRAIN_FLOW: FunctionState.STALLED,
     Role.STALL_PRESSURE: FunctionState.STALLED,
+    Role.WORK_PORT_STALL_PRESSURE: FunctionState.STALLED,
     Role.LOOP_A_PRESSURE: FunctionState.STALLED,
     Role.LOOP_B_PRESSURE: FunctionState.STALLED,
 }

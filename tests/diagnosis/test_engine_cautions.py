@@ -21,6 +21,7 @@ from diagnosis_helpers import (
     library,
     sample_visit_paths,
     scene_for,
+    scene_profiles,
 )
 
 from fieldkit.diagnosis.engine import diagnose
@@ -127,7 +128,8 @@ HIGH_PRESSURE_ROLES = [role for role, info in ROLES.items() if info.high_pressur
 
 
 def _demo_point(role: Role) -> tuple[MachineProfile, str]:
-    for profile in library().profiles():
+    # Demo machines first, then the bench rig (a valve bank's work ports are only there).
+    for profile in scene_profiles():
         for _c, tp in profile.all_test_points():
             if tp.role is role:
                 return profile, tp.id

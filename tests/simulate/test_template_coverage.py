@@ -65,17 +65,20 @@ def test_every_template_alone_gives_a_plan_with_ranges(templates: Templates) -> 
 
 
 #: Measured 2026-12-03 after the look-alike points (cases_per_fault=2, seed=1, one worker): cases,
-#: top-1, top-3 per template.
+#: top-1, top-3 per template. Open-fixed-pump, open-centre-sections and fan-drive measured again
+#: after template reliefs follow the figures, the valve bank template and template machines with
+#: their template's usual parts ticked.
 MEASURED: dict[str, tuple[int, int, int]] = {
     "template-accumulator": (2, 2, 2),
     "template-brake-charging": (6, 6, 6),
     "template-brake-release": (6, 3, 3),
     "template-closed-loop-drive": (28, 27, 28),
     "template-cylinder": (8, 2, 6),
-    "template-fan-drive": (8, 5, 5),
+    "template-fan-drive": (8, 5, 6),
     "template-load-sensing": (22, 18, 19),
     "template-motor": (8, 6, 6),
-    "template-open-fixed-pump": (14, 10, 12),
+    "template-open-centre-sections": (24, 21, 23),
+    "template-open-fixed-pump": (20, 18, 20),
     "template-pilot-supply": (6, 4, 4),
     "template-power-unit": (18, 17, 17),
     "template-pressure-compensated": (18, 17, 17),
