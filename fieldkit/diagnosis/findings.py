@@ -205,20 +205,29 @@ class Evaluator:
         """States the rule's plain role names are read in. A rule's ``when`` decides; a rule
         without one that combines readings takes them all from one condition: the state its
         ``<role>_in_<state>`` names fix, else the latest state in which every role it reads was
-        measured. Readings from different conditions are never paired."""
-        if rule.spec.when:
-            return tuple(rule.spec.when)
+        measured. Readings from different conditions are never paired: a rule whose ``when``
+        allows several states and that reads several roles (the load-sensing margin, pump outlet
+        minus LS signal, with a function moving at full stroke or under load) takes them all from
+        the latest of those states in which every one of them was read."""
         plain: list[Role] = []
+        direct: list[Role] = []
         fixed: set[FunctionState] = set()
         for name in rule.names:
             if name in SYMBOLS.readings:
                 role, state = SYMBOLS.readings[name]
                 if state is None:
                     plain.append(role)
+                    direct.append(role)
                 else:
                     fixed.add(state)
             elif name in DERIVED:
                 plain.extend(DERIVED[name][1])
+        if rule.spec.when:
+            allowed = tuple(rule.spec.when)
+            if len(allowed) > 1 and len(set(direct)) > 1:
+                # none in common: the first state, so the rule asks for what is missing there
+                return self._common_state(scope, direct, allowed) or allowed[:1]
+            return allowed
         if not plain or (len(plain) == 1 and not fixed):
             return ()
         if len(fixed) == 1:
@@ -231,6 +240,21 @@ class Evaluator:
             ):
                 return (state,)
         return (first[0].reading.condition.function,) if first else ()
+
+    @staticmethod
+    def _common_state(
+        scope: Scope, roles: list[Role], allowed: tuple[FunctionState, ...]
+    ) -> tuple[FunctionState, ...]:
+        """The allowed state of the latest reading of ``roles[0]`` in which every role was read
+        too; empty when there is none (the rule then says what is missing)."""
+        first = sorted(scope.by_role.get(roles[0], []), key=lambda m: m.reading.taken_at, reverse=True)
+        for m in first:
+            state = m.reading.condition.function
+            if state in allowed and all(
+                any(x.reading.condition.function is state for x in scope.by_role.get(r, [])) for r in roles
+            ):
+                return (state,)
+        return ()
 
     def parameter(self, scope: Scope, name: str) -> float:
         circuits = [scope.circuit] if scope.circuit is not None else self.profile.circuits

@@ -45,23 +45,31 @@ def retest_rows(
     visit: Visit, profile: MachineProfile, knowledge: Knowledge, system: DisplaySystem = METRIC
 ) -> list[RetestRow]:
     """Pairs each after-repair reading with the latest earlier reading at the same point taken in
-    the same function state (neutral, stalled…), so like is compared with like."""
+    the same function state (neutral, stalled…), so like is compared with like; a re-tested
+    reading without a range of its own is shown through the finding derived from it."""
     after_ids = {r.id for r in visit.retest_readings()}
     if not after_ids:
         return []
-    before_checks = diagnose(visit.diagnosis_view(), profile, knowledge, system).checks
-    after_checks = [
-        c
-        for c in diagnose(visit.retest_view(), profile, knowledge, system).checks
-        if c.reading_id in after_ids
-    ]
+    before = diagnose(visit.diagnosis_view(), profile, knowledge, system)
+    after = diagnose(visit.retest_view(), profile, knowledge, system)
+    before_checks = before.checks
+    after_checks = [c for c in after.checks if c.reading_id in after_ids]
     readings = {r.id: r for r in visit.readings}
+    conditions = {c.reading_id: c.condition for c in after_checks}
+    # A re-tested reading with no range of its own in its condition (pump outlet and LS signal
+    # under load) is judged through what is derived from it (the margin): that row stands in
+    # for it, so the table never says "no range" where the card has a verdict.
+    rangeless = {c.reading_id for c in after_checks if c.verdict is Verdict.NOT_MEASURED}
+    derived = _derived_rows(before.findings, after.findings, rangeless, conditions)
+    folded = {rid for _row, used in derived for rid in used}
 
     def state(check: ReadingCheck) -> object:
         return readings[check.reading_id].condition.function
 
     rows: list[RetestRow] = []
     for a in after_checks:
+        if a.reading_id in folded and a.verdict is Verdict.NOT_MEASURED:
+            continue
         earlier = [b for b in before_checks if b.test_point == a.test_point and state(b) == state(a)]
         b = earlier[-1] if earlier else None
         rows.append(
@@ -76,7 +84,54 @@ def retest_rows(
                 after_verdict=a.verdict,
             )
         )
-    return rows
+    return rows + [row for row, _used in derived]
+
+
+_JUDGED = (Verdict.LOW, Verdict.IN_RANGE, Verdict.HIGH, Verdict.INCONCLUSIVE)
+
+
+def _derived_rows(
+    before: list[Finding], after: list[Finding], rangeless: set[str], conditions: dict[str, str]
+) -> list[tuple[RetestRow, set[str]]]:
+    """Findings computed from two or more readings (the load-sensing margin: pump outlet minus
+    LS signal in one condition) that re-tested readings without a range of their own fed: the
+    derived value before and after, each with its verdict, and the readings it was made of."""
+    earlier = {f.key: f for f in before}
+    out: list[tuple[RetestRow, set[str]]] = []
+    for f in after:
+        used = set(f.readings)
+        if len(used) < 2 or not used & rangeless or f.verdict not in _JUDGED:
+            continue
+        b = earlier.get(f.key)
+        judged_before = b is not None and b.verdict in _JUDGED
+        first = sorted(used & rangeless)[0]
+        out.append(
+            (
+                RetestRow(
+                    test_point=f.key,
+                    label=f.title,
+                    condition=conditions.get(first, ""),
+                    expected=_limits(f),
+                    before=b.value if b is not None and judged_before else "not measured",
+                    before_verdict=b.verdict if b is not None and judged_before else None,
+                    after=f.value,
+                    after_verdict=f.verdict,
+                ),
+                used,
+            )
+        )
+    return out
+
+
+def _limits(f: Finding) -> str:
+    low, high = (x if x.strip() not in ("", "—") else "" for x in (f.low, f.high))
+    if low and high:
+        (low_n, _, low_unit), (high_n, _, high_unit) = low.rpartition(" "), high.rpartition(" ")
+        # written as the ranges of single readings are: "19.2–28.8 bar"
+        return f"{low_n}–{high_n} {high_unit}" if low_n and low_unit == high_unit else f"{low} to {high}"
+    if low:
+        return f"at least {low}"
+    return f"at most {high}" if high else "no range"
 
 
 def danger_findings(findings: list[Finding], knowledge: Knowledge) -> list[Finding]:
