@@ -151,11 +151,20 @@ def _parser() -> argparse.ArgumentParser:
         "evaluate", help="simulate many visits per fault and measure how often the diagnosis is right"
     )
     ev.add_argument(
-        "--cases", type=int, default=20, help="simulated visits per fault and machine (default 20)"
+        "--cases",
+        type=int,
+        default=None,
+        help="simulated visits per fault and machine (default 20; with --double, per pair, default 2)",
     )
     ev.add_argument("--seed", type=int, default=1, help="seed of the simulation, for repeatable figures")
     ev.add_argument(
         "--templates", action="store_true", help="measure machines of one circuit template each (no figures)"
+    )
+    ev.add_argument(
+        "--double",
+        action="store_true",
+        help="two faults at once: --cases visits for every pair of faults each machine can show "
+        "(default 2 per pair), and how often the engine names the pair",
     )
 
     from fieldkit.kit_command import add_parsers as add_kit_parsers

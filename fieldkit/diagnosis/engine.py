@@ -27,6 +27,7 @@ from fieldkit.diagnosis.lint import check_references
 from fieldkit.diagnosis.measure import Measured, measure_visit
 from fieldkit.diagnosis.next_test import suggest
 from fieldkit.diagnosis.over_pressure import assumed_back_pressure, back_pressure_role, check_over_pressure
+from fieldkit.diagnosis.pairs import rank_pairs
 from fieldkit.diagnosis.ranking import entropy_bits, hypotheses_for, log_posterior, rank
 from fieldkit.diagnosis.results import CautionNote, Diagnosis, Finding, NextTest, ReadingCheck, Verdict
 from fieldkit.diagnosis.rulepack import Rule, load_packs
@@ -320,6 +321,7 @@ def diagnose(
     findings.extend(evidence_findings(visit, evidence_book(knowledge.folder, set(knowledge.faults)), hyps))
     ranked, posterior = rank(hyps, findings)
     logs = log_posterior(hyps, findings)
+    two = rank_pairs(hyps, findings, logs, ranked)
     next_tests = suggest(evaluator, pairs, hyps, posterior, logs, actions=list(knowledge.actions.values()))
     checks = [check_reading(m, system, profile.test_window) for m in measured]
     cautions = _cautions(knowledge, profile, measured, findings, next_tests)
@@ -335,6 +337,8 @@ def diagnose(
         cautions=cautions,
         entropy_bits=entropy_bits(posterior),
         notes=notes,
+        pairs=two.pairs,
+        pair_wins=two.wins,
     )
 
 

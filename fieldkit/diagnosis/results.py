@@ -119,6 +119,24 @@ class RankedFault:
 
 
 @dataclass(slots=True)
+class RankedPair:
+    """Two faults present at once (diagnosis.pairs), with the pair's probability in the model of
+    single faults and pairs together."""
+
+    first: RankedFault
+    second: RankedFault
+    probability: float
+
+    @property
+    def key(self) -> str:
+        return " + ".join(sorted((self.first.key, self.second.key)))
+
+    @property
+    def display_title(self) -> str:
+        return f"{self.first.display_title} and {self.second.display_title}"
+
+
+@dataclass(slots=True)
 class NextTest:
     test_point: str
     label: str
@@ -157,6 +175,11 @@ class Diagnosis:
     cautions: list[CautionNote]
     entropy_bits: float = 0.0
     notes: list[str] = field(default_factory=list)
+    #: Two faults at once, best first; empty unless the leading single fault left a clear
+    #: finding unexplained (diagnosis.pairs).
+    pairs: list[RankedPair] = field(default_factory=list)
+    #: The best pair is more likely than the best single fault: the screens and the card show it.
+    pair_wins: bool = False
 
     @property
     def top(self) -> RankedFault:
@@ -193,7 +216,14 @@ class Diagnosis:
             "cautions": [_plain(asdict(c)) for c in self.cautions],
             "uncertainty_bits": round(self.entropy_bits, 3),
             "notes": self.notes,
-        }
+        } | ({"two_faults": [_pair_json(p) for p in self.pairs]} if self.pair_wins else {})
+
+
+def _pair_json(p: RankedPair) -> dict[str, Any]:
+    return {
+        "faults": [{"id": f.id, "circuit": f.circuit, "title": f.title} for f in (p.first, p.second)],
+        "probability": round(p.probability, 4),
+    }
 
 
 def _plain(d: dict[str, Any]) -> dict[str, Any]:

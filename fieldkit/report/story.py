@@ -317,6 +317,15 @@ def plain_why(t: NextTest) -> str:
 def _cause(diagnosis: Diagnosis) -> str:
     if not diagnosis.faults:
         return "Not determined."
+    if diagnosis.pair_wins and diagnosis.pairs:
+        pair = diagnosis.pairs[0]
+        both = " and ".join(
+            f.title + (f" in the {f.circuit} circuit" if f.circuit else "") for f in (pair.first, pair.second)
+        )
+        return (
+            f"Two faults at once: {both} ({percent(pair.probability)} likely together from the readings "
+            "and checks). No single fault explains every finding."
+        )
     top = diagnosis.faults[0]
     if top.id == NO_FAULT:
         return f"No hydraulic fault found in the readings ({percent(top.probability)} likely)."

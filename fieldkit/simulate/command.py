@@ -85,6 +85,7 @@ def render(report: object, console: Console) -> None:
     head.add_row(
         Text("Brier score of the top probability (0 is perfect)"), Text(f"{r.brier():.3f}", justify="right")
     )
+    head.add_row(Text("one-fault visits shown as two faults at once"), _pct(r.pairs_shown()))
     head.add_row(Text("time"), Text(f"{r.seconds:.1f} s", justify="right"))
     console.print(head)
 
@@ -156,9 +157,42 @@ def render(report: object, console: Console) -> None:
     console.print(skipped)
 
 
+def render_double(report: object, console: Console) -> None:
+    """The figures of a :class:`~fieldkit.simulate.evaluate.DoubleReport` as tables."""
+    from fieldkit.simulate.evaluate import DoubleReport
+
+    assert isinstance(report, DoubleReport)
+    r = report
+    head = _table("Two faults at once: diagnosis of simulated visits", "figure", "value")
+    head.add_row(Text("visits per pair of faults and machine"), Text(str(r.cases_per_pair), justify="right"))
+    head.add_row(
+        Text("seed; fault severity drawn from"),
+        Text(f"{r.seed}; {r.severity[0]:g}–{r.severity[1]:g}", justify="right"),
+    )
+    head.add_row(Text("visits diagnosed"), Text(str(len(r.cases)), justify="right"))
+    head.add_row(Text("injected pair is the top pair"), _pct(r.rate("pair_top")))
+    head.add_row(Text("injected pair among the top 3 pairs"), _pct(r.rate("pair_top3")))
+    head.add_row(Text("injected pair shown (more likely than any single fault)"), _pct(r.rate("pair_shown")))
+    head.add_row(Text("top single fault is one of the two"), _pct(r.rate("single_names_one")))
+    head.add_row(Text("both among the top 3 single faults"), _pct(r.rate("singles_hold_both")))
+    head.add_row(Text("time"), Text(f"{r.seconds:.1f} s", justify="right"))
+    console.print(head)
+    per = _table("Per machine", "machine", "visits", "top pair", "top-3 pairs", "pair shown")
+    for profile, cases in r.by_profile().items():
+        n = len(cases)
+        per.add_row(
+            Text(profile),
+            Text(str(n), justify="right"),
+            _pct(sum(c.pair_top for c in cases) / n),
+            _pct(sum(c.pair_top3 for c in cases) / n),
+            _pct(sum(c.pair_shown for c in cases) / n),
+        )
+    console.print(per)
+
+
 def run_evaluate(args: argparse.Namespace) -> int:
     from fieldkit.diagnosis.engine import default_knowledge
-    from fieldkit.simulate.evaluate import evaluate
+    from fieldkit.simulate.evaluate import DEFAULT_CASES, evaluate, evaluate_double
 
     rules = getattr(args, "rules", None)  # the global --rules folder, to measure a rule change
     profiles = None
@@ -169,17 +203,27 @@ def run_evaluate(args: argparse.Namespace) -> int:
 
         templates = load_templates((rules or rules_dir()) / "templates")
         profiles = [template_machine(templates, tid) for tid in sorted(templates)]
-    report = evaluate(
-        profiles,
-        cases_per_fault=args.cases,
-        seed=args.seed,
-        knowledge=default_knowledge(rules) if rules else None,
-    )
+    knowledge = default_knowledge(rules) if rules else None
     console = Console(highlight=False)
     if not console.is_terminal:
         console = Console(highlight=False, width=max(console.width, 120))  # files and pipes: no cramped wrap
+    if getattr(args, "double", False):
+        double = evaluate_double(
+            profiles,
+            cases_per_pair=2 if args.cases is None else args.cases,
+            seed=args.seed,
+            knowledge=knowledge,
+        )
+        render_double(double, console)
+        return 0
+    report = evaluate(
+        profiles,
+        cases_per_fault=DEFAULT_CASES if args.cases is None else args.cases,
+        seed=args.seed,
+        knowledge=knowledge,
+    )
     render(report, console)
     return 0
 
 
-__all__ = ["load_profile_arg", "render", "run_evaluate", "run_simulate"]
+__all__ = ["load_profile_arg", "render", "render_double", "run_evaluate", "run_simulate"]

@@ -28,7 +28,7 @@ from fieldkit.errors import FieldkitError
 from fieldkit.model.loading import ProfileLibrary
 from fieldkit.model.profile import MachineProfile
 from fieldkit.resources import rules_dir, samples_dir
-from fieldkit.simulate.simulator import NO_FAULT, Simulation, Simulator
+from fieldkit.simulate.simulator import NO_FAULT, DoubleSimulation, Simulation, Simulator
 
 #: Severity range each simulated fault is drawn from: faults in the field vary, from barely past
 #: the maker's range to far beyond it (severity 1 is a clear case; see fieldkit.simulate.faults).
@@ -89,6 +89,8 @@ class Case:
     in_top3: bool
     #: The engine holds a hypothesis for this fault in this circuit at all.
     named: bool
+    #: Two faults at once were shown (a pair more likely than any single fault).
+    pair_shown: bool = False
 
 
 @dataclass(frozen=True, slots=True)
@@ -213,6 +215,10 @@ class EvaluationReport:
         counts: Counter[tuple[str, str]] = Counter((c.profile, c.fault) for c in self.cases if not c.named)
         return dict(counts)
 
+    def pairs_shown(self) -> float:
+        """Share of the one-fault visits on which two faults at once were shown instead."""
+        return sum(c.pair_shown for c in self.cases) / len(self.cases) if self.cases else 0.0
+
     def brier(self) -> float:
         """Mean squared gap between the top hypothesis's probability and whether it was right."""
         if not self.cases:
@@ -264,6 +270,7 @@ class EvaluationReport:
             "faulty": s(self.faulty()),
             "healthy_no_false_alarm": s(self.healthy()),
             "brier": round(self.brier(), 4),
+            "pairs_shown": round(self.pairs_shown(), 4),
             "reliability": [
                 {
                     "bin": [b.low, b.high],
@@ -309,6 +316,7 @@ def _judge(sim: Simulation, profile: MachineProfile, d: Diagnosis) -> Case:
         found=right(top.id, top.circuit),
         in_top3=any(right(f.id, f.circuit) for f in top3),
         named=any(right(f.id, f.circuit) for f in d.faults),
+        pair_shown=d.pair_wins,
     )
 
 
@@ -412,6 +420,163 @@ def evaluate(
     return report
 
 
+# --- two faults at once ----------------------------------------------------------------------
+
+#: Faults left out of the two-fault visits: they spoil the readings rather than the machine (a
+#: gauge reading wrong, readings taken cold or at the wrong throttle), so a second fault under them
+#: is a question of the visit, not of the machine.
+NOT_PAIRED = frozenset({"gauge_error", "invalid_test_conditions"})
+#: Pairs that cannot happen: one part set both low and high.
+EXCLUSIVE = frozenset(
+    {
+        frozenset({"main_relief_low", "main_relief_high"}),
+        frozenset({"hp_relief_low", "hp_relief_high"}),
+    }
+)
+
+
+def fault_pairs(faults: Sequence[str]) -> list[tuple[str, str]]:
+    """Every pair of two different faults that can be injected together, in table order."""
+    usable = [f for f in faults if f not in NOT_PAIRED and f != NO_FAULT]
+    return [
+        (a, b) for i, a in enumerate(usable) for b in usable[i + 1 :] if frozenset({a, b}) not in EXCLUSIVE
+    ]
+
+
+@dataclass(frozen=True, slots=True)
+class DoubleCase:
+    """One visit with two faults injected and what the engine made of it."""
+
+    profile: str
+    #: The injected faults as hypothesis keys (fault@circuit, or the fault for a machine-wide one).
+    injected: tuple[str, str]
+    severity: float
+    seed: int
+    #: The top pair is the injected one / it is among the top three pairs.
+    pair_top: bool
+    pair_top3: bool
+    #: The best pair was more likely than the best single fault (shown on the screen and card).
+    pair_shown: bool
+    #: The top single fault is one of the two injected.
+    single_names_one: bool
+    #: The top three single faults hold both injected faults.
+    singles_hold_both: bool
+
+
+@dataclass
+class DoubleReport:
+    seed: int
+    cases_per_pair: int
+    severity: tuple[float, float]
+    cases: list[DoubleCase] = field(default_factory=list)
+    seconds: float = 0.0
+
+    def rate(self, what: str) -> float:
+        if not self.cases:
+            return 0.0
+        return sum(bool(getattr(c, what)) for c in self.cases) / len(self.cases)
+
+    def by_profile(self) -> dict[str, list[DoubleCase]]:
+        groups: dict[str, list[DoubleCase]] = defaultdict(list)
+        for c in self.cases:
+            groups[c.profile].append(c)
+        return dict(sorted(groups.items()))
+
+    def to_json(self) -> dict[str, Any]:
+        figures = ("pair_top", "pair_top3", "pair_shown", "single_names_one", "singles_hold_both")
+        return {
+            "format": "fieldkit.evaluation.double",
+            "version": 1,
+            "seed": self.seed,
+            "cases_per_pair": self.cases_per_pair,
+            "severity": list(self.severity),
+            "visits": len(self.cases),
+            **{f: round(self.rate(f), 4) for f in figures},
+        }
+
+
+def _key(fault: str, circuit: str | None) -> str:
+    return f"{fault}@{circuit}" if circuit else fault
+
+
+def _judge_double(sim: DoubleSimulation, profile: MachineProfile, d: Diagnosis) -> DoubleCase:
+    injected = tuple(_key(i.fault, i.circuit) for i in sim.injected)
+    want = set(injected)
+    pair_sets = [{p.first.key, p.second.key} for p in d.pairs]
+    singles = [f.key for f in d.faults]
+    return DoubleCase(
+        profile=profile.id,
+        injected=(injected[0], injected[1]),
+        severity=sim.injected[0].severity,
+        seed=sim.seed,
+        pair_top=bool(pair_sets) and pair_sets[0] == want,
+        pair_top3=want in pair_sets[:3],
+        pair_shown=d.pair_wins and bool(pair_sets) and pair_sets[0] == want,
+        single_names_one=bool(singles) and singles[0] in want,
+        singles_hold_both=want <= set(singles[:3]),
+    )
+
+
+def _run_double(
+    profile: MachineProfile,
+    pair: tuple[str, str],
+    seed: int,
+    cases: int,
+    severity: tuple[float, float],
+    knowledge: Knowledge,
+) -> list[DoubleCase]:
+    sim = Simulator(profile)
+    out: list[DoubleCase] = []
+    for i in range(cases):
+        cs = case_seed(seed, profile.id, "+".join(pair), i)
+        level = Random(cs).uniform(*severity)
+        result = sim.simulate_two(pair[0], pair[1], level, cs)
+        out.append(_judge_double(result, profile, diagnose(result.visit, profile, knowledge)))
+    return out
+
+
+def _double_worker(task: tuple[str, tuple[str, str], int, int, tuple[float, float], str]) -> list[DoubleCase]:
+    profile_json, pair, seed, cases, severity, rules = task
+    profile = MachineProfile.model_validate_json(profile_json)
+    return _run_double(profile, pair, seed, cases, severity, default_knowledge(Path(rules)))
+
+
+def evaluate_double(
+    profiles: Sequence[MachineProfile] | None = None,
+    cases_per_pair: int = 2,
+    seed: int = 1,
+    knowledge: Knowledge | None = None,
+    severity: tuple[float, float] = DEFAULT_SEVERITY,
+    workers: int | None = None,
+) -> DoubleReport:
+    """Two faults at once: ``cases_per_pair`` visits for every pair of faults that can show on
+    each profile (:func:`fault_pairs`), each diagnosed; how often the injected pair is named."""
+    if cases_per_pair < 1:
+        raise FieldkitError(f"cases per pair must be at least 1; got {cases_per_pair}")
+    started = time.perf_counter()
+    profiles = list(profiles) if profiles is not None else sample_profiles()
+    knowledge = knowledge or default_knowledge()
+    report = DoubleReport(seed, cases_per_pair, severity)
+    batches = [(p, pair) for p in profiles for pair in fault_pairs(Simulator(p).injectable())]
+    workers = default_workers() if workers is None else max(1, workers)
+    if workers == 1 or len(batches) <= 1:
+        results = [_run_double(p, pair, seed, cases_per_pair, severity, knowledge) for p, pair in batches]
+    else:
+        from concurrent.futures import ProcessPoolExecutor
+
+        as_json = {p.id: p.model_dump_json() for p in profiles}
+        tasks = [
+            (as_json[p.id], pair, seed, cases_per_pair, severity, str(knowledge.folder))
+            for p, pair in batches
+        ]
+        with ProcessPoolExecutor(max_workers=workers) as pool:
+            results = list(pool.map(_double_worker, tasks, chunksize=8))
+    for cases in results:
+        report.cases.extend(cases)
+    report.seconds = time.perf_counter() - started
+    return report
+
+
 def sample_profiles() -> list[MachineProfile]:
     """The bundled demo profiles (not the user's own): what the evaluation is measured on."""
 
@@ -423,6 +588,8 @@ __all__ = [
     "DEFAULT_SEVERITY",
     "FAMILIES",
     "Case",
+    "DoubleCase",
+    "DoubleReport",
     "EvaluationReport",
     "ReliabilityBin",
     "RuleTally",
@@ -430,7 +597,9 @@ __all__ = [
     "case_seed",
     "default_workers",
     "evaluate",
+    "evaluate_double",
     "family_of",
+    "fault_pairs",
     "sample_profiles",
     "score",
 ]

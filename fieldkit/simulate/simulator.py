@@ -54,6 +54,15 @@ class Simulation:
     seed: int
 
 
+@dataclass(frozen=True)
+class DoubleSimulation:
+    """A simulated visit with two faults injected at once."""
+
+    visit: Visit
+    injected: tuple[Injection, Injection]
+    seed: int
+
+
 def _streams(seed: int) -> tuple[Random, Random, Random]:
     return Random(f"{seed}:machine"), Random(f"{seed}:fault"), Random(f"{seed}:gauges")
 
@@ -163,6 +172,43 @@ class Simulator:
             machine, machine.circuits[circuit_id] if circuit_id else None, severity, fault_rng
         )
         return machine, Injection(fault_id, circuit_id, severity, change)
+
+    def machine_with_two(
+        self, first: str, second: str, severity: float = 1.0, seed: int = 0
+    ) -> tuple[Machine, tuple[Injection, Injection]]:
+        """The simulated machine for a seed with two faults injected, the second after the first
+        (each in a circuit it can show from, drawn from its own stream)."""
+        if first == second:
+            raise FieldkitError(f"two faults at once must be two different faults; got '{first}' twice")
+        machine, one = self.machine(first, severity, seed)
+        if second not in FAULTS:
+            raise FieldkitError(f"the simulator cannot inject '{second}'; it knows: {', '.join(FAULTS)}")
+        targets = self.targets(second)
+        if not targets:
+            raise FieldkitError(
+                f"fault '{second}' cannot show on machine '{self.profile.id}': {self.reasons[second]}"
+            )
+        rng = Random(f"{seed}:second fault")
+        circuit_id = rng.choice(targets)
+        change = FAULTS[second].change(
+            machine, machine.circuits[circuit_id] if circuit_id else None, severity, rng
+        )
+        return machine, (one, Injection(second, circuit_id, severity, change))
+
+    def simulate_two(self, first: str, second: str, severity: float = 1.0, seed: int = 0) -> DoubleSimulation:
+        """A visit on a machine with two faults at once (``fieldkit evaluate --double``)."""
+        machine, (one, two) = self.machine_with_two(first, second, severity, seed)
+        readings, used = self._readings(machine, _streams(seed)[2], seed)
+
+        def where(i: Injection) -> str:
+            return f"{i.fault}" + (f" in circuit '{i.circuit}'" if i.circuit else "")
+
+        story = (
+            f"Simulated: two faults, severity {severity:g}: {where(one)} ({one.change}) and "
+            f"{where(two)} ({two.change})."
+        )
+        visit = self._visit(f"{first}+{second}", severity, seed, story, used, readings)
+        return DoubleSimulation(visit, (one, two), seed)
 
     def true_values(self, machine: Machine) -> list[float | None]:
         """What a perfect instrument would read at each planned reading (aligned with ``plan``)."""
@@ -320,4 +366,12 @@ def simulate_visit(
     return simulate(profile, fault, severity, seed).visit
 
 
-__all__ = ["NO_FAULT", "Injection", "Simulation", "Simulator", "simulate", "simulate_visit"]
+__all__ = [
+    "NO_FAULT",
+    "DoubleSimulation",
+    "Injection",
+    "Simulation",
+    "Simulator",
+    "simulate",
+    "simulate_visit",
+]

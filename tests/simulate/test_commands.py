@@ -86,3 +86,24 @@ def test_figures_from_data_are_never_read_as_markup():
     render(report, Console(file=buffer, width=200, color_system=None))
     text = buffer.getvalue()
     assert odd in text and "because [link=x]y[/link]" in text
+
+
+def test_evaluate_double_prints_how_often_the_pair_is_named(capsys):
+    assert main(["evaluate", "--double", "--cases", "1", "--seed", "2"]) == 0
+    out = capsys.readouterr().out
+    assert "Two faults at once" in out
+    for row in (
+        "injected pair is the top pair",
+        "injected pair among the top 3 pairs",
+        "injected pair shown",
+        "brindlecombe-pebblerun",
+    ):
+        assert row in out
+    # One visit per pair: the Pebblerun alone shows some pairs, so the count is well above zero.
+    visits = next(line for line in out.splitlines() if "visits diagnosed" in line)
+    assert int(visits.split()[-1].strip("│")) > 50
+
+
+def test_evaluate_double_refuses_zero_cases(capsys):
+    assert main(["evaluate", "--double", "--cases", "0"]) == 2
+    assert "at least 1" in capsys.readouterr().err

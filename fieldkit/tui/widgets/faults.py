@@ -10,7 +10,7 @@ from rich.text import Text
 from textual.widgets import OptionList
 from textual.widgets.option_list import Option
 
-from fieldkit.diagnosis.results import Diagnosis, Finding, RankedFault, Verdict
+from fieldkit.diagnosis.results import Diagnosis, Finding, RankedFault, RankedPair, Verdict
 from fieldkit.tui.safe_text import literal
 from fieldkit.tui.widgets.drawn import DrawnBlock
 from fieldkit.units import percent
@@ -43,6 +43,16 @@ def fault_text(f: RankedFault, bar_width: int = 10) -> Text:
     return out
 
 
+def pair_text(p: RankedPair, bar_width: int = 10) -> Text:
+    """The winning pair of faults, above the single ranking (shown only when it wins)."""
+    out = Text(end="", no_wrap=True, overflow="ellipsis")
+    out.append(prob_bar(p.probability, bar_width), "bold")
+    out.append(f" {percent(p.probability):>4} ")
+    out.append("two at once: ", "bold")
+    out.append_text(literal(p.display_title))
+    return out
+
+
 def finding_text(f: Finding) -> Text:
     out = Text(end="")
     out.append(f"{FINDING_GLYPH[f.verdict]} {f.verdict.label:<12} ", "bold")
@@ -56,12 +66,18 @@ class FaultList(OptionList):
     def __init__(self, *, id: str | None = None) -> None:
         super().__init__(id=id)
         self._rows: list[RankedFault] = []
+        self._pair: RankedPair | None = None
 
     def show(self, diagnosis: Diagnosis | None, limit: int = 12) -> None:
         """Show the ranking. When the same faults stay in the same order only the rows whose
-        fault changed are swapped; a new order rebuilds the list, keeping the highlighted row."""
+        fault changed are swapped; a new order rebuilds the list, keeping the highlighted row.
+        Two faults at once head the list, as a row that opens nothing, only when the pair is
+        more likely than any single fault."""
         rows = list(diagnosis.faults[:limit]) if diagnosis else []
-        if [f.key for f in rows] == [f.key for f in self._rows]:
+        pair = diagnosis.pairs[0] if diagnosis is not None and diagnosis.pair_wins else None
+        same_pair = (pair is None) == (self._pair is None) and (pair is None or pair == self._pair)
+        self._pair = pair
+        if same_pair and pair is None and [f.key for f in rows] == [f.key for f in self._rows]:
             for index, (old, new) in enumerate(zip(self._rows, rows, strict=True)):
                 if old != new:
                     self.replace_option_prompt_at_index(index, fault_text(new))
@@ -72,6 +88,8 @@ class FaultList(OptionList):
         self.clear_options()
         if not rows:
             return
+        if pair is not None:
+            self.add_option(Option(pair_text(pair), id=f"pair:{pair.key}"))
         self.add_options([Option(fault_text(f), id=f.key) for f in rows])
         self.highlighted = min(keep or 0, self.option_count - 1)
 
