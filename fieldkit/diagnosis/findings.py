@@ -627,8 +627,25 @@ def likelihoods(
     """P(observation | h) for every hypothesis, the observation being soft (virtual evidence)."""
     healthy = weighted(rule.spec.likelihood("no_fault"))
     out: list[float] = []
+    # The circuit feeding this one (profile: supplied_by), where the rule says such a feed can
+    # carry a fault into its reading (rule: supplied_from). A fault that can sit in this circuit
+    # itself is read here, not in its supply (a drifting cylinder's own seal, not a copy upstream).
+    feed = (
+        circuit.supplied_by
+        if circuit is not None and circuit.supplied_by is not None and rule.spec.supplied_from
+        else None
+    )
     for h in hypotheses:
-        same_place = circuit is None or h.circuit is None or h.circuit.id == circuit.id
+        same_place = (
+            circuit is None
+            or h.circuit is None
+            or h.circuit.id == circuit.id
+            or (
+                h.circuit.id == feed
+                and h.circuit.kind.value in rule.spec.supplied_from
+                and not h.fault.applies_to(circuit.kind)
+            )
+        )
         lik = weighted(rule.spec.likelihood(h.fault.id)) if same_place else healthy
         out.append(sum(o * p for o, p in zip(outcome, lik, strict=True)))
     return out

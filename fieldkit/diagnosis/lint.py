@@ -73,7 +73,7 @@ def problems(knowledge: Knowledge) -> list[Problem]:
                 if (
                     not spec.machine_wide
                     and not f.machine_wide
-                    and not any(f.applies_to_name(c) for c in spec.circuits)
+                    and not any(f.applies_to_name(c) for c in [*spec.circuits, *spec.supplied_from])
                 ):
                     found.append(
                         Problem(

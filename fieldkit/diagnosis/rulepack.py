@@ -16,7 +16,7 @@ from typing import Any
 
 from pydantic import Field, model_validator
 
-from fieldkit.diagnosis.catalogue import ANY_CIRCUIT, CircuitKinds
+from fieldkit.diagnosis.catalogue import ANY_CIRCUIT, CircuitKindList, CircuitKinds
 from fieldkit.diagnosis.symbols import DERIVED, FUNCTIONS, SYMBOLS, names_to_roles
 from fieldkit.errors import DataFileError
 from fieldkit.expr import ExprError, compile_expression
@@ -63,6 +63,14 @@ class RuleSpec(Strict):
     low: str | None = None
     high: str | None = None
     healthy: Healthy = Field(default_factory=Healthy)
+    supplied_from: CircuitKindList = Field(
+        default_factory=list,
+        description=(
+            "circuit kinds that can feed the rule's circuit (a brake released from a drive's charge "
+            "gallery): where the machine's profile says a circuit is supplied_by one of these, the "
+            "feeding circuit's faults read through this rule's tables too"
+        ),
+    )
     if_low: dict[str, float] = Field(default_factory=dict, description="fault → P(value reads low | fault)")
     if_high: dict[str, float] = Field(default_factory=dict, description="fault → P(value reads high | fault)")
     say_low: str = ""

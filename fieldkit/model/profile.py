@@ -197,6 +197,13 @@ class Circuit(Strict):
             "the common way) or 'gauge' (what the port gauge reads)"
         ),
     )
+    supplied_by: str | None = Field(
+        default=None,
+        description=(
+            "the circuit whose pressure feeds this one (a parking brake released from the drive's "
+            "charge gallery): a fault there can show here"
+        ),
+    )
     test_points: list[TestPoint] = Field(default_factory=list)
     fitted_parts: list[Part] | None = Field(
         default=None,
@@ -297,6 +304,12 @@ class MachineProfile(Strict):
         cids = [c.id for c in self.circuits]
         if len(set(cids)) != len(cids):
             raise ValueError("circuit ids must be unique")
+        for c in self.circuits:
+            if c.supplied_by is not None and (c.supplied_by == c.id or c.supplied_by not in cids):
+                raise ValueError(
+                    f"circuit '{c.id}' is supplied_by '{c.supplied_by}', which is not another circuit of "
+                    f"this machine (its circuits: {', '.join(cids)})"
+                )
         return self
 
     @property

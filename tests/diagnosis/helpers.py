@@ -314,10 +314,25 @@ def weighted(table: tuple[float, float, float]) -> tuple[float, float, float]:
     return powered[0] / sum(powered), powered[1] / sum(powered), powered[2] / sum(powered)
 
 
-def likelihood_for(rule: Rule, finding_circuit: str | None, key: str) -> tuple[float, float, float]:
-    """A hypothesis in another circuit than the finding's reads like a healthy machine."""
+def likelihood_for(
+    rule: Rule, finding_circuit: str | None, key: str, profile: MachineProfile | None = None
+) -> tuple[float, float, float]:
+    """A hypothesis in another circuit than the finding's reads like a healthy machine, except
+    (DEVELOPERS.md, "supplied_by") one in the circuit that feeds the finding's circuit, when the
+    rule names that feeding kind in supplied_from and the fault cannot occur in the finding's
+    circuit itself (needs the profile)."""
     where = circuit_of(key)
     same_place = finding_circuit is None or where is None or where == finding_circuit
+    if not same_place and profile is not None:
+        circuits = {c.id: c for c in profile.circuits}
+        fed = circuits[finding_circuit]
+        feeder = circuits[where]
+        fault = knowledge().faults[fault_of(key)]
+        same_place = (
+            fed.supplied_by == where
+            and feeder.kind.value in rule.spec.supplied_from
+            and fed.kind.value not in fault.circuits
+        )
     return table_likelihood(rule, fault_of(key) if same_place else "no_fault")
 
 
@@ -570,7 +585,14 @@ def _try_scene(rule: Rule, profile: MachineProfile, circuit: Circuit | None) -> 
     hyps = hypothesis_keys(profile, knowledge().faults)
     listed = set(spec.if_low) | set(spec.if_high)
     keys = tuple(
-        k for k in hyps if fault_of(k) in listed and (circuit is None or circuit_of(k) in (None, circuit.id))
+        k
+        for k in hyps
+        if fault_of(k) in listed
+        and (
+            circuit is None
+            or circuit_of(k) in (None, circuit.id)
+            or likelihood_for(rule, circuit.id, k, profile) != table_likelihood(rule, "no_fault")
+        )
     )
     return Scene(rule, profile, circuit, tuple(needs), free, nominal, figures, low, high, keys)
 

@@ -96,7 +96,7 @@ def enumerate_posterior(visit: Visit, profile: MachineProfile, d: Diagnosis) -> 
         tempered = rule.spec.discount_when_invalid and _outside_test_window(visit, profile, f.readings)
         power = TEMPER if tempered else 1.0
         for key in joint:
-            lik = likelihood_for(rule, f.circuit, key)
+            lik = likelihood_for(rule, f.circuit, key, profile)
             joint[key] *= sum(o * p for o, p in zip(observed, lik, strict=True)) ** power
     total = sum(joint.values())
     return {key: p / total for key, p in joint.items()}
@@ -148,7 +148,7 @@ def test_posterior_matches_pgmpy_variable_elimination_with_virtual_evidence(name
     cpds = [TabularCPD("Fault", len(states), [[priors[s]] for s in states], state_names={"Fault": states})]
     virtual = []
     for f in findings:
-        columns = [likelihood_for(rules[f.rule_id], f.circuit, s) for s in states]
+        columns = [likelihood_for(rules[f.rule_id], f.circuit, s, profile) for s in states]
         cpds.append(
             TabularCPD(
                 f.key,

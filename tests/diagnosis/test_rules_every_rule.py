@@ -104,7 +104,7 @@ def test_rule_gives_its_verdict_and_the_evidence_its_tables_say(scene: Scene, si
     outcome = (f.p_low, f.p_in_range, f.p_high)
     healthy = table_likelihood(rule, "no_fault")
     for key in scene.listed_keys:
-        lik = likelihood_for(rule, scene.circuit_id, key)
+        lik = likelihood_for(rule, scene.circuit_id, key, scene.profile)
         # Virtual evidence: P(finding | h) = Σ_o P(o observed) · P(o | h), as a ratio to healthy.
         expected = math.log(sum(o * p for o, p in zip(outcome, lik, strict=True))) - math.log(
             sum(o * p for o, p in zip(outcome, healthy, strict=True))

@@ -190,3 +190,50 @@ def test_a_one_fault_scene_shows_no_pair() -> None:
     d = diagnose(b.build(), profile, knowledge())
     assert not d.pair_wins
     assert "two_faults" not in d.to_json()
+
+
+# --- a circuit fed by another: its fault reads through the fed circuit's finding -----------------
+
+
+def test_a_brake_released_from_charge_reads_low_for_a_charge_fault_not_as_a_second_fault() -> None:
+    # Fellborer (invented demo machine): its parking brakes are released from the drive's charge
+    # gallery (profile: supplied_by = "travel"). Charge 17 bar in neutral and 12 bar in stroke
+    # (relief 27 bar), brake release 13 bar in stroke (full release 16 bar): a technician reads
+    # one fault, the charge supply, and the dragging brake as its consequence (common practice:
+    # a charge-released brake reads charge less its valve's drop).
+    from diagnosis_helpers import VisitBuilder, finding, knowledge, library
+
+    from fieldkit.model.condition import FunctionState
+
+    profile = library().get("tarnhollow-fellborer")
+    b = VisitBuilder(profile)
+    b.add("travel.charge", 17.0, FunctionState.NEUTRAL)
+    b.add("travel.charge", 12.0, FunctionState.FULL_STROKE)
+    b.add("brake.release", 13.0, FunctionState.FULL_STROKE)
+    d = diagnose(b.build(), profile, knowledge())
+    brake = finding(d, "brake-release", "brake")
+    assert brake.verdict is Verdict.LOW
+    # The brake finding now speaks for the charge faults in the feeding circuit…
+    assert brake.evidence["charge_pump_worn@travel"] > 0 and brake.evidence["charge_relief_low@travel"] > 0
+    # …so the leading charge fault explains it and no pair of faults is shown.
+    assert d.faults[0].circuit == "travel" and d.faults[0].id.startswith("charge_")
+    assert not d.pair_wins
+
+
+def test_a_drifting_cylinder_is_not_blamed_on_a_seal_in_the_pump_circuit_that_feeds_it() -> None:
+    # Loamshifter (invented): the lift cylinders are fed by the work circuit (supplied_by =
+    # "work"). A lift drift of 25 mm/min with warm oil is the lift's own valve or seal; the same
+    # faults counted again in the work circuit would split the answer in two.
+    from diagnosis_helpers import VisitBuilder, knowledge, library
+
+    from fieldkit.model.condition import FunctionState
+
+    profile = library().get("oskerfield-loamshifter")
+    b = VisitBuilder(profile)
+    b.add("work.oil_temp", 50.0, FunctionState.NEUTRAL)
+    b.add("lift.drift", 25.0, FunctionState.NEUTRAL)
+    d = diagnose(b.build(), profile, knowledge())
+    drift = next(f for f in d.findings if f.rule_id == "cylinder-drift" and f.circuit == "lift")
+    assert "load_holding_valve_leak@lift" in drift.evidence
+    assert "load_holding_valve_leak@work" not in drift.evidence
+    assert "cylinder_seal_bypass@work" not in drift.evidence

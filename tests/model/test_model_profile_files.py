@@ -204,3 +204,23 @@ def test_broken_template_names_its_own_file_and_line(tmp_path: Path) -> None:
     assert error.path == str(path)
     assert error.line == line_of(text, "fiting =")
     assert str(error).startswith(f"{path}:{error.line}")
+
+
+def test_a_circuit_supplied_by_an_unknown_circuit_is_refused_with_the_names_it_knows(
+    tmp_path: Path, templates: Any
+) -> None:
+    text = GOOD_PROFILE.replace('id = "boom"\n', 'id = "boom"\nsupplied_by = "travl"\n', 1)
+    assert 'supplied_by = "travl"' in text
+    path = write(tmp_path, text)
+    error = load_error(path, templates)
+    assert "supplied_by 'travl'" in str(error) and "travel, boom" in str(error)
+
+
+def test_a_circuit_supplied_by_another_loads() -> None:
+    from fieldkit.resources import rules_dir, samples_dir
+
+    profile = load_profile(
+        samples_dir() / "profiles" / "tarnhollow-fellborer.toml", load_templates(rules_dir() / "templates")
+    )
+    brake = next(c for c in profile.circuits if c.id == "brake")
+    assert brake.supplied_by == "travel"
