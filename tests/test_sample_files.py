@@ -75,6 +75,7 @@ CAUTION_IDS = frozenset(
         "rotating-parts",
         "intensification",
         "port-relief-check",
+        "steering-sweep",
     }
 )
 #: Ground rules: a template range names a published source or says it is common practice or from memory.

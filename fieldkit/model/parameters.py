@@ -36,6 +36,15 @@ PARAMETERS: dict[str, tuple[Kind, str]] = {
         Kind.PRESSURE,
         "highest pump outlet pressure with every spool of an open-centre valve centred",
     ),
+    "steering_relief_setting": (
+        Kind.PRESSURE,
+        "steering relief setting (priority valve or steering unit), below the pump's cut-off",
+    ),
+    "steering_standby_setting": (
+        Kind.PRESSURE,
+        "steering supply (CF) pressure with the wheel at rest (priority valve spring)",
+    ),
+    "priority_flow": (Kind.FLOW, "priority (CF) flow to the steering at rated speed"),
     "compensator_setting": (Kind.PRESSURE, "pressure compensator setting"),
     "ls_standby_setting": (Kind.PRESSURE, "load-sensing standby (low-pressure standby) setting"),
     "ls_margin_setting": (Kind.PRESSURE, "load-sensing margin setting"),

@@ -25,6 +25,9 @@ class Role(StrEnum):
     STALL_PRESSURE = "stall_pressure"
     WORK_PORT_STALL_PRESSURE = "work_port_stall_pressure"
     PUMP_PRESSURE_RELIEF_ISOLATED = "pump_pressure_relief_isolated"
+    STEERING_STANDBY_PRESSURE = "steering_standby_pressure"
+    STEERING_RELIEF_PRESSURE = "steering_relief_pressure"
+    STEERING_FLOW = "steering_flow"
     RETURN_PRESSURE = "return_pressure"
     FILTER_PRESSURE_DROP = "filter_pressure_drop"
     SUCTION_PRESSURE = "suction_pressure"
@@ -75,6 +78,14 @@ ROLES: dict[Role, RoleInfo] = {
     Role.PUMP_PRESSURE_RELIEF_ISOLATED: RoleInfo(
         Kind.PRESSURE, "pump pressure with the main relief isolated (compensator alone)", high_pressure=True
     ),
+    # Steering fed first through a priority valve: the pressure in its priority (CF) line with
+    # the wheel at rest, the pressure with the wheel held against its stop (the steering relief),
+    # and the priority flow to the steering unit.
+    Role.STEERING_STANDBY_PRESSURE: RoleInfo(Kind.PRESSURE, "steering supply (CF) pressure, wheel at rest"),
+    Role.STEERING_RELIEF_PRESSURE: RoleInfo(
+        Kind.PRESSURE, "steering pressure, wheel held at its stop (steering relief)", high_pressure=True
+    ),
+    Role.STEERING_FLOW: RoleInfo(Kind.FLOW, "priority (CF) flow to the steering", high_pressure=True),
     Role.RETURN_PRESSURE: RoleInfo(Kind.PRESSURE, "return line pressure"),
     Role.FILTER_PRESSURE_DROP: RoleInfo(Kind.PRESSURE, "filter pressure drop"),
     Role.SUCTION_PRESSURE: RoleInfo(Kind.PRESSURE, "suction (inlet) pressure"),

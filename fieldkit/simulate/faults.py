@@ -302,6 +302,46 @@ def ls_signal_leak(m: Machine, c: CircuitModel | None, s: float, rng: Random) ->
     return f"LS signal {100 * c.p['ls_ratio']:.0f} % of the work port pressure"
 
 
+# --- steering behind a priority valve ----------------------------------------------------------
+
+
+@fault("steering_relief_low", CircuitKind.LOAD_SENSING)
+def steering_relief_low(m: Machine, c: CircuitModel | None, s: float, rng: Random) -> str:
+    """Steering relief with a weak spring or dirt on its seat: it opens 20 %·s below its setting,
+    so the wheel held at its stop reads low and the machine steers weakly under load."""
+    assert c is not None
+    if "steer_relief" not in c.p:
+        return "no steering on this circuit"
+    before = c.p["steer_relief"]
+    c.p["steer_relief"] = before * (1.0 - 0.20 * s)
+    return f"steering relief opens at {_bar(c.p['steer_relief'])} instead of {_bar(before)}"
+
+
+@fault("steering_relief_high", CircuitKind.LOAD_SENSING)
+def steering_relief_high(m: Machine, c: CircuitModel | None, s: float, rng: Random) -> str:
+    """Steering relief adjuster turned in: its setting rises (50 + 50·s) % of the way to the
+    pump's cut-off, reaching it at severity 1; at or above the cut-off it never opens and the
+    pump's cut-off governs the steering stall."""
+    assert c is not None
+    if "steer_relief" not in c.p:
+        return "no steering on this circuit"
+    before = c.p["steer_relief"]
+    c.p["steer_relief"] = before + (c.p["cutoff"] - before) * min(1.0, 0.5 + 0.5 * s)
+    return f"steering relief set at {_bar(c.p['steer_relief'])} instead of {_bar(before)}"
+
+
+@fault("priority_valve_sticking", CircuitKind.LOAD_SENSING)
+def priority_valve_sticking(m: Machine, c: CircuitModel | None, s: float, rng: Random) -> str:
+    """Priority spool held towards the work side by dirt or a weak spring: the steering's CF
+    flow falls 40 %·s short and the CF line's standby 60 %·s (the spring no longer holds it)."""
+    assert c is not None
+    if "cf_flow" not in c.p:
+        return "no priority valve on this circuit"
+    c.p["cf_flow"] *= 1.0 - 0.40 * s
+    c.p["steer_standby"] *= 1.0 - 0.60 * s
+    return f"priority flow −{40 * s:.0f} %, steering standby −{60 * s:.0f} %"
+
+
 # --- actuators, accumulators, brakes, pilot ---------------------------------------------------
 
 

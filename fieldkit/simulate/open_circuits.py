@@ -19,6 +19,8 @@ Parameters a circuit model carries (``CircuitModel.p``), canonical units:
   piston pump's internal leakage leaves by its case drain, so it is the same gap); ``drain_static``
   and ``drain_r`` what the case reads for it (bar, bar per L/min), ``case_extra`` back pressure
   added downstream of the case drain;
+* steering behind a priority valve (load sensing): ``steer_relief``, ``steer_standby`` (CF line
+  with the wheel at rest), ``cf_flow`` (priority flow the steering asks for);
 * load sensing: ``standby``, ``margin``, ``cutoff``, ``ls_vent`` (signal in neutral),
   ``load_p`` (work port pressure with a function moving), ``ls_ratio`` (signal over work port
   pressure: 1 when the signal line holds); pressure compensated: ``cutoff``.
@@ -349,6 +351,8 @@ def variable_pump(
 ) -> float | None:
     role = tp.role
     p = model.p
+    if role in _STEERING_ROLES:
+        return _steering(model, role, state, env)
     pressure = _variable_pressure(model, state, env)
     if role is Role.LS_STANDBY_PRESSURE:
         return p["standby"] if state is FunctionState.NEUTRAL else None
@@ -371,6 +375,24 @@ def variable_pump(
     if role is Role.PUMP_FLOW:
         return max_delivery(model, pressure, env) if state is not FunctionState.NEUTRAL else 0.02 * p["qr"]
     return _shared(model, role, _variable_flow(model, state, env), env)
+
+
+_STEERING_ROLES = (Role.STEERING_STANDBY_PRESSURE, Role.STEERING_RELIEF_PRESSURE, Role.STEERING_FLOW)
+
+
+def _steering(model: CircuitModel, role: Role, state: FunctionState, env: Env) -> float | None:
+    """Steering fed first through a priority valve. With the wheel at rest the priority spring
+    holds the CF line at its standby; held against its stop the steering reads its relief, or
+    the pump's own limit where that is lower (a steering relief at or above the cut-off never
+    opens); turning, the priority valve passes the steering its flow while the pump can give it."""
+    p = model.p
+    if role is Role.STEERING_STANDBY_PRESSURE:
+        return p["steer_standby"] if state is FunctionState.NEUTRAL else None
+    if role is Role.STEERING_RELIEF_PRESSURE:
+        return min(p["steer_relief"], own_limit(model)) if state is FunctionState.STALLED else None
+    if state is FunctionState.NEUTRAL:
+        return 0.0
+    return min(p["cf_flow"], max_delivery(model, p["load_p"], env))
 
 
 def stall_pressure(model: CircuitModel, env: Env) -> float | None:
@@ -452,6 +474,20 @@ def build_open(machine: Machine, circuit: Circuit, draw: Draw) -> CircuitModel:
         margin = param(circuit, "ls_margin_setting") or max(10.0, standby - 4.0)
         shift = draw(1.0, SETTING_SCATTER * 2) - 1.0  # one spring sets both
         p.update(standby=standby * (1 + shift), margin=margin * (1 + shift), ls_vent=draw(0.3, LOAD_SCATTER))
+    if point(circuit, Role.STEERING_RELIEF_PRESSURE) or point(circuit, Role.STEERING_FLOW):
+        # Steering behind a priority valve: its relief, the priority spring's standby, the CF flow.
+        steer = param(circuit, "steering_relief_setting") or middle(
+            *bounds(point(circuit, Role.STEERING_RELIEF_PRESSURE), FunctionState.STALLED)
+        )
+        p["steer_relief"] = draw(steer or 0.7 * p["cutoff"], SETTING_SCATTER)
+        standby = param(circuit, "steering_standby_setting") or middle(
+            *bounds(point(circuit, Role.STEERING_STANDBY_PRESSURE), FunctionState.NEUTRAL)
+        )
+        p["steer_standby"] = draw(standby or 7.0, SETTING_SCATTER)
+        cf = param(circuit, "priority_flow") or middle(
+            *bounds(point(circuit, Role.STEERING_FLOW), FunctionState.UNDER_LOAD)
+        )
+        p["cf_flow"] = draw(cf or 0.3 * qr, LOAD_SCATTER)
     if fixed:
         p["p_test"] = round(FLOW_TEST_SHARE * (main_setting or 150.0) / 10.0) * 10.0
         low, high = bounds(point(circuit, Role.PUMP_FLOW), FunctionState.UNDER_LOAD)

@@ -50,6 +50,8 @@ _DEFAULT_STATE: dict[Role, FunctionState] = {
     Role.MOTOR_CASE_DRAIN_FLOW: FunctionState.STALLED,
     Role.STALL_PRESSURE: FunctionState.STALLED,
     Role.WORK_PORT_STALL_PRESSURE: FunctionState.STALLED,
+    Role.STEERING_RELIEF_PRESSURE: FunctionState.STALLED,
+    Role.STEERING_FLOW: FunctionState.UNDER_LOAD,
     Role.LOOP_A_PRESSURE: FunctionState.STALLED,
     Role.LOOP_B_PRESSURE: FunctionState.STALLED,
 }

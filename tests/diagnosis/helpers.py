@@ -100,7 +100,7 @@ def diagnose_readings_only(path: Path) -> tuple[Visit, MachineProfile, Diagnosis
 
 
 #: A small fictional machine for the rules no demo machine can exercise (a pilot supply, a
-#: pressure-compensated pump, a valve bank's work ports). Its test points and ranges come from the
+#: pressure-compensated pump, a valve bank's work ports, steering). Its test points and ranges come from the
 #: circuit templates (each with its source); the compensator figure is an invented test figure,
 #: like the demo profiles'.
 BENCH_PROFILE_TOML = """
@@ -136,6 +136,18 @@ omit_test_points = ["s3_a", "s3_b"]
 main_relief_setting = "175 bar"
 port_1a_relief_setting = "140 bar"
 pump_displacement = "28 cc/rev"
+
+# Steering behind a priority valve on a load-sensing pump, with its own figures.
+[[circuits]]
+id = "steer"
+name = "Steering with priority valve"
+template = "steering_priority"
+[circuits.parameters]
+compensator_setting = "240 bar"
+steering_relief_setting = "170 bar"
+steering_standby_setting = "8 bar"
+priority_flow = "40 L/min"
+pump_displacement = "60 cc/rev"
 """
 
 

@@ -67,7 +67,7 @@ def test_every_template_alone_gives_a_plan_with_ranges(templates: Templates) -> 
 #: Measured 2026-12-03 after the look-alike points (cases_per_fault=2, seed=1, one worker): cases,
 #: top-1, top-3 per template. Open-fixed-pump, open-centre-sections and fan-drive measured again
 #: after template reliefs follow the figures, the valve bank template and template machines with
-#: their template's usual parts ticked.
+#: their template's usual parts ticked; steering-priority after its own steering points and faults.
 MEASURED: dict[str, tuple[int, int, int]] = {
     "template-accumulator": (2, 2, 2),
     "template-brake-charging": (6, 6, 6),
@@ -82,7 +82,7 @@ MEASURED: dict[str, tuple[int, int, int]] = {
     "template-pilot-supply": (6, 4, 4),
     "template-power-unit": (18, 17, 17),
     "template-pressure-compensated": (18, 17, 17),
-    "template-steering-priority": (22, 19, 21),
+    "template-steering-priority": (28, 26, 27),
     "template-winch-swing": (8, 5, 5),
 }
 MARGIN = 1  # one case either way: a small change in a rule table may move one case
