@@ -480,10 +480,10 @@ def build_open(machine: Machine, circuit: Circuit, draw: Draw) -> CircuitModel:
             *bounds(point(circuit, Role.STEERING_RELIEF_PRESSURE), FunctionState.STALLED)
         )
         p["steer_relief"] = draw(steer or 0.7 * p["cutoff"], SETTING_SCATTER)
-        standby = param(circuit, "steering_standby_setting") or middle(
+        cf_standby = param(circuit, "steering_standby_setting") or middle(
             *bounds(point(circuit, Role.STEERING_STANDBY_PRESSURE), FunctionState.NEUTRAL)
         )
-        p["steer_standby"] = draw(standby or 7.0, SETTING_SCATTER)
+        p["steer_standby"] = draw(cf_standby or 7.0, SETTING_SCATTER)
         cf = param(circuit, "priority_flow") or middle(
             *bounds(point(circuit, Role.STEERING_FLOW), FunctionState.UNDER_LOAD)
         )
