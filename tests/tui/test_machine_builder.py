@@ -139,3 +139,43 @@ async def test_editing_a_machine_keeps_its_file_and_a_copy_gets_a_new_id(tmp_pat
     edited = tomllib.loads((user_profiles_dir() / "pump-unit.toml").read_text(encoding="utf-8"))
     assert edited["circuits"][0]["parameters"] == {"main_relief_setting": "200 bar"}
     assert (user_profiles_dir() / "pump-unit-2.toml").exists()
+
+
+async def test_an_edited_machine_keeps_the_comments_written_in_its_file(tmp_path: Path) -> None:
+    user_profiles_dir().mkdir(parents=True, exist_ok=True)
+    path = user_profiles_dir() / "press-unit.toml"
+    path.write_text(
+        "# Bay 3 press unit: our notes, kept by every save\n"
+        'id = "press-unit"\nname = "Bay 3 press unit"   # as on the plate\n'
+        'rated_speed = "1450 rpm"\nrated_max_pressure = "210 bar"\n\n'
+        "# relief re-set after the hose burst\n"
+        '[[circuits]]\nid = "main"\nname = "Main"\ntemplate = "open_fixed_pump"\n\n'
+        "[circuits.parameters]\n"
+        'main_relief_setting = "180 bar"   # the plate on the valve says so\n',
+        encoding="utf-8",
+    )
+    bench = Workbench.open(tmp_path / "visits.sqlite3", demo=False)
+    app = make_app(bench, demo=False)
+    try:
+        async with app.run_test() as pilot:
+            await pilot.pause()
+            app.screen.query_one("#machines").focus()
+            await pilot.press("e")
+            await wait_until(pilot, lambda: isinstance(app.screen, MachineBuilderScreen))
+            field = app.screen.query_one("#fig-main_relief_setting", Input)
+            field.focus()
+            field.value = ""
+            await type_text(pilot, "195 bar")
+            await pilot.press("ctrl+s")
+            await wait_until(pilot, lambda: isinstance(app.screen, NewVisitScreen))
+    finally:
+        bench.close()
+    text = path.read_text(encoding="utf-8")
+    assert tomllib.loads(text)["circuits"][0]["parameters"]["main_relief_setting"] == "195 bar"
+    for comment in (
+        "# Bay 3 press unit: our notes, kept by every save",
+        "# as on the plate",
+        "# relief re-set after the hose burst",
+        "# the plate on the valve says so",
+    ):
+        assert comment in text, comment

@@ -28,9 +28,11 @@ from fieldkit.model.parameters import PARAMETERS
 from fieldkit.model.parts import PART_LABELS
 from fieldkit.model.profile import MachineProfile
 from fieldkit.model.quantity import parse_for_kind
+from fieldkit.model.toml_edit import update_text
 from fieldkit.model.toml_writer import dumps
 from fieldkit.session import Workbench
 from fieldkit.settings import save_profile_text, user_profiles_dir
+from fieldkit.tomlfile import read_text
 from fieldkit.tui import keys
 from fieldkit.tui.error_text import explain
 from fieldkit.tui.safe_text import literal
@@ -390,13 +392,25 @@ class MachineBuilderScreen(FieldkitScreen):
             if not editing_own and self.bench.library.has(mid):
                 raise FieldkitError(f"a machine with id '{mid}' exists already: choose another id")
             path = self.path if editing_own and self.path else user_profiles_dir() / f"{mid}.toml"
-            text = dumps({k: v for k, v in self.raw.items() if v not in ("", None)}, HEADER)
+            table = {k: v for k, v in self.raw.items() if v not in ("", None)}
+            text = self._text_to_save(table, path if editing_own else None)
             save_profile_text(path, text, replace=editing_own)
         except (FieldkitError, OSError) as exc:
             error.update(literal(explain(exc, "✗ not saved")))
             return
         self.bench.library.add(profile, path)
         self.dismiss(profile.id)
+
+    @staticmethod
+    def _text_to_save(table: dict[str, Any], edited: Path | None) -> str:
+        """An edited file keeps the person's comments and layout (model.toml_edit); a new
+        machine, or a file that no longer reads as TOML, is written afresh with the header."""
+        if edited is not None and edited.exists():
+            try:
+                return update_text(read_text(edited), table)
+            except (ValueError, FieldkitError):
+                pass
+        return dumps(table, HEADER)
 
     def action_cancel(self) -> None:
         self.dismiss(None)
