@@ -158,3 +158,66 @@ def test_check_names_the_line_of_a_range_that_uses_an_unknown_figure(
         f"{path}:{line_of(text, 'charge_setting - 2 bar')} [circuits.0.test_points.0.expected.0.low]" in err
     )
     assert "charge_setting" in err
+
+
+VALVE_BANK = """\
+id = "bank"
+name = "Bank"
+rated_speed = "2000 rpm"
+rated_max_pressure = "250 bar"
+
+[[circuits]]
+id = "valves"
+name = "Valve bank"
+template = "open_centre_sections"
+reliefs = [
+  { id = "main", setting = "180 bar" },
+]
+
+[circuits.parameters]
+port_2a_relief_setting = "150 bar"
+"""
+
+
+@pytest.mark.parametrize(
+    ("old", "new", "key", "words"),
+    [
+        # Its own reliefs replace the template's, so the work ports' port reliefs must be listed.
+        (
+            '  { id = "main", setting = "180 bar" },',
+            '  { id = "main", setting = "180 bar" },',
+            "circuits.0.reliefs",
+            "port_1a",
+        ),
+        (
+            'port_2a_relief_setting = "150 bar"',
+            'port_2a_relief_setting = "150 L/min"',
+            "circuits.0.parameters.port_2a_relief_setting",
+            "pressure",
+        ),
+    ],
+)
+def test_check_names_file_line_and_key_on_a_broken_valve_bank(
+    capsys: pytest.CaptureFixture[str], tmp_path: Path, old: str, new: str, key: str, words: str
+) -> None:
+    text = VALVE_BANK.replace(old, new)
+    path = tmp_path / "bank.toml"
+    path.write_text(text, encoding="utf-8")
+    code, _out, err = run(capsys, "machine", "check", str(path))
+    assert code == 2
+    line = line_of(text, "reliefs = [") if key.endswith("reliefs") else line_of(text, new)
+    assert f"{path}:{line} [{key}" in err, err
+    assert words in err
+
+
+def test_check_passes_a_valve_bank_that_lists_its_port_reliefs(
+    capsys: pytest.CaptureFixture[str], tmp_path: Path
+) -> None:
+    ports = "".join(f'  {{ id = "port_{n}{s}", setting = "200 bar" }},\n' for n in (1, 2, 3) for s in "ab")
+    text = VALVE_BANK.replace(
+        '  { id = "main", setting = "180 bar" },\n', '  { id = "main", setting = "180 bar" },\n' + ports
+    )
+    path = tmp_path / "bank.toml"
+    path.write_text(text, encoding="utf-8")
+    code, _out, err = run(capsys, "machine", "check", str(path))
+    assert code == 0, err

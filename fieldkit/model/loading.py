@@ -399,7 +399,29 @@ def _merge_circuit(
             _check_point(_resolve_points([tp], figures, where, params_at, fitted)[0], path, text, loc)
             points.append(tp)
     merged["test_points"] = _resolve_points(points, figures, where, params_at, fitted)
+    _check_port_reliefs(merged, path, lines, index)
     return merged
+
+
+def _check_port_reliefs(
+    merged: dict[str, Any], path: str, lines: dict[tuple[Any, ...], int], index: int
+) -> None:
+    """A work port names the port relief it sees; a profile listing its own reliefs must list
+    those the template's ports name (or leave reliefs out and take the template's)."""
+    reliefs = merged.get("reliefs")
+    listed = {r.get("id") for r in reliefs if isinstance(r, dict)} if isinstance(reliefs, list) else set()
+    for tp in merged.get("test_points") or []:
+        wanted = tp.get("relief") if isinstance(tp, dict) else None
+        if isinstance(wanted, str) and wanted not in listed:
+            at = ("circuits", index, "reliefs")
+            raise DataFileError(
+                path,
+                f"test point '{tp.get('id')}' is on port relief '{wanted}', which this circuit's reliefs "
+                f"do not list (they list: {', '.join(sorted(map(str, listed))) or 'none'}); add it, "
+                "omit the point (omit_test_points), or leave reliefs out to take the template's",
+                line_for(lines, at) or line_for(lines, ("circuits", index)),
+                ".".join(map(str, at)),
+            )
 
 
 def _own_figures(

@@ -104,8 +104,9 @@ def test_a_work_port_naming_a_relief_the_circuit_lacks_is_refused_with_its_key(t
     with pytest.raises(DataFileError) as caught:
         _bank(templates, {}, reliefs=[{"id": "main", "setting": "180 bar"}])
     text = str(caught.value)
-    assert "port_1a" in text and "does not list" in text
+    assert "port_1a" in text and "do not list" in text
     assert caught.value.path == "test bank"
+    assert caught.value.key == "circuits.0.reliefs"
 
 
 def test_a_template_relief_setting_that_is_not_a_pressure_names_its_file_and_key(tmp_path: Path):
