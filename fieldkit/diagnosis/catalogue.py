@@ -53,6 +53,17 @@ class Fault(Strict):
         default_factory=list, description="optional parts this fault lives in (any one); see model.fitted"
     )
     check_minutes: float = Field(default=30, gt=0, le=24 * 60)
+    #: P(a pressure rule reads low) and P(reads high) added by this fault to every pressure rule
+    #: that does not name it: a fault that spoils one reading of the visit, whichever it is (a
+    #: gauge out of calibration), so any one pressure finding may be the odd one out.
+    spoils_one_pressure_reading: float = Field(default=0.0, ge=0.0, le=0.2)
+    spoils_source: str = ""
+
+    @model_validator(mode="after")
+    def _spoils_has_source(self) -> Fault:
+        if self.spoils_one_pressure_reading and len(self.spoils_source) < 3:
+            raise ValueError("spoils_one_pressure_reading needs a spoils_source")
+        return self
 
     @property
     def machine_wide(self) -> bool:

@@ -646,9 +646,35 @@ def likelihoods(
                 and not h.fault.applies_to(circuit.kind)
             )
         )
-        lik = weighted(rule.spec.likelihood(h.fault.id)) if same_place else healthy
+        if not same_place:
+            lik = healthy
+        elif spoiler(rule, h.fault):
+            lik = weighted(spoiled(rule.spec.likelihood(h.fault.id), h.fault.spoils_one_pressure_reading))
+        else:
+            lik = weighted(rule.spec.likelihood(h.fault.id))
         out.append(sum(o * p for o, p in zip(outcome, lik, strict=True)))
     return out
+
+
+def spoiler(rule: Rule, fault: Fault) -> bool:
+    """Whether the fault may have spoilt this rule's reading without the rule naming it: a fault
+    that spoils one pressure reading of the visit (catalogue: spoils_one_pressure_reading) and a
+    rule whose value is a pressure."""
+    return (
+        fault.spoils_one_pressure_reading > 0.0
+        and fault.id not in rule.spec.if_low
+        and fault.id not in rule.spec.if_high
+        and _kind_of_dim(rule.value.result) is Kind.PRESSURE
+    )
+
+
+def spoiled(table: tuple[float, float, float], share: float) -> tuple[float, float, float]:
+    """A rule table with ``share`` more chance of reading low and of reading high (never leaving
+    'in range' less than a hundredth)."""
+    low, ok, high = table
+    share = max(0.0, min(share, (ok - 0.01) / 2.0))
+    low, high = low + share, high + share
+    return low, 1.0 - low - high, high
 
 
 def weighted(table: tuple[float, float, float]) -> tuple[float, float, float]:

@@ -316,7 +316,20 @@ def table_likelihood(rule: Rule, fault: str) -> tuple[float, float, float]:
     spec = rule.spec
     low = spec.if_low.get(fault, spec.healthy.low)
     high = spec.if_high.get(fault, spec.healthy.high)
+    # A fault that spoils one pressure reading of the visit (faults.toml: gauge_error) may have
+    # spoilt any pressure rule that does not name it: its share is added to low and to high.
+    entry = knowledge().faults.get(fault)
+    share = entry.spoils_one_pressure_reading if entry is not None else 0.0
+    if share and fault not in spec.if_low and fault not in spec.if_high and _reads_pressure(rule):
+        share = min(share, (1.0 - low - high - 0.01) / 2)
+        low, high = low + share, high + share
     return weighted((low, 1.0 - low - high, high))
+
+
+def _reads_pressure(rule: Rule) -> bool:
+    from fieldkit.expr.dims import kind_dimension
+
+    return bool(rule.value.result == kind_dimension(Kind.PRESSURE))
 
 
 def weighted(table: tuple[float, float, float]) -> tuple[float, float, float]:
@@ -596,14 +609,17 @@ def _try_scene(rule: Rule, profile: MachineProfile, circuit: Circuit | None) -> 
         high = float(rule.high.evaluate(env)) if rule.high is not None else None
     hyps = hypothesis_keys(profile, knowledge().faults)
     listed = set(spec.if_low) | set(spec.if_high)
+    # The faults the rule names in its scope (and in a circuit feeding it), and any fault that can
+    # spoil the rule's reading without being named (a gauge reading wrong, on a pressure rule).
+    healthy = table_likelihood(rule, "no_fault")
     keys = tuple(
         k
         for k in hyps
-        if fault_of(k) in listed
+        if (fault_of(k) in listed or table_likelihood(rule, fault_of(k)) != healthy)
         and (
             circuit is None
             or circuit_of(k) in (None, circuit.id)
-            or likelihood_for(rule, circuit.id, k, profile) != table_likelihood(rule, "no_fault")
+            or likelihood_for(rule, circuit.id, k, profile) != healthy
         )
     )
     return Scene(rule, profile, circuit, tuple(needs), free, nominal, figures, low, high, keys)
