@@ -52,10 +52,12 @@ def test_new_writes_a_skeleton_that_checks_clean_and_shows_typical_ranges(
     assert code == 0 and "valid: 2 circuits" in out
     code, out, _ = run(capsys, "machine", "show", "trial-rig")
     assert code == 0
-    # With no figures, charge in neutral rests on the template's typical charge relief 24 bar:
-    # 24 ± 2 bar = 22 bar to 26 bar [calc], marked from memory.
-    assert "neutral: 22 bar to 26 bar [from memory]" in out
-    assert "source: from memory: charge relief setting 24 bar" in out
+    # With no figures, charge in neutral spans the trade's spread of charge relief settings ± 2 bar:
+    # 200 psi = 13.8 bar (Machinery Lubrication 2016, field notes) − 2 = 11.8 bar, to 30 + 2 = 32 bar
+    # (from memory) [calc], marked as common practice.
+    assert "neutral: 11.8 bar to 32 bar [typical (common practice)]" in out
+    # A stall rests on the typical cross-port setting 400 bar, marked from memory.
+    assert "source: from memory: cross-port (high-pressure) relief setting 400 bar" in out
 
 
 def test_new_never_overwrites_a_machine(capsys: pytest.CaptureFixture[str]) -> None:

@@ -405,12 +405,26 @@ class Evaluator:
             try:
                 if name in SYMBOLS.readings:
                     role, state = SYMBOLS.readings[name]
-                    m = self.latest(scope, role, (state,) if state else plain_states)
+                    try:
+                        m = self.latest(scope, role, (state,) if state else plain_states)
+                    except Missing as miss:
+                        if name not in spec.zero_if_missing:
+                            raise
+                        # A reference pressure not read in this condition (never one from another
+                        # condition): taken as zero, and the finding says so.
+                        values[name], uncert[name] = 0.0, 0.0
+                        where = miss.state.label if miss.state else "this condition"
+                        self.notes.append(
+                            f"{ROLES[role].label.capitalize()} was not measured ({where}): taken as zero, "
+                            "so this verdict uses the gauge reading without it."
+                        )
+                        continue
                     used.append(m)
                     values[name], uncert[name] = m.si, m.u_si
                     if m.censored:
                         censored[name] = m.censored
-                    expected_from = m
+                    if name not in spec.zero_if_missing or expected_from is None:
+                        expected_from = m
                 elif name in PARAMETERS:
                     values[name], uncert[name] = self.parameter(scope, name), 0.0
                 elif name in MACHINE_FIGURES:

@@ -83,6 +83,11 @@ class RuleSpec(Strict):
     discount_when_invalid: bool = Field(
         default=True, description="weaken evidence from cold oil / wrong speed"
     )
+    zero_if_missing: list[str] = Field(
+        default_factory=list,
+        description="readings (a reference pressure, such as the case under a charge gauge) taken as zero "
+        "when none was read in the rule's condition; the finding says so",
+    )
 
     @model_validator(mode="after")
     def _shape(self) -> RuleSpec:
@@ -104,6 +109,13 @@ class RuleSpec(Strict):
                 raise ValueError(
                     f"for {fault}, P(low) + P(high) = {p_low + p_high:.2f} leaves no room for 'in range'"
                 )
+        return self
+
+    @model_validator(mode="after")
+    def _optional_readings(self) -> RuleSpec:
+        for name in self.zero_if_missing:
+            if name not in SYMBOLS.readings:
+                raise ValueError(f"zero_if_missing names '{name}', which is not a reading")
         return self
 
     @property
@@ -183,11 +195,12 @@ def load_pack(path: Path) -> list[Rule]:
                     line=line_for(lines, ("rule", i, key)) or at,
                     key=f"rule.{i}.{key}",
                 )
-        if rs.limits == "expected" and not _single_reading(value.names):
+        if rs.limits == "expected" and not _single_reading(value.names - set(rs.zero_if_missing)):
             raise DataFileError(
                 str(path),
                 f"rule '{rs.id}': limits = \"expected\" needs a value that is one reading "
-                "(or one reading normalised, such as pump_case_drain_flow_at_ref)",
+                "(or one reading normalised, such as pump_case_drain_flow_at_ref, or one reading "
+                "less a reference named in zero_if_missing)",
                 line=line_for(lines, ("rule", i, "limits")) or at,
             )
         rules.append(Rule(rs, value, low, high, str(path), at))

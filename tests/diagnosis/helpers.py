@@ -593,10 +593,11 @@ def _try_scene(rule: Rule, profile: MachineProfile, circuit: Circuit | None) -> 
     if not needs:
         raise NoScene("the rule reads no test point")
     nominal = {n.name: _nominal(n.point, n.state) for n in needs}
-    free = min(n.name for n in needs if n.name in rule.value.names)
+    # A reference read beside the value (the case under a charge gauge) is never the free one.
+    free = min(n.name for n in needs if n.name in rule.value.names and n.name not in spec.zero_if_missing)
     low = high = None
     if spec.limits == "expected":
-        (need,) = needs
+        (need,) = [n for n in needs if n.name not in spec.zero_if_missing]
         rng = need.point.expected_for(Condition(function=need.state))
         assert rng is not None
         low = si_value(rng.low) if rng.low is not None else None

@@ -110,13 +110,16 @@ def test_net_charge_takes_case_pressure_from_the_same_condition_as_the_charge() 
     assert number(f.value) == pytest.approx(26.0, abs=0.01)
 
 
-def test_net_charge_with_case_read_only_in_another_condition_says_what_it_needs() -> None:
+def test_net_charge_with_case_read_only_in_another_condition_uses_gauge_charge_and_says_so() -> None:
+    # The stalled case reading (3 bar) is never paired with the neutral charge: the net charge is
+    # the gauge's 27 bar, not 27 − 3 = 24 bar [hand], and the finding says the case was not read.
     b = VisitBuilder(fellborer())
     b.add("travel.charge", 27.0, NEUTRAL)
     b.add("travel.case", 3.0, STALLED)
     f = finding(diagnose(b.build(), fellborer(), knowledge()), "net-charge-above-case", "travel")
-    assert f.verdict is Verdict.NOT_MEASURED
-    assert any("neutral" in m.lower() for m in f.missing)
+    assert number(f.value) == pytest.approx(27.0, abs=0.01)
+    assert "Case pressure was not measured (function in neutral)" in f.message
+    assert len(f.readings) == 1
 
 
 # --- 6. an overranged reading says only "at least" ---------------------------------------------

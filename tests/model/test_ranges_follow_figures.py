@@ -88,14 +88,27 @@ def test_the_field_notes_differential_relief_example_sits_inside_the_stall_range
 
 
 def test_a_figure_left_empty_falls_back_to_the_typical_value_marked_from_memory(templates: Templates) -> None:
-    # No charge relief given: the template's typical 24 bar (from memory: 20-30 bar on many modern
-    # pumps, field notes) → 22 to 26 bar [calc], marked 'from memory'.
+    # No cross-port relief given: the template's typical 400 bar (from memory: 350-450 bar on mobile
+    # closed loops) → stall low 400 − 10 = 390 bar; with no charge figure either the top allows the
+    # highest usual charge: 400 + 30 + 15 = 445 bar [calc]; marked 'from memory'.
+    m = machine(templates, "closed_loop_drive", {})
+    rng = in_state(m, "loop_a", FunctionState.STALLED)
+    assert bar(rng) == (390.0, 445.0)
+    assert rng is not None and rng.typical == FROM_MEMORY
+    assert rng.source.startswith("from memory: cross-port (high-pressure) relief setting 400 bar")
+    assert m.circuits[0].typical_parameters["high_pressure_relief_setting"].startswith("from memory")
+
+
+def test_with_no_charge_relief_figure_charge_in_neutral_spans_the_trades_spread(templates: Templates) -> None:
+    # Field notes: charge relief "usually 200-300 psi" (Machinery Lubrication 2016) and 20-30 bar on many
+    # modern pumps (from memory). 200 psi = 200 × 6894.757 Pa = 13.79 bar; less 2 bar → 11.8 bar;
+    # 30 + 2 = 32 bar [calc]. No single typical setting is assumed, so the charge relief is not a
+    # typical parameter and the range is marked common practice.
     m = machine(templates, "closed_loop_drive", {})
     rng = in_state(m, "charge", FunctionState.NEUTRAL)
-    assert bar(rng) == (22.0, 26.0)
-    assert rng is not None and rng.typical == FROM_MEMORY
-    assert rng.source.startswith("from memory: charge relief setting 24 bar")
-    assert m.circuits[0].typical_parameters["charge_relief_setting"].startswith("from memory")
+    assert bar(rng) == (11.8, 32.0)
+    assert rng is not None and rng.typical == COMMON_PRACTICE
+    assert "charge_relief_setting" not in m.circuits[0].parameters
 
 
 def test_pump_flow_range_is_displacement_times_speed_times_least_efficiency(templates: Templates) -> None:
