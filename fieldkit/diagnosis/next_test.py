@@ -135,7 +135,7 @@ def suggest(
                 key, _Candidate(m.circuit, m.point, m.reading.condition.function, [], finding)
             )
             cand.rules.append((rule, scope))
-    tests: list[NextTest] = []
+    tests: list[tuple[NextTest, bool]] = []
     for cand in candidates.values():
         rules = cand.rules[:MAX_JOINT_RULES]
         mats = _matrices(rules, hyps)
@@ -155,7 +155,7 @@ def suggest(
             soft = (f.p_low, f.p_in_range, f.p_high)
         else:
             prior = posterior
-        expected, _ = _expected_entropy(prior, mats, soft)
+        expected, joint = _expected_entropy(prior, mats, soft)
         gain = max(0.0, now - expected)
         if gain < 1e-3:
             continue
@@ -164,6 +164,9 @@ def suggest(
         _, first = _expected_entropy(prior, mats[:1], soft)
         if cand.repeat_of is not None and not _could_change_leader(posterior, first):
             continue  # a better gauge would only confirm what already leads
+        decisive = _chance_leader_changes(
+            posterior, first if cand.repeat_of is not None else joint
+        ) >= DECISIVE_CHANCE or _splits_leaders(posterior, mats)
         outcomes = {OUTCOMES[combo[0]]: _describe(post, hyps) for combo, p_o, post in first if p_o > 0.05}
         state_text = cand.state.label if cand.state else "any condition"
         advice = ""
@@ -178,22 +181,72 @@ def suggest(
         if advice:
             why += f" {advice}"
         tests.append(
-            NextTest(
-                test_point=cand.point.id,
-                label=cand.point.label,
-                circuit=cand.circuit.id,
-                condition=state_text,
-                minutes=minutes,
-                gain_bits=gain,
-                why=why,
-                repeat=cand.repeat_of is not None,
-                gauge_advice=advice,
-                outcomes=outcomes,
+            (
+                NextTest(
+                    test_point=cand.point.id,
+                    label=cand.point.label,
+                    circuit=cand.circuit.id,
+                    condition=state_text,
+                    minutes=minutes,
+                    gain_bits=gain,
+                    why=why,
+                    repeat=cand.repeat_of is not None,
+                    gauge_advice=advice,
+                    outcomes=outcomes,
+                ),
+                decisive,
             )
         )
     tests.extend(_action_tests(evaluator, actions, hyps, posterior, now))
-    tests.sort(key=lambda t: -(t.gain_bits / t.minutes))
-    return tests[:limit]
+    return [t for t, _ in rank_by_value(tests)][:limit]
+
+
+def rank_by_value(tests: list[tuple[NextTest, bool]]) -> list[tuple[NextTest, bool]]:
+    """Doubt removed per minute, best first; but when some test could change the leading fault or
+    splits the two leaders (``True`` beside it), every test that does neither comes after it: a
+    cheap reading whose every outcome leaves the same fault in front, and that reads alike under
+    the two leaders, trims doubt among the also-rans while the technician's question is which of
+    the leaders it is (common practice: take the test that splits the leading suspects)."""
+    any_decisive = any(d for _, d in tests)
+    return sorted(tests, key=lambda td: (any_decisive and not td[1], -(td[0].gain_bits / td[0].minutes)))
+
+
+#: A test can change the leading fault when its outcomes put another fault first with at least
+#: this chance: one in twenty, so that a long shot does not jump the queue.
+DECISIVE_CHANCE = 0.05
+#: A test splits the two leading faults when what it would show under one differs from what it
+#: would show under the other by at least this total variation distance (half the summed
+#: differences of the outcome probabilities): the test answers "which of the two".
+SPLIT_DISTANCE = 0.5
+
+
+def _leaders(posterior: list[float]) -> tuple[int, int]:
+    order = sorted(range(len(posterior)), key=lambda i: -posterior[i])
+    return order[0], order[1] if len(order) > 1 else order[0]
+
+
+def _splits_leaders(posterior: list[float], mats: list[list[list[float]]]) -> bool:
+    """Whether the joint outcome of the rules (``mats``: [rule][outcome][h]) differs between the
+    two leading hypotheses by :data:`SPLIT_DISTANCE` or more."""
+    a, b = _leaders(posterior)
+    if a == b:
+        return False
+    distance = 0.0
+    for combo in itertools.product(*(range(len(mat)) for mat in mats)):
+        pa = pb = 1.0
+        for mat, o in zip(mats, combo, strict=True):
+            pa *= mat[o][a]
+            pb *= mat[o][b]
+        distance += abs(pa - pb)
+    return distance / 2.0 >= SPLIT_DISTANCE
+
+
+def _chance_leader_changes(
+    posterior: list[float], outcomes: list[tuple[tuple[int, ...], float, list[float]]]
+) -> float:
+    """P(the test's outcome puts another hypothesis first)."""
+    lead = max(range(len(posterior)), key=posterior.__getitem__)
+    return sum(p_o for _combo, p_o, post in outcomes if max(range(len(post)), key=post.__getitem__) != lead)
 
 
 def _could_change_leader(
@@ -218,10 +271,11 @@ def _action_tests(
     hyps: list[Hypothesis],
     posterior: list[float],
     now: float,
-) -> list[NextTest]:
+) -> list[tuple[NextTest, bool]]:
     """Action tests (rules/actions.toml) for each circuit they suit, by expected information gain:
-    outcome o has P(o) = Σ_h P(h) P(o | h) and leaves P(h | o) ∝ P(h) P(o | h)."""
-    out: list[NextTest] = []
+    outcome o has P(o) = Σ_h P(h) P(o | h) and leaves P(h | o) ∝ P(h) P(o | h); beside each,
+    whether an outcome could change the leading fault."""
+    out: list[tuple[NextTest, bool]] = []
     for action in actions:
         for circuit in evaluator.profile.circuits:
             if not action.suits(circuit) or not applies(action.needs, circuit):
@@ -269,16 +323,22 @@ def _action_tests(
                 f"{action.minutes:g} min. {meanings}"
             ).strip()
             out.append(
-                NextTest(
-                    test_point=point.id,
-                    label=action.title,
-                    circuit=circuit.id,
-                    condition="action test",
-                    minutes=action.minutes,
-                    gain_bits=gain,
-                    why=why,
-                    outcomes=outcomes,
-                    action=action.id,
+                (
+                    NextTest(
+                        test_point=point.id,
+                        label=action.title,
+                        circuit=circuit.id,
+                        condition="action test",
+                        minutes=action.minutes,
+                        gain_bits=gain,
+                        why=why,
+                        outcomes=outcomes,
+                        action=action.id,
+                    ),
+                    _chance_leader_changes(posterior, results) >= DECISIVE_CHANCE
+                    or _splits_leaders(
+                        posterior, [[[row[o] for row in rows] for o in range(len(action.outcomes))]]
+                    ),
                 )
             )
     return out
@@ -314,4 +374,4 @@ def _smaller_gauge_advice(evaluator: Evaluator, cand: _Candidate) -> str:
     )
 
 
-__all__ = ["suggest"]
+__all__ = ["rank_by_value", "suggest"]

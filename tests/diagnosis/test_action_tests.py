@@ -232,3 +232,57 @@ def test_capping_the_ports_does_not_split_valve_from_piston_seal_so_the_rod_vent
     assert "lift.drift_rod_vented" in points
     caps = [i for i, t in enumerate(d.next_tests) if t.action == "cap-cylinder-ports"]
     assert not caps or caps[0] > points.index("lift.drift_rod_vented")
+
+
+def _fellborer_without_the_low_idle_point() -> object:
+    profile = library().get("tarnhollow-fellborer")
+    return profile.model_copy(
+        update={
+            "circuits": [
+                c.model_copy(
+                    update={"test_points": [t for t in c.test_points if t.id != "travel.charge_idle"]}
+                )
+                if c.id == "travel"
+                else c
+                for c in profile.circuits
+            ]
+        }
+    )
+
+
+def test_turning_the_charge_relief_in_is_offered_on_a_loop_without_a_low_idle_point() -> None:
+    # A Fellborer whose travel loop has no charge-at-low-idle point: oil 50 °C, charge 17 bar in
+    # neutral against its 27 bar relief, case 1 bar. The relief or the charge pump; with no idle
+    # reading to take, turning the charge relief in (20 min) is the test that splits them: a
+    # relief set low follows its adjuster, a short pump does not (common practice).
+    profile = _fellborer_without_the_low_idle_point()
+    b = VisitBuilder(profile)  # type: ignore[arg-type]
+    for point, value, state in [
+        ("travel.oil_temp", 50.0, NEUTRAL),
+        ("travel.charge", 17.0, NEUTRAL),
+        ("travel.case", 1.0, NEUTRAL),
+    ]:
+        b.add(point, value, state)
+    d = diagnose(b.build(), profile, knowledge())  # type: ignore[arg-type]
+    assert {f.id for f in d.faults[:2]} == {"charge_relief_low", "charge_pump_worn"}
+    assert "turn-in-charge-relief" in [t.action for t in d.next_tests[:2]], [t.label for t in d.next_tests]
+
+
+def test_turning_the_charge_relief_in_comes_first_once_charge_at_low_idle_is_read() -> None:
+    # The Fellborer as it is: charge 17 bar in neutral, 14 bar at low idle (a little sag, not
+    # enough to call), 15.5 bar in stroke, case 1 bar, oil 50 °C. The idle reading has been
+    # taken; the relief leads and turning it in is the step that confirms it before it is reset
+    # (common practice), ahead of readings elsewhere in the loop.
+    d = _scene(
+        "tarnhollow-fellborer",
+        [
+            ("travel.oil_temp", 50.0, NEUTRAL),
+            ("travel.charge", 17.0, NEUTRAL),
+            ("travel.charge_idle", 14.0, NEUTRAL),
+            ("travel.charge", 15.5, FULL_STROKE),
+            ("travel.case", 1.0, NEUTRAL),
+        ],
+    )
+    assert d.faults[0].id == "charge_relief_low"
+    assert d.next_tests[0].action == "turn-in-charge-relief", [t.label for t in d.next_tests]
+    assert "relief was set low" in d.next_tests[0].outcomes["charge pressure rises with the relief"]
