@@ -249,11 +249,12 @@ def section_spool_leak(m: Machine, c: CircuitModel | None, s: float, rng: Random
 @fault("open_centre_restricted", CircuitKind.OPEN_FIXED_PUMP)
 def open_centre_restricted(m: Machine, c: CircuitModel | None, s: float, rng: Random) -> str:
     """A spool not quite centred, a stuck detent or dirt in the open-centre passage: the drop
-    through the centre × (1 + 4·s), so the pump outlet sits higher in neutral (and heats the
-    oil) while the return line downstream reads as before."""
+    through the centre × (1 + 4·s) plus 8·s bar at rated flow (a spool part-way off centre
+    throttles however free the passage was), so the pump outlet sits higher in neutral (and
+    heats the oil) while the return line downstream reads as before."""
     assert c is not None
-    c.p["centre_dp"] *= 1.0 + 4.0 * s
-    return f"open-centre passage drop × {1 + 4 * s:.1f}"
+    c.p["centre_dp"] = c.p["centre_dp"] * (1.0 + 4.0 * s) + 8.0 * s
+    return f"open-centre passage drop × {1 + 4 * s:.1f} + {8 * s:.1f} bar"
 
 
 @fault("return_back_pressure", *OPEN, *LOOP)
