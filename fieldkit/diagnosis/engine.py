@@ -153,13 +153,22 @@ def gauge_advice(m: Measured) -> str:
         return ""
     g = m.gauge
     start = to_canonical(g.scale_start, Kind.PRESSURE) if g.scale_start is not None else None
-    top = to_canonical(m.point.max_pressure, Kind.PRESSURE) if m.point.max_pressure is not None else None
-    return _gauge_advice(to_canonical(g.full_scale, Kind.PRESSURE), start, g.accuracy_class, m.canonical, top)
+    highest = m.point.highest_on_scale
+    top = to_canonical(highest, Kind.PRESSURE) if highest is not None else None
+    fluctuating = m.point.fluctuates(m.reading.condition.function)
+    return _gauge_advice(
+        to_canonical(g.full_scale, Kind.PRESSURE), start, g.accuracy_class, m.canonical, top, fluctuating
+    )
 
 
 @lru_cache(maxsize=4096)
 def _gauge_advice(
-    full_bar: float, start_bar: float | None, accuracy: float, reading_bar: float, highest_bar: float | None
+    full_bar: float,
+    start_bar: float | None,
+    accuracy: float,
+    reading_bar: float,
+    highest_bar: float | None,
+    fluctuating: bool = False,
 ) -> str:
     # Cached on plain numbers: the same readings are judged again after every new one.
 
@@ -171,6 +180,7 @@ def _gauge_advice(
             Q_(highest_bar, bar) if highest_bar is not None else None,
             Q_(start_bar, bar) if start_bar is not None else None,
             accuracy,
+            fluctuating=fluctuating,
         )
     except FieldkitError as exc:  # an odd gauge record must not stop the diagnosis
         return f"gauge could not be checked: {exc}"

@@ -354,7 +354,11 @@ def _smaller_gauge_advice(evaluator: Evaluator, cand: _Candidate) -> str:
     if kind_of(m.reading.value) is not Kind.PRESSURE:
         return generic
     try:
-        size = smallest_gauge(m.reading.value, cand.point.max_pressure)
+        size = smallest_gauge(
+            m.reading.value,
+            cand.point.highest_on_scale,
+            fluctuating=cand.point.fluctuates(m.reading.condition.function),
+        )
     except OutOfRangeError:
         return generic
     if gauge is not None and size >= gauge.full_scale:

@@ -13,7 +13,7 @@ from typing import Any, Literal
 from pydantic import Field, field_serializer, field_validator, model_validator
 
 from fieldkit.model.base import SCHEMA_VERSION, Strict
-from fieldkit.model.condition import Condition, ConditionSpec
+from fieldkit.model.condition import Condition, ConditionSpec, FunctionState
 from fieldkit.model.parameters import PARAMETERS
 from fieldkit.model.parts import Part
 from fieldkit.model.quantity import AnyQuantity, Pressure, Speed, Temperature, parse_for_kind, quantity_text
@@ -99,6 +99,11 @@ class TestPoint(Strict):
         description="the port relief on this work port (one of the circuit's reliefs): a stall here "
         "reads the lower of it and the main relief",
     )
+    pulsing: bool | None = Field(
+        default=None,
+        description="whether the pressure here pulses while a function moves (EN 837-2 then keeps it "
+        "within 2/3 of a gauge's scale, not 3/4); unset: what the role usually does",
+    )
 
     @model_validator(mode="after")
     def _ranges_match_role(self) -> TestPoint:
@@ -117,6 +122,21 @@ class TestPoint(Strict):
     @property
     def kind(self) -> Kind:
         return ROLES[self.role].kind
+
+    @property
+    def highest_on_scale(self) -> Pressure | None:
+        """The highest pressure a gauge's scale must reach here: the point's rating, except at a
+        pressure difference (a filter's drop), where the line pressure bears on a differential
+        gauge's static rating and only the difference is on its scale (common practice)."""
+        return None if ROLES[self.role].difference else self.max_pressure
+
+    def fluctuates(self, function: FunctionState | None) -> bool:
+        """Whether a pressure read here in this function state is a fluctuating one in the sense
+        of EN 837-2 (at most 2/3 of the gauge's scale): a pulsing point with a function moving.
+        In neutral or stalled the needle settles (common practice)."""
+        pulsing = ROLES[self.role].pulsing if self.pulsing is None else self.pulsing
+        moving = function in (FunctionState.FULL_STROKE, FunctionState.UNDER_LOAD)
+        return self.kind is Kind.PRESSURE and pulsing and moving
 
     @property
     def pressure_rating(self) -> Quantity | None:

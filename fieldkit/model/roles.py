@@ -51,6 +51,14 @@ class RoleInfo:
     high_pressure: bool = False
     #: Read with the engine running (most readings); False for readings taken with it stopped.
     engine_running: bool = True
+    #: The pressure pulses while a function moves (at full stroke or under load): pump ripple and
+    #: a changing load swing a pump's outlet, its LS signal and a hydrostatic loop's working side,
+    #: so EN 837-2 keeps it within 2/3 of a gauge's scale, not 3/4 (common practice). A profile
+    #: may say otherwise for one point (TestPoint.pulsing).
+    pulsing: bool = False
+    #: A difference between two pressures (a filter's drop), read on a differential gauge: the
+    #: point's highest line pressure bears on the gauge's static rating, not on its scale.
+    difference: bool = False
 
 
 ROLES: dict[Role, RoleInfo] = {
@@ -61,9 +69,11 @@ ROLES: dict[Role, RoleInfo] = {
     Role.CASE_PRESSURE: RoleInfo(Kind.PRESSURE, "case pressure"),
     Role.PUMP_CASE_DRAIN_FLOW: RoleInfo(Kind.FLOW, "pump case drain flow"),
     Role.MOTOR_CASE_DRAIN_FLOW: RoleInfo(Kind.FLOW, "motor case drain flow"),
-    Role.LOOP_A_PRESSURE: RoleInfo(Kind.PRESSURE, "loop A pressure", high_pressure=True),
-    Role.LOOP_B_PRESSURE: RoleInfo(Kind.PRESSURE, "loop B pressure", high_pressure=True),
-    Role.PUMP_OUTLET_PRESSURE: RoleInfo(Kind.PRESSURE, "pump outlet (system) pressure", high_pressure=True),
+    Role.LOOP_A_PRESSURE: RoleInfo(Kind.PRESSURE, "loop A pressure", high_pressure=True, pulsing=True),
+    Role.LOOP_B_PRESSURE: RoleInfo(Kind.PRESSURE, "loop B pressure", high_pressure=True, pulsing=True),
+    Role.PUMP_OUTLET_PRESSURE: RoleInfo(
+        Kind.PRESSURE, "pump outlet (system) pressure", high_pressure=True, pulsing=True
+    ),
     Role.STALL_PRESSURE: RoleInfo(
         Kind.PRESSURE, "pressure at a stalled function (relief setting)", high_pressure=True
     ),
@@ -87,9 +97,9 @@ ROLES: dict[Role, RoleInfo] = {
     ),
     Role.STEERING_FLOW: RoleInfo(Kind.FLOW, "priority (CF) flow to the steering", high_pressure=True),
     Role.RETURN_PRESSURE: RoleInfo(Kind.PRESSURE, "return line pressure"),
-    Role.FILTER_PRESSURE_DROP: RoleInfo(Kind.PRESSURE, "filter pressure drop"),
+    Role.FILTER_PRESSURE_DROP: RoleInfo(Kind.PRESSURE, "filter pressure drop", difference=True),
     Role.SUCTION_PRESSURE: RoleInfo(Kind.PRESSURE, "suction (inlet) pressure"),
-    Role.LS_SIGNAL_PRESSURE: RoleInfo(Kind.PRESSURE, "LS signal pressure", high_pressure=True),
+    Role.LS_SIGNAL_PRESSURE: RoleInfo(Kind.PRESSURE, "LS signal pressure", high_pressure=True, pulsing=True),
     Role.LS_STANDBY_PRESSURE: RoleInfo(Kind.PRESSURE, "LS standby pressure"),
     Role.PILOT_PRESSURE: RoleInfo(Kind.PRESSURE, "pilot pressure"),
     Role.BRAKE_RELEASE_PRESSURE: RoleInfo(Kind.PRESSURE, "brake release pressure"),

@@ -191,8 +191,10 @@ def gauge_suitability(
             Check(
                 Level.WARNING,
                 f"working pressure {shown(working_pressure)} is beyond "
-                f"{'2/3' if fluctuating else '3/4'} of {gauge}'s scale: "
-                f"choose a larger range",
+                f"{'2/3' if fluctuating else '3/4'} of {gauge}'s scale "
+                f"({shown(Q_(share * top, unit('Pa')).to(unit('bar')))}; EN 837-2 keeps "
+                f"{'a fluctuating' if fluctuating else 'a steady'} pressure within "
+                f"{'2/3' if fluctuating else '3/4'} of the span): choose a larger range",
             )
         )
     if abs(work) < LOW_READING_FRACTION * span:

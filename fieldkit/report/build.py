@@ -190,7 +190,6 @@ def _readings(visit: Visit, diagnosis: Diagnosis, uses: dict[str, GaugeUse]) -> 
         t.test_point: t.gauge_advice for t in diagnosis.next_tests if t.repeat and t.gauge_advice
     }
     rows = []
-    told: set[str] = set()  # "gauge too small" is said once per gauge (and in Gauges used)
     for i, c in enumerate(diagnosis.checks, start=1):
         band = None
         if c.value_num is not None and (c.low_num is not None or c.high_num is not None):
@@ -211,7 +210,7 @@ def _readings(visit: Visit, diagnosis: Diagnosis, uses: dict[str, GaugeUse]) -> 
                 gauge=one_line(c.gauge.split(":", 1)[0]),
                 verdict=c.verdict,
                 verdict_text=_VERDICT_TEXT[c.verdict],
-                remark=_once(_remark(c, repeat_advice.get(c.test_point, ""), use, bool(share)), use, c, told),
+                remark=_remark(c, repeat_advice.get(c.test_point, ""), use, bool(share)),
                 note=notes.get(c.reading_id, ""),
                 band=band,
                 low_share=share,
@@ -230,16 +229,6 @@ def _as_read(c: ReadingCheck) -> tuple[str, str]:
     return as_read_with_limit(c)
 
 
-def _once(remark: str, use: GaugeUse, c: ReadingCheck, told: set[str]) -> str:
-    if not use.overrange or use.overrange not in remark:
-        return remark
-    gauge = c.gauge.split(":", 1)[0]
-    if gauge in told:
-        return " ".join(remark.replace(use.overrange, "").split())
-    told.add(gauge)
-    return remark
-
-
 def _low_share(c: ReadingCheck, use: GaugeUse) -> str:
     """The printed gauge error as a share of the reading, for a reading low on its gauge's scale."""
     if not (use.low and c.gauge_advice and c.value_num):
@@ -250,9 +239,10 @@ def _low_share(c: ReadingCheck, use: GaugeUse) -> str:
 def _remark(c: ReadingCheck, repeat_advice: str, use: GaugeUse, share_shown: bool) -> str:
     """What a technician should know or do about one reading, in a sentence or two.
 
-    A gauge too small for its point gets a sentence of its own; a reading low on a big gauge's
-    scale only gets its error's share of the reading (``low_share``) beside the gauge error.
-    Any other concern about the gauge keeps the diagnosis's own words.
+    A gauge too small for its point (overranged, or past EN 837-2's share of its scale) is said
+    once per gauge under Gauges used, with the points it served, never on the rows; a reading
+    low on a big gauge's scale only gets its error's share of the reading (``low_share``) beside
+    the gauge error. Any other concern about the gauge keeps the diagnosis's own words.
     """
     parts = []
     if c.verdict is Verdict.INCONCLUSIVE:
@@ -270,14 +260,12 @@ def _remark(c: ReadingCheck, repeat_advice: str, use: GaugeUse, share_shown: boo
             "The machine profile has no expected range for this condition: compare it with the "
             "maker's figure by hand."
         )
-    # EN 837-2 range advice is said once per gauge, under Gauges used, not on every row.
-    if c.gauge_advice and c.gauge_advice not in repeat_advice and not use.high_on_scale:
-        # Said briefly only when every concern has a brief form; otherwise in the diagnosis's words.
-        brief = bool(use.overrange or use.low) and (share_shown or not use.low) and not use.high_on_scale
-        if not brief:
+    too_small = bool(use.overrange or use.high_on_scale)
+    if c.gauge_advice and c.gauge_advice not in repeat_advice and not too_small:
+        # A reading low on its scale is told by its share beside the gauge error; any other
+        # concern in the diagnosis's words.
+        if not (use.low and share_shown):
             parts.append("Gauge: " + plain(c.gauge_advice).rstrip(".") + ".")
-        elif use.overrange:
-            parts.append(use.overrange)
     if c.discounted:
         parts.append("Not used in the diagnosis: " + plain(c.discounted).rstrip(".") + ".")
     return " ".join(parts)

@@ -17,7 +17,12 @@ from fieldkit.diagnosis.measure import Measured, measure_visit
 from fieldkit.errors import FieldkitError
 from fieldkit.model.profile import MachineProfile
 from fieldkit.model.visit import Visit
-from fieldkit.physics.gauges import LOW_READING_FRACTION, STEADY_FRACTION, smallest_gauge
+from fieldkit.physics.gauges import (
+    FLUCTUATING_FRACTION,
+    LOW_READING_FRACTION,
+    STEADY_FRACTION,
+    smallest_gauge,
+)
 from fieldkit.units import Q_, DisplaySystem, Kind, format_value, to_canonical, unit
 
 
@@ -29,7 +34,7 @@ class GaugeUse:
     overrange: str = ""
     #: Read below a quarter of the span, where the gauge's error is a large share of the reading.
     low: bool = False
-    #: Read above 3/4 of the scale (EN 837-2): the card keeps the diagnosis's own words for it.
+    #: Read above 3/4 of the scale, or 2/3 where the pressure fluctuates (EN 837-2).
     high_on_scale: bool = False
 
 
@@ -50,7 +55,8 @@ def _use(m: Measured, system: DisplaySystem) -> GaugeUse | None:
         return None  # an odd gauge record: the diagnosis says so in its own words
     span = top - start
     work = m.canonical
-    highest = to_canonical(m.point.max_pressure, Kind.PRESSURE) if m.point.max_pressure is not None else None
+    rated = m.point.highest_on_scale
+    highest = to_canonical(rated, Kind.PRESSURE) if rated is not None else None
     peak = work if highest is None else max(work, highest)
     overrange = ""
     if work < start:
@@ -66,13 +72,16 @@ def _use(m: Measured, system: DisplaySystem) -> GaugeUse | None:
         )
         try:
             better = smallest_gauge(
-                Q_(work, unit("bar")), Q_(highest, unit("bar")) if highest is not None else None
+                Q_(work, unit("bar")),
+                Q_(highest, unit("bar")) if highest is not None else None,
+                fluctuating=m.point.fluctuates(m.reading.condition.function),
             )
             overrange += f"; use a 0–{format_value(better, spelling='bar')} gauge."
         except FieldkitError:
             overrange += "."
     working_side = top if top > 0 else -start
-    high = not overrange and abs(work) > STEADY_FRACTION * working_side
+    share = FLUCTUATING_FRACTION if m.point.fluctuates(m.reading.condition.function) else STEADY_FRACTION
+    high = not overrange and abs(work) > share * working_side
     low = (
         bool(work) and abs(work) < LOW_READING_FRACTION * span
     )  # at zero a share means nothing: advice stays

@@ -16,11 +16,13 @@ from fieldkit.diagnosis.engine import Knowledge, default_knowledge
 from fieldkit.diagnosis.evidence import evidence_book
 from fieldkit.diagnosis.results import Diagnosis, NextTest, Verdict
 from fieldkit.diagnosis.retest import decimals_for, limit_text, open_dangers, retest_rows
+from fieldkit.errors import FieldkitError
 from fieldkit.model.gauge import Gauge
 from fieldkit.model.kit import calibration_warning
 from fieldkit.model.profile import MachineProfile
 from fieldkit.model.repair import MachineStatus
 from fieldkit.model.visit import Visit
+from fieldkit.physics.gauges import smallest_gauge
 from fieldkit.report.usertext import one_line, percent, plain
 from fieldkit.units import (
     METRIC,
@@ -170,54 +172,111 @@ def gauge_lines(visit: Visit, profile: MachineProfile, system: DisplaySystem) ->
 def _range_advice(
     visit: Visit, profile: MachineProfile, g: Gauge, system: DisplaySystem, limit: float
 ) -> str:
+    """One "Gauge too small" sentence for the gauge, naming every point it served where it was:
+    a point that can reach the end of its scale on this machine (it would be overranged), or a
+    working pressure past EN 837-2's share of the scale: ¾ for a steady pressure, ⅔ for a
+    fluctuating one (a pulsing point read with a function moving, TestPoint.fluctuates)."""
     if g.kind is not Kind.PRESSURE:
         return ""
-    highest = None
-    where = ""
+    full = to_canonical(g.full_scale, Kind.PRESSURE)
+    start = to_canonical(g.scale_start, Kind.PRESSURE) if g.scale_start is not None else 0.0
+    served = []
     for r in visit.current_readings():
-        if r.gauge != g.id:
+        if r.gauge != g.id or kind_of(r.value) is not Kind.PRESSURE:
             continue
         try:
             _c, point = profile.test_point(r.test_point)
         except KeyError:
             continue
-        if point.max_pressure is None or kind_of(point.max_pressure) is not Kind.PRESSURE:
-            continue
-        top = to_canonical(point.max_pressure, Kind.PRESSURE)
-        if highest is None or top > highest:
-            highest, where = top, point.label
-    if highest is None:
+        rated = point.highest_on_scale
+        highest = to_canonical(rated, Kind.PRESSURE) if rated is not None else None
+        served.append(
+            (
+                point.label,
+                to_canonical(r.value, Kind.PRESSURE),
+                highest,
+                point.fluctuates(r.condition.function),
+            )
+        )
+    if not served:
         return ""
-    full = to_canonical(g.full_scale, Kind.PRESSURE)
+
+    def bar(value: float) -> str:
+        return format_value(Q_(value, unit("bar")), system, kind=Kind.PRESSURE)
+
     if full <= 0:
         # A vacuum gauge ends at (or below) atmosphere: any pressure at the point overranges it.
-        if highest <= full:
+        above = [(label, h) for label, _w, h, _f in served if h is not None and h > full]
+        if not above:
             return ""
+        where, highest = max(above, key=lambda x: x[1])
         return (
-            f"{where} can reach {format_value(Q_(highest, unit('bar')), system, kind=Kind.PRESSURE)} "
-            "on this machine, above the top of this vacuum gauge's scale (0, atmosphere): fit it only "
-            "where the point stays below atmosphere, or use a compound gauge that reaches that pressure."
+            f"{where} can reach {bar(highest)} on this machine, above the top of this vacuum gauge's "
+            "scale (0, atmosphere): fit it only where the point stays below atmosphere, or use a "
+            "compound gauge that reaches that pressure."
         )
-    if highest <= FLUCTUATING_SHARE * full:
-        return ""
     spelling = system.pressure
     per_bar = magnitude_in(Q_(1.0, unit("bar")), unit(_pint_spelling(spelling)))
     d = decimals_for(limit)
 
-    def shown(bar: float) -> str:
-        return f"{bar * per_bar:.{d}f} {spelling}"
+    def on_dial(value: float) -> str:
+        return f"{value * per_bar:.{d}f} {spelling}"
 
-    share = round(100 * highest / full)
-    suits = format_value(
-        Q_(highest / FLUCTUATING_SHARE, unit("bar")), system, kind=Kind.PRESSURE, significant=2
-    )
-    return (
-        f"{where} can reach {format_value(Q_(highest, unit('bar')), system, kind=Kind.PRESSURE)} on this "
-        f"machine, {share} % of this gauge's scale. EN 837-2 "
-        f"(from memory): a steady pressure within ¾ of the span ({shown(STEADY_SHARE * full)} here), a "
-        f"fluctuating one within ⅔ ({shown(FLUCTUATING_SHARE * full)}); a gauge of at least "
-        f"{suits} suits that point."
-    )
+    overranged: dict[str, float] = {}
+    past_share: dict[str, tuple[float, bool]] = {}
+    below: dict[str, float] = {}
+    for label, work, highest, fluctuating in served:
+        peak = work if highest is None else max(work, highest)
+        share = FLUCTUATING_SHARE if fluctuating else STEADY_SHARE
+        if work < start:
+            below[label] = min(work, below.get(label, work))
+        elif peak >= full:
+            overranged[label] = max(peak, overranged.get(label, peak))
+        elif work > share * full:
+            # the worst reading at a point: the largest share of the scale against its limit
+            old = past_share.get(label)
+            if old is None or work / share > old[0] / (FLUCTUATING_SHARE if old[1] else STEADY_SHARE):
+                past_share[label] = (work, fluctuating)
+    if not (overranged or past_share or below):
+        return ""
+    parts = []
+    if overranged:
+        reach = " and ".join(f"{label} can reach {bar(v)}" for label, v in overranged.items())
+        parts.append(
+            f"{reach} on this machine, at or past the end of its {format_value(g.full_scale, system)} "
+            "scale: it would be overranged"
+        )
+    for label, (work, fluctuating) in past_share.items():
+        share, word = (FLUCTUATING_SHARE, "⅔") if fluctuating else (STEADY_SHARE, "¾")
+        kind = "fluctuating, a function moving" if fluctuating else "steady"
+        parts.append(
+            f"{label} read {bar(work)} ({kind}), above {word} of its scale ({on_dial(share * full)})"
+        )
+    for label, work in below.items():
+        parts.append(f"{label} read {bar(work)}, below the start of its scale")
+    advice = "Gauge too small: " + "; ".join(parts) + "."
+    if past_share:
+        kinds = {f for _w, f in past_share.values()}
+        rule = {
+            frozenset({False}): "a steady pressure within ¾ of the span",
+            frozenset({True}): "a fluctuating pressure within ⅔ of the span",
+        }.get(frozenset(kinds), "a steady pressure within ¾ of the span and a fluctuating one within ⅔")
+        advice += f" EN 837-2 (from memory) keeps {rule}."
+    if below:
+        advice += " A reading below the scale needs a vacuum or compound gauge."
+    works = [w for _l, w, _h, _f in served if w >= 0]
+    peaks = [h for _l, _w, h, _f in served if h is not None]
+    try:
+        better = smallest_gauge(
+            Q_(max(works), unit("bar")) if works else Q_(0.0, unit("bar")),
+            Q_(max(peaks), unit("bar")) if peaks else None,
+            fluctuating=any(f for _l, _w, _h, f in served),
+        )
+        these = "these points" if len({label for label, *_rest in served}) > 1 else "this point"
+        advice += f" Use a 0–{format_value(better, system, kind=Kind.PRESSURE)} gauge for {these}."
+    except FieldkitError:
+        pass
+    return advice
 
 
 # --- the story ---------------------------------------------------------------------------

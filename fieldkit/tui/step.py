@@ -122,9 +122,10 @@ def gauge_fit(
             check = gauge_suitability(
                 gauge.full_scale,
                 working,
-                point.max_pressure,
+                point.highest_on_scale,
                 gauge.scale_start,
                 gauge.accuracy_class if gauge.standard == "EN 837-1" else None,
+                fluctuating=point.fluctuates(function),
             )
         except FieldkitError as exc:
             return GaugeFit(Level.WARNING, f"cannot judge {gauge.id}: {exc}")
@@ -140,7 +141,8 @@ def gauge_fit(
 
 def _gauge_to_add(point: TestPoint, function: FunctionState) -> str:
     """'; add a 0–16 bar gauge (^g)' for a pressure point: the smallest standard range that reads
-    the expected value within 3/4 of its scale and stays above the point's highest pressure."""
+    the expected value within 3/4 of its scale (2/3 where the pressure fluctuates, EN 837-2) and
+    stays above the point's highest pressure."""
     if point.kind is not Kind.PRESSURE:
         return f"; add a {point.kind.value} meter with ^g"
 
@@ -151,7 +153,7 @@ def _gauge_to_add(point: TestPoint, function: FunctionState) -> str:
         top = f" to +{format_value(point.max_pressure)}" if point.max_pressure is not None else ""
         return f"; add a compound gauge (from -1 bar{top}) with ^g"
     try:
-        size = smallest_gauge(work, point.max_pressure)
+        size = smallest_gauge(work, point.highest_on_scale, fluctuating=point.fluctuates(function))
     except FieldkitError:
         return "; add one with ^g"
     return f"; add a 0–{format_value(size)} gauge with ^g"
