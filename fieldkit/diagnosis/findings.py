@@ -27,10 +27,19 @@ from fieldkit.model.fitted import applies
 from fieldkit.model.parameters import PARAMETERS
 from fieldkit.model.profile import Circuit, MachineProfile, TestPoint
 from fieldkit.model.roles import PER_POINT_ROLES, ROLES, Role
+from fieldkit.physics.accumulators import PRECHARGE_REFERENCE_C, precharge_at_temperature
 from fieldkit.physics.closed_loop import cross_port_stall_reading
 from fieldkit.physics.fluid import grade
 from fieldkit.physics.reliefs import arrangement_for, deadhead
-from fieldkit.units import Q_, DisplaySystem, Kind, format_si, format_si_to_resolution, to_canonical
+from fieldkit.units import (
+    Q_,
+    DisplaySystem,
+    Kind,
+    format_si,
+    format_si_to_resolution,
+    format_value,
+    to_canonical,
+)
 
 _SQRT2 = math.sqrt(2.0)
 _SQRT3 = math.sqrt(3.0)
@@ -292,6 +301,8 @@ class Evaluator:
             # temperature is q · (dν/dT) / ν_ref, taken by a central difference.
             d_ratio = (self.curve.cst_at_kelvin(t + 0.5) - self.curve.cst_at_kelvin(t - 0.5)) / nu_ref
             return m.si * ratio, math.hypot(m.u_si * ratio, m.si * d_ratio * m.u_oil_temp)
+        if name == "accumulator_precharge_at_ref":
+            return self._precharge_at_ref(scope, states, used)
         if name == "pump_theoretical_flow":
             return self._theoretical_flow(scope, states, used)
         if name == "relief_deadhead":
@@ -333,6 +344,48 @@ class Evaluator:
             return disp * rated, disp * rated * tol / 100.0 / _SQRT3
         used.append(m)
         return disp * m.si, disp * m.u_si
+
+    def _precharge_at_ref(
+        self, scope: Scope, states: tuple[FunctionState, ...], used: list[Measured]
+    ) -> tuple[float, float]:
+        """The precharge reading brought to the temperature its figure is stated at (ideal gas at
+        constant volume, physics.accumulators.precharge_at_temperature). The gas is taken at the
+        temperature stated with the reading itself; with none stated it is taken at the figure's
+        temperature, uncorrected. Either way the finding says which temperatures were used."""
+        m = self.latest(scope, Role.ACCUMULATOR_PRECHARGE, states)
+        used.append(m)
+        try:
+            ref = Q_(self.parameter(scope, "precharge_reference_temperature") - 273.15, "degC")
+            ref_words = "the profile's figure"
+        except NotApplicable:
+            ref = Q_(PRECHARGE_REFERENCE_C, "degC")
+            ref_words = "from memory: precharge figures are commonly stated at 20 °C"
+        ref_text = format_value(ref, self.system, significant=3)
+        gas = m.reading.condition.oil_temperature
+        if gas is None:
+            self.notes.append(
+                f"No temperature was stated with the precharge reading: the gas is taken at {ref_text} "
+                f"({ref_words}), so the reading is judged as read."
+            )
+            return m.si, m.u_si
+        source = m.reading.condition.oil_from
+        how = f", {source.words}" if source is not None else ""
+        gauge = Q_(m.canonical, "bar")
+        corrected = precharge_at_temperature(gauge, gas, ref)
+        self.notes.append(
+            f"Precharge brought from the gas at {format_value(gas, self.system, significant=3)} (the "
+            f"temperature stated with the reading{how}) to {ref_text} ({ref_words}) by the gas law: "
+            f"{format_value(corrected, self.system, significant=4)}."
+        )
+        value = float(corrected.to_base_units().magnitude)
+        # GUM 5.1.2: the gauge's error scales by T_ref / T; the temperature's by p_abs · T_ref / T²,
+        # taken here by a difference of one kelvin.
+        t = to_canonical(gas, Kind.TEMPERATURE)
+        scale = (to_canonical(ref, Kind.TEMPERATURE) + 273.15) / (t + 273.15)
+        warmer = precharge_at_temperature(gauge, Q_(t + 1.0, "degC"), ref)
+        d_dt = value - float(warmer.to_base_units().magnitude)
+        u_t = m.u_oil_temp or 0.0
+        return value, math.hypot(m.u_si * scale, d_dt * u_t)
 
     def _cross_port_stall(self, scope: Scope, used: list[Measured]) -> tuple[float, float]:
         """What a loop port gauge should read with the drive stalled on its cross-port relief.

@@ -68,6 +68,12 @@ DERIVED: dict[str, tuple[Kind, frozenset[Role], str]] = {
         "what a loop port gauge should read stalled on its cross-port relief: the setting, plus the low "
         "side's charge pressure when the profile states the setting as a differential",
     ),
+    "accumulator_precharge_at_ref": (
+        Kind.PRESSURE,
+        frozenset({Role.ACCUMULATOR_PRECHARGE}),
+        "gas precharge brought to the temperature its figure is stated at (ideal gas at constant volume: "
+        "p/T constant in absolute pressure and kelvin), from the temperature stated with the reading",
+    ),
     "oil_viscosity": (
         Kind.VISCOSITY,
         frozenset({Role.OIL_TEMPERATURE}),

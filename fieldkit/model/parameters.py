@@ -53,6 +53,10 @@ PARAMETERS: dict[str, tuple[Kind, str]] = {
     "accumulator_min_working_pressure": (Kind.PRESSURE, "accumulator minimum working pressure"),
     "accumulator_max_working_pressure": (Kind.PRESSURE, "accumulator maximum working pressure"),
     "accumulator_volume": (Kind.VOLUME, "accumulator gas volume"),
+    "precharge_reference_temperature": (
+        Kind.TEMPERATURE,
+        "gas temperature the accumulator precharge figure is stated at",
+    ),
     "cylinder_bore": (Kind.LENGTH, "cylinder bore"),
     "cylinder_rod": (Kind.LENGTH, "cylinder rod diameter"),
     "max_case_pressure": (Kind.PRESSURE, "highest continuous case pressure the shaft seals accept"),

@@ -11,7 +11,18 @@ oil and gas must be released before any line is opened (WorkSafeNB hazard alert,
 
 from __future__ import annotations
 
-from fieldkit.physics.common import Check, Level, OutOfRangeError, Ratio, fraction, out, percent, shown, si
+from fieldkit.physics.common import (
+    Check,
+    Level,
+    OutOfRangeError,
+    Ratio,
+    fraction,
+    kelvin,
+    out,
+    percent,
+    shown,
+    si,
+)
 from fieldkit.units import Kind, PressureReference, Quantity, to_absolute
 
 #: Gas precharge ≈ 90 % of the minimum working pressure for energy storage (from memory).
@@ -20,6 +31,9 @@ PRECHARGE_RATIO = 0.9
 #: nitrogen treated as an ideal diatomic gas; real nitrogen deviates at a few hundred bar.
 ISOTHERMAL = 1.0
 ADIABATIC_NITROGEN = 1.4
+#: Precharge figures are commonly stated for the gas at 20 °C (from memory); a profile may give
+#: its maker's own reference temperature (``precharge_reference_temperature``).
+PRECHARGE_REFERENCE_C = 20.0
 
 
 def _absolute(gauge: Quantity, what: str, barometric: Quantity | None) -> float:
@@ -106,3 +120,24 @@ def delivered_volume(
         return v0 * float((p0 / max(p, p0)) ** inverse)
 
     return out(gas_volume(p_low) - gas_volume(p_high), Kind.VOLUME)
+
+
+def precharge_at_temperature(
+    precharge: Quantity,
+    gas_temperature: Quantity,
+    reference_temperature: Quantity,
+    barometric: Quantity | None = None,
+) -> Quantity:
+    """A precharge read with the gas at one temperature, as it would read at another.
+
+    The gas is shut in a shell of fixed volume, so by the ideal gas law (Gay-Lussac's law)
+    p / T is constant, in absolute pressure and kelvin: p_ref = p · T_ref / T. A figure stated
+    at 20 °C and read on a cold morning reads low without any gas being lost (about 1 % for every
+    3 K at these pressures), so the reading is brought to the figure's temperature before it is
+    judged. Nitrogen at precharge pressures is close enough to ideal for this correction.
+    """
+    p = _absolute(precharge, "gas precharge", barometric)
+    t = kelvin(gas_temperature, "gas temperature")
+    t_ref = kelvin(reference_temperature, "reference temperature")
+    atmosphere = _absolute(out(0.0, Kind.PRESSURE), "atmosphere", barometric)
+    return out(p * t_ref / t - atmosphere, Kind.PRESSURE)

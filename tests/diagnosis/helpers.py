@@ -1,20 +1,16 @@
-"""Builders shared by the diagnosis engine tests: sample data, visits with chosen readings, and a
-"scene" for every rule (a machine, a circuit and the readings that make the rule speak).
+"""Builders shared by the diagnosis engine tests: sample data and visits with chosen readings.
 
 Imported as ``diagnosis_helpers`` (tests/diagnosis/conftest.py registers it under that name, so
 it never collides with a helpers module of another test folder).
 
-Scenes are generated from the data, not written by hand: the rule's own limits are evaluated
-against the machine's figures (or the test point's expected range), and the reading the rule
-reads is solved for so that the rule's value lands clearly below, inside or above them. A new
-rule therefore gets its tests without anyone writing numbers for it.
+Scenes for every rule are written out by hand in test_rules_every_rule.py: readings chosen
+from each machine's figures, never solved from a rule's own limits.
 """
 
 from __future__ import annotations
 
-import math
 import tempfile
-from collections.abc import Iterable, Sequence
+from collections.abc import Iterable
 from dataclasses import dataclass, field
 from datetime import UTC, datetime, timedelta
 from functools import lru_cache
@@ -27,13 +23,10 @@ from fieldkit.diagnosis.engine import Knowledge, default_knowledge, diagnose
 from fieldkit.diagnosis.findings import EVIDENCE_WEIGHT
 from fieldkit.diagnosis.results import Diagnosis, Finding, Verdict
 from fieldkit.diagnosis.rulepack import Rule
-from fieldkit.diagnosis.symbols import DERIVED, MACHINE_FIGURES, SYMBOLS
-from fieldkit.expr import si_value
 from fieldkit.model.condition import Condition, FunctionState
 from fieldkit.model.gauge import Gauge
 from fieldkit.model.loading import ProfileLibrary, load_profile, load_templates
-from fieldkit.model.parameters import PARAMETERS
-from fieldkit.model.profile import Circuit, MachineProfile, ReliefLayout, TestPoint
+from fieldkit.model.profile import MachineProfile
 from fieldkit.model.roles import Role
 from fieldkit.model.visit import Reading, Visit
 from fieldkit.units import CANONICAL_UNIT, Q_, Kind, to_canonical, unit
@@ -361,307 +354,15 @@ def likelihood_for(
     return table_likelihood(rule, fault_of(key) if same_place else "no_fault")
 
 
-# --- scenes: one rule, one machine, readings that make it speak --------------------------------
-
-
-class NoScene(Exception):
-    """No machine here has what the rule reads."""
-
-
-@dataclass(frozen=True)
-class ReadingNeed:
-    name: str  # the name in the rule's expression
-    role: Role
-    state: FunctionState
-    point: TestPoint
-
-
-@dataclass(frozen=True)
-class Scene:
-    rule: Rule
-    profile: MachineProfile
-    circuit: Circuit | None  # None: a machine-wide rule
-    needs: tuple[ReadingNeed, ...]
-    free: str  # the reading solved for; the others sit at their nominal values
-    nominal: dict[str, float]  # reading name → canonical value
-    figures: dict[str, float]  # every other name the rule uses → SI value
-    low: float | None  # the rule's limits for this machine, SI
-    high: float | None
-    listed_keys: tuple[str, ...]  # hypotheses of the faults the rule names, in its scope
-
-    @property
-    def circuit_id(self) -> str | None:
-        return self.circuit.id if self.circuit is not None else None
-
-    @property
-    def sides(self) -> tuple[str, ...]:
-        """The outcomes this machine can show: 'low' and 'high' where a limit exists, and 'in_range'."""
-        out = []
-        if self.low is not None:
-            out.append("low")
-        out.append("in_range")
-        if self.high is not None:
-            out.append("high")
-        return tuple(out)
-
-    def target(self, side: str) -> float:
-        """Where the rule's value goes, SI: a quarter of the band beyond a limit (15 % of the
-        limit when only one limit exists), or the middle of the band."""
-        low, high = self.low, self.high
-        if low is not None and high is not None:
-            span = high - low
-            return {"low": low - 0.25 * span, "in_range": (low + high) / 2, "high": high + 0.25 * span}[side]
-        limit = low if low is not None else high
-        assert limit is not None
-        step = 0.15 * abs(limit) if limit != 0 else 1.0
-        if low is not None:
-            return {"low": low - step, "in_range": low + step}[side]
-        return {"in_range": high - step, "high": high + step}[side]  # type: ignore[operator]
-
-    def value_at(self, free_si: float, together: bool = False) -> float:
-        """The rule's value with the free reading at ``free_si``; with ``together``, every reading
-        of the free one's kind moves with it (for min/max of two sides, which is piecewise)."""
-        env = dict(self.figures)
-        free_kind = next(n for n in self.needs if n.name == self.free).point.kind
-        for need in self.needs:
-            nominal = si_of(need.point.kind, self.nominal[need.name])
-            moves = need.name == self.free or (together and need.point.kind is free_kind)
-            env[need.name] = free_si if moves else nominal
-        # A leakage normalised to the reference temperature (pump_case_drain_flow_at_ref) is
-        # read at that temperature here, so the viscosity ratio is exactly 1: the reading itself.
-        return float(self.rule.value.evaluate(env))
-
-    def readings_for(self, side: str) -> dict[str, float]:
-        """Canonical value of every reading the rule needs, its value landing on ``side``."""
-        free_need = next(n for n in self.needs if n.name == self.free)
-        x0 = si_of(free_need.point.kind, self.nominal[self.free])
-        step = abs(x0) * 0.1 if x0 != 0 else 1.0
-        for together in (False, True):
-            f0, f1, f2 = (self.value_at(x0 + k * step, together) for k in range(3))
-            slope = (f1 - f0) / step
-            if slope != 0 and math.isclose(f2 - f1, f1 - f0, rel_tol=1e-6, abs_tol=1e-12):
-                break
-        assert slope != 0 and math.isclose(f2 - f1, f1 - f0, rel_tol=1e-6, abs_tol=1e-12), (
-            f"{self.rule.id}: value is not linear in {self.free}; extend the scene builder"
-        )
-        x = x0 + (self.target(side) - f0) / slope
-        out = dict(self.nominal)
-        out[self.free] = canonical_of(free_need.point.kind, x)
-        if together:
-            for need in self.needs:
-                if need.point.kind is free_need.point.kind and need.name in self.rule.value.names:
-                    out[need.name] = canonical_of(need.point.kind, x)
-        return out
-
-    def visit(self, side: str) -> Visit:
-        values = self.readings_for(side)
-        b = VisitBuilder(self.profile, visit_id=f"scene-{self.rule.id}-{side}".replace("_", "-")[:40])
-        for need in self.needs:
-            b.add(need.point.id, values[need.name], need.state)
-        return b.build()
-
-
-def si_of(kind: Kind, canonical: float) -> float:
-    return si_value(quantity(kind, canonical))
-
-
-def canonical_of(kind: Kind, si: float) -> float:
-    if kind is Kind.TEMPERATURE:
-        return si - 273.15
-    return si / si_value(quantity(kind, 1.0))
-
-
-def _primary(points: Sequence[TestPoint], role: Role) -> TestPoint | None:
-    """Rules read a role at its first point in the circuit (findings.Evaluator)."""
-    return next((tp for tp in points if tp.role is role), None)
-
-
-def _state_for(point: TestPoint, allowed: Sequence[FunctionState], need_range: bool) -> FunctionState | None:
-    states = list(allowed) or list(FunctionState)
-    for s in states:
-        if point.expected_for(Condition(function=s)) is not None:
-            return s
-    return None if need_range else states[0]
-
-
-def _nominal(point: TestPoint, state: FunctionState) -> float:
-    """The middle of the point's expected range for the state (any range of the point if none)."""
-    rng = point.expected_for(Condition(function=state)) or (point.expected[0] if point.expected else None)
-    if rng is None:
-        raise NoScene(f"{point.id} has no expected range to take a nominal value from")
-    lo = to_canonical(rng.low, point.kind) if rng.low is not None else None
-    hi = to_canonical(rng.high, point.kind) if rng.high is not None else None
-    if lo is not None and hi is not None:
-        return (lo + hi) / 2
-    edge = lo if lo is not None else hi
-    assert edge is not None
-    return edge * 0.5 if hi is not None else edge * (0.5 if edge < 0 else 1.5)
-
-
-def _layout_bar(layout: ReliefLayout | str, settings: dict[str, float]) -> float:
-    """Full-flow pressure of a relief network: series settings add, the lowest parallel one
-    governs (field notes, [calc])."""
-    if isinstance(layout, str):
-        return settings[layout]
-    parts = [_layout_bar(m, settings) for m in layout.members()]
-    return sum(parts) if layout.series else min(parts)
-
-
-def deadhead_bar(circuit: Circuit) -> float:
-    """What a deadheaded pump reads with no return back pressure: each valve at full flow
-    (setting + override, the profile's definition of override), through the layout."""
-    settings = {
-        r.id: to_canonical(r.setting, Kind.PRESSURE)
-        + (to_canonical(r.override, Kind.PRESSURE) if r.override is not None else 0.0)
-        for r in circuit.reliefs
-    }
-    if circuit.relief_layout is not None:
-        return _layout_bar(circuit.relief_layout, settings)
-    return min(settings.values())
-
-
-def _figure(name: str, profile: MachineProfile, circuits: list[Circuit]) -> float:
-    if name in PARAMETERS:
-        for c in circuits:
-            if name in c.parameters:
-                return si_value(c.parameters[name])
-        raise NoScene(f"no circuit has '{name}'")
-    if name in MACHINE_FIGURES:
-        w = profile.test_window
-        return si_value(
-            {
-                "rated_speed": profile.rated_speed,
-                "rated_max_pressure": profile.rated_max_pressure,
-                "reference_oil_temperature": profile.reference_oil_temperature,
-                "test_oil_min": w.oil_min,
-                "test_oil_max": w.oil_max,
-                "speed_tolerance": Q_(w.speed_tolerance_pct, "percent"),
-            }[name]
-        )
-    if name == "relief_deadhead":
-        if len(circuits) != 1 or not circuits[0].reliefs:
-            raise NoScene("no relief layout")
-        return si_of(Kind.PRESSURE, deadhead_bar(circuits[0]))
-    if name == "cross_port_stall_expected":
-        # Setting plus the low side's charge (middle of the in-stroke charge range) when the
-        # setting is a differential (physics.closed_loop.cross_port_stall_reading).
-        setting = _figure("high_pressure_relief_setting", profile, circuits)
-        loop = circuits[0]
-        if loop.cross_port_relief_convention != "differential":
-            return setting
-        charge = _primary(loop.test_points, Role.CHARGE_PRESSURE)
-        if charge is None:
-            raise NoScene("no charge point")
-        return setting + si_of(Kind.PRESSURE, _nominal(charge, FunctionState.STALLED))
-    if name == "pump_theoretical_flow":
-        # No speed reading in a scene: the engine uses the rated speed (symbols.DERIVED).
-        return _figure("pump_displacement", profile, circuits) * si_value(profile.rated_speed)
-    raise NoScene(f"the scene builder does not know how to supply '{name}'")
-
-
-def _try_scene(rule: Rule, profile: MachineProfile, circuit: Circuit | None) -> Scene:
-    spec = rule.spec
-    circuits = list(profile.circuits) if circuit is None else [circuit]
-    points = [tp for c in circuits for tp in c.test_points]
-    needs: list[ReadingNeed] = []
-    figures: dict[str, float] = {}
-    for name in sorted(rule.names):
-        if name in SYMBOLS.readings:
-            role, fixed = SYMBOLS.readings[name]
-        elif name in DERIVED and DERIVED[name][1] and name != "cross_port_stall_expected":
-            (role,) = DERIVED[name][1]
-            fixed = None
-        else:
-            figures[name] = _figure(name, profile, circuits)
-            continue
-        point = _primary(points, role)
-        if point is None:
-            raise NoScene(f"no {role.value} point")
-        state = fixed or _state_for(point, spec.when, need_range=spec.limits == "expected")
-        if state is None:
-            raise NoScene(f"{point.id} has no expected range in {spec.when}")
-        needs.append(ReadingNeed(name, role, state, point))
-    if "cross_port_stall_expected" in rule.names:
-        # The expected port reading adds the low side's charge: the visit needs a charge reading
-        # at the stall too (its nominal value is the one _figure used).
-        point = _primary(points, Role.CHARGE_PRESSURE)
-        if point is None:
-            raise NoScene("no charge point")
-        needs.append(
-            ReadingNeed("charge_pressure_in_stalled", Role.CHARGE_PRESSURE, FunctionState.STALLED, point)
-        )
-    if not needs:
-        raise NoScene("the rule reads no test point")
-    nominal = {n.name: _nominal(n.point, n.state) for n in needs}
-    # A reference read beside the value (the case under a charge gauge) is never the free one.
-    free = min(n.name for n in needs if n.name in rule.value.names and n.name not in spec.zero_if_missing)
-    low = high = None
-    if spec.limits == "expected":
-        (need,) = [n for n in needs if n.name not in spec.zero_if_missing]
-        rng = need.point.expected_for(Condition(function=need.state))
-        assert rng is not None
-        low = si_value(rng.low) if rng.low is not None else None
-        high = si_value(rng.high) if rng.high is not None else None
-    else:
-        env = dict(figures)
-        for n in needs:
-            env[n.name] = si_of(n.point.kind, nominal[n.name])
-        low = float(rule.low.evaluate(env)) if rule.low is not None else None
-        high = float(rule.high.evaluate(env)) if rule.high is not None else None
-    hyps = hypothesis_keys(profile, knowledge().faults)
-    listed = set(spec.if_low) | set(spec.if_high)
-    # The faults the rule names in its scope (and in a circuit feeding it), and any fault that can
-    # spoil the rule's reading without being named (a gauge reading wrong, on a pressure rule).
-    healthy = table_likelihood(rule, "no_fault")
-    keys = tuple(
-        k
-        for k in hyps
-        if (fault_of(k) in listed or table_likelihood(rule, fault_of(k)) != healthy)
-        and (
-            circuit is None
-            or circuit_of(k) in (None, circuit.id)
-            or likelihood_for(rule, circuit.id, k, profile) != healthy
-        )
-    )
-    return Scene(rule, profile, circuit, tuple(needs), free, nominal, figures, low, high, keys)
-
-
-def scene_for(rule: Rule) -> Scene:
-    """The machine and circuit that exercise the rule best: the one where most of the faults it
-    names can occur (first such, demo machines before the bench rig)."""
-    best: Scene | None = None
-    reasons: list[str] = []
-    for profile in scene_profiles():
-        scopes: list[Circuit | None] = (
-            [None]
-            if rule.spec.machine_wide
-            else [c for c in profile.circuits if c.kind.value in rule.spec.circuits]
-        )
-        for circuit in scopes:
-            try:
-                scene = _try_scene(rule, profile, circuit)
-            except NoScene as why:
-                reasons.append(f"{profile.id}/{circuit.id if circuit else '*'}: {why}")
-                continue
-            if best is None or len(scene.listed_keys) > len(best.listed_keys):
-                best = scene
-    if best is None:
-        raise NoScene(f"rule '{rule.id}' fits no machine: " + "; ".join(reasons))
-    return best
-
-
 __all__ = [
     "BENCH_PROFILE_TOML",
     "DEMO_OPEN_VISIT",
     "PROFILES",
     "RULES",
     "VISITS",
-    "NoScene",
-    "Scene",
     "VisitBuilder",
     "bench_profile",
     "chilled",
-    "deadhead_bar",
     "diagnose_readings_only",
     "diagnose_sample",
     "finding",
@@ -674,7 +375,6 @@ __all__ = [
     "load_visit",
     "precise_gauge",
     "sample_visit_paths",
-    "scene_for",
     "table_likelihood",
     "with_readings",
 ]

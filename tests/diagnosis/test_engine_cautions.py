@@ -20,7 +20,6 @@ from diagnosis_helpers import (
     knowledge,
     library,
     sample_visit_paths,
-    scene_for,
     scene_profiles,
 )
 
@@ -151,7 +150,12 @@ def test_reading_at_any_high_pressure_demo_point_raises_fluid_injection(role: Ro
 
 
 def test_firing_rule_raises_the_cautions_it_lists() -> None:
-    scene = scene_for(next(r for r in knowledge().rules if r.id == "loop-a-stall"))
-    d = diagnose(scene.visit("low"), scene.profile, knowledge())
-    assert "relief-max-setting" in scene.rule.spec.cautions
-    assert _because(d, "relief-max-setting") == f"finding: {scene.rule.spec.title}"
+    # Fellborer loop A stalls at 350 bar, under its 390-415 bar (380 bar differential + charge,
+    # invented service data): the loop-a-stall rule fires low and raises its cautions.
+    rule = next(r for r in knowledge().rules if r.id == "loop-a-stall")
+    profile = library().get("tarnhollow-fellborer")
+    b = VisitBuilder(profile)
+    b.add("travel.loop_a", 350.0, FunctionState.STALLED)
+    d = diagnose(b.build(), profile, knowledge())
+    assert "relief-max-setting" in rule.spec.cautions
+    assert _because(d, "relief-max-setting") == f"finding: {rule.spec.title}"

@@ -1,10 +1,9 @@
 """Single-rule scenes with readings chosen by hand, each with the reason the value is low, normal or high
 for that demo machine (the machines' figures are invented demo data, used here as given numbers).
 
-Unlike tests/diagnosis/test_rules_every_rule.py, whose scene builder solves readings from each rule's
-own limits (so it shows only that the engine follows the rule file), these values were picked from the
-machine's service figures and the trade reasoning in the comments; a rule whose limits drifted away
-from what a technician would call low or high fails here.
+Like the scenes in tests/diagnosis/test_rules_every_rule.py (one per rule and side), these values
+were picked from the machine's service figures and the trade reasoning in the comments; a rule
+whose limits drifted away from what a technician would call low or high fails here.
 """
 
 from __future__ import annotations

@@ -7,6 +7,7 @@ from fieldkit.physics.accumulators import (
     check_precharge,
     delivered_volume,
     expected_precharge,
+    precharge_at_temperature,
     precharge_ratio,
 )
 from fieldkit.physics.common import Level, OutOfRangeError
@@ -74,3 +75,44 @@ def test_maximum_below_minimum_pressure_is_refused():
 def test_polytropic_exponent_outside_gas_range_is_refused():
     with pytest.raises(OutOfRangeError, match="polytropic exponent"):
         delivered_volume(q("10 L"), q("80 bar"), q("100 bar"), q("200 bar"), exponent=0.5)
+
+
+# --- precharge brought to the temperature its figure is stated at ---------------------------------
+# Ideal gas at constant volume (Gay-Lussac's law, p1/T1 = p2/T2 in absolute pressure and kelvin;
+# any physics textbook, e.g. the ideal gas law chapter; field notes [calc]). Standard atmosphere
+# 1.01325 bar (SI Brochure, 101 325 Pa); 0 °C = 273.15 K.
+
+
+def test_a_precharge_of_100_bar_at_20_c_reads_93_1_bar_at_0_c():
+    # (100 + 1.01325) · 273.15 / 293.15 − 1.01325
+    # = 101.01325 · 0.931776 − 1.01325 = 94.1217 − 1.01325 = 93.108 bar(g) [hand]
+    got = precharge_at_temperature(q("100 bar"), q("20 °C"), q("0 °C")).m_as("bar")
+    assert got == pytest.approx(93.108, abs=0.002)
+    # The gauge figure scaled by kelvin alone (100 · 273.15/293.15 = 93.18) is a different answer.
+    assert got != pytest.approx(93.178, abs=0.01)
+
+
+def test_a_cold_reading_is_brought_up_to_the_figures_20_c():
+    # Read 70 bar(g) at 5 °C; the figure is stated at 20 °C:
+    # (70 + 1.01325) · 293.15 / 278.15 − 1.01325 = 71.01325 · 1.053928 − 1.01325
+    # = 74.8429 − 1.01325 = 73.830 bar(g) [hand]
+    got = precharge_at_temperature(q("70 bar"), q("5 °C"), q("20 °C")).m_as("bar")
+    assert got == pytest.approx(73.830, abs=0.002)
+
+
+def test_warming_from_20_to_50_c_adds_about_ten_percent():
+    # Field notes: ≈ +10 % from 20 °C to 50 °C. (90 + 1.01325) · 323.15/293.15 − 1.01325
+    # = 91.01325 · 1.102337 − 1.01325 = 100.327 − 1.01325 = 99.314 bar(g) [hand]
+    got = precharge_at_temperature(q("90 bar"), q("20 °C"), q("50 °C")).m_as("bar")
+    assert got == pytest.approx(99.314, abs=0.002)
+
+
+def test_fahrenheit_temperatures_are_taken_in_kelvin_too():
+    # 68 °F = 20 °C and 32 °F = 0 °C exactly: the same 93.108 bar(g) as above [hand].
+    got = precharge_at_temperature(q("100 bar"), q("68 °F"), q("32 °F")).m_as("bar")
+    assert got == pytest.approx(93.108, abs=0.002)
+
+
+def test_a_temperature_below_absolute_zero_is_refused():
+    with pytest.raises(OutOfRangeError, match="absolute zero"):
+        precharge_at_temperature(q("100 bar"), q("-300 °C"), q("20 °C"))
