@@ -72,6 +72,12 @@ def print_diagnosis(
         findings.add_row(_t(f.verdict.label, VERDICT_STYLE[f.verdict]), _t(f.message))
     console.print(findings)
 
+    if result.pair_wins and result.pairs:
+        pair = result.pairs[0]
+        console.print(
+            _t("Two faults at once ", "bold"),
+            _t(f"({pair.probability:.0%}): {pair.display_title}; no single fault explains every finding."),
+        )
     faults = Table(title="Likely faults", title_justify="left")
     faults.add_column("%", justify="right")
     faults.add_column("fault")

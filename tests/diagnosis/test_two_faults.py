@@ -237,3 +237,24 @@ def test_a_drifting_cylinder_is_not_blamed_on_a_seal_in_the_pump_circuit_that_fe
     assert "load_holding_valve_leak@lift" in drift.evidence
     assert "load_holding_valve_leak@work" not in drift.evidence
     assert "cylinder_seal_bypass@work" not in drift.evidence
+
+
+def test_fieldkit_diagnose_prints_the_two_faults_and_its_json_lists_them(tmp_path, capsys) -> None:  # type: ignore[no-untyped-def]
+    import json
+    import re
+
+    from fieldkit.cli import main
+
+    visit, _profile, _d = _pebblerun_two_faults()
+    path = tmp_path / "visit.json"
+    path.write_text(visit.model_dump_json(), encoding="utf-8")  # type: ignore[attr-defined]
+    store = str(tmp_path / "visits.sqlite3")
+    assert main(["--store", store, "diagnose", str(path)]) == 0
+    text = re.sub(r"\s+", " ", capsys.readouterr().out)
+    assert "Two faults at once" in text and "no single fault explains every finding" in text
+    assert main(["--store", store, "diagnose", "--json", str(path)]) == 0
+    shown = json.loads(capsys.readouterr().out)["two_faults"][0]
+    assert {(f["id"], f["circuit"]) for f in shown["faults"]} == {
+        ("main_relief_low", "main"),
+        ("motor_worn", "belt"),
+    }
