@@ -10,7 +10,8 @@ from __future__ import annotations
 from enum import StrEnum
 from typing import Any, Literal
 
-from pydantic import Field, field_serializer, field_validator, model_validator
+from pydantic import Field, ValidationError, field_serializer, field_validator, model_validator
+from pydantic_core import InitErrorDetails, PydanticCustomError
 
 from fieldkit.model.base import SCHEMA_VERSION, Strict
 from fieldkit.model.condition import Condition, ConditionSpec, FunctionState
@@ -324,11 +325,23 @@ class MachineProfile(Strict):
         cids = [c.id for c in self.circuits]
         if len(set(cids)) != len(cids):
             raise ValueError("circuit ids must be unique")
-        for c in self.circuits:
+        for i, c in enumerate(self.circuits):
             if c.supplied_by is not None and (c.supplied_by == c.id or c.supplied_by not in cids):
-                raise ValueError(
-                    f"circuit '{c.id}' is supplied_by '{c.supplied_by}', which is not another circuit of "
-                    f"this machine (its circuits: {', '.join(cids)})"
+                # Raised with its own key so that the file's error points at the supplied_by line.
+                raise ValidationError.from_exception_data(
+                    "MachineProfile",
+                    [
+                        InitErrorDetails(
+                            type=PydanticCustomError(
+                                "supplied_by",
+                                "circuit '{circuit}' is supplied_by '{feed}', which is not another circuit "
+                                "of this machine (its circuits: {circuits})",
+                                {"circuit": c.id, "feed": c.supplied_by, "circuits": ", ".join(cids)},
+                            ),
+                            loc=("circuits", i, "supplied_by"),
+                            input=c.supplied_by,
+                        )
+                    ],
                 )
         return self
 

@@ -213,6 +213,8 @@ def test_a_circuit_supplied_by_an_unknown_circuit_is_refused_with_the_names_it_k
     assert 'supplied_by = "travl"' in text
     path = write(tmp_path, text)
     error = load_error(path, templates)
+    assert_points_at(error, path, line_of(text, 'supplied_by = "travl"'))
+    assert error.key == "circuits.1.supplied_by"
     assert "supplied_by 'travl'" in str(error) and "travel, boom" in str(error)
 
 
