@@ -12,7 +12,7 @@ from typing import Any
 from fieldkit.model.loading import Templates, profile_from_raw
 from fieldkit.model.parameters import PARAMETERS
 from fieldkit.model.parts import PART_LABELS
-from fieldkit.model.profile import ExpectedRange, MachineProfile
+from fieldkit.model.profile import Circuit, ExpectedRange, MachineProfile
 from fieldkit.model.ranges import compile_bound
 from fieldkit.model.roles import ROLES, Role
 from fieldkit.model.toml_writer import inline
@@ -48,6 +48,7 @@ def plan_lines(profile: MachineProfile, system: DisplaySystem = METRIC) -> list[
         for name, q in c.parameters.items():
             mark = f"  ({c.typical_parameters[name].split(':')[0]})" if name in c.typical_parameters else ""
             out.append(f"  {PARAMETERS[name][1]}: {format_value(q, system)}{mark}")
+        out.extend(f"  ! {note}" for note in relief_notes(c, system))
         for tp in c.test_points:
             where = f" — {tp.location}" if tp.location else ""
             out.append(f"  · {tp.label} [{tp.id}]{where}")
@@ -58,6 +59,39 @@ def plan_lines(profile: MachineProfile, system: DisplaySystem = METRIC) -> list[
                 out.append(f"      {when_words(rng)}: {range_words(rng, system)}{mark}")
                 out.append(f"        source: {rng.source}")
     return out
+
+
+def relief_notes(circuit: Circuit, system: DisplaySystem = METRIC) -> list[str]:
+    """What the figures say about which relief governs where (in parallel the lowest setting
+    governs): a steering relief at or above the pump's cut-off can never open, which is a fault
+    or a wrong figure; a port relief above the main relief is capped by it (the usual case, said
+    once so the plan's equal port ranges make sense)."""
+    p = circuit.parameters
+    notes: list[str] = []
+    steering, cutoff = p.get("steering_relief_setting"), p.get("compensator_setting")
+    if steering is not None and cutoff is not None and steering >= cutoff:
+        notes.append(
+            f"steering relief {format_value(steering, system)} is at or above the pump's cut-off "
+            f"{format_value(cutoff, system)}: it can never open and the cut-off governs the steering; "
+            "check the figure (a steering relief belongs below the cut-off)"
+        )
+    main = p.get("main_relief_setting")
+    if main is None:
+        return notes
+    capped = [
+        name.removeprefix("port_").removesuffix("_relief_setting").upper()
+        for name, q in p.items()
+        if name.startswith("port_")
+        and name.endswith("_relief_setting")
+        and q >= main
+        and any(tp.relief == f"port_{name[5:7]}" for tp in circuit.test_points)
+    ]
+    if capped:
+        notes.append(
+            f"port reliefs {', '.join(capped)} are set at or above the main relief "
+            f"{format_value(main, system)}: a stall at those ports reads the main relief, never their own"
+        )
+    return notes
 
 
 def skeleton(templates: Templates, chosen: list[str], machine_id: str, name: str) -> str:
@@ -152,4 +186,12 @@ def template_machine(templates: Templates, template_id: str) -> MachineProfile:
     return profile_from_raw(raw, templates, f"template {template_id}")
 
 
-__all__ = ["figures_used", "plan_lines", "range_words", "skeleton", "template_machine", "when_words"]
+__all__ = [
+    "figures_used",
+    "plan_lines",
+    "range_words",
+    "relief_notes",
+    "skeleton",
+    "template_machine",
+    "when_words",
+]

@@ -134,3 +134,20 @@ def test_a_template_relief_setting_that_is_not_a_pressure_names_its_file_and_key
     assert err.key == "reliefs.0.setting"
     assert err.line == 4  # the line of the reliefs list, where the inline table sits
     assert "a relief setting is a pressure" in err.detail
+
+
+def test_the_plan_says_which_ports_the_main_relief_caps(templates):
+    from fieldkit.model.machine_plan import plan_lines
+
+    # [calc] main 180 bar; port 2A at 150 bar is below it (reads its own), the others at the
+    # typical 200 bar are above it (read the main relief); section 3 is omitted.
+    m = _bank(
+        templates,
+        {"main_relief_setting": "180 bar", "port_2a_relief_setting": "150 bar"},
+        omit_test_points=["s3_a", "s3_b"],
+    )
+    notes = [line for line in plan_lines(m) if line.startswith("  ! ")]
+    assert notes == [
+        "  ! port reliefs 1A, 1B, 2B are set at or above the main relief 180 bar: a stall at those "
+        "ports reads the main relief, never their own"
+    ]

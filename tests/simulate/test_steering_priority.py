@@ -136,3 +136,13 @@ def test_a_machine_without_a_priority_valve_has_no_steering_fault():
         for k in keys
         if k.split("@")[0] in {"steering_relief_low", "steering_relief_high", "priority_valve_sticking"}
     }
+
+
+def test_the_plan_warns_of_a_steering_relief_figure_at_or_above_the_cut_off():
+    from fieldkit.model.machine_plan import relief_notes
+
+    # [calc] 240 bar ≥ 240 bar: at the cut-off counts (it could never open first); 230 bar does not.
+    at = _steering(steering_relief_setting="240 bar", compensator_setting="240 bar")
+    below = _steering(steering_relief_setting="230 bar", compensator_setting="240 bar")
+    assert any("at or above the pump's cut-off" in n for n in relief_notes(at.circuits[0]))
+    assert relief_notes(below.circuits[0]) == []
