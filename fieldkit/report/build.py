@@ -190,6 +190,13 @@ def _readings(visit: Visit, diagnosis: Diagnosis, uses: dict[str, GaugeUse]) -> 
         t.test_point: t.gauge_advice for t in diagnosis.next_tests if t.repeat and t.gauge_advice
     }
     rows = []
+    # A reading with no range of its own may still be judged, as part of a finding made of
+    # several readings (pump outlet minus LS signal: the load-sensing margin).
+    part_of: dict[str, Finding] = {}
+    for f in diagnosis.findings:
+        if len(set(f.readings)) > 1 and f.verdict in (Verdict.LOW, Verdict.HIGH, Verdict.IN_RANGE):
+            for rid in f.readings:
+                part_of.setdefault(rid, f)
     for i, c in enumerate(diagnosis.checks, start=1):
         band = None
         if c.value_num is not None and (c.low_num is not None or c.high_num is not None):
@@ -210,7 +217,9 @@ def _readings(visit: Visit, diagnosis: Diagnosis, uses: dict[str, GaugeUse]) -> 
                 gauge=one_line(c.gauge.split(":", 1)[0]),
                 verdict=c.verdict,
                 verdict_text=_VERDICT_TEXT[c.verdict],
-                remark=_remark(c, repeat_advice.get(c.test_point, ""), use, bool(share)),
+                remark=_remark(
+                    c, repeat_advice.get(c.test_point, ""), use, bool(share), part_of.get(c.reading_id)
+                ),
                 note=notes.get(c.reading_id, ""),
                 band=band,
                 low_share=share,
@@ -236,7 +245,9 @@ def _low_share(c: ReadingCheck, use: GaugeUse) -> str:
     return f"{100.0 * c.uncertainty_num * _RECTANGULAR / abs(c.value_num):.0f} %"
 
 
-def _remark(c: ReadingCheck, repeat_advice: str, use: GaugeUse, share_shown: bool) -> str:
+def _remark(
+    c: ReadingCheck, repeat_advice: str, use: GaugeUse, share_shown: bool, part_of: Finding | None = None
+) -> str:
     """What a technician should know or do about one reading, in a sentence or two.
 
     A gauge too small for its point (overranged, or past EN 837-2's share of its scale) is said
@@ -254,6 +265,11 @@ def _remark(c: ReadingCheck, repeat_advice: str, use: GaugeUse, share_shown: boo
             plain(repeat_advice)
             if repeat_advice
             else "Repeat it with a gauge of smaller full scale or better accuracy class."
+        )
+    elif c.verdict is Verdict.NOT_MEASURED and part_of is not None:
+        parts.append(
+            f"No range of its own in this condition: it counts in {plain(part_of.title)}, "
+            f"{part_of.value}, {_VERDICT_TEXT[part_of.verdict]} (see Findings)."
         )
     elif c.verdict is Verdict.NOT_MEASURED:
         parts.append(

@@ -239,9 +239,26 @@ def _range_advice(
                 past_share[label] = (work, fluctuating)
     if not (overranged or past_share or below):
         return ""
+
+    def suits(label: str) -> str:
+        """The smallest standard gauge for one point: its own readings and rating decide."""
+        mine = [(w, h, f) for lab, w, h, f in served if lab == label]
+        works = [w for w, _h, _f in mine if w >= 0]
+        peaks = [h for _w, h, _f in mine if h is not None]
+        try:
+            better = smallest_gauge(
+                Q_(max(works, default=0.0), unit("bar")),
+                Q_(max(peaks), unit("bar")) if peaks else None,
+                fluctuating=any(f for _w, _h, f in mine),
+            )
+        except FieldkitError:
+            return ""
+        return f" (a 0–{format_value(better, system, kind=Kind.PRESSURE)} gauge suits it)"
+
     parts = []
     if overranged:
-        reach = " and ".join(f"{label} can reach {bar(v)}" for label, v in overranged.items())
+        each = [f"{label} can reach {bar(v)}{suits(label)}" for label, v in overranged.items()]
+        reach = ", ".join(each[:-1]) + " and " + each[-1] if len(each) > 1 else each[0]
         parts.append(
             f"{reach} on this machine, at or past the end of its {format_value(g.full_scale, system)} "
             "scale: it would be overranged"
@@ -251,6 +268,7 @@ def _range_advice(
         kind = "fluctuating, a function moving" if fluctuating else "steady"
         parts.append(
             f"{label} read {bar(work)} ({kind}), above {word} of its scale ({on_dial(share * full)})"
+            f"{suits(label)}"
         )
     for label, work in below.items():
         parts.append(f"{label} read {bar(work)}, below the start of its scale")
@@ -264,18 +282,6 @@ def _range_advice(
         advice += f" EN 837-2 (from memory) keeps {rule}."
     if below:
         advice += " A reading below the scale needs a vacuum or compound gauge."
-    works = [w for _l, w, _h, _f in served if w >= 0]
-    peaks = [h for _l, _w, h, _f in served if h is not None]
-    try:
-        better = smallest_gauge(
-            Q_(max(works), unit("bar")) if works else Q_(0.0, unit("bar")),
-            Q_(max(peaks), unit("bar")) if peaks else None,
-            fluctuating=any(f for _l, _w, _h, f in served),
-        )
-        these = "these points" if len({label for label, *_rest in served}) > 1 else "this point"
-        advice += f" Use a 0–{format_value(better, system, kind=Kind.PRESSURE)} gauge for {these}."
-    except FieldkitError:
-        pass
     return advice
 
 

@@ -72,6 +72,16 @@ def test_the_sample_loaders_margin_reads_12_bar_low_before_and_24_bar_in_range_a
     flat = " ".join(pdf.split())
     assert "Load-sensing margin" in flat and "12 bar" in flat and "24 bar" in flat
     assert f"expected {BAND}" in " ".join(table.split())
+    # the two readings behind it have no range of their own under load: their rows say where
+    # they are judged, not "compare it with the maker's figure by hand"
+    flat_text = " ".join(text.split())
+    assert (
+        flat_text.count(
+            "No range of its own in this condition: it counts in Load-sensing margin (pump outlet minus LS "
+            "signal), 12 bar, LOW (see Findings)."
+        )
+        == 2
+    )
 
 
 def _loader_visit(bench: Workbench) -> str:
