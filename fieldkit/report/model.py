@@ -31,8 +31,8 @@ GENERAL_CAUTION_ID = "general"
 
 #: Explains the share printed after a gauge error, once per card.
 LOW_ON_SCALE_KEY = (
-    "A share after a gauge error, as in ±0.6 bar (6 %): read below a quarter of the gauge's "
-    "span, where its error is that share of the reading; a smaller range reads it better."
+    "A share in brackets after a gauge error, such as (6 %): the reading is below a quarter of "
+    "the gauge's span, where its error is that share of the reading; a smaller range reads it better."
 )
 
 
