@@ -8,6 +8,7 @@ from pathlib import Path
 from textual.widgets import Input, Select, SelectionList
 
 from fieldkit.cli import main
+from fieldkit.model.condition import FunctionState
 from fieldkit.session import Workbench
 from fieldkit.settings import user_profiles_dir
 from fieldkit.tui.app import make_app
@@ -78,6 +79,10 @@ async def test_a_machine_from_nothing_then_a_visit_readings_diagnosis_and_job_ca
             await wait_until(pilot, lambda: isinstance(app.screen, VisitScreen))
             screen = app.screen
             screen.select_point("closed_loop_drive.charge")
+            # Read in stroke, where the unticked flushing valve changes the range (chosen in the
+            # entry row's condition, as the technician would when the plan asks for neutral first).
+            screen.query_one("#function", Select).value = FunctionState.FULL_STROKE
+            await pilot.pause()
             screen.query_one("#value", Input).focus()
             await type_text(pilot, "19 bar")  # well below the charge relief
             await pilot.press("enter")
