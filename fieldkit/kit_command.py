@@ -30,7 +30,8 @@ def _item_options(p: argparse.ArgumentParser, *, required: bool) -> None:
     p.add_argument(
         "--span",
         required=required,
-        help="scale: '0..60 bar', '-1..15 bar' (compound), '-30..0 inHg' (vacuum), '0..150 L/min'",
+        help="scale, its two ends as the dial is marked: '0..60 bar', '-1..15 bar' (compound), "
+        "'30 inHg vac..0' or '-30..0 inHg' (vacuum), '0..150 L/min'",
     )
     p.add_argument(
         "--class",
@@ -67,7 +68,13 @@ def _fields(args: argparse.Namespace, decimal_comma: bool) -> dict[str, object]:
     if args.kind:
         out["kind"] = args.kind
     if args.span:
-        start, top = parse_span(args.span, decimal_comma)
+        try:
+            start, top = parse_span(args.span, decimal_comma)
+        except FieldkitError as exc:
+            raise FieldkitError(
+                f"--span {args.span!r}: {exc} (write the dial's ends, e.g. '0..60 bar', '-1..1.5 bar', "
+                "'30 inHg vac..0')"
+            ) from None
         out["scale_start"], out["full_scale"] = start, top
     for name in ("accuracy_class", "serial", "label"):
         if getattr(args, name) is not None:

@@ -121,6 +121,18 @@ def calibration_warning(gauge: Gauge | KitItem, on: dt.date) -> str:
     )
 
 
+_NUMBER = r"[-+]?[\d.,\s]+"
+
+
+def _bare_number(text: str) -> bool:
+    """A span end typed without its unit, to take the other end's."""
+    return re.fullmatch(_NUMBER, text) is not None
+
+
+def _unit_part(text: str) -> str:
+    return re.sub(rf"^{_NUMBER}", "", text)
+
+
 def parse_span(text: str, decimal_comma: bool = False) -> tuple[Quantity | None, Quantity]:
     """``'0..60 bar'``, ``'-1..15 bar'`` (compound), ``'-30..0 inHg'`` (vacuum), or ``'60 bar'``
     (from zero) → (start or None, full scale). The unit after the upper end serves both ends."""
@@ -128,12 +140,23 @@ def parse_span(text: str, decimal_comma: bool = False) -> tuple[Quantity | None,
     if ".." not in raw:
         return None, parse_value(raw, decimal_comma=decimal_comma).quantity
     low_text, high_text = (part.strip() for part in raw.split("..", 1))
-    high = parse_value(high_text, decimal_comma=decimal_comma).quantity
     try:
-        low = parse_value(low_text, decimal_comma=decimal_comma).quantity
+        high = parse_value(high_text, decimal_comma=decimal_comma).quantity
     except FieldkitError:
-        unit_text = re.sub(r"^[-+]?[\d.,\s]+", "", high_text)
-        low = parse_value(f"{low_text} {unit_text}", decimal_comma=decimal_comma).quantity
+        # A vacuum dial is marked from its far end ("30 inHg vac..0"): the unit may come first.
+        if not _bare_number(high_text):
+            raise
+        low = parse_value(low_text, decimal_comma=decimal_comma).quantity
+        high = parse_value(f"{high_text} {_unit_part(low_text)}", decimal_comma=decimal_comma).quantity
+    else:
+        try:
+            low = parse_value(low_text, decimal_comma=decimal_comma).quantity
+        except FieldkitError:
+            if not _bare_number(low_text):
+                raise
+            low = parse_value(f"{low_text} {_unit_part(high_text)}", decimal_comma=decimal_comma).quantity
+    if high.magnitude == 0:
+        high = abs(high)  # "0 inHg vac" is -0.0; the dial's end is plain 0
     if low.magnitude == 0 and kind_of(high) is not Kind.TEMPERATURE:
         return None, high
     return low, high
