@@ -18,7 +18,7 @@ from fieldkit.errors import FieldkitError
 from fieldkit.model.base import Strict
 from fieldkit.model.gauge import EN837_CLASSES, Gauge
 from fieldkit.model.quantity import AnyQuantity
-from fieldkit.units import Kind, Quantity, kind_of, parse_value
+from fieldkit.units import Q_, Kind, Quantity, kind_of, parse_value
 
 MAX_LABEL = 120
 
@@ -156,7 +156,7 @@ def parse_span(text: str, decimal_comma: bool = False) -> tuple[Quantity | None,
                 raise
             low = parse_value(f"{low_text} {_unit_part(high_text)}", decimal_comma=decimal_comma).quantity
     if high.magnitude == 0:
-        high = abs(high)  # "0 inHg vac" is -0.0; the dial's end is plain 0
+        high = Q_(0.0, high.units)  # "0 inHg vac" reads -0.0; the dial's end is plain 0
     if low.magnitude == 0 and kind_of(high) is not Kind.TEMPERATURE:
         return None, high
     return low, high
