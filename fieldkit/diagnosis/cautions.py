@@ -17,7 +17,7 @@ from fieldkit.model.condition import FunctionState
 from fieldkit.model.fitted import applies, part_fitted
 from fieldkit.model.profile import Circuit, TestPoint
 from fieldkit.model.roles import ROLES
-from fieldkit.units import format_value
+from fieldkit.units import METRIC, DisplaySystem, format_value
 
 #: A step with the drive engaged or stalled: the machine, or what the motor turns, can move.
 DRIVE_STATES = frozenset({FunctionState.FULL_STROKE, FunctionState.STALLED, FunctionState.UNDER_LOAD})
@@ -67,7 +67,9 @@ def situation_holds(w: CautionWhen, circuit: Circuit, point: TestPoint, function
     return not (w.positions and point.position not in w.positions)
 
 
-def _reason(c: Caution, circuit: Circuit, point: TestPoint, function: FunctionState) -> str | None:
+def _reason(
+    c: Caution, circuit: Circuit, point: TestPoint, function: FunctionState, system: DisplaySystem = METRIC
+) -> str | None:
     """Why the caution applies to this step, in a few words; None when it does not."""
     if point.role in c.roles:
         return f"{point.label}"
@@ -77,7 +79,11 @@ def _reason(c: Caution, circuit: Circuit, point: TestPoint, function: FunctionSt
         if situation_holds(w, circuit, point, function):
             if w.rated_at_least is not None:
                 rating = point.pressure_rating
-                return f"{point.label}, rated {format_value(rating)}" if rating is not None else point.label
+                return (
+                    f"{point.label}, rated {format_value(rating, system)}"
+                    if rating is not None
+                    else point.label
+                )
             if w.functions:
                 return f"{point.label}, {function.label}"
             return point.label
@@ -91,8 +97,10 @@ def cautions_for_step(
     function: FunctionState,
     *,
     include_general: bool = False,
+    system: DisplaySystem = METRIC,
 ) -> list[Raised]:
     """The cautions for taking this reading: named by the point, or raised by what the step does.
+    ``system`` gives the units of a rating named in the reason (the card's units, not always bar).
 
     A caution whose text stops the engine is replaced by its ``running_instead`` on a step that
     needs the engine running, so a step never tells the technician to do both. Worst first."""
@@ -107,7 +115,7 @@ def cautions_for_step(
             if include_general:
                 found.setdefault(c.id, Raised(c, "always"))
             continue
-        why = _reason(c, circuit, point, function)
+        why = _reason(c, circuit, point, function, system)
         if why is not None:
             found.setdefault(c.id, Raised(c, why))
     if engine_for(point) is Engine.RUNNING:

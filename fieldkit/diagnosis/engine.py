@@ -271,6 +271,7 @@ def _cautions(
     measured: list[Measured],
     findings: list[Finding],
     next_tests: list[NextTest],
+    system: DisplaySystem = METRIC,
 ) -> list[CautionNote]:
     """The cautions of every step taken, of the next test, and of the findings (diagnosis.cautions)."""
     notes: dict[str, CautionNote] = {}
@@ -305,7 +306,7 @@ def _cautions(
             for cid in action.cautions:
                 add(knowledge.cautions[cid], f"next test: {action.title.lower()}", circuit)
     for circuit, tp, state, why in steps:
-        for r in cautions_for_step(knowledge.cautions, circuit, tp, state):
+        for r in cautions_for_step(knowledge.cautions, circuit, tp, state, system=system):
             add(r.caution, f"{why} at {r.because}")
     order = {s.value: n for s, n in SEVERITY_RANK.items()}
     for cid in [cid for cid in notes if set(knowledge.cautions[cid].covered_by) & notes.keys()]:
@@ -334,7 +335,7 @@ def diagnose(
     two = rank_pairs(hyps, findings, logs, ranked)
     next_tests = suggest(evaluator, pairs, hyps, posterior, logs, actions=list(knowledge.actions.values()))
     checks = [check_reading(m, system, profile.test_window) for m in measured]
-    cautions = _cautions(knowledge, profile, measured, findings, next_tests)
+    cautions = _cautions(knowledge, profile, measured, findings, next_tests, system)
     if not measured:
         notes.append("no readings yet: the ranking shows the catalogue's priors")
     return Diagnosis(

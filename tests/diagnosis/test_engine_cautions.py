@@ -30,6 +30,7 @@ from fieldkit.model.loading import load_profile, load_templates
 from fieldkit.model.profile import MachineProfile
 from fieldkit.model.roles import ROLES, Role
 from fieldkit.model.visit import Visit
+from fieldkit.units import DisplaySystem
 
 #: A fictional two-point closed loop: no test point carries cautions of its own, so whatever is
 #: raised comes from the reading's role or condition.
@@ -121,6 +122,19 @@ def test_case_point_rated_10_bar_raises_fluid_injection_by_its_rating() -> None:
     # case point is rated 10 bar, so its rating raises the caution though its role is low-pressure.
     d = _one_reading(bare_loop(), "drive.case", 0.8, FunctionState.NEUTRAL)
     assert _because(d, "fluid-injection") == "reading taken at case pressure, rated 10 bar"
+
+
+def test_the_rating_that_raised_a_caution_is_named_in_the_units_of_the_diagnosis() -> None:
+    # A US card printed 'rated 10 bar' among psi figures. 10 bar = 1,000,000 Pa, and 1 psi =
+    # 6894.757 Pa (NIST SP 811, B.8): 1,000,000 / 6894.757 = 145.04 psi, shown as 145 psi;
+    # in SI 10 bar is 1 MPa (1 bar = 100 kPa by definition).
+    b = VisitBuilder(bare_loop())
+    b.add("drive.case", 0.8, FunctionState.NEUTRAL)
+    visit = b.build()
+    us = diagnose(visit, bare_loop(), knowledge(), DisplaySystem.named("us"))
+    assert _because(us, "fluid-injection") == "reading taken at case pressure, rated 145 psi"
+    si = diagnose(visit, bare_loop(), knowledge(), DisplaySystem.named("si"))
+    assert _because(si, "fluid-injection") == "reading taken at case pressure, rated 1 MPa"
 
 
 HIGH_PRESSURE_ROLES = [role for role, info in ROLES.items() if info.high_pressure]
