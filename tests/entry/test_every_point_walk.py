@@ -55,7 +55,6 @@ async def test_every_point_of_every_machine_takes_every_kind_of_input(walk_bench
     app = make_app(bench)
     seen: Counter[tuple[str, str]] = Counter()
     saved = 0
-    wrong: list[str] = []
     async with app.run_test(size=(120, 40)) as pilot:
         await pilot.pause()
         for profile in bench.library.profiles():
@@ -95,6 +94,5 @@ async def test_every_point_of_every_machine_takes_every_kind_of_input(walk_bench
             app.pop_screen()
             await pilot.pause()
         assert app.is_running and app.crash is None
-    assert not wrong, "\n".join(wrong)
     assert not logs_dir().exists() or not any(logs_dir().iterdir()), "the edge guard had to catch an error"
     print(f"\nwalked {len(points)} points, typed {sum(seen.values())} inputs, saved {saved}: {dict(seen)}")
