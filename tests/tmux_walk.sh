@@ -50,8 +50,8 @@ clear_field() {  # backspaces, not ctrl+u: keys typed right after ctrl+u were se
     keys End "${bs[@]}"
     wait_for "▕ e\.g\. " 20
 }
-current_point() {  # the step panel's heading ends with the point's id
-    screen | grep -oE "▕ [^▕▏]*  [a-z0-9_-]+\.[a-z0-9_-]+ *▏" | head -1 | grep -oE "[a-z0-9_-]+\.[a-z0-9_-]+ *▏" | tr -d " ▏"
+current_point() {  # the step panel's heading ends with the point's id (on a line of its own when a long label wraps)
+    screen | grep -oE "▕ ([^▕▏]*  )?[a-z0-9_-]+\.[a-z0-9_-]+ *▏" | head -1 | grep -oE "[a-z0-9_-]+\.[a-z0-9_-]+ *▏" | tr -d " ▏"
 }
 
 points=0 inputs=0 saved=0 asked=0 refused=0
@@ -85,7 +85,9 @@ for machine in "${machines[@]}"; do
             # The line may still be the previous one (a 'saved' of the last value, or the refusal
             # shown while typing): give a loaded machine time to show this value's own answer.
             for ((i = 0; i < 40; i++)); do
-                scr=$(screen)
+                # the screen, then the step panel's text joined up: a long point label wraps the
+                # answer ("(nothing" / "saved)") over two lines of the panel
+                scr=$(screen; screen | grep -oE "▕[^▕▏]*▏" | tr -d "▕▏" | tr "\n" " " | tr -s " ")
                 grep -qF "saved $text" <<<"$scr" && break
                 grep -qE "value\?|unexpected problem|EXITED" <<<"$scr" && break
                 [ "$expect" = error ] && grep -qF "nothing saved" <<<"$scr" && break
