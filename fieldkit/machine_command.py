@@ -75,6 +75,13 @@ def run_machine(args: argparse.Namespace) -> int:
             f"{args.file}: machine '{profile.id}' is valid: {len(profile.circuits)} circuits, "
             f"{points} test points, {ranges} expected ranges"
         )
+        for c in profile.circuits:
+            if c.fitted_parts is None:
+                print(
+                    f"{args.file}: note: circuit '{c.id}' states no fitted_parts, so every optional "
+                    "part is assumed fitted (its points, faults and cautions all apply); list the parts "
+                    "it has, or fitted_parts = [] for none"
+                )
         return 0
     if action == "show":
         for line in plan_lines(_profile(args)):

@@ -223,3 +223,23 @@ def test_check_passes_a_valve_bank_that_lists_its_port_reliefs(
     path.write_text(text, encoding="utf-8")
     code, _out, err = run(capsys, "machine", "check", str(path))
     assert code == 0, err
+
+
+def test_check_and_show_say_when_a_circuit_states_no_parts(
+    capsys: pytest.CaptureFixture[str], tmp_path: Path
+) -> None:
+    # A circuit with no fitted_parts list is taken to have every optional part (no caution lost),
+    # and the technician is told so; a stated list, even an empty one, draws no note.
+    unstated = GOOD.replace('fitted_parts = ["cross_port_reliefs"]\n', "")
+    path = tmp_path / "yard-crane.toml"
+    path.write_text(unstated, encoding="utf-8")
+    code, out, _ = run(capsys, "machine", "check", str(path))
+    assert code == 0
+    assert "circuit 'slew' states no fitted_parts, so every optional part is assumed fitted" in out
+    user_profiles_dir().mkdir(parents=True, exist_ok=True)
+    (user_profiles_dir() / "yard-crane.toml").write_text(unstated, encoding="utf-8")
+    code, out, _ = run(capsys, "machine", "show", "yard-crane")
+    assert "parts fitted: not stated, so every optional part is assumed fitted" in out
+    path.write_text(GOOD.replace('["cross_port_reliefs"]', "[]"), encoding="utf-8")
+    code, out, _ = run(capsys, "machine", "check", str(path))
+    assert code == 0 and "note:" not in out

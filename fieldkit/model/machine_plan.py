@@ -45,6 +45,8 @@ def plan_lines(profile: MachineProfile, system: DisplaySystem = METRIC) -> list[
         if c.fitted_parts is not None:
             fitted = ", ".join(PART_LABELS[p] for p in c.fitted_parts) or "none of the optional parts"
             out.append(f"  parts fitted: {fitted}")
+        else:
+            out.append("  parts fitted: not stated, so every optional part is assumed fitted")
         for name, q in c.parameters.items():
             mark = f"  ({c.typical_parameters[name].split(':')[0]})" if name in c.typical_parameters else ""
             out.append(f"  {PARAMETERS[name][1]}: {format_value(q, system)}{mark}")

@@ -228,7 +228,7 @@ class Circuit(Strict):
     test_points: list[TestPoint] = Field(default_factory=list)
     fitted_parts: list[Part] | None = Field(
         default=None,
-        description="optional parts fitted to this circuit; unset means the template's usual parts",
+        description="optional parts fitted to this circuit; unset means every part is assumed fitted",
     )
 
     def has_part(self, part: Part) -> bool:
