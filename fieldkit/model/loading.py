@@ -72,6 +72,16 @@ class CircuitTemplate(Strict):
     reliefs: list[Relief] = Field(default_factory=list)
     relief_layout: ReliefLayout | None = None
     test_points: list[TestPoint] = Field(min_length=1)
+    #: The points of each repeated section (a valve bank's work sections), in order. A machine with
+    #: fewer sections omits the later ones' points; one with more adds a second circuit.
+    sections: list[list[str]] = Field(default_factory=list)
+
+    def sections_fitted(self, omitted: list[str]) -> int:
+        """How many sections a circuit has: those before the first whose points are all omitted."""
+        for n, points in enumerate(self.sections):
+            if set(points) <= set(omitted):
+                return n
+        return len(self.sections)
 
 
 #: Machine figures used only to check that a template's expressions give valid ranges.
@@ -212,6 +222,16 @@ def load_templates(folder: Path) -> Templates:
                     f"test point '{tp.id}' is on part '{tp.part.value}', not in this template's parts",
                     line_for(lines, ("test_points", i, "part")),
                     f"test_points.{i}.part",
+                )
+        known = {tp.id.split(".")[-1] for tp in tmpl.test_points}
+        for n, section in enumerate(tmpl.sections):
+            unknown = [p for p in section if p not in known] or ([] if section else ["(none)"])
+            if unknown:
+                raise DataFileError(
+                    str(path),
+                    f"section {n + 1} names {', '.join(unknown)}, not a test point of this template",
+                    line_for(lines, ("sections",)),
+                    f"sections.{n}",
                 )
         if tmpl.id in out:
             raise DataFileError(str(path), f"template id '{tmpl.id}' is already used by another file")

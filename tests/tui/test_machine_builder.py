@@ -184,3 +184,63 @@ async def test_an_edited_machine_keeps_the_comments_written_in_its_file(tmp_path
         "# the plate on the valve says so",
     ):
         assert comment in text, comment
+
+
+async def test_a_two_section_valve_bank_lists_no_section_3_point_and_reloads_the_same(tmp_path: Path) -> None:
+    # The valve-bank template writes out three work sections (s1_a … s3_b); this bank has two.
+    bench = Workbench.open(tmp_path / "visits.sqlite3", demo=False)
+    app = make_app(bench, demo=False)
+    try:
+        async with app.run_test() as pilot:  # 80×24
+            await pilot.pause()
+            await pilot.press("m")
+            await wait_until(pilot, lambda: isinstance(app.screen, MachineBuilderScreen))
+            form = app.screen
+            await type_text(pilot, "Yard sweeper")
+            await pilot.press("tab", "tab")
+            await type_text(pilot, "2000 rpm")
+            await pilot.press("tab")
+            await type_text(pilot, "200 bar")
+            form.query_one("#template", Select).value = "open_centre_sections"
+            await pilot.press("ctrl+n")
+            await wait_until(pilot, lambda: form.query("#c-sections"))
+            sections = form.query_one("#c-sections", Input)
+            assert sections.value == "3"  # the template's three until told otherwise
+            assert form.profile is not None
+            assert any(tp.id.endswith(".s3_a") for tp in form.profile.circuits[0].test_points)
+            sections.focus()
+            await pilot.press("backspace")
+            await type_text(pilot, "4")  # more than one bank holds: said, and nothing changes
+            await pilot.pause()
+            assert "type a number from 1 to 3, not '4'" in static_text(form.query_one("#builder-error"))
+            assert "omit_test_points" not in form.raw["circuits"][0]
+            await pilot.press("backspace")
+            await type_text(pilot, "2")
+            await wait_until(pilot, lambda: "omit_test_points" in form.raw["circuits"][0])
+            ids = {tp.id.split(".")[-1] for tp in form.profile.circuits[0].test_points}
+            assert {"s1_a", "s1_b", "s2_a", "s2_b"} <= ids and not {"s3_a", "s3_b"} & ids
+            plan = static_text(form.query_one("#circuit-plan"))
+            assert "section 2 port B" in plan and "section 3" not in plan
+            await pilot.press("ctrl+s")
+            await wait_until(pilot, lambda: isinstance(app.screen, NewVisitScreen))
+            await pilot.press("escape")
+            await wait_until(pilot, lambda: isinstance(app.screen, StartScreen))
+            # Opened again for editing, the builder reads two sections back from the file.
+            app.screen.query_one("#machines").focus()
+            await pilot.press("e")
+            await wait_until(pilot, lambda: isinstance(app.screen, MachineBuilderScreen))
+            await wait_until(pilot, lambda: app.screen.query("#c-sections"))
+            assert app.screen.query_one("#c-sections", Input).value == "2"
+    finally:
+        bench.close()
+    saved = user_profiles_dir() / "yard-sweeper.toml"
+    raw = tomllib.loads(saved.read_text(encoding="utf-8"))
+    assert raw["circuits"][0]["omit_test_points"] == ["s3_a", "s3_b"]
+    assert main(["machine", "check", str(saved)]) == 0
+    bench = Workbench.open(tmp_path / "visits.sqlite3", demo=False)
+    try:
+        reloaded = {tp.id for tp in bench.library.get("yard-sweeper").circuits[0].test_points}
+    finally:
+        bench.close()
+    assert form.profile is not None
+    assert reloaded == {tp.id for tp in form.profile.circuits[0].test_points}

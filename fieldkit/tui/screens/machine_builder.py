@@ -209,6 +209,13 @@ class MachineBuilderScreen(FieldkitScreen):
         widgets.append(Label(literal(f"Circuit {self.current + 1}: {tmpl.name}"), classes="section-title"))
         form = Grid(classes="form")
         rows: list[Any] = [Label("Name"), Input(circuit.get("name", ""), id="c-name", compact=True)]
+        if tmpl.sections:
+            most = len(tmpl.sections)
+            have = tmpl.sections_fitted(list(circuit.get("omit_test_points", [])))
+            rows.append(Label("Sections"))
+            rows.append(
+                Input(str(have), placeholder=f"1 to {most}", id="c-sections", compact=True, max_length=2)
+            )
         given = circuit.get("parameters", {})
         for name in figures_used(raw):
             _kind, label = PARAMETERS[name]
@@ -259,6 +266,36 @@ class MachineBuilderScreen(FieldkitScreen):
         if circuit is not None:
             circuit["name"] = event.value.strip() or circuit["id"]
             self._show_circuits()
+
+    @on(Input.Changed, "#c-sections")
+    def _sections(self, event: Input.Changed) -> None:
+        """How many work sections the bank has: the later sections' points are omitted."""
+        event.stop()
+        circuit = self._circuit()
+        if circuit is None or circuit.get("template") not in self.templates:
+            return
+        tmpl, _raw = self.templates[circuit["template"]]
+        most = len(tmpl.sections)
+        text = event.value.strip()
+        count = int(text) if text.isdigit() else 0
+        if not 1 <= count <= most:
+            event.input.set_class(True, "-invalid")
+            self.query_one("#builder-error", Static).update(
+                literal(
+                    f"✗ sections: type a number from 1 to {most}, not '{text}'; for more, add a second "
+                    "circuit from this template"
+                )
+            )
+            return
+        event.input.set_class(False, "-invalid")
+        section_points = {p for points in tmpl.sections for p in points}
+        kept = [p for p in circuit.get("omit_test_points", []) if p not in section_points]
+        omitted = kept + [p for points in tmpl.sections[count:] for p in points]
+        if omitted:
+            circuit["omit_test_points"] = omitted
+        else:
+            circuit.pop("omit_test_points", None)
+        self._refresh_plan()
 
     @on(Input.Changed)
     def _figure_or_place(self, event: Input.Changed) -> None:
