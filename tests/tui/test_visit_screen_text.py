@@ -4,6 +4,8 @@ not fail them, and a missing key hint or caution does)."""
 
 from __future__ import annotations
 
+import re
+
 from fieldkit.tui.screens.visit import VisitScreen
 from fieldkit.units import percent
 
@@ -31,6 +33,9 @@ async def test_visit_screen_at_80_by_24_shows_plan_step_entry_cautions_and_every
         assert "RHS-25-0301" in lines[0] and "open" in lines[0] and "4 readings" in lines[0]
         nxt = screen.diagnosis.next_tests[0]
         assert lines[1].startswith(f" NEXT → {nxt.label}")
+        # The next test is told in minutes; the ranking's information measure is no word for the
+        # person at the machine (issue 11: no "bits", the next test in minutes and plain words).
+        assert "min" in lines[1] and not re.search(r"\bbits?\b", lines[1])
         top = screen.diagnosis.faults[0]
         assert (
             lines[2].startswith(" LIKELY ▸") and f"{percent(top.probability)} {top.display_title}" in lines[2]

@@ -46,11 +46,8 @@ def next_line(next_test: NextTest | None, closed: bool) -> Text:
         return out
     verb = "repeat " if next_test.repeat else ""
     out.append_text(literal(f"{verb}{next_test.label}", "bold"))
-    out.append_text(
-        literal(
-            f" · {next_test.condition} · about {next_test.minutes:g} min · {next_test.gain_bits:.2f} bits"
-        )
-    )
+    # Minutes, not the ranking's information measure: the diagnosis screen's "why" keeps that.
+    out.append_text(literal(f" · {next_test.condition} · about {next_test.minutes:g} min"))
     return out
 
 
