@@ -24,6 +24,7 @@ from fieldkit.diagnosis.findings import EVIDENCE_WEIGHT
 from fieldkit.diagnosis.results import Diagnosis, Finding, Verdict
 from fieldkit.diagnosis.rulepack import Rule
 from fieldkit.model.condition import Condition, FunctionState
+from fieldkit.model.fitted import applies
 from fieldkit.model.gauge import Gauge
 from fieldkit.model.loading import ProfileLibrary, load_profile, load_templates
 from fieldkit.model.profile import MachineProfile
@@ -281,14 +282,17 @@ def finding(d: Diagnosis, rule_id: str, circuit: str | None) -> Finding:
 
 def hypothesis_keys(profile: MachineProfile, faults: dict[str, Fault]) -> dict[str, float]:
     """Single-fault hypotheses and normalised priors, as the ranking's docstring states them:
-    'no fault', each machine-wide fault once, each circuit fault once per circuit it can occur in."""
+    'no fault', each machine-wide fault once, each circuit fault once per circuit it can occur in
+    and whose part (``needs``) is fitted there (README, "Parts": faults for parts not fitted never
+    appear)."""
     priors: dict[str, float] = {}
     for fault in faults.values():
         if "*" in fault.circuits:
-            priors[fault.id] = fault.prior
+            if applies(fault.needs, None, profile):
+                priors[fault.id] = fault.prior
         else:
             for c in profile.circuits:
-                if c.kind.value in fault.circuits:
+                if c.kind.value in fault.circuits and applies(fault.needs, c):
                     priors[f"{fault.id}@{c.id}"] = fault.prior
     total = sum(priors.values())
     return {k: p / total for k, p in priors.items()}

@@ -15,7 +15,7 @@ from fieldkit.model.profile import MachineProfile
 
 def fellborer(fitted: list[Part] | None) -> MachineProfile:
     """The demo drill rig (invented figures: charge relief 27 bar, flushing relief 22 bar), with
-    its travel loop's parts as given (None: every usual part, as the profile leaves it)."""
+    its travel loop's parts as given (None: the parts its profile states, a flushing valve among them)."""
     profile = library().get("tarnhollow-fellborer")
     if fitted is None:
         return profile

@@ -37,6 +37,7 @@ from fieldkit.diagnosis.engine import diagnose
 from fieldkit.diagnosis.results import Diagnosis, Verdict
 from fieldkit.diagnosis.rulepack import Rule
 from fieldkit.model.condition import FunctionState as S
+from fieldkit.model.fitted import applies
 from fieldkit.model.profile import MachineProfile
 
 RULES = {rule.id: rule for rule in knowledge().rules}
@@ -400,10 +401,19 @@ def _listed_keys(scene: Scene) -> tuple[str, ...]:
     rule, profile = scene.rule, scene.profile()
     listed = set(rule.spec.if_low) | set(rule.spec.if_high)
     healthy = table_likelihood(rule, "no_fault")
+    faults = knowledge().faults
+    circuits = {c.id: c for c in profile.circuits}
+
+    def fitted(key: str) -> bool:
+        """A fault whose part is not fitted in its circuit is never a hypothesis (model.fitted)."""
+        fault, _, where = key.partition("@")
+        return applies(faults[fault].needs, circuits.get(where), profile)
+
     return tuple(
         k
-        for k in hypothesis_keys(profile, knowledge().faults)
-        if (k.split("@")[0] in listed or table_likelihood(rule, k.split("@")[0]) != healthy)
+        for k in hypothesis_keys(profile, faults)
+        if fitted(k)
+        and (k.split("@")[0] in listed or table_likelihood(rule, k.split("@")[0]) != healthy)
         and (
             scene.circuit is None
             or "@" not in k
