@@ -760,6 +760,21 @@ def format_si_to_resolution(value: float, limit: float, kind: Kind, system: Disp
     return f"{number}{'' if spelling == '%' else ' '}{spelling}"
 
 
+#: Figures a limit is shown to. A maker's round 25 bar becomes 362.6 psi when converted; three
+#: figures (363 psi) is what a technician writes, and the rounding (at most 0.5 %) stays inside
+#: any gauge's limit of error, where a reading is called inconclusive anyway. common practice
+LIMIT_FIGURES = 3
+
+
+def format_magnitude(mag: float, significant: int = 4) -> str:
+    """A bare number rounded for reading: ``significant`` figures, but never rounding the
+    integer part (5656, not 5660) and no trailing zeros."""
+    number = f"{mag:.{_decimals(mag, significant)}f}"
+    if "." in number:
+        number = number.rstrip("0").rstrip(".")
+    return "0" if number in ("-0", "") else number
+
+
 def format_number(mag: float, spelling: str, significant: int = 4) -> str:
     """A magnitude already in the unit ``spelling`` names, rounded for reading."""
     return _with_unit(mag, spelling, significant, exact=False)
@@ -775,11 +790,7 @@ def _with_unit(mag: float, spelling: str, significant: int, exact: bool) -> str:
             positional = format(Decimal(number), "f")
             number = positional if len(positional) <= 24 else number
     else:
-        number = f"{mag:.{_decimals(mag, significant)}f}"
-        if "." in number:
-            number = number.rstrip("0").rstrip(".")
-        if number in ("-0", ""):
-            number = "0"
+        number = format_magnitude(mag, significant)
     sep = "" if spelling == "%" else " "
     return f"{number}{sep}{spelling}"
 

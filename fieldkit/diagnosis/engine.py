@@ -41,11 +41,13 @@ from fieldkit.physics.gauges import gauge_suitability
 from fieldkit.resources import rules_dir
 from fieldkit.units import (
     CANONICAL_UNIT,
+    LIMIT_FIGURES,
     METRIC,
     Q_,
     DisplaySystem,
     Kind,
     display_scale,
+    format_magnitude,
     format_value,
     to_canonical,
     unit,
@@ -84,12 +86,15 @@ def default_knowledge(folder: Path | None = None) -> Knowledge:
 
 
 def _range_text(low: float | None, high: float | None, unit: str) -> str:
+    def n(x: float) -> str:
+        return format_magnitude(x, LIMIT_FIGURES)
+
     if low is not None and high is not None:
-        return f"{low:.4g}–{high:.4g} {unit}"
+        return f"{n(low)}–{n(high)} {unit}"
     if low is not None:
-        return f"≥ {low:.4g} {unit}"
+        return f"≥ {n(low)} {unit}"
     if high is not None:
-        return f"≤ {high:.4g} {unit}"
+        return f"≤ {n(high)} {unit}"
     return "—"
 
 

@@ -32,6 +32,7 @@ from fieldkit.physics.closed_loop import cross_port_stall_reading
 from fieldkit.physics.fluid import grade
 from fieldkit.physics.reliefs import arrangement_for, deadhead
 from fieldkit.units import (
+    LIMIT_FIGURES,
     Q_,
     DisplaySystem,
     Kind,
@@ -557,7 +558,8 @@ class Evaluator:
         }.get(verdict, "")
         if not template:
             template = "{title}: {value} ± {uncertainty}, against {limits}."
-        message = fill(template, texts)
+        # Limits in words are rounded as a technician writes them; the finding keeps the full figures.
+        message = fill(template, {**texts, "low": texts["low_said"], "high": texts["high_said"]})
         if verdict is Verdict.INCONCLUSIVE:
             message += (
                 f" Too close to a limit to call with this gauge (P low {p_low:.0%}, P high {p_high:.0%})."
@@ -629,10 +631,13 @@ class Evaluator:
                 return f"{x:.2g} K"
             return show(x, significant=2)
 
+        def show_limit(x: float | None) -> str:
+            return show(x, significant=LIMIT_FIGURES)
+
         limits = (
-            f"{show(low)} to {show(high)}"
+            f"{show_limit(low)} to {show_limit(high)}"
             if low is not None and high is not None
-            else (f"at least {show(low)}" if low is not None else f"at most {show(high)}")
+            else (f"at least {show_limit(low)}" if low is not None else f"at most {show_limit(high)}")
         )
 
         def show_read(x: float) -> str:
@@ -645,8 +650,11 @@ class Evaluator:
             "title": rule.spec.title,
             "value": show_read(value),
             "uncertainty": show_spread(u) if u else "0",
+            # full figures: the why view and checks read the limit the engine used
             "low": show(low),
             "high": show(high),
+            "low_said": show_limit(low),
+            "high_said": show_limit(high),
             "limits": limits,
         }
 

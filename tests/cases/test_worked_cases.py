@@ -21,7 +21,7 @@ from fieldkit.diagnosis.results import Diagnosis
 from fieldkit.model.condition import Condition, FunctionState
 from fieldkit.model.gauge import Gauge
 from fieldkit.model.loading import ProfileLibrary
-from fieldkit.model.visit import Reading, Visit
+from fieldkit.model.visit import Observation, Reading, Visit
 from fieldkit.units import Q_, parse_quantity
 
 ROOT = Path(__file__).resolve().parents[2]
@@ -76,12 +76,19 @@ def _visit(case: dict[str, Any]) -> Visit:
                 taken_at=T0 + timedelta(minutes=4 * i),
             )
         )
+    # What the technician saw or heard (rules/observations.toml answers), where the case's
+    # reasoning rests on it.
+    seen = [
+        Observation(id=f"o{i:02d}", check=o["check"], answer=o["answer"], test_point=o.get("point"), at=T0)
+        for i, o in enumerate(case.get("observations", []), start=1)
+    ]
     return Visit(
         id=case["id"][:40],
         job_number="CASE-0001",
         machine=profile.id,
         gauges=list(used.values()),
         readings=readings,
+        observations=seen,
     )
 
 

@@ -167,3 +167,7 @@ def test_us_units_reach_the_conditions_and_the_limits(bench) -> None:
     assert "psi" in story_part and " bar" not in story_part.replace("Oil temperature", "")
     # 0.6 bar = 8.70 psi (NIST SP 811: 1 psi = 6894.757 Pa), to two figures.
     assert "±8.7 psi" in text
+    # The charge range in neutral, 25-29 bar from the maker's 27 bar ± 2 (demo profile), is
+    # 362.59-420.61 psi by the same factor; a limit is shown to three figures as a technician
+    # writes it, not to four as the converted float would print.
+    assert "363–421 psi" in text and "362.6" not in text
