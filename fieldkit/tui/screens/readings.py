@@ -12,6 +12,8 @@ with both) and ``x`` deletes it.
 
 from __future__ import annotations
 
+from collections.abc import Callable
+
 from rich.text import Text
 from textual.app import ComposeResult
 from textual.widgets import DataTable, Static
@@ -129,6 +131,20 @@ class ReadingsScreen(FieldkitScreen):
             return None
         return self.readings[table.cursor_row]
 
+    def _value_check(self, point: TestPoint) -> Callable[[str], str]:
+        """The live check of a corrected or moved value: what the point's own entry box would say."""
+
+        def check(text: str) -> str:
+            try:
+                self.bench.parse_for_point(point, text)
+            except AmbiguousInputError as exc:
+                return f"{exc} Type it without the separator (e.g. 2500 or 2.5)."
+            except FieldkitError as exc:
+                return str(exc)
+            return ""
+
+        return check
+
     def _standing(self) -> Reading | None:
         r = self._selected()
         if r is None:
@@ -149,15 +165,7 @@ class ReadingsScreen(FieldkitScreen):
             self._move(old)
             return
         point = self.point
-
-        def check(text: str) -> str:
-            try:
-                self.bench.parse_for_point(point, text)
-            except AmbiguousInputError as exc:
-                return f"{exc} Type it without the separator (e.g. 2500 or 2.5)."
-            except FieldkitError as exc:
-                return str(exc)
-            return ""
+        check = self._value_check(point)
 
         def corrected(text: str | None) -> None:
             if text is None:
@@ -229,15 +237,7 @@ class ReadingsScreen(FieldkitScreen):
             if index is None:
                 return
             target = targets[index]
-
-            def check(text: str) -> str:
-                try:
-                    self.bench.parse_for_point(target, text)
-                except AmbiguousInputError as exc:
-                    return f"{exc} Type it without the separator (e.g. 2500 or 2.5)."
-                except FieldkitError as exc:
-                    return str(exc)
-                return ""
+            check = self._value_check(target)
 
             def valued(text: str | None) -> None:
                 if text is not None:
